@@ -1,0 +1,5 @@
+"""``python -m sawplan`` runs the command line."""
+
+from sawplan.cli.app import main
+
+main()

@@ -1,0 +1,1 @@
+"""The thin Typer command line on top of the sawplan core."""

@@ -1,0 +1,84 @@
+"""The ``sawplan`` command: a thin layer that parses, calls the core, renders.
+
+Each command lives in its own module under ``sawplan.cli`` and exposes
+``register(app)``; this module only assembles them and runs the error boundary.
+"""
+
+from __future__ import annotations
+
+import importlib
+import sys
+
+import typer
+
+from sawplan import __version__
+
+HELP = """Plan band-saw work on metal stock.
+
+Choose the blade and settings, estimate cut time and weight, lay out cut lists
+from the stock on hand, and keep a log of what each blade really cut.
+
+\b
+Examples:
+  sawplan weigh 4140 round 60mm --length 1m
+  sawplan cut 304 round 7in
+  sawplan plan job.toml --sheet job.html
+  sawplan life
+
+Estimates only: the saw maker's manual, the blade maker's data, shop rules and
+local regulations govern.
+"""
+
+# command modules in the order they appear in --help
+COMMAND_MODULES = (
+    "sawplan.cli.cmd_weigh",
+    "sawplan.cli.cmd_materials",
+)
+
+app = typer.Typer(
+    name="sawplan",
+    help=HELP,
+    no_args_is_help=True,
+    add_completion=False,
+    rich_markup_mode=None,
+    pretty_exceptions_enable=False,
+    context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100},
+)
+
+
+def _version(value: bool) -> None:
+    if value:
+        print(f"sawplan {__version__}")
+        raise typer.Exit()
+
+
+@app.callback()
+def _root(
+    version: bool = typer.Option(
+        False, "--version", callback=_version, is_eager=True, help="Show the version and exit."
+    ),
+) -> None:
+    """Plan band-saw work on metal stock."""
+
+
+for _name in COMMAND_MODULES:
+    importlib.import_module(_name).register(app)
+
+
+def run(args: list[str]) -> int:
+    """Run the CLI without the boundary (tests use this through ``main``)."""
+    command = typer.main.get_command(app)
+    return int(command.main(args=args, prog_name="sawplan", standalone_mode=False) or 0)
+
+
+def main(argv: list[str] | None = None) -> None:
+    """Console-script entry point."""
+    from sawplan.cli.boundary import run_guarded
+
+    code = run_guarded(run, sys.argv[1:] if argv is None else argv)
+    sys.stdout.flush()
+    raise SystemExit(code)
+
+
+if __name__ == "__main__":  # pragma: no cover
+    main()

@@ -1,0 +1,133 @@
+"""One renderer: frozen result dataclasses become tables, JSON or CSV.
+
+Core results carry their units in their field names (``weight_kg``), so JSON is
+the dataclass itself.  Tables are plain text so they paste into e-mails and
+print on any terminal.
+"""
+
+from __future__ import annotations
+
+import csv
+import dataclasses
+import io
+import json
+import math
+from collections.abc import Iterable, Sequence
+from enum import Enum
+from typing import Any
+
+from sawplan import __version__
+
+JSON_SCHEMA_VERSION = 1
+
+
+def jsonable(obj: Any) -> Any:
+    """Turn dataclasses, enums, tuples and non-finite floats into plain JSON values."""
+    if dataclasses.is_dataclass(obj) and not isinstance(obj, type):
+        out = {}
+        for f in dataclasses.fields(obj):
+            if f.metadata.get("json") is False:
+                continue
+            out[f.name] = jsonable(getattr(obj, f.name))
+        extra = getattr(obj, "json_extra", None)
+        if callable(extra):
+            out.update({k: jsonable(v) for k, v in extra().items()})
+        return out
+    if isinstance(obj, Enum):
+        return obj.value
+    if isinstance(obj, dict):
+        return {str(k): jsonable(v) for k, v in obj.items()}
+    if isinstance(obj, list | tuple | set | frozenset):
+        return [jsonable(v) for v in obj]
+    if isinstance(obj, float):
+        return obj if math.isfinite(obj) else None
+    if hasattr(obj, "__fspath__"):
+        return str(obj)
+    return obj
+
+
+def to_json(obj: Any, *, kind: str) -> str:
+    """JSON text with a small envelope: what it is and which schema version."""
+    body = jsonable(obj)
+    if isinstance(body, dict):
+        payload = {"kind": kind, "schema": JSON_SCHEMA_VERSION, "sawplan": __version__, **body}
+    else:
+        payload = {"kind": kind, "schema": JSON_SCHEMA_VERSION, "sawplan": __version__, "items": body}
+    return json.dumps(payload, indent=2, ensure_ascii=False)
+
+
+_FORMULA_LEADS = ("=", "+", "-", "@", "\t", "\r")
+
+
+def safe_cell(value: Any) -> Any:
+    """Neutralise text a spreadsheet would run as a formula (numbers pass untouched)."""
+    if isinstance(value, str) and value.startswith(_FORMULA_LEADS):
+        try:
+            float(value)
+        except ValueError:
+            return "'" + value
+    return value
+
+
+def to_csv(headers: Sequence[str], rows: Iterable[Sequence[Any]]) -> str:
+    buf = io.StringIO()
+    writer = csv.writer(buf, lineterminator="\n")
+    writer.writerow([safe_cell(h) for h in headers])
+    for row in rows:
+        writer.writerow([safe_cell("" if v is None else v) for v in row])
+    return buf.getvalue()
+
+
+def table(
+    headers: Sequence[str],
+    rows: Iterable[Sequence[Any]],
+    *,
+    align: str | None = None,
+    title: str | None = None,
+) -> str:
+    """A plain aligned text table. ``align`` has one of l/r per column (numbers right)."""
+    body = [["" if v is None else str(v) for v in row] for row in rows]
+    cols = len(headers)
+    widths = [len(h) for h in headers]
+    for row in body:
+        for i, cell in enumerate(row[:cols]):
+            widths[i] = max(widths[i], len(cell))
+    if align is None:
+        align = "".join("r" if _looks_numeric(body, i) else "l" for i in range(cols))
+
+    def line(cells: Sequence[str]) -> str:
+        parts = []
+        for i, cell in enumerate(cells[:cols]):
+            parts.append(cell.rjust(widths[i]) if align[i] == "r" else cell.ljust(widths[i]))
+        return "  ".join(parts).rstrip()
+
+    out = []
+    if title:
+        out.append(title)
+    out.append(line(list(headers)))
+    out.append("  ".join("-" * w for w in widths))
+    out.extend(line(row) for row in body)
+    return "\n".join(out)
+
+
+def _looks_numeric(rows: list[list[str]], i: int) -> bool:
+    seen = False
+    for row in rows:
+        if i >= len(row) or row[i] in ("", "—"):
+            continue
+        head = row[i].split(" ")[0].replace(",", "").replace("×", "")
+        try:
+            float(head)
+            seen = True
+        except ValueError:
+            return False
+    return seen
+
+
+def key_values(pairs: Iterable[tuple[str, Any]], *, title: str | None = None) -> str:
+    """A two-column block of labelled values."""
+    pairs = [(k, "" if v is None else str(v)) for k, v in pairs]
+    width = max((len(k) for k, _ in pairs), default=0)
+    lines = [title] if title else []
+    lines += [f"{k.ljust(width)}  {v}" for k, v in pairs]
+    return "\n".join(lines)

@@ -1,0 +1,44 @@
+"""Shared fixtures: a CLI runner that goes through the real error boundary,
+and an environment that never touches the user's real files."""
+
+from __future__ import annotations
+
+import os
+from dataclasses import dataclass
+
+import pytest
+
+os.environ.setdefault("TYPER_USE_RICH", "0")
+os.environ.setdefault("_TYPER_FORCE_DISABLE_TERMINAL", "1")
+os.environ["COLUMNS"] = "100"
+
+
+@pytest.fixture(autouse=True)
+def _isolated_home(tmp_path_factory, monkeypatch):
+    home = tmp_path_factory.mktemp("home")
+    monkeypatch.setenv("SAWPLAN_HOME", str(home))
+    for var in ("SAWPLAN_DB", "SAWPLAN_MATERIALS", "SAWPLAN_SAWS", "SAWPLAN_DEBUG"):
+        monkeypatch.delenv(var, raising=False)
+    yield
+
+
+@dataclass
+class CliResult:
+    code: int
+    out: str
+    err: str
+
+
+@pytest.fixture
+def cli(capsys):
+    """Run ``sawplan ARGS`` in-process through the error boundary."""
+    from sawplan.cli.app import run
+    from sawplan.cli.boundary import run_guarded
+
+    def invoke(*args: str) -> CliResult:
+        capsys.readouterr()
+        code = run_guarded(run, list(args))
+        captured = capsys.readouterr()
+        return CliResult(code, captured.out, captured.err)
+
+    return invoke
