@@ -16,7 +16,7 @@ _CANDIDATES = (_HERE / "data", _HERE.parent / "data")
 def data_dir() -> Path:
     """The folder holding sawplan's packaged CSV/TOML tables."""
     for folder in _CANDIDATES:
-        if (folder / "materials.csv").is_file() or (folder / "pitches.csv").is_file():
+        if folder.is_dir():
             return folder
     return _CANDIDATES[-1]
 

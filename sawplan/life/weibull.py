@@ -142,7 +142,9 @@ def _check_inputs(
             f"must have one entry per life ({len(lives)}), got {len(flags)}", field="failed"
         )
     if not 0.0 < confidence < 1.0:
-        raise BadDataError(f"must be between 0 and 1 (exclusive), got {confidence}", "confidence")
+        raise BadDataError(
+            f"must be between 0 and 1 (exclusive), got {confidence}", field="confidence"
+        )
     for x, f in zip(lives, flags, strict=True):
         if not math.isfinite(x) or x < 0.0 or (f and x == 0.0):
             need = "greater than 0" if f else "0 or more"
@@ -192,7 +194,7 @@ class _Model:
         return self.loglik(shape, self.log_scale_u(shape))
 
     def score(self, shape: float) -> float:
-        """d(profile log-likelihood)/dβ divided by d; increasing in β, one root."""
+        """d(profile log-likelihood)/dβ divided by d; decreasing in β, so one root."""
         import numpy as np
 
         a = shape * self.log_u
