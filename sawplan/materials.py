@@ -1,0 +1,309 @@
+"""The materials catalogue: density, hardness and cutting data of common stock.
+
+The packaged table ``data/materials.csv`` carries a source beside every
+number (MH31, ASM, Kalpakjian, common practice, memory, derived).  A user may
+add or override materials with a CSV of the same columns, named by the
+argument of :func:`load_catalogue` or by the environment variable
+``SAWPLAN_MATERIALS`` (the argument wins).  Every row is validated on load, so
+the rest of the program can trust a :class:`Material`.
+
+Reference conditions of the cutting columns: bi-metal blade with coolant;
+band speed at 4 in (100 mm) width of cut; cutting rate at 100 mm width.
+"""
+
+from __future__ import annotations
+
+import csv
+import difflib
+import math
+import os
+from collections.abc import Iterator
+from dataclasses import dataclass
+from functools import lru_cache
+from pathlib import Path
+from types import MappingProxyType
+
+from sawplan.errors import BadDataError, NotFoundError
+from sawplan.paths import data_file
+
+ENV_VAR = "SAWPLAN_MATERIALS"
+CATALOGUE_ORIGIN = "catalogue"
+USER_SOURCE = "user file"
+
+GROUPS: tuple[str, ...] = (
+    "carbon-steel",
+    "alloy-steel",
+    "tool-steel",
+    "high-speed-steel",
+    "austenitic-stainless",
+    "martensitic-stainless",  # ferritic grades too
+    "ph-stainless",
+    "aluminium",
+    "copper-alloy",
+    "cast-iron",
+    "titanium",
+    "nickel-alloy",
+    "plastic",
+)
+
+# numeric column -> its source column
+NUMERIC_COLUMNS: dict[str, str] = {
+    "density_kg_m3": "density_source",
+    "hardness_hb": "hardness_source",
+    "band_speed_m_min": "band_speed_source",
+    "unit_energy_j_mm3": "unit_energy_source",
+    "cutting_rate_cm2_min": "cutting_rate_source",
+}
+TEXT_COLUMNS = ("uns", "standard", "notes")
+REQUIRED_COLUMNS = ("key", "designation", "group", *NUMERIC_COLUMNS, "work_hardens")
+ALL_COLUMNS = (
+    "key",
+    "designation",
+    "uns",
+    "standard",
+    "group",
+    *(col for pair in NUMERIC_COLUMNS.items() for col in pair),
+    "work_hardens",
+    "notes",
+)
+
+_YES = {"yes", "y", "true", "1"}
+_NO = {"no", "n", "false", "0"}
+
+
+@dataclass(frozen=True)
+class Material:
+    """One stock material; numbers in core units, each with its source text."""
+
+    key: str
+    designation: str
+    uns: str
+    standard: str
+    group: str
+    density_kg_m3: float
+    density_source: str
+    hardness_hb: float
+    hardness_source: str
+    band_speed_m_min: float  # bi-metal, coolant, 4 in width of cut
+    band_speed_source: str
+    unit_energy_j_mm3: float  # specific cutting energy at saw-tooth bites
+    unit_energy_source: str
+    cutting_rate_cm2_min: float  # bi-metal, coolant, 100 mm width
+    cutting_rate_source: str
+    work_hardens: bool
+    notes: str
+    origin: str  # "catalogue" or the user file's path
+
+    @property
+    def cutting_rate_mm2_min(self) -> float:
+        """The cutting rate in the core unit (mm²/min)."""
+        return self.cutting_rate_cm2_min * 100.0
+
+
+def normalise_key(key: str) -> str:
+    """Lookup form of a key: case, spaces, hyphens and underscores ignored.
+
+    So ``17-4 PH``, ``17-4ph`` and ``174PH`` all find the same material.
+    """
+    return "".join(ch for ch in key.casefold() if ch not in " -_\t")
+
+
+class Catalogue:
+    """Immutable set of materials looked up by key (case-insensitive) or UNS number.
+
+    Iterating yields the materials in table order (packaged rows first, user
+    additions after); ``keys()`` gives their keys as written.
+    """
+
+    def __init__(self, materials: list[Material] | tuple[Material, ...]):
+        by_key: dict[str, Material] = {}
+        for material in materials:
+            by_key[normalise_key(material.key)] = material
+        self._by_key = MappingProxyType(by_key)
+        by_uns: dict[str, Material] = {}
+        for material in by_key.values():
+            if material.uns:
+                by_uns.setdefault(normalise_key(material.uns), material)
+        self._by_uns = MappingProxyType(by_uns)
+
+    def get(self, key: str) -> Material:
+        """The material called ``key`` (or with that UNS number).
+
+        Raises NotFoundError naming the closest keys when there is none.
+        """
+        wanted = normalise_key(key)
+        found = self._by_key.get(wanted) or self._by_uns.get(wanted)
+        if found is not None:
+            return found
+        # swapped characters (4410 for 4140) first, then difflib's closest
+        swapped = [k for k in self._by_key if sorted(k) == sorted(wanted)]
+        close = difflib.get_close_matches(wanted, list(self._by_key), n=3, cutoff=0.6)
+        ranked = list(dict.fromkeys(swapped + close))[:3]
+        names = [self._by_key[c].key for c in ranked]
+        hint = "see `sawplan materials`"
+        if names:
+            hint = f"did you mean {_or_list(names)}? {hint}"
+        raise NotFoundError(f"unknown material '{key}'", field="material", hint=hint)
+
+    __getitem__ = get
+
+    def __contains__(self, key: object) -> bool:
+        if not isinstance(key, str):
+            return False
+        wanted = normalise_key(key)
+        return wanted in self._by_key or wanted in self._by_uns
+
+    def __iter__(self) -> Iterator[Material]:
+        return iter(self._by_key.values())
+
+    def __len__(self) -> int:
+        return len(self._by_key)
+
+    def keys(self) -> list[str]:
+        """Material keys as written in the tables, in table order."""
+        return [m.key for m in self._by_key.values()]
+
+    def groups(self) -> list[str]:
+        """Groups that have at least one material, in the canonical order."""
+        present = {m.group for m in self}
+        return [g for g in GROUPS if g in present]
+
+    def in_group(self, group: str) -> list[Material]:
+        """Materials of one group, in table order; unknown group is an error."""
+        if group not in GROUPS:
+            raise BadDataError(
+                f"unknown group '{group}'; expected one of {', '.join(GROUPS)}", field="group"
+            )
+        return [m for m in self if m.group == group]
+
+
+def _or_list(names: list[str]) -> str:
+    if len(names) == 1:
+        return names[0]
+    return f"{', '.join(names[:-1])} or {names[-1]}"
+
+
+def load_catalogue(user_csv: str | Path | None = None) -> Catalogue:
+    """The packaged catalogue, with a user file's rows added or overriding.
+
+    The user file is ``user_csv`` or else ``$SAWPLAN_MATERIALS``; a user row
+    whose key matches a packaged one replaces it.  Source columns may be left
+    out or blank in a user file: they default to "user file".
+    """
+    field = "materials file"
+    if user_csv is None:
+        user_csv = os.environ.get(ENV_VAR) or None
+        field = ENV_VAR
+    if user_csv is None:
+        return _packaged_catalogue()
+    path = Path(user_csv)
+    try:
+        user_rows = _read_table(path, label=str(user_csv), origin=str(user_csv), user=True)
+    except FileNotFoundError:
+        raise NotFoundError(f"no such file: {user_csv}", field=field) from None
+    merged = {normalise_key(m.key): m for m in _packaged_materials()}
+    for material in user_rows:
+        merged[normalise_key(material.key)] = material
+    return Catalogue(list(merged.values()))
+
+
+@lru_cache(maxsize=1)
+def _packaged_materials() -> tuple[Material, ...]:
+    path = data_file("materials.csv")
+    return tuple(_read_table(path, label=path.name, origin=CATALOGUE_ORIGIN, user=False))
+
+
+@lru_cache(maxsize=1)
+def _packaged_catalogue() -> Catalogue:
+    return Catalogue(_packaged_materials())
+
+
+def _read_table(path: Path, *, label: str, origin: str, user: bool) -> list[Material]:
+    """Read and validate one materials CSV (stdlib csv; UTF-8, BOM allowed).
+
+    A missing file raises FileNotFoundError for the caller to name.
+    """
+    try:
+        with path.open(newline="", encoding="utf-8-sig") as handle:
+            text_rows = list(csv.reader(handle))
+    except UnicodeDecodeError:
+        raise BadDataError("not a UTF-8 text file (save the CSV as UTF-8)", field=label) from None
+    except IsADirectoryError:
+        raise BadDataError("is a folder, expected a CSV file", field=label) from None
+    if not text_rows:
+        raise BadDataError("empty file, expected a header row of material columns", field=label)
+    header = [name.strip() for name in text_rows[0]]
+    needed = REQUIRED_COLUMNS if user else ALL_COLUMNS
+    missing = [col for col in needed if col not in header]
+    if missing:
+        raise BadDataError(f"missing columns: {', '.join(missing)}", field=label)
+
+    materials: list[Material] = []
+    first_line: dict[str, int] = {}
+    for line_no, cells in enumerate(text_rows[1:], start=2):
+        if not any(cell.strip() for cell in cells):
+            continue  # blank line
+        row = {name: (cells[i].strip() if i < len(cells) else "") for i, name in enumerate(header)}
+        material = _parse_row(row, where=f"{label} row {line_no}", origin=origin, user=user)
+        norm = normalise_key(material.key)
+        if norm in first_line:
+            raise BadDataError(
+                f"duplicate key '{material.key}' (first on row {first_line[norm]})",
+                field=f"{label} row {line_no}, key",
+            )
+        first_line[norm] = line_no
+        materials.append(material)
+    return materials
+
+
+def _parse_row(row: dict[str, str], *, where: str, origin: str, user: bool) -> Material:
+    def text(column: str, *, required: bool) -> str:
+        value = row.get(column, "")
+        if required and not value:
+            raise BadDataError("must not be empty", field=f"{where}, {column}")
+        return value
+
+    key = text("key", required=True)
+    group = text("group", required=True)
+    if group not in GROUPS:
+        raise BadDataError(
+            f"expected one of {', '.join(GROUPS)}, got '{group}'", field=f"{where}, group"
+        )
+    numbers: dict[str, float] = {}
+    sources: dict[str, str] = {}
+    for column, source_column in NUMERIC_COLUMNS.items():
+        numbers[column] = _positive(row.get(column, ""), field=f"{where}, {column}")
+        source = row.get(source_column, "")
+        if not source:
+            if not user:
+                raise BadDataError("must name a source", field=f"{where}, {source_column}")
+            source = USER_SOURCE
+        sources[source_column] = source
+    hardens = row.get("work_hardens", "").casefold()
+    if hardens not in _YES | _NO:
+        raise BadDataError(
+            f"expected yes or no, got '{row.get('work_hardens', '')}'",
+            field=f"{where}, work_hardens",
+        )
+    return Material(
+        key=key,
+        designation=text("designation", required=True),
+        uns=text("uns", required=False),
+        standard=text("standard", required=False),
+        group=group,
+        work_hardens=hardens in _YES,
+        notes=text("notes", required=False),
+        origin=origin,
+        **numbers,
+        **sources,
+    )
+
+
+def _positive(raw: str, *, field: str) -> float:
+    try:
+        value = float(raw)
+    except ValueError:
+        value = math.nan
+    if not (math.isfinite(value) and value > 0):
+        raise BadDataError(f"expected a positive number, got '{raw}'", field=field)
+    return value
