@@ -52,7 +52,12 @@ def to_json(obj: Any, *, kind: str) -> str:
     if isinstance(body, dict):
         payload = {"kind": kind, "schema": JSON_SCHEMA_VERSION, "sawplan": __version__, **body}
     else:
-        payload = {"kind": kind, "schema": JSON_SCHEMA_VERSION, "sawplan": __version__, "items": body}
+        payload = {
+            "kind": kind,
+            "schema": JSON_SCHEMA_VERSION,
+            "sawplan": __version__,
+            "items": body,
+        }
     return json.dumps(payload, indent=2, ensure_ascii=False)
 
 

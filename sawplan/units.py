@@ -16,7 +16,7 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass
-from enum import Enum
+from enum import StrEnum
 from functools import lru_cache
 from typing import TYPE_CHECKING
 
@@ -82,7 +82,10 @@ _VALUE = re.compile(
     rf"|(?P<fnum>\d+)/(?P<fden>\d+)"
     rf"|(?P<dec>{_NUMBER}))"
 )
-_UNIT = re.compile(r"\s*(?P<unit>[^\d\s.+\-][^\s]*)?")
+# a foot/inch mark is a whole unit by itself (so 1'6" reads as two terms)
+_UNIT = re.compile(r"\s*(?P<unit>''|['\"′″]|[^\d\s.+\-'\"′″][^\s'\"′″]*)?")
+# capitalised shop spellings that pint would read as other units (MM = megamolar)
+_UPPER_FOLD = {"MM", "CM", "IN", "FT", "KG", "LB", "LBS", "IN.", "FT.", "M/MIN", "FT/MIN", "MM/MIN"}
 
 _UNIT_ALIASES = {
     '"': "inch",
@@ -102,7 +105,7 @@ _UNIT_ALIASES = {
 }
 
 
-class UnitSystem(str, Enum):
+class UnitSystem(StrEnum):
     """Display system chosen with ``--units``."""
 
     US = "us"
@@ -114,6 +117,8 @@ def _a(word: str) -> str:
 
 
 def _normalise_unit(unit: str) -> str:
+    if unit.upper() == unit and unit in _UPPER_FOLD:
+        unit = unit.lower()
     unit = _UNIT_ALIASES.get(unit.lower(), unit) if unit.lower() in _UNIT_ALIASES else unit
     unit = unit.replace("²", "**2").replace("³", "**3").replace("^", "**")
     # "m2", "cm2/min", "in3" -> powers
@@ -169,7 +174,9 @@ def parse_quantity(
     ureg = registry()
     raw = str(text).strip()
     if not raw:
-        raise UsageError(f"expected {_a(dimension)}, got nothing", field=field, hint=_EXAMPLES[dimension])
+        raise UsageError(
+            f"expected {_a(dimension)}, got nothing", field=field, hint=_EXAMPLES[dimension]
+        )
     if len(raw) > 200:
         raise UsageError(f"expected {_a(dimension)}, got {len(raw)} characters", field=field)
     try:
@@ -181,7 +188,9 @@ def parse_quantity(
     total = None
     for value, unit in terms:
         if not math.isfinite(value):
-            raise UsageError(f"expected a finite {dimension.replace('_', ' ')}, got {raw!r}", field=field)
+            raise UsageError(
+                f"expected a finite {dimension.replace('_', ' ')}, got {raw!r}", field=field
+            )
         if not unit:
             if default_unit is None or len(terms) > 1:
                 raise UsageError(
@@ -203,12 +212,16 @@ def parse_quantity(
     return total
 
 
-def to_core(text: str | float | int, dimension: str, *, field: str, default_unit: str | None = None) -> float:
+def to_core(
+    text: str | float | int, dimension: str, *, field: str, default_unit: str | None = None
+) -> float:
     """Parse ``text`` and return a float in the core unit of ``dimension``."""
     q = parse_quantity(text, dimension, field=field, default_unit=default_unit)
     value = float(q.to(DIMENSIONS[dimension][1]).magnitude)
     if not math.isfinite(value):
-        raise UsageError(f"expected a finite {dimension.replace('_', ' ')}, got {text!r}", field=field)
+        raise UsageError(
+            f"expected a finite {dimension.replace('_', ' ')}, got {text!r}", field=field
+        )
     return value
 
 
@@ -234,7 +247,10 @@ DISPLAY: dict[str, dict[UnitSystem, tuple[str, float]]] = {
     "long_length": {UnitSystem.US: ("ft", 1 / _FT), UnitSystem.METRIC: ("m", 1e-3)},
     "area": {UnitSystem.US: ("in²", 1 / _IN**2), UnitSystem.METRIC: ("cm²", 1e-2)},
     "mass": {UnitSystem.US: ("lb", 1 / _LB), UnitSystem.METRIC: ("kg", 1.0)},
-    "mass_per_length": {UnitSystem.US: ("lb/ft", _FT / 1000 / _LB), UnitSystem.METRIC: ("kg/m", 1.0)},
+    "mass_per_length": {
+        UnitSystem.US: ("lb/ft", _FT / 1000 / _LB),
+        UnitSystem.METRIC: ("kg/m", 1.0),
+    },
     "time": {UnitSystem.US: ("min", 1.0), UnitSystem.METRIC: ("min", 1.0)},
     "speed": {UnitSystem.US: ("ft/min", 1000 / _FT), UnitSystem.METRIC: ("m/min", 1.0)},
     "feed": {UnitSystem.US: ("in/min", 1 / _IN), UnitSystem.METRIC: ("mm/min", 1.0)},

@@ -30,6 +30,7 @@ class WeighResult:
     advice: str
     caution: str
     lift: Handling = field(metadata={"json": False}, repr=False)
+    section_shape: object = field(default=None, metadata={"json": False}, repr=False)
 
 
 def mass_per_length_kg_m(area_mm2: float, density_kg_m3: float) -> float:
@@ -71,4 +72,5 @@ def weigh(
         advice=lift.advice,
         caution=lift.caution,
         lift=lift,
+        section_shape=section,
     )

@@ -39,7 +39,9 @@ def ref_mm(expr: str) -> float:
     ],
 )
 def test_length_spellings_match_pint(text, expected_expr):
-    assert to_core(text, "length", field="length") == pytest.approx(ref_mm(expected_expr), rel=1e-12)
+    assert to_core(text, "length", field="length") == pytest.approx(
+        ref_mm(expected_expr), rel=1e-12
+    )
 
 
 @pytest.mark.parametrize(
@@ -47,7 +49,9 @@ def test_length_spellings_match_pint(text, expected_expr):
     [
         pytest.param("200 ft/min", "speed", REF("200 ft/min").to("m/min").magnitude, id="sfm"),
         pytest.param("200 sfm", "speed", REF("200 ft/min").to("m/min").magnitude, id="sfm alias"),
-        pytest.param("12 in2/min", "rate", REF("12 in**2/min").to("mm**2/min").magnitude, id="in2/min"),
+        pytest.param(
+            "12 in2/min", "rate", REF("12 in**2/min").to("mm**2/min").magnitude, id="in2/min"
+        ),
         pytest.param("5m2", "area", REF("5 m**2").to("mm**2").magnitude, id="5m2"),
         pytest.param("800 in²", "area", REF("800 in**2").to("mm**2").magnitude, id="in²"),
         pytest.param("50 lb", "mass", REF("50 lb").to("kg").magnitude, id="lb"),
@@ -118,3 +122,17 @@ def test_display_formats_us_and_metric():
 def test_any_mm_value_round_trips(value):
     text = f"{value!r} mm"
     assert math.isclose(to_core(text, "length", field="x"), value, rel_tol=1e-12)
+
+
+@pytest.mark.parametrize(
+    ("text", "expected_expr"),
+    [
+        pytest.param("1'6\"", "1 foot + 6 inch", id="feet-inches no space"),
+        pytest.param("50MM", "50 mm", id="capital MM is millimetres"),
+        pytest.param("2 FT", "2 foot", id="capital FT"),
+    ],
+)
+def test_shop_capitals_and_tight_marks(text, expected_expr):
+    assert to_core(text, "length", field="length") == pytest.approx(
+        ref_mm(expected_expr), rel=1e-12
+    )

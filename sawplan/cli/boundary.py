@@ -60,7 +60,9 @@ def run_guarded(run: Callable[[list[str]], int | None], argv: Sequence[str]) -> 
     except OSError as err:
         if debug:
             raise
-        mapped = StorageError(_one_line(err.strerror or str(err)), field=getattr(err, "filename", None))
+        mapped = StorageError(
+            _one_line(err.strerror or str(err)), field=getattr(err, "filename", None)
+        )
         _say(f"error: {mapped.one_line()}")
         return int(mapped.exit_code)
     except Exception as err:  # the last line of defence: no traceback for users

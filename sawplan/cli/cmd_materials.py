@@ -25,7 +25,8 @@ def materials_command(
         str | None, typer.Argument(help="Show this one material in full.", show_default=False)
     ] = None,
     group: Annotated[
-        str | None, typer.Option("--group", "-g", help="Only this group, e.g. tool-steel.", show_default=False)
+        str | None,
+        typer.Option("--group", "-g", help="Only this group, e.g. tool-steel.", show_default=False),
     ] = None,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,

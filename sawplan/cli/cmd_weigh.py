@@ -30,19 +30,31 @@ def weigh_command(
     section: Annotated[
         list[str], typer.Argument(help="Shape and sizes, e.g. round 60mm.", show_default=False)
     ],
-    length: Annotated[str, typer.Option("--length", "-l", help="Length of one piece, e.g. 1m, 12ft, 300mm.")],
+    length: Annotated[
+        str, typer.Option("--length", "-l", help="Length of one piece, e.g. 1m, 12ft, 300mm.")
+    ],
     count: Annotated[int, typer.Option("--count", "-n", help="Number of pieces.")] = 1,
     reach: Annotated[
         str | None,
-        typer.Option("--reach", help="Hands' distance in front of the ankles at the lift (default 25cm).", show_default=False),
+        typer.Option(
+            "--reach",
+            help="Hands' distance in front of the ankles at the lift (default 25cm).",
+            show_default=False,
+        ),
     ] = None,
     lift_from: Annotated[
         str | None,
-        typer.Option("--lift-from", help="Height of the hands at the start of the lift (default 75cm).", show_default=False),
+        typer.Option(
+            "--lift-from",
+            help="Height of the hands at the start of the lift (default 75cm).",
+            show_default=False,
+        ),
     ] = None,
     travel: Annotated[
         str | None,
-        typer.Option("--travel", help="Vertical travel of the lift (default 25cm).", show_default=False),
+        typer.Option(
+            "--travel", help="Vertical travel of the lift (default 25cm).", show_default=False
+        ),
     ] = None,
     lifts_per_min: Annotated[
         float, typer.Option("--lifts-per-min", help="How often the lift is repeated.")
@@ -63,8 +75,12 @@ def weigh_command(
     length_mm = to_core(length, "length", field="length")
     defaults = LiftConditions()
     conditions = LiftConditions(
-        horizontal_cm=to_core(reach, "length", field="reach") / 10 if reach else defaults.horizontal_cm,
-        vertical_cm=to_core(lift_from, "length", field="lift-from") / 10 if lift_from else defaults.vertical_cm,
+        horizontal_cm=to_core(reach, "length", field="reach") / 10
+        if reach
+        else defaults.horizontal_cm,
+        vertical_cm=to_core(lift_from, "length", field="lift-from") / 10
+        if lift_from
+        else defaults.vertical_cm,
         travel_cm=to_core(travel, "length", field="travel") / 10 if travel else defaults.travel_cm,
         frequency_per_min=lifts_per_min,
     )
@@ -82,7 +98,7 @@ def render_weigh(r, units: UnitSystem) -> str:
     d = Display(units)
     pairs = [
         ("material", f"{r.material} ({r.designation})"),
-        ("section", r.section),
+        ("section", r.section_shape.label(units.value) if r.section_shape else r.section),
         ("metal area", d.fmt("area", r.area_mm2, 4)),
         ("mass per length", d.fmt("mass_per_length", r.mass_per_length_kg_m, 4)),
         ("piece length", d.fmt("length", r.length_mm, 4)),
@@ -91,12 +107,27 @@ def render_weigh(r, units: UnitSystem) -> str:
     if r.count > 1:
         pairs.append((f"{r.count} pieces", d.fmt("mass", r.lot_weight_kg, 3)))
     pairs += [
-        ("handling", f"{r.handling} (lifting index {r.lifting_index:.2f}, "
-         f"limit {d.fmt('mass', r.recommended_limit_kg, 3)})"),
-        ("", r.advice),
+        (
+            "handling",
+            f"{r.handling} (lifting index {r.lifting_index:.2f}, "
+            f"limit {d.fmt('mass', r.recommended_limit_kg, 3)})",
+        ),
+        ("", _advice(r, d)),
         ("caution", r.caution),
     ]
     return key_values(pairs)
+
+
+_WHO = {
+    "one-person": "one person can lift it close to the body at waist height",
+    "two-person": "a two-person lift, or a lift aid",
+    "lift-aid": "use a hoist, crane or lift table",
+}
+
+
+def _advice(r, d) -> str:
+    who = _WHO.get(r.handling, r.handling)
+    return f"{who}: one piece is {d.fmt('mass', r.weight_kg, 3)}"
 
 
 def register(app: typer.Typer) -> None:

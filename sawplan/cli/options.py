@@ -11,7 +11,9 @@ from sawplan.units import Display, UnitSystem
 
 UnitsOpt = Annotated[
     UnitSystem,
-    typer.Option("--units", "-u", help="Units to show: us (in, lb, ft/min) or metric (mm, kg, m/min)."),
+    typer.Option(
+        "--units", "-u", help="Units to show: us (in, lb, ft/min) or metric (mm, kg, m/min)."
+    ),
 ]
 JsonOpt = Annotated[bool, typer.Option("--json", help="Print JSON (keys carry their unit).")]
 CsvOpt = Annotated[bool, typer.Option("--csv", help="Print CSV instead of a table.")]
@@ -33,13 +35,22 @@ MaterialsFileOpt = Annotated[
 ]
 OrientOpt = Annotated[
     str | None,
-    typer.Option("--orient", "-o", help="How the work lies in the vise, e.g. flat, edge, corner.", show_default=False),
+    typer.Option(
+        "--orient",
+        "-o",
+        help="How the work lies in the vise, e.g. flat, edge, corner.",
+        show_default=False,
+    ),
 ]
 BundleOpt = Annotated[
     str | None,
-    typer.Option("--bundle", "-b", help="Cut a bundle ROWSxCOLS at once, e.g. 3x2.", show_default=False),
+    typer.Option(
+        "--bundle", "-b", help="Cut a bundle ROWSxCOLS at once, e.g. 3x2.", show_default=False
+    ),
 ]
-NestOpt = Annotated[bool, typer.Option("--nest", help="Rounds in a bundle nest into the row below.")]
+NestOpt = Annotated[
+    bool, typer.Option("--nest", help="Rounds in a bundle nest into the row below.")
+]
 
 DEFAULT_UNITS = UnitSystem.METRIC
 
