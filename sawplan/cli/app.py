@@ -31,6 +31,7 @@ local regulations govern.
 
 # command modules in the order they appear in --help
 COMMAND_MODULES = (
+    "sawplan.cli.cmd_cut",
     "sawplan.cli.cmd_weigh",
     "sawplan.cli.cmd_materials",
 )

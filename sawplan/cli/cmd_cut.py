@@ -1,0 +1,165 @@
+"""``sawplan cut``: which blade, how fast, how hard, how long — or what the fitted blade will do."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Annotated
+
+import typer
+
+from sawplan.cli.options import (
+    BundleOpt,
+    DbOpt,
+    JsonOpt,
+    MaterialsFileOpt,
+    NestOpt,
+    OrientOpt,
+    UnitsOpt,
+)
+from sawplan.units import UnitSystem
+
+HELP = """Choose the blade, band speed and feed for one cut, and time it.
+
+Without --blade-tpi it recommends a pitch, tooth form and set for the section;
+with it, it says what that blade will do instead (time, what limits it, what
+goes wrong) beside the recommendation.
+
+\b
+Examples:
+  sawplan cut 4140 round 7in
+  sawplan cut 304 round 250mm --saw large-column --chart
+  sawplan cut 304 round 250mm --blade-tpi 4/6
+  sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm --units us
+  sawplan cut 1018 tube 60mm 3mm --bundle 3x4 --json
+
+Estimates only: the saw maker's manual and the blade maker's data govern.
+"""
+
+DEFAULT_SAW = "mid-production"
+
+
+def cut_command(
+    material: Annotated[str, typer.Argument(help="Material key, e.g. 4140.", show_default=False)],
+    section: Annotated[
+        list[str], typer.Argument(help="Shape and sizes, e.g. round 7in.", show_default=False)
+    ],
+    saw: Annotated[
+        str, typer.Option("--saw", "-s", help="Saw profile (see `sawplan saw list`).")
+    ] = DEFAULT_SAW,
+    blade_tpi: Annotated[
+        str | None,
+        typer.Option(
+            "--blade-tpi", "-t", help="Evaluate this pitch, e.g. 3/4 or 6.", show_default=False
+        ),
+    ] = None,
+    band_speed: Annotated[
+        str | None,
+        typer.Option(
+            "--band-speed",
+            help="Run at this band speed, e.g. 60m/min (with --blade-tpi).",
+            show_default=False,
+        ),
+    ] = None,
+    dry: Annotated[bool, typer.Option("--dry", help="Cut without coolant.")] = False,
+    blade_material: Annotated[
+        str, typer.Option("--blade-material", help="bi-metal, carbon or carbide.")
+    ] = "bi-metal",
+    orient: OrientOpt = None,
+    bundle: BundleOpt = None,
+    nest: NestOpt = False,
+    chart: Annotated[
+        bool, typer.Option("--chart", help="Chart width of cut and feed through the cut.")
+    ] = False,
+    units: UnitsOpt = UnitSystem.METRIC,
+    json_out: JsonOpt = False,
+    db: DbOpt = None,
+    saws_file: Annotated[
+        Path | None,
+        typer.Option(
+            "--saws-file",
+            help="Your own saw profiles (TOML; env SAWPLAN_SAWS).",
+            show_default=False,
+        ),
+    ] = None,
+    materials_file: MaterialsFileOpt = None,
+) -> None:
+    from sawplan.cli.cut_view import cut_chart, render_cut
+    from sawplan.cutting import compare, recommend
+    from sawplan.errors import UsageError
+    from sawplan.materials import load_catalogue
+    from sawplan.render import to_json
+    from sawplan.saws import check_capacity, get_saw
+    from sawplan.sections import parse_section
+    from sawplan.units import to_core
+
+    if blade_material not in ("bi-metal", "carbon", "carbide"):
+        raise UsageError(
+            f"expected bi-metal, carbon or carbide, got {blade_material!r}", field="blade-material"
+        )
+    if band_speed is not None and blade_tpi is None:
+        raise UsageError(
+            "give --blade-tpi with --band-speed (the blade on the saw)", field="band-speed"
+        )
+    mat = load_catalogue(materials_file).get(material)
+    sec = parse_section(section, orientation=orient, bundle=bundle, nest=nest)
+    the_saw = get_saw(saw, saws_file, extra=_logged_saws(db))
+    check_capacity(the_saw, sec)
+    calibration, calibration_n = _calibration(db, the_saw.name, mat.group)
+    kw = {"dry": dry, "blade_material": blade_material, "calibration": calibration}
+    summary = None
+    if blade_tpi is None:
+        result = recommend(mat, sec, the_saw, **kw)
+    else:
+        if band_speed is not None:
+            kw["band_speed_m_min"] = to_core(band_speed, "speed", field="band-speed")
+        comparison = compare(mat, sec, the_saw, blade_tpi, **kw)
+        result, summary = comparison.chosen, comparison.summary
+    if json_out:
+        from sawplan.render import jsonable
+
+        payload = {**jsonable(result), "comparison": summary, "calibration_cuts": calibration_n}
+        print(to_json(payload, kind="cut"))
+        return
+    if summary:
+        print(summary)
+        print()
+    print(render_cut(result, units, section_label=sec.label(units.value)))
+    if calibration_n:
+        print(
+            f"            (calibration from {calibration_n} logged cuts on this saw and material group)"
+        )
+    if chart:
+        print()
+        print(cut_chart(result, units))
+
+
+def _logged_saws(db: Path | None):
+    """Saws added with `sawplan saw add`, when a blade log exists (never creates one)."""
+    from sawplan.store.db import resolve_db_path
+
+    path = resolve_db_path(db)
+    if not path.exists():
+        return ()
+    from sawplan.store import saws_from_db
+
+    return saws_from_db(path)
+
+
+def _calibration(db: Path | None, saw_name: str, group: str) -> tuple[float, int]:
+    """The shop's actual ÷ predicted time for this saw and material group, if logged."""
+    from sawplan.store.db import resolve_db_path
+
+    path = resolve_db_path(db)
+    if not path.exists():
+        return 1.0, 0
+    from sawplan.store import calibration_factor
+
+    found = calibration_factor(path, saw_name, group)
+    if not found:
+        return 1.0, 0
+    factor, n = found
+    return factor, n
+
+
+def register(app: typer.Typer) -> None:
+    app.command("cut", help=HELP)(cut_command)

@@ -1,0 +1,112 @@
+"""Text and chart views of a planned cut (``sawplan cut``)."""
+
+from __future__ import annotations
+
+from typing import Any
+
+from sawplan.units import Display, UnitSystem, fmt_number
+
+_LIMIT_NAMES = {
+    "material": "material bite",
+    "gullet": "gullet capacity",
+    "tooth": "tooth strength",
+    "power": "motor power",
+    "force": "feed force",
+}
+
+
+def limit_name(code: str) -> str:
+    return _LIMIT_NAMES.get(code, code)
+
+
+def render_cut(r: Any, units: UnitSystem, *, section_label: str | None = None) -> str:
+    """The operator's card: blade, speed, feed, time, why, warnings, break-in."""
+    d = Display(units)
+    lines = [f"{r.material} · {section_label or r.section} · saw {r.saw} ({r.feed_type} feed)"]
+    blade = f"{r.pitch_label} TPI, {r.tooth_form} teeth, {r.tooth_set} set ({r.blade_material})"
+    lines.append(f"Blade       {blade}")
+    speed = d.fmt("speed", r.band_speed_m_min, 3)
+    if r.band_speed_clipped:
+        speed += f"  (held at the saw's {r.band_speed_clipped})"
+    if r.dry:
+        speed += "  dry"
+    lines.append(f"Band speed  {speed}")
+    if r.feed_type == "constant":
+        feed = f"set {d.fmt('feed', r.feed_set_mm_min, 3)}"
+    else:
+        feed = (
+            f"{d.fmt('feed', r.feed_mm_min, 3)} average, "
+            f"{d.fmt('feed', r.feed_set_mm_min, 3)} at the slowest depth"
+        )
+    lines.append(f"Down-feed   {feed}")
+    share = dict(r.limit_shares).get(r.governing_limit, 1.0)
+    lines.append(
+        f"Rate        {d.fmt('rate', r.cutting_rate_mm2_min, 3)}   "
+        f"Time {fmt_number(r.cut_time_min, 3)} min per cut   "
+        f"Limit {limit_name(r.governing_limit)} ({share:.0%} of the cut)"
+    )
+    if abs(r.calibration_factor - 1.0) > 1e-9:
+        lines.append(
+            f"            includes the shop's calibration ×{r.calibration_factor:.2f} "
+            f"(model alone {fmt_number(r.cut_time_model_min, 3)} min)"
+        )
+    for i, text in enumerate(r.explanation):
+        lines.append(("Why         " if i == 0 else "            ") + text)
+    for i, text in enumerate(r.warnings):
+        lines.append(("Warnings    ! " if i == 0 else "            ! ") + text)
+    if r.breakin:
+        steps = []
+        for s in r.breakin:
+            steps.append(
+                f"{fmt_number(d.value('area', s.area_from_mm2), 3)}–"
+                f"{fmt_number(d.value('area', s.area_to_mm2), 3)} {d.label('area')} "
+                f"at {s.feed_percent:.0f} %"
+            )
+        lines.append("Break-in    new blade: " + " · ".join(steps) + ", then full feed")
+    lines.append(
+        f"Blade care  kerf {d.fmt('length', r.kerf_mm, 2)}, bending "
+        f"{d.fmt('stress', r.bending_stress_mpa, 3)} at the wheels, "
+        f"{r.flex_cycles_per_min:.0f} flex cycles/min"
+    )
+    lines.append(f"Caution     {r.caution}")
+    return "\n".join(lines)
+
+
+def cut_chart(r: Any, units: UnitSystem, *, width: int = 72, height: int = 18) -> str:
+    """Chord W(y) and the predicted feed through the cut, against depth."""
+    from sawplan.charts import _figure, _nice_ticks, _plain, _text
+
+    d = Display(units)
+    ys = [d.value("length", p.y_mm) for p in r.profile]
+    chords = [d.value("length", p.chord_mm) for p in r.profile]
+    feeds = [d.value("feed", p.feed_mm_min) for p in r.profile]
+    allowed = [d.value("feed", p.allowed_feed_mm_min) for p in r.profile]
+    parts = []
+    fig = _figure(width, height // 2 + 2)
+    fig.title(f"width of cut ({d.label('length')}) against depth ({d.label('length')})")
+    fig.draw(fig.signal(ys, chords).lines(True))
+    _axes(fig, ys, chords, _nice_ticks, _plain)
+    parts.append(_text(fig, "", True))
+    fig = _figure(width, height // 2 + 2)
+    fig.title(f"down-feed ({d.label('feed')}) against depth ({d.label('length')})")
+    fig.draw(fig.signal(ys, allowed).lines(True))
+    fig.draw(fig.signal(ys, feeds, marker="o"))
+    _axes(fig, ys, allowed + feeds, _nice_ticks, _plain)
+    slow = min(r.profile, key=lambda p: p.allowed_feed_mm_min)
+    key = (
+        "▚ what the limits allow   o what the saw runs   slowest at "
+        f"{d.fmt('length', slow.y_mm, 3)} deep ({limit_name(slow.limit)})"
+    )
+    parts.append(_text(fig, key, True))
+    return "\n".join(parts)
+
+
+def _axes(fig: Any, xs: list[float], ys: list[float], nice_ticks: Any, plain: Any) -> None:
+    top = max(ys) * 1.08 if max(ys) > 0 else 1.0
+    y_ticks = nice_ticks(0, top, 4)
+    fig.ruler("y").lim(0, top)
+    fig.ruler("y").ticks(y_ticks, labels=[plain(t) for t in y_ticks])
+    x_hi = max(xs) if max(xs) > 0 else 1.0
+    x_ticks = nice_ticks(0, x_hi)
+    fig.ruler("x").lim(0, x_hi)
+    fig.ruler("x").ticks(x_ticks, labels=[plain(t) for t in x_ticks])
