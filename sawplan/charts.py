@@ -1,0 +1,329 @@
+"""Terminal charts of the blade log, drawn with plotext 6 and returned as text.
+
+Each chart takes a result from ``sawplan.life`` and gives back a string: the
+plot, then a one-line key (plotext's own legend box covers data at terminal
+sizes, so it is switched off).  The same data are available as rows through
+the ``*_rows`` functions, for ``--json`` and ``--csv``.
+
+plotext 6 keeps one global figure: every chart clears it first, and the
+terminal size limit is switched off so the size asked for is the size drawn,
+with or without a terminal.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from typing import TYPE_CHECKING, Any
+
+from sawplan.units import Display, UnitSystem
+
+if TYPE_CHECKING:  # pragma: no cover
+    from sawplan.life import BladeCost, ModeRanking, WearCurve, WeibullPlot
+
+WIDTH = 72
+HEIGHT = 20
+PROBABILITIES = (0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 0.632, 0.9, 0.99)
+
+
+def _figure(width: int, height: int) -> Any:
+    import plotext
+
+    plotext.terminal.limit(False, False)
+    fig = plotext.figure
+    fig.clear()
+    fig.plot_size(width, height)
+    fig.legend(False)
+    return fig
+
+
+def _text(fig: Any, key: str, colorless: bool) -> str:
+    body = fig.build().string(colorless=colorless).rstrip("\n")
+    lines = [line.rstrip() for line in body.split("\n")]
+    return "\n".join(lines) + ("\n" + key if key else "")
+
+
+def _plain(v: float) -> str:
+    """3 significant figures, thousands separated, no trailing zeros."""
+    if v == 0 or not math.isfinite(v):
+        return f"{v:g}"
+    r = float(f"{v:.3g}")
+    if r.is_integer():
+        return f"{int(r):,}"
+    decimals = max(0, 2 - math.floor(math.log10(abs(r))))
+    return f"{r:,.{decimals}f}".rstrip("0").rstrip(".")
+
+
+def _nice_ticks(lo: float, hi: float, count: int = 5) -> list[float]:
+    """Round tick values (1, 2, 5 × 10ⁿ steps) covering [lo, hi]."""
+    if hi <= lo:
+        return [lo]
+    raw = (hi - lo) / max(count - 1, 1)
+    mag = 10 ** math.floor(math.log10(raw))
+    step = next(m * mag for m in (1, 2, 2.5, 5, 10) if m * mag >= raw)
+    first = math.ceil(lo / step - 1e-9) * step
+    ticks = []
+    v = first
+    while v <= hi + 1e-9 * step:
+        ticks.append(round(v, 10))
+        v += step
+    return ticks
+
+
+# --- wear curve ---------------------------------------------------------------------------
+
+
+def wear_rows(curve: WearCurve) -> tuple[list[str], list[list[Any]]]:
+    headers = [
+        "cut",
+        "area_cm2",
+        "cumulative_area_cm2",
+        "time_min",
+        "rate_cm2_min",
+        "trend_rate_cm2_min",
+        "in_break_in",
+        "rise",
+    ]
+    rows = [
+        [
+            p.index + 1,
+            p.area_cm2,
+            p.cumulative_area_cm2,
+            p.time_min,
+            p.rate_cm2_min,
+            1.0 / p.trend_min_per_cm2,
+            int(p.in_break_in),
+            p.rise,
+        ]
+        for p in curve.points
+    ]
+    return headers, rows
+
+
+def wear_chart(
+    curve: WearCurve,
+    *,
+    title: str = "wear curve",
+    units: UnitSystem = UnitSystem.METRIC,
+    width: int = WIDTH,
+    height: int = HEIGHT,
+    colorless: bool = True,
+) -> str:
+    """Cutting rate of each cut against area cut so far, with the trend and the steady level.
+
+    A falling rate at the same feed setting is the wear; the end-of-life line
+    sits ``rise_threshold`` slower than the steady rate.
+    """
+    if not curve.points:
+        return f"{title}: no timed cuts to draw"
+    d = Display(units)
+    area = 100.0  # cm² → core mm²
+    xs = [d.value("area", p.cumulative_area_cm2 * area) for p in curve.points]
+    rates = [d.value("rate", p.rate_cm2_min * area) for p in curve.points]
+    trend = [d.value("rate", area / p.trend_min_per_cm2) for p in curve.points]
+    fig = _figure(width, height)
+    fig.title(title)
+    fig.label(f"area cut ({d.label('area')})", "x")
+    fig.label(f"rate ({d.label('rate')})", "y")
+    key = ["o each cut", "▚ trend (median of 5)"]
+    if curve.steady_rate_cm2_min is not None:
+        steady = d.value("rate", curve.steady_rate_cm2_min * area)
+        fig.line(steady, 0)
+        fig.line(steady / (1.0 + curve.rise_threshold), 0)
+        key.append(
+            f"── steady rate {_plain(steady)}, and end-of-life signs "
+            f"(time per area +{curve.rise_threshold:.0%})"
+        )
+    if len(xs) > 1:
+        fig.draw(fig.signal(xs, trend).lines(True))
+    fig.draw(fig.signal(xs, rates, marker="o"))
+    levels = rates + trend
+    if curve.steady_rate_cm2_min is not None:
+        levels.append(steady / (1.0 + curve.rise_threshold))
+    top = max(levels) * 1.05
+    bottom = _nice_floor(min(levels) * 0.9)
+    fig.ruler("y").lim(bottom, top)
+    ticks = _nice_ticks(bottom, top)
+    fig.ruler("y").ticks(ticks, labels=[_plain(t) for t in ticks])
+    x_hi = max(xs) * 1.02
+    x_ticks = _nice_ticks(0, x_hi)
+    fig.ruler("x").lim(0, x_hi)
+    fig.ruler("x").ticks(x_ticks, labels=[_plain(t) for t in x_ticks])
+    status = {
+        "break-in": "still breaking in",
+        "steady": "steady wear",
+        "end-of-life-signs": "end-of-life signs",
+        "too-few-cuts": "too few cuts after break-in to judge",
+    }[curve.status]
+    return _text(fig, "   ".join(key) + f"\nverdict: {status}", colorless)
+
+
+def _covering_ticks(top: float, *, integer: bool = False, count: int = 5) -> list[float]:
+    """0, step, 2·step … up to the first tick at or above ``top`` (1, 2, 2.5, 5 × 10ⁿ steps)."""
+    raw = top / max(count - 1, 1)
+    mag = 10 ** math.floor(math.log10(raw))
+    steps = (1, 2, 5, 10) if integer else (1, 2, 2.5, 5, 10)
+    step = next(m * mag for m in steps if m * mag >= raw)
+    if integer:
+        step = max(1, round(step))
+    ticks = [0.0]
+    while ticks[-1] < top - 1e-9 * step:
+        ticks.append(round(ticks[-1] + step, 10))
+    return ticks
+
+
+def _nice_floor(v: float) -> float:
+    """Round ``v`` down to one significant figure (0 stays 0)."""
+    if v <= 0:
+        return 0.0
+    mag = 10 ** math.floor(math.log10(v))
+    return math.floor(v / mag) * mag
+
+
+# --- Weibull probability plot -------------------------------------------------------------
+
+
+def weibull_rows(plot: WeibullPlot) -> tuple[list[str], list[list[Any]]]:
+    headers = ["kind", "life_cm2", "adjusted_rank", "median_rank", "x_ln_life", "y_ln_ln"]
+    rows: list[list[Any]] = [
+        ["failure", p.life_cm2, p.adjusted_rank, p.median_rank, p.x, p.y] for p in plot.points
+    ]
+    for x, y in plot.line or ():
+        rows.append(["fit", math.exp(x), None, 1.0 - math.exp(-math.exp(y)), x, y])
+    return headers, rows
+
+
+def weibull_chart(
+    plot: WeibullPlot,
+    *,
+    title: str = "Weibull probability plot",
+    units: UnitSystem = UnitSystem.METRIC,
+    width: int = WIDTH,
+    height: int = HEIGHT,
+    colorless: bool = True,
+) -> str:
+    """Failures at their median ranks on Weibull axes; a Weibull sample lies on a line."""
+    if not plot.points:
+        return f"{title}: no failures to plot"
+    d = Display(units)
+    to_display = d.value("area", 100.0)  # one cm² in display units
+    xs = [p.x for p in plot.points]
+    ys = [p.y for p in plot.points]
+    all_x = xs + [x for x, _ in plot.line or ()]
+    all_y = ys + [y for _, y in plot.line or ()]
+    x_lo, x_hi = min(all_x) - 0.05, max(all_x) + 0.05
+    y_lo, y_hi = min(all_y) - 0.1, max(all_y) + 0.1
+    fig = _figure(width, height)
+    fig.title(title)
+    fig.label(f"life, area cut ({d.label('area')}, log scale)", "x")
+    fig.label("failed", "y")
+    key = ["o failures (median ranks)"]
+    if plot.line:
+        fig.draw(fig.signal([x for x, _ in plot.line], [y for _, y in plot.line]).lines(True))
+        key.append("▚ fitted Weibull")
+    fig.draw(fig.signal(xs, ys, marker="o"))
+    fig.ruler("x").lim(x_lo, x_hi)
+    fig.ruler("y").lim(y_lo, y_hi)
+    lives = _log_ticks(math.exp(x_lo) * to_display, math.exp(x_hi) * to_display)
+    fig.ruler("x").ticks(
+        [math.log(v / to_display) for v in lives], labels=[_plain(v) for v in lives]
+    )
+    probs = [p for p in PROBABILITIES if y_lo <= math.log(-math.log1p(-p)) <= y_hi]
+    fig.ruler("y").ticks(
+        [math.log(-math.log1p(-p)) for p in probs], labels=[f"{100 * p:g}%" for p in probs]
+    )
+    return _text(fig, "   ".join(key), colorless)
+
+
+def _log_ticks(lo: float, hi: float) -> list[float]:
+    """1, 2, 5 × 10ⁿ values inside [lo, hi] (at least the two ends when none fall inside)."""
+    out = []
+    for e in range(math.floor(math.log10(lo)), math.ceil(math.log10(hi)) + 1):
+        for m in (1, 2, 5):
+            v = m * 10.0**e
+            if lo <= v <= hi:
+                out.append(v)
+    if len(out) > 6:
+        out = [v for v in out if str(v).lstrip("0.").startswith("1")] or out
+    return out or [float(f"{lo:.2g}"), float(f"{hi:.2g}")]
+
+
+# --- bar charts ----------------------------------------------------------------------------
+
+
+def modes_rows(ranking: ModeRanking) -> tuple[list[str], list[list[Any]]]:
+    headers = ["mode", "name", "count", "share", "usual_causes"]
+    rows = [[m.code, m.name, m.count, m.share, "; ".join(m.causes)] for m in ranking.modes]
+    return headers, rows
+
+
+def modes_chart(
+    ranking: ModeRanking,
+    *,
+    title: str = "failure modes",
+    width: int = WIDTH,
+    height: int | None = None,
+    colorless: bool = True,
+) -> str:
+    """Retired blades by failure mode, most frequent on top."""
+    if not ranking.modes:
+        return f"{title}: no failures recorded"
+    labels = [m.code for m in ranking.modes]
+    counts = [m.count for m in ranking.modes]
+    text = _hbars(labels, counts, title, "blades", width, height, colorless, integer=True)
+    if ranking.unrecorded:
+        text += f"\n{ranking.unrecorded} failure(s) without a recorded mode are not shown"
+    return text
+
+
+def cost_rows(costs: Sequence[BladeCost]) -> tuple[list[str], list[list[Any]]]:
+    headers = ["blade_type", "price", "life_cm2", "life_method", "blades", "cost_per_m2"]
+    rows = [
+        [c.blade_type, c.price, c.life_cm2, c.life_method, c.blades, c.cost_per_m2] for c in costs
+    ]
+    return headers, rows
+
+
+def cost_chart(
+    costs: Sequence[BladeCost],
+    *,
+    title: str = "blade cost per area cut",
+    units: UnitSystem = UnitSystem.METRIC,
+    width: int = WIDTH,
+    height: int | None = None,
+    colorless: bool = True,
+) -> str:
+    """Price ÷ life per blade type, cheapest on top (currency as the prices were logged)."""
+    if not costs:
+        return f"{title}: no blade type has both a price and a retired blade yet"
+    per = "m²" if units is UnitSystem.METRIC else "ft²"
+    scale = 1.0 if units is UnitSystem.METRIC else 0.09290304  # 1 ft² = 0.09290304 m² (exact)
+    labels = [c.blade_type for c in costs]
+    values = [c.cost_per_m2 * scale for c in costs]
+    return _hbars(labels, values, title, f"cost per {per} cut", width, height, colorless)
+
+
+def _hbars(
+    labels: Sequence[str],
+    values: Sequence[float],
+    title: str,
+    x_label: str,
+    width: int,
+    height: int | None,
+    colorless: bool,
+    *,
+    integer: bool = False,
+) -> str:
+    """Horizontal bars, the first item on top, from 0 to a round upper limit."""
+    height = height or max(8, 3 * len(labels) + 5)
+    fig = _figure(width, height)
+    fig.title(title)
+    fig.label(x_label, "x")
+    # plotext draws the first bar at the bottom: reverse so the first item is on top
+    fig.draw(fig.bar(list(reversed(labels)), list(reversed(values)), orientation="h"))
+    top = max(values)
+    ticks = _covering_ticks(top, integer=integer)
+    upper = ticks[-1]
+    fig.ruler("x").lim(0, upper)
+    fig.ruler("x").ticks(ticks, labels=[_plain(t) for t in ticks])
+    return _text(fig, "", colorless)

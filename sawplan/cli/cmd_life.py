@@ -1,0 +1,487 @@
+"""``sawplan life``, ``sawplan forecast`` and ``sawplan chart``: blade life from the log."""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+from typing import Annotated, Any
+
+import typer
+
+from sawplan.cli.cmd_saw import plain
+from sawplan.cli.options import CsvOpt, DbOpt, JsonOpt, MaterialsFileOpt, UnitsOpt
+from sawplan.units import UnitSystem
+
+ConfidenceOpt = Annotated[
+    float, typer.Option("--confidence", help="Confidence for intervals and forecasts, 0-1.")
+]
+WidthOpt = Annotated[int, typer.Option("--width", help="Chart width in characters.")]
+HeightOpt = Annotated[int, typer.Option("--height", help="Chart height in lines.")]
+
+LIFE_HELP = """Blade life from the log: Weibull fit, failure modes, cost per area, calibration.
+
+Life is the area a blade cut. Retired blades are failures; blades still on a
+saw or removed unworn count as "at least this long" (censored), so the fit
+does not understate life. A shape below 1 means blades fail early, which
+points to set-up (break-in, tension, guides) rather than wear.
+
+\b
+Examples:
+  sawplan life
+  sawplan life --group-by blade-type
+  sawplan life --group-by material-group --json
+  sawplan life --chart
+"""
+
+FORECAST_HELP = """How many blades a job needs: area to cut against blade life.
+
+With enough history the log's Weibull fit is simulated and the count holds
+at --confidence; otherwise a typical life from the reference (memory, low
+confidence) gives area ÷ life, and the answer says so.
+
+\b
+Examples:
+  sawplan forecast --area 5m2
+  sawplan forecast --area 800in2 --material 304 --confidence 0.95
+  sawplan forecast --job job.toml --json
+"""
+
+CHART_HELP = """Charts of the log in the terminal; every chart also as --json or --csv data.
+
+\b
+Examples:
+  sawplan chart wear B-017
+  sawplan chart weibull
+  sawplan chart modes --csv
+  sawplan chart cost --units us
+"""
+
+
+def _colorless() -> bool:
+    import os
+
+    return not sys.stdout.isatty() or bool(os.environ.get("NO_COLOR"))
+
+
+def _check_confidence(confidence: float) -> None:
+    from sawplan.errors import BadDataError
+
+    if not 0.5 <= confidence < 1.0:
+        raise BadDataError(f"must be from 0.5 to below 1, got {confidence:g}", field="confidence")
+
+
+# --- life -----------------------------------------------------------------------------------
+
+
+def life_command(
+    group_by: Annotated[
+        str | None,
+        typer.Option(
+            "--group-by", help="Also fit each blade-type or material-group.", show_default=False
+        ),
+    ] = None,
+    chart: Annotated[
+        bool, typer.Option("--chart", help="Add the Weibull plot and failure-mode chart.")
+    ] = False,
+    confidence: ConfidenceOpt = 0.9,
+    units: UnitsOpt = UnitSystem.METRIC,
+    json_out: JsonOpt = False,
+    db: DbOpt = None,
+) -> None:
+    from sawplan.render import to_json
+    from sawplan.store import connect
+    from sawplan.store.reports import life_report
+
+    _check_confidence(confidence)
+    with connect(db, create=False) as database:
+        report = life_report(database, group_by=group_by, confidence=confidence)
+    if json_out:
+        print(to_json(report, kind="life"))
+        return
+    print(render_life(report, units))
+    if chart:
+        from sawplan.charts import modes_chart
+
+        print()
+        print(_weibull_text(report, units, 72, 20))
+        print()
+        print(modes_chart(report.failure_modes, colorless=_colorless()))
+
+
+def _area(d: Any, cm2: float | None) -> str:
+    return "—" if cm2 is None else f"{plain(d.value('area', cm2 * 100.0))} {d.label('area')}"
+
+
+def render_life(r: Any, units: UnitSystem) -> str:
+    from sawplan.render import table
+    from sawplan.units import Display
+
+    d = Display(units)
+    o = r.overall
+    pct = f"{r.confidence:.0%}"
+    lines = [
+        f"blade life (area cut): {_n(o.blades, 'blade')}, {o.failed} retired (failures), "
+        f"{o.censored} still running or removed unworn (censored)"
+    ]
+    if o.fitted:
+        lo, hi = o.shape_ci
+        kind = (
+            "early failures"
+            if o.weibull_shape < 1
+            else "wear-out"
+            if o.weibull_shape > 1
+            else "random"
+        )
+        lines += [
+            f"  Weibull shape β {o.weibull_shape:.2f} ({pct} interval {lo:.2f}-{hi:.2f}): {kind}",
+            f"  scale η {_area(d, o.weibull_scale_cm2)}; median life {_area(d, o.median_life_cm2)}; "
+            f"mean {_area(d, o.mean_life_cm2)}",
+            f"  B10 life {_area(d, o.b10_life_cm2)} ({pct} interval {_area(d, o.b10_ci_cm2[0])} to "
+            f"{_area(d, o.b10_ci_cm2[1])}): 1 blade in 10 fails before it",
+        ]
+    elif o.blades:
+        lines.append(f"  no Weibull fit: {o.reason}")
+        if o.mean_failure_life_cm2 is not None:
+            lines.append(f"  mean life of the retired blades: {_area(d, o.mean_failure_life_cm2)}")
+    if r.groups:
+        headers = [r.group_by, "blades", "retired", "β", f"η {d.label('area')}",
+                   f"median {d.label('area')}", f"B10 {d.label('area')}"]  # fmt: skip
+        rows = [
+            [g.key, g.blades, g.failed,
+             "—" if g.weibull_shape is None else f"{g.weibull_shape:.2f}",
+             _num(d, g.weibull_scale_cm2), _num(d, g.median_life_cm2), _num(d, g.b10_life_cm2)]
+            for g in r.groups
+        ]  # fmt: skip
+        lines.append(table(headers, rows, align="lrrrrrr", title=f"\nby {r.group_by}"))
+        unfitted = [g for g in r.groups if not g.fitted]
+        if unfitted:
+            lines.append("  — no fit: " + "; ".join(f"{g.key}: {g.reason}" for g in unfitted))
+    if r.early_failure is not None:
+        w = r.early_failure
+        lines += ["", f"WARNING: {w.message}"]
+        if w.causes:
+            lines.append(
+                f"  usual causes of {w.mode_name} (common practice): " + "; ".join(w.causes)
+            )
+        lines.append("  check: " + "; ".join(w.setup_checks))
+        lines.append("  " + w.caution)
+    modes = r.failure_modes
+    if modes.modes:
+        rows = [[m.code, m.name, m.count, f"{m.share:.0%}"] for m in modes.modes]
+        lines.append(table(["failure mode", "", "blades", "share"], rows,
+                           align="llrr", title="\nfailure modes, most frequent first"))  # fmt: skip
+        top = modes.modes[0]
+        if r.early_failure is None or r.early_failure.mode != top.code:
+            lines.append(
+                f"  usual causes of {top.name} (common practice): " + "; ".join(top.causes)
+            )
+        if modes.unrecorded:
+            lines.append(f"  {modes.unrecorded} retired blade(s) without a recorded mode")
+    if r.costs:
+        per = "m²"
+        rows = [[c.blade_type, f"{c.price:g}", _num(d, c.life_cm2), c.life_method, plain(c.cost_per_m2)]
+                for c in r.costs]  # fmt: skip
+        lines.append(table(["blade type", "price", f"life {d.label('area')}", "life from", f"cost per {per}"],
+                           rows, align="lrrlr", title="\ncost per area cut, cheapest first"))  # fmt: skip
+    if r.costs_missing:
+        lines.append("  no cost yet for " + "; ".join(r.costs_missing))
+    if r.calibration:
+        rows = [[c.saw or "(no saw)", c.material_group or "—", c.cuts,
+                 "—" if c.factor is None else f"{c.factor:.2f}",
+                 "" if c.low is None else f"{c.low:.2f}-{c.high:.2f}",
+                 "in use" if c.factor is not None else f"needs {c.needed} cuts"]
+                for c in r.calibration]  # fmt: skip
+        lines.append(table(["saw", "material group", "cuts", "actual ÷ model", "middle half", "status"], rows,
+                           align="llrrll", title="\ncut-time calibration (median of actual ÷ model time)"))  # fmt: skip
+    if r.left_out:
+        lines.append(f"\nleft out (retired before cutting anything): {', '.join(r.left_out)}")
+    lines += [f"\nnote: {n}" for n in r.notes]
+    return "\n".join(lines)
+
+
+def _n(n: int, word: str) -> str:
+    return f"{n:,} {word}" + ("" if n == 1 else "s")
+
+
+def _num(d: Any, cm2: float | None) -> str:
+    return "—" if cm2 is None else plain(d.value("area", cm2 * 100.0))
+
+
+def _weibull_text(report: Any, units: UnitSystem, width: int, height: int) -> str:
+    from sawplan.charts import weibull_chart
+
+    plot = _weibull_plot_of(report)
+    if plot is None:
+        return "Weibull probability plot: no failures to plot"
+    return weibull_chart(plot, units=units, width=width, height=height, colorless=_colorless())
+
+
+def _weibull_plot_of(report: Any):
+    from sawplan.life import weibull_plot
+
+    lives = report.lives
+    if not any(b.failed for b in lives):
+        return None
+    fit = report.overall.fit if report.overall.fitted else None
+    return weibull_plot([b.area_cm2 for b in lives], [b.failed for b in lives], fit)
+
+
+# --- forecast -------------------------------------------------------------------------------
+
+
+def forecast_command(
+    area: Annotated[
+        str | None,
+        typer.Option("--area", "-a", help="Area to cut, e.g. 5m2, 800in2.", show_default=False),
+    ] = None,
+    material: Annotated[
+        str | None,
+        typer.Option(
+            "--material", "-m", help="Material key: use its group's life.", show_default=False
+        ),
+    ] = None,
+    job: Annotated[
+        Path | None,
+        typer.Option(
+            "--job", help="A job file: its parts' cut area per material.", show_default=False
+        ),
+    ] = None,
+    life: Annotated[
+        str | None,
+        typer.Option(
+            "--life", help="Assume this life per blade instead, e.g. 2m2.", show_default=False
+        ),
+    ] = None,
+    confidence: ConfidenceOpt = 0.9,
+    units: UnitsOpt = UnitSystem.METRIC,
+    json_out: JsonOpt = False,
+    materials_file: MaterialsFileOpt = None,
+    db: DbOpt = None,
+) -> None:
+    from sawplan.errors import UsageError
+    from sawplan.materials import load_catalogue
+    from sawplan.render import to_json
+    from sawplan.store import connect
+    from sawplan.store.reports import forecast_area, forecast_job
+    from sawplan.units import to_core
+
+    _check_confidence(confidence)
+    if (area is None) == (job is None):
+        raise UsageError("give either --area or --job", field="forecast", hint="e.g. --area 5m2")
+    if job is not None:
+        if material is not None or life is not None:
+            raise UsageError(
+                "--job takes the materials from the job file; drop --material/--life", field="job"
+            )
+        areas = job_cut_areas(job, load_catalogue(materials_file))
+        result = forecast_job(db, areas, confidence=confidence)
+        if json_out:
+            print(to_json(result, kind="forecast-job"))
+            return
+        print(render_job_forecast(result, units))
+        return
+    area_cm2 = to_core(area, "area", field="area") / 100.0
+    life_cm2 = None if life is None else to_core(life, "area", field="life") / 100.0
+    mat = load_catalogue(materials_file).get(material) if material is not None else None
+    with connect(db, create=False) as database:
+        result = forecast_area(
+            database,
+            area_cm2,
+            material=mat.key if mat else None,
+            material_group=mat.group if mat else None,
+            confidence=confidence,
+            life_cm2=life_cm2,
+        )
+    if json_out:
+        print(to_json(result, kind="forecast"))
+        return
+    print(render_forecast(result, units))
+
+
+def job_cut_areas(path: Path, catalogue: Any) -> dict[str, float]:
+    """Cut area (cm²) per material group of a job file: one cut per part piece.
+
+    The head trim of each bar is not counted, so the area is a small underestimate.
+    """
+    from sawplan.cutlist.jobfile import load_job
+    from sawplan.sections import parse_section
+
+    job = load_job(path, catalogue)
+    areas: dict[str, float] = {}
+    for part in job.parts:
+        section = job.sections.get(part.section) or parse_section(part.section)
+        group = (
+            job.materials[part.material].group
+            if part.material in job.materials
+            else catalogue.get(part.material).group
+        )
+        areas[group] = areas.get(group, 0.0) + section.area_mm2 * part.count / 100.0
+    return areas
+
+
+def render_forecast(f: Any, units: UnitSystem) -> str:
+    from sawplan.units import Display
+
+    d = Display(units)
+    what = f" of {f.material} ({f.material_group})" if f.material else ""
+    lines = [f"blades needed to cut {_area(d, f.area_cm2)}{what}: {f.blades_needed}"]
+    if f.method == "weibull-simulation":
+        lines.append(
+            f"  {f.confidence:.0%} sure from the blade log's Weibull fit (β {f.weibull_shape:.2f}, "
+            f"η {_area(d, f.weibull_scale_cm2)}); expected {f.expected_blades:.1f} blades"
+        )
+    else:
+        lines.append(f"  area ÷ life per blade {_area(d, f.life_cm2)}, rounded up")
+    lines.append(f"  {f.note}")
+    return "\n".join(lines)
+
+
+def render_job_forecast(j: Any, units: UnitSystem) -> str:
+    from sawplan.render import table
+    from sawplan.units import Display
+
+    d = Display(units)
+    rows = [
+        [g.material_group, _num(d, g.area_cm2), g.blades_needed, g.life_source] for g in j.groups
+    ]
+    out = [
+        table(
+            ["material group", f"area {d.label('area')}", "blades", "life from"], rows, align="lrrl"
+        ),
+        f"blades needed: {j.blades_needed} ({j.confidence:.0%} confidence; one cut per part, "
+        "bar-end trim cuts not counted)",
+    ]
+    out += [f"  {g.material_group}: {g.note}" for g in j.groups]
+    return "\n".join(out)
+
+
+# --- charts ---------------------------------------------------------------------------------
+
+
+def _emit_rows(
+    headers: list[str], rows: list[list[Any]], kind: str, json_out: bool, csv_out: bool
+) -> bool:
+    from sawplan.render import to_csv, to_json
+
+    if json_out:
+        print(to_json([dict(zip(headers, r, strict=True)) for r in rows], kind=kind))
+        return True
+    if csv_out:
+        print(to_csv(headers, rows), end="")
+        return True
+    return False
+
+
+def chart_wear_command(
+    tag: Annotated[str, typer.Argument(help="The blade's tag.", show_default=False)],
+    width: WidthOpt = 72,
+    height: HeightOpt = 20,
+    units: UnitsOpt = UnitSystem.METRIC,
+    json_out: JsonOpt = False,
+    csv_out: CsvOpt = False,
+    db: DbOpt = None,
+) -> None:
+    from sawplan.charts import wear_rows
+    from sawplan.cli.cmd_blade import wear_chart_text, wear_rows_empty
+    from sawplan.store import connect
+    from sawplan.store.blades import blade_history
+
+    with connect(db, create=False) as database:
+        history = blade_history(database, tag)
+    headers, rows = wear_rows(history.wear) if history.wear is not None else wear_rows_empty()
+    if _emit_rows(headers, rows, "wear-curve", json_out, csv_out):
+        return
+    print(wear_chart_text(history, units, width, height))
+
+
+def chart_weibull_command(
+    width: WidthOpt = 72,
+    height: HeightOpt = 20,
+    confidence: ConfidenceOpt = 0.9,
+    units: UnitsOpt = UnitSystem.METRIC,
+    json_out: JsonOpt = False,
+    csv_out: CsvOpt = False,
+    db: DbOpt = None,
+) -> None:
+    from sawplan.charts import weibull_rows
+    from sawplan.store import connect
+    from sawplan.store.reports import life_report
+
+    _check_confidence(confidence)
+    with connect(db, create=False) as database:
+        report = life_report(database, confidence=confidence)
+    plot = _weibull_plot_of(report)
+    if plot is None:
+        headers, rows = weibull_rows_empty()
+    else:
+        headers, rows = weibull_rows(plot)
+    if _emit_rows(headers, rows, "weibull-plot", json_out, csv_out):
+        return
+    print(_weibull_text(report, units, width, height))
+
+
+def weibull_rows_empty() -> tuple[list[str], list[list[Any]]]:
+    from sawplan.charts import weibull_rows
+    from sawplan.life import WeibullPlot
+
+    return weibull_rows(WeibullPlot((), None, 0))
+
+
+def chart_modes_command(
+    width: WidthOpt = 72,
+    json_out: JsonOpt = False,
+    csv_out: CsvOpt = False,
+    db: DbOpt = None,
+) -> None:
+    from sawplan.charts import modes_chart, modes_rows
+    from sawplan.life import rank_failure_modes
+    from sawplan.store import connect
+    from sawplan.store.stats import blade_lives
+
+    with connect(db, create=False) as database:
+        ranking = rank_failure_modes(
+            [b.mode for b in blade_lives(database, include_unused_failures=True) if b.failed]
+        )
+    if _emit_rows(*modes_rows(ranking), "failure-modes", json_out, csv_out):
+        return
+    print(modes_chart(ranking, width=width, colorless=_colorless()))
+
+
+def chart_cost_command(
+    width: WidthOpt = 72,
+    confidence: ConfidenceOpt = 0.9,
+    units: UnitsOpt = UnitSystem.METRIC,
+    json_out: JsonOpt = False,
+    csv_out: CsvOpt = False,
+    db: DbOpt = None,
+) -> None:
+    from sawplan.charts import cost_chart, cost_rows
+    from sawplan.store import connect
+    from sawplan.store.reports import life_report
+
+    _check_confidence(confidence)
+    with connect(db, create=False) as database:
+        report = life_report(database, confidence=confidence)
+    if _emit_rows(*cost_rows(report.costs), "blade-costs", json_out, csv_out):
+        return
+    print(cost_chart(report.costs, units=units, width=width, colorless=_colorless()))
+    if report.costs_missing:
+        print("no cost yet for " + "; ".join(report.costs_missing))
+
+
+def register(app: typer.Typer) -> None:
+    app.command("life", help=LIFE_HELP)(life_command)
+    app.command("forecast", help=FORECAST_HELP)(forecast_command)
+    group = typer.Typer(
+        help=CHART_HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
+    )
+    group.command("wear", help=_sub("Wear curve of one blade: cutting rate against area cut.", "chart wear B-017", "chart wear B-017 --csv"))(chart_wear_command)  # fmt: skip
+    group.command("weibull", help=_sub("Weibull probability plot of blade lives (median ranks, censored blades counted).", "chart weibull", "chart weibull --json"))(chart_weibull_command)  # fmt: skip
+    group.command("modes", help=_sub("Retired blades by failure mode.", "chart modes", "chart modes --csv"))(chart_modes_command)  # fmt: skip
+    group.command("cost", help=_sub("Cost per area cut by blade type.", "chart cost", "chart cost --units us --json"))(chart_cost_command)  # fmt: skip
+    app.add_typer(group, name="chart", help=CHART_HELP)
+
+
+def _sub(text: str, *examples: str) -> str:
+    lines = [text, "", "\b", "Examples:"] + [f"  sawplan {e}" for e in examples]
+    return "\n".join(lines) + "\n"

@@ -1,0 +1,426 @@
+"""``sawplan log cut|event|list``: what each blade cut and what happened to it."""
+
+from __future__ import annotations
+
+import dataclasses
+from dataclasses import dataclass, field
+from typing import Annotated, Any
+
+import typer
+
+from sawplan.cli.cmd_saw import DateOpt, SawsFileOpt, plain
+from sawplan.cli.options import (
+    BundleOpt,
+    CsvOpt,
+    DbOpt,
+    JsonOpt,
+    MaterialsFileOpt,
+    NestOpt,
+    OrientOpt,
+    UnitsOpt,
+)
+from sawplan.units import UnitSystem
+
+MAX_BATCH = 100_000  # identical cuts in one entry; more is a typing mistake
+
+HELP = """Log what the blades cut (cuts) and what happened to them (events).
+
+\b
+Examples:
+  sawplan log cut 304 round 60mm --cuts 12 --time 30min
+  sawplan log event B-017 teeth-lost --teeth 2
+  sawplan log list --blade B-017
+"""
+
+CUT_HELP = """Log a cut, or a batch of identical cuts, on the fitted blade.
+
+MATERIAL is a key from `sawplan materials`; SECTION is a shape word and its
+sizes with units, as for `sawplan cut`. The blade is the one fitted on the saw
+(give --saw when several saws carry blades) unless --blade names it.
+
+--cuts N logs N identical cuts as one entry: the area is N times the section's
+area and --time is the total for the batch. --area gives the area of one cut
+when less than the whole section was cut.
+
+\b
+Examples:
+  sawplan log cut 304 round 60mm
+  sawplan log cut 4140 flat 100mm 25mm --orient edge --cuts 12 --time 30min --job J-2291 --heat H77812
+  sawplan log cut A36 round 40mm --bundle 3x4 --blade B-017 --speed 60m/min --feed 3 --dry --date yesterday
+"""
+
+EVENT_HELP = """Log something that happened to a blade.
+
+KIND is teeth-lost, crooked, stall or failure. A failure needs --mode and
+retires the blade (as `sawplan blade retire` does).
+
+\b
+Examples:
+  sawplan log event B-017 teeth-lost --teeth 3 --note "hit a hard spot"
+  sawplan log event B-017 crooked --mode crooked
+  sawplan log event B-017 failure --mode weld --location weld
+"""
+
+LIST_HELP = """List logged cut entries, newest first.
+
+\b
+Examples:
+  sawplan log list
+  sawplan log list --blade B-017 --csv
+  sawplan log list --job J-2291 --limit 0
+"""
+
+
+def log_cut_command(
+    material: Annotated[str, typer.Argument(help="Material key, e.g. 304.", show_default=False)],
+    section: Annotated[
+        list[str], typer.Argument(help="Shape and sizes, e.g. round 60mm.", show_default=False)
+    ],
+    orient: OrientOpt = None,
+    bundle: BundleOpt = None,
+    nest: NestOpt = False,
+    blade: Annotated[
+        str | None,
+        typer.Option(
+            "--blade", help="The blade's tag (default: the fitted blade).", show_default=False
+        ),
+    ] = None,
+    saw: Annotated[
+        str | None,
+        typer.Option("--saw", "-s", help="The saw (picks its fitted blade).", show_default=False),
+    ] = None,
+    cuts: Annotated[int, typer.Option("--cuts", "-n", help="Identical cuts in this entry.")] = 1,
+    area: Annotated[
+        str | None,
+        typer.Option(
+            "--area",
+            help="Area of one cut when less than the section, e.g. 20cm2.",
+            show_default=False,
+        ),
+    ] = None,
+    time: Annotated[
+        str | None,
+        typer.Option(
+            "--time", help="Measured time of the whole entry, e.g. 4.5min.", show_default=False
+        ),
+    ] = None,
+    date: DateOpt = None,
+    speed: Annotated[
+        str | None,
+        typer.Option("--speed", help="Band speed used, e.g. 60m/min.", show_default=False),
+    ] = None,
+    feed: Annotated[
+        str | None,
+        typer.Option(
+            "--feed", help="Feed: a rate (40mm/min) or the dial setting (3).", show_default=False
+        ),
+    ] = None,
+    dry: Annotated[bool, typer.Option("--dry", help="Cut without coolant.")] = False,
+    job: Annotated[
+        str | None, typer.Option("--job", help="Job reference.", show_default=False)
+    ] = None,
+    heat: Annotated[
+        str | None,
+        typer.Option("--heat", help="Heat or lot number of the stock.", show_default=False),
+    ] = None,
+    note: Annotated[
+        str | None, typer.Option("--note", help="Free text.", show_default=False)
+    ] = None,
+    units: UnitsOpt = UnitSystem.METRIC,
+    json_out: JsonOpt = False,
+    materials_file: MaterialsFileOpt = None,
+    saws_file: SawsFileOpt = None,
+    db: DbOpt = None,
+) -> None:
+    from sawplan.errors import BadDataError
+    from sawplan.materials import load_catalogue
+    from sawplan.render import to_json
+    from sawplan.sections import parse_section
+    from sawplan.store import connect
+    from sawplan.store.dates import parse_day
+    from sawplan.store.records import CutEntry, get_blade, log_cut
+    from sawplan.units import to_core
+
+    mat = load_catalogue(materials_file).get(material)
+    words = list(section)
+    if orient:
+        words += ["--orient", orient]
+    if bundle:
+        words += ["--bundle", bundle]
+    if nest:
+        words.append("--nest")
+    sec = parse_section(words)
+    if not 1 <= cuts <= MAX_BATCH:
+        raise BadDataError(f"must be 1 to {MAX_BATCH:,}, got {cuts}", field="cuts")
+    one_cut_mm2 = batch_cut_area(
+        sec.area_mm2, None if area is None else to_core(area, "area", field="area")
+    )
+    time_min = None if time is None else _positive(to_core(time, "time", field="time"), "time")
+    speed_m_min = (
+        None if speed is None else _positive(to_core(speed, "speed", field="speed"), "speed")
+    )
+    feed_mm_min, feed_setting = parse_feed(feed)
+    on = parse_day(date)
+    notes: list[str] = []
+    with connect(db) as database:
+        target, saw_id, saw_obj = resolve_target(database, blade, saw, saws_file, on)
+        predicted = None
+        if area is None and saw_obj is not None:
+            predicted, why = predict_minutes(
+                mat, sec, saw_obj, target, dry=dry, speed_m_min=speed_m_min
+            )
+            if predicted is None:
+                notes.append(f"no model time: {why}")
+            else:
+                predicted *= cuts
+        entry = CutEntry(
+            blade_id=target.id,
+            saw_id=saw_id,
+            cut_on=on,
+            material=mat.key,
+            material_group=mat.group,
+            section=sec.spec(),
+            area_mm2=one_cut_mm2 * cuts,
+            pieces=sec.pieces,
+            count=cuts,
+            band_speed_m_min=speed_m_min,
+            feed_mm_min=feed_mm_min,
+            feed_setting=feed_setting,
+            time_min=time_min,
+            predicted_time_min=predicted,
+            coolant=not dry,
+            job=job,
+            heat=heat,
+            note=note,
+        )
+        entry_id = log_cut(database, entry)
+        after = get_blade(database, target.tag)
+    if json_out:
+        result = LoggedCut(entry_id, after.tag, after.saw, after.area_mm2, tuple(notes), entry)
+        print(to_json(result, kind="logged-cut"))
+        return
+    print(render_logged(entry, sec, mat, after, units, notes))
+
+
+def batch_cut_area(section_area_mm2: float, area_mm2: float | None) -> float:
+    """Area of one cut: the section's, or less when ``--area`` says so (never more)."""
+    from sawplan.errors import BadDataError
+
+    if area_mm2 is None:
+        return section_area_mm2
+    if not area_mm2 > 0:
+        raise BadDataError(f"must be above 0, got {area_mm2:g} mm²", field="area")
+    if area_mm2 > section_area_mm2 * (1 + 1e-9):
+        raise BadDataError(
+            f"{plain(area_mm2 / 100)} cm² is more than the section allows "
+            f"({plain(section_area_mm2 / 100)} cm² per cut)",
+            field="area",
+            hint="give the area of one cut, at most the section's; --cuts N counts the cuts",
+        )
+    return area_mm2
+
+
+def parse_feed(text: str | None) -> tuple[float | None, str | None]:
+    """A rate with a unit (mm/min, in/min) or a bare dial setting, kept as text."""
+    from sawplan.units import to_core
+
+    if text is None or not text.strip():
+        return None, None
+    try:
+        float(text)
+    except ValueError:
+        return _positive(to_core(text, "feed", field="feed"), "feed"), None
+    return None, text.strip()
+
+
+def _positive(value: float, field: str) -> float:
+    from sawplan.units import positive
+
+    return positive(value, field=field, what="above 0")
+
+
+def resolve_target(database: Any, tag: str | None, saw: str | None, saws_file: Any, on: str):
+    """The blade the cut was made with, the saw's row id, and the saw's profile."""
+    from sawplan.errors import ConflictError
+    from sawplan.saws import load_saws
+    from sawplan.store.records import ensure_saw, find_saw, fitted_blade, get_blade
+
+    if tag is None:
+        target, saw_name = fitted_blade(database, saw)
+    else:
+        target = get_blade(database, tag)
+        if target.status == "retired":
+            raise ConflictError(
+                f"blade {target.tag} was retired on {target.retired_on}; no more cuts can be logged on it",
+                field="blade",
+            )
+        if saw is not None and target.saw is not None and target.saw.lower() != saw.strip().lower():
+            raise ConflictError(
+                f"blade {target.tag} is fitted on {target.saw}, not {saw}", field="saw"
+            )
+        saw_name = target.saw or saw
+    if saw_name is None:
+        return target, None, None
+    profile = find_saw(database, saw_name) or load_saws(saws_file).get(saw_name.strip().lower())
+    saw_id, _ = ensure_saw(database, saw_name, profile, on=on)
+    return target, saw_id, find_saw(database, saw_name)
+
+
+def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float | None):
+    """The cutting model's time for one cut with this blade, or None and why."""
+    from sawplan.cutting import evaluate
+    from sawplan.cutting.pitch import Pitch
+    from sawplan.errors import SawplanError
+
+    try:
+        result = evaluate(
+            mat,
+            sec,
+            saw_obj,
+            Pitch.of(blade.tpi_coarse, blade.tpi_fine),
+            dry=dry,
+            band_speed_m_min=speed_m_min,
+            blade_material=blade.blade_material,
+        )
+    except SawplanError as err:
+        return None, err.one_line()
+    return result.cut_time_model_min, None
+
+
+@dataclass(frozen=True)
+class LoggedCut:
+    """The entry as written, for ``--json``."""
+
+    id: int
+    blade: str
+    saw: str | None
+    blade_area_mm2: float
+    notes: tuple[str, ...]
+    entry: Any = field(metadata={"json": False})
+
+    def json_extra(self) -> dict[str, Any]:
+        body = dataclasses.asdict(self.entry)
+        body.pop("blade_id")
+        body.pop("saw_id")
+        return body
+
+
+def render_logged(entry, sec, mat, blade, units: UnitSystem, notes: list[str]) -> str:
+    from sawplan.units import Display
+
+    d = Display(units)
+    what = _cuts(entry.count)
+    lines = [
+        f"logged {what} of {mat.key} {sec.label(units.value)} on blade {blade.tag}"
+        + (f" ({blade.saw})" if blade.saw else ""),
+        f"  area {d.fmt('area', entry.area_mm2, 4)}; blade total {d.fmt('area', blade.area_mm2, 4)} "
+        f"in {_cuts(blade.cuts)}",
+    ]
+    if entry.time_min is not None or entry.predicted_time_min is not None:
+        measured = "—" if entry.time_min is None else f"{plain(entry.time_min)} min"
+        model = (
+            "—" if entry.predicted_time_min is None else f"{plain(entry.predicted_time_min)} min"
+        )
+        lines.append(f"  time measured {measured}, model {model}")
+    lines += [f"  note: {n}" for n in notes]
+    return "\n".join(lines)
+
+
+def _cuts(n: int) -> str:
+    return "1 cut" if n == 1 else f"{n:,} cuts"
+
+
+def log_event_command(
+    tag: Annotated[str, typer.Argument(help="The blade's tag.", show_default=False)],
+    kind: Annotated[
+        str, typer.Argument(help="teeth-lost, crooked, stall or failure.", show_default=False)
+    ],
+    mode: Annotated[
+        str | None,
+        typer.Option("--mode", "-m", help="Failure mode, e.g. stripped, weld.", show_default=False),
+    ] = None,
+    location: Annotated[
+        str | None, typer.Option("--location", help="Where on the blade.", show_default=False)
+    ] = None,
+    teeth: Annotated[
+        int | None,
+        typer.Option("--teeth", help="Teeth lost (teeth-lost; default 1).", show_default=False),
+    ] = None,
+    date: DateOpt = None,
+    note: Annotated[
+        str | None, typer.Option("--note", help="Free text.", show_default=False)
+    ] = None,
+    db: DbOpt = None,
+) -> None:
+    from sawplan.store import connect
+    from sawplan.store.dates import parse_day
+    from sawplan.store.records import EventEntry, log_event
+
+    entry = EventEntry(
+        blade_tag=tag,
+        kind=kind,
+        happened_on=parse_day(date),
+        mode=mode,
+        location=location,
+        teeth=teeth,
+        note=note,
+    )
+    with connect(db) as database:
+        blade = log_event(database, entry)
+    if blade.status == "retired" and kind.strip().lower() == "failure":
+        print(f"logged failure ({blade.retire_cause}) on blade {blade.tag}; the blade is retired")
+    else:
+        print(f"logged {kind.strip().lower()} on blade {blade.tag} ({entry.happened_on})")
+
+
+def log_list_command(
+    blade: Annotated[
+        str | None, typer.Option("--blade", help="Only this blade.", show_default=False)
+    ] = None,
+    saw: Annotated[
+        str | None, typer.Option("--saw", "-s", help="Only this saw.", show_default=False)
+    ] = None,
+    job: Annotated[
+        str | None, typer.Option("--job", help="Only this job.", show_default=False)
+    ] = None,
+    limit: Annotated[int, typer.Option("--limit", help="Newest entries to show (0: all).")] = 30,
+    units: UnitsOpt = UnitSystem.METRIC,
+    json_out: JsonOpt = False,
+    csv_out: CsvOpt = False,
+    db: DbOpt = None,
+) -> None:
+    from sawplan.render import table, to_csv, to_json
+    from sawplan.store import connect
+    from sawplan.store.records import list_cuts
+    from sawplan.units import Display
+
+    with connect(db, create=False) as database:
+        rows = list_cuts(database, blade=blade, saw=saw, job=job, limit=limit)
+    if json_out:
+        print(to_json(rows, kind="cuts"))
+        return
+    d = Display(units)
+    headers = ["id", "date", "blade", "saw", "material", "section", "cuts", f"area {d.label('area')}",
+               "min", "model min", "job", "heat"]  # fmt: skip
+    body = [
+        [r["id"], r["cut_on"], r["blade"], r["saw"] or "", r["material"], r["section"], r["count"],
+         plain(d.value("area", r["area_mm2"])), "" if r["time_min"] is None else plain(r["time_min"]),
+         "" if r["predicted_time_min"] is None else plain(r["predicted_time_min"]), r["job"] or "", r["heat"] or ""]
+        for r in rows
+    ]  # fmt: skip
+    if csv_out:
+        print(to_csv(headers, body), end="")
+    elif not body:
+        print("no cuts logged yet; log one: sawplan log cut MATERIAL SECTION...")
+    else:
+        print(table(headers, body, align="rlllllrrrrll"))
+
+
+def register(app: typer.Typer) -> None:
+    group = typer.Typer(
+        help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
+    )
+    group.command("cut", help=CUT_HELP)(log_cut_command)
+    group.command("event", help=EVENT_HELP)(log_event_command)
+    group.command("list", help=LIST_HELP)(log_list_command)
+    app.add_typer(group, name="log", help=HELP)

@@ -1,0 +1,404 @@
+"""``sawplan saw add|list``: saw profiles kept in the blade log, beside the packaged ones."""
+
+from __future__ import annotations
+
+import re
+from pathlib import Path
+from typing import Annotated, Any
+
+import typer
+
+from sawplan.cli.options import CsvOpt, DbOpt, JsonOpt, UnitsOpt
+from sawplan.units import UnitSystem
+
+SawsFileOpt = Annotated[
+    Path | None,
+    typer.Option(
+        "--saws",
+        help="Your own saws TOML file, added to the packaged profiles (env SAWPLAN_SAWS).",
+        show_default=False,
+    ),
+]
+DateOpt = Annotated[
+    str | None,
+    typer.Option(
+        "--date",
+        "-d",
+        help="When: YYYY-MM-DD, today or yesterday (default today).",
+        show_default=False,
+    ),
+]
+
+HELP = """Saw profiles: add your own saws to the blade log and list every saw known.
+
+\b
+Examples:
+  sawplan saw add "bay 2" --like mid-production --wheel 450mm --power 2.2kW
+  sawplan saw list
+"""
+
+ADD_HELP = """Keep a saw's profile in the blade log, so `sawplan blade fit` and
+`sawplan cut --saw NAME` can use it.
+
+Start from a known profile with --like and change what differs, or give every
+field. Sizes take units (mm, in); the speed range is LOW-HIGH with a unit.
+
+\b
+Examples:
+  sawplan saw add "bay 2" --like mid-production --wheel 450mm --power 1.5kW --speed-range 20-90m/min
+  sawplan saw add hyd-330 --kind horizontal --wheel 400mm --blade-length 3660mm --blade-width 27mm --blade-thickness 0.9mm --speed-range 20-100m/min --power 1.5kW --efficiency 0.75 --capacity-round 260mm --capacity-rect 350x260mm --feed-type hydraulic --head-force 2500N
+"""
+
+LIST_HELP = """List every saw known: packaged profiles, your saws file, and the blade log.
+
+\b
+Examples:
+  sawplan saw list
+  sawplan saw list --units us --csv
+"""
+
+_RANGE = re.compile(
+    r"^\s*(?P<lo>[\d.]+)\s*(?P<lo_unit>[^\d\s\-–]*)\s*(?:-|–|to|\.\.)\s*(?P<hi>[\d.]+)\s*(?P<unit>\S+)\s*$"
+)
+
+
+def parse_speed_range(text: str) -> tuple[float, float]:
+    """``20-90m/min`` or ``65-330 ft/min`` → (low, high) in m/min."""
+    from sawplan.errors import BadDataError, UsageError
+    from sawplan.units import to_core
+
+    m = _RANGE.match(text)
+    if not m:
+        raise UsageError(
+            f"expected LOW-HIGH with a unit, got {text!r}",
+            field="speed-range",
+            hint="e.g. 20-90m/min",
+        )
+    unit = m.group("unit")
+    lo = to_core(m.group("lo") + (m.group("lo_unit") or unit), "speed", field="speed-range")
+    hi = to_core(m.group("hi") + unit, "speed", field="speed-range")
+    if lo > hi:
+        raise BadDataError(f"the low speed is above the high one in {text!r}", field="speed-range")
+    return lo, hi
+
+
+def parse_rect(text: str) -> tuple[float, float]:
+    """``350x260mm`` → (width, height) in mm."""
+    from sawplan.errors import UsageError
+    from sawplan.sections import split_sizes
+    from sawplan.units import to_core
+
+    sizes = split_sizes(text.split())
+    if len(sizes) != 2:
+        raise UsageError(
+            f"expected WIDTHxHEIGHT with a unit, got {text!r}",
+            field="capacity-rect",
+            hint="e.g. 350x260mm",
+        )
+    w, h = (to_core(s, "length", field="capacity-rect") for s in sizes)
+    return w, h
+
+
+def saw_add_command(
+    name: Annotated[str, typer.Argument(help="The saw's name in your shop.", show_default=False)],
+    like: Annotated[
+        str | None,
+        typer.Option("--like", help="Start from this saw's profile.", show_default=False),
+    ] = None,
+    kind: Annotated[
+        str | None,
+        typer.Option("--kind", help="horizontal, column or vertical.", show_default=False),
+    ] = None,
+    wheel: Annotated[
+        str | None, typer.Option("--wheel", help="Wheel diameter, e.g. 450mm.", show_default=False)
+    ] = None,
+    blade_length: Annotated[
+        str | None,
+        typer.Option("--blade-length", help="Blade length, e.g. 3660mm.", show_default=False),
+    ] = None,
+    blade_width: Annotated[
+        str | None,
+        typer.Option("--blade-width", help="Blade width, e.g. 27mm.", show_default=False),
+    ] = None,
+    blade_thickness: Annotated[
+        str | None,
+        typer.Option("--blade-thickness", help="Blade thickness, e.g. 0.9mm.", show_default=False),
+    ] = None,
+    speed_range: Annotated[
+        str | None,
+        typer.Option(
+            "--speed-range", help="Band speed range, e.g. 20-90m/min.", show_default=False
+        ),
+    ] = None,
+    power: Annotated[
+        str | None,
+        typer.Option("--power", help="Motor power, e.g. 1.5kW or 2hp.", show_default=False),
+    ] = None,
+    efficiency: Annotated[
+        float | None,
+        typer.Option("--efficiency", help="Motor-to-blade efficiency, 0-1.", show_default=False),
+    ] = None,
+    capacity_round: Annotated[
+        str | None,
+        typer.Option("--capacity-round", help="Largest round, e.g. 260mm.", show_default=False),
+    ] = None,
+    capacity_rect: Annotated[
+        str | None,
+        typer.Option(
+            "--capacity-rect", help="Largest rectangle WxH, e.g. 350x260mm.", show_default=False
+        ),
+    ] = None,
+    feed_type: Annotated[
+        str | None,
+        typer.Option("--feed-type", help="constant, gravity or hydraulic.", show_default=False),
+    ] = None,
+    head_force: Annotated[
+        str | None,
+        typer.Option(
+            "--head-force",
+            help="Head force of a gravity/hydraulic feed, e.g. 2500N.",
+            show_default=False,
+        ),
+    ] = None,
+    coolant: Annotated[
+        bool | None,
+        typer.Option(
+            "--coolant/--no-coolant", help="Whether the saw has flood coolant.", show_default=False
+        ),
+    ] = None,
+    wheels: Annotated[
+        int | None, typer.Option("--wheels", help="Number of wheels (2-4).", show_default=False)
+    ] = None,
+    notes: Annotated[
+        str | None, typer.Option("--notes", help="Free text.", show_default=False)
+    ] = None,
+    replace: Annotated[
+        bool, typer.Option("--replace", help="Update a saw already in the log.")
+    ] = False,
+    units: UnitsOpt = UnitSystem.METRIC,
+    json_out: JsonOpt = False,
+    saws_file: SawsFileOpt = None,
+    db: DbOpt = None,
+) -> None:
+    import dataclasses
+
+    from sawplan.errors import UsageError
+    from sawplan.render import to_json
+    from sawplan.saws import Saw, get_saw
+    from sawplan.store import connect, saws_from_db
+    from sawplan.store.dates import parse_day
+    from sawplan.store.records import add_saw
+    from sawplan.units import to_core
+
+    values: dict[str, Any] = {}
+    if like is not None:
+        base = get_saw(like, saws_file, saws_from_db(db))
+        values = {f.name: getattr(base, f.name) for f in dataclasses.fields(Saw)}
+        values["source"] = f"like {base.name}"
+        values["notes"] = ""  # the base saw's notes describe that saw, not this one
+    values["name"] = name
+    given = {
+        "kind": kind,
+        "feed_type": feed_type,
+        "drive_efficiency": efficiency,
+        "coolant": coolant,
+        "wheel_count": wheels,
+        "notes": notes,
+    }
+    lengths = {
+        "wheel_diameter_mm": (wheel, "wheel"),
+        "blade_length_mm": (blade_length, "blade-length"),
+        "blade_width_mm": (blade_width, "blade-width"),
+        "blade_thickness_mm": (blade_thickness, "blade-thickness"),
+        "capacity_round_mm": (capacity_round, "capacity-round"),
+    }
+    for key, (text, option) in lengths.items():
+        if text is not None:
+            given[key] = to_core(text, "length", field=option)
+    if speed_range is not None:
+        given["band_speed_min_m_min"], given["band_speed_max_m_min"] = parse_speed_range(
+            speed_range
+        )
+    if power is not None:
+        given["motor_power_w"] = to_core(power, "power", field="power")
+    if capacity_rect is not None:
+        given["capacity_rect_w_mm"], given["capacity_rect_h_mm"] = parse_rect(capacity_rect)
+    if head_force is not None:
+        given["head_force_n"] = to_core(head_force, "force", field="head-force")
+    values.update({k: v for k, v in given.items() if v is not None})
+    values.setdefault("source", "blade log")
+    missing = [_OPTION_OF[f.name] for f in dataclasses.fields(Saw) if f.name not in values
+               and f.default is dataclasses.MISSING]  # fmt: skip
+    missing = list(dict.fromkeys(missing))
+    if missing:
+        raise UsageError(
+            f"missing {', '.join(missing)}",
+            field="saw",
+            hint="give them, or start from a known saw with --like NAME (see `sawplan saw list`)",
+        )
+    saw = Saw(**values)
+    with connect(db) as database:
+        add_saw(database, saw, added_on=parse_day(None), replace=replace)
+    if json_out:
+        print(to_json(saw, kind="saw"))
+        return
+    print(render_saw(saw, units))
+    print(
+        f"\nSaved in the blade log; use it with `sawplan blade fit TAG --saw {_quote(saw.name)}`."
+    )
+
+
+_OPTION_OF = {
+    "kind": "--kind",
+    "wheel_diameter_mm": "--wheel",
+    "blade_length_mm": "--blade-length",
+    "blade_width_mm": "--blade-width",
+    "blade_thickness_mm": "--blade-thickness",
+    "band_speed_min_m_min": "--speed-range",
+    "band_speed_max_m_min": "--speed-range",
+    "motor_power_w": "--power",
+    "drive_efficiency": "--efficiency",
+    "capacity_round_mm": "--capacity-round",
+    "capacity_rect_w_mm": "--capacity-rect",
+    "capacity_rect_h_mm": "--capacity-rect",
+    "feed_type": "--feed-type",
+}
+
+
+def _quote(name: str) -> str:
+    return f'"{name}"' if " " in name else name
+
+
+def render_saw(saw, units: UnitSystem) -> str:
+    from sawplan.render import key_values
+    from sawplan.units import Display
+
+    d = Display(units)
+    length = d.label("length")
+    pairs = [
+        ("saw", saw.name),
+        ("kind", saw.kind),
+        ("wheels", f"{saw.wheel_count} × {fmt_q(d, 'length', saw.wheel_diameter_mm)}"),
+        (
+            "blade",
+            f"{fmt_q(d, 'length', saw.blade_length_mm, 4)} long, "
+            f"{_n(d.value('length', saw.blade_width_mm))} × "
+            f"{_n(d.value('length', saw.blade_thickness_mm))} {length}",
+        ),
+        ("band speed", f"{_speed_range(saw, d)}"),
+        ("motor", f"{fmt_q(d, 'power', saw.motor_power_w)} (efficiency {saw.drive_efficiency:g})"),
+        (
+            "capacity",
+            f"round {fmt_q(d, 'length', saw.capacity_round_mm)}, rectangle "
+            f"{_n(d.value('length', saw.capacity_rect_w_mm))} × "
+            f"{_n(d.value('length', saw.capacity_rect_h_mm))} {length}",
+        ),
+        (
+            "feed",
+            saw.feed_type
+            + (f", head force {fmt_q(d, 'force', saw.head_force_n)}" if saw.head_force_n else ""),
+        ),
+        ("coolant", "yes" if saw.coolant else "no"),
+        ("source", saw.source),
+    ]
+    if saw.notes:
+        pairs.append(("notes", saw.notes))
+    return key_values(pairs)
+
+
+def _speed_range(saw, d) -> str:
+    lo = _n(d.value("speed", saw.band_speed_min_m_min))
+    return f"{lo}-{fmt_q(d, 'speed', saw.band_speed_max_m_min)}"
+
+
+def saw_list_command(
+    units: UnitsOpt = UnitSystem.METRIC,
+    json_out: JsonOpt = False,
+    csv_out: CsvOpt = False,
+    saws_file: SawsFileOpt = None,
+    db: DbOpt = None,
+) -> None:
+    from sawplan.render import table, to_csv, to_json
+    from sawplan.saws import load_saws
+    from sawplan.store import connect
+    from sawplan.store.records import fitted_on_saws, logged_saws
+    from sawplan.units import Display
+
+    with connect(db, create=False) as database:
+        logged = logged_saws(database)
+        fitted = fitted_on_saws(database)
+    saws = list(load_saws(saws_file, logged).values())
+    if json_out:
+        print(to_json([_saw_json(s, fitted) for s in saws], kind="saws"))
+        return
+    d = Display(units)
+    headers = [
+        "saw",
+        "kind",
+        f"wheel {d.label('length')}",
+        f"band speed {d.label('speed')}",
+        f"power {d.label('power')}",
+        f"round {d.label('length')}",
+        "feed",
+        "blade fitted",
+        "source",
+    ]
+    rows = [
+        [
+            s.name,
+            s.kind,
+            _n(d.value("length", s.wheel_diameter_mm)),
+            f"{_n(d.value('speed', s.band_speed_min_m_min))}-{_n(d.value('speed', s.band_speed_max_m_min))}",
+            _n(d.value("power", s.motor_power_w)),
+            _n(d.value("length", s.capacity_round_mm)),
+            s.feed_type,
+            fitted.get(s.name.lower(), ""),
+            s.source,
+        ]
+        for s in saws
+    ]
+    if csv_out:
+        print(to_csv(headers, rows), end="")
+    else:
+        print(table(headers, rows, align="llrrrrlll"))
+
+
+def _n(v: float) -> str:
+    return plain(v)
+
+
+def plain(v: float | None, digits: int = 3) -> str:
+    """``digits`` significant figures without trailing zeros: 20.0 → 20, 0.750 → 0.75."""
+    import math
+
+    if v is None or not math.isfinite(v):
+        return "—"
+    if v == 0:
+        return "0"
+    r = float(f"{v:.{digits}g}")
+    if r.is_integer():
+        return f"{int(r):,}"
+    decimals = max(0, digits - 1 - math.floor(math.log10(abs(r))))
+    return f"{r:,.{decimals}f}".rstrip("0").rstrip(".")
+
+
+def fmt_q(d, kind: str, value: float | None, digits: int = 3) -> str:
+    """A display value with its unit label, e.g. ``27 mm``; ``—`` when missing."""
+    if value is None:
+        return "—"
+    return f"{plain(d.value(kind, value), digits)} {d.label(kind)}"
+
+
+def _saw_json(saw, fitted: dict[str, str]) -> dict[str, Any]:
+    from sawplan.render import jsonable
+
+    return {**jsonable(saw), "blade_fitted": fitted.get(saw.name.lower())}
+
+
+def register(app: typer.Typer) -> None:
+    group = typer.Typer(
+        help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
+    )
+    group.command("add", help=ADD_HELP)(saw_add_command)
+    group.command("list", help=LIST_HELP)(saw_list_command)
+    app.add_typer(group, name="saw", help=HELP)

@@ -1,0 +1,449 @@
+"""Moving the log in and out: CSV export and import, and a one-file backup.
+
+Export writes one CSV per table (saws, blades, fittings, cuts, events) with
+natural keys (blade tag, saw name) in place of row ids, so a folder of CSVs can
+be read into any log.  Text a spreadsheet would run as a formula (= + - @) is
+neutralised by ``sawplan.render.to_csv`` with a leading apostrophe; text that
+already starts with an apostrophe gets one more, so import strips exactly one
+and every value comes back as it was.
+
+Import checks every row of every file before writing anything, then writes
+all rows in one transaction: all rows or none, and each error names its file,
+row and column.
+"""
+
+from __future__ import annotations
+
+import csv
+import math
+import os
+import sqlite3
+from dataclasses import dataclass
+from pathlib import Path
+from typing import TYPE_CHECKING, Any
+
+from sawplan.errors import BadDataError, ConflictError, NotFoundError, SawplanError, UsageError
+from sawplan.store.db import connect, resolve_db_path, write_transaction
+from sawplan.store.records import BLADE_STATUSES, EVENT_KINDS, WELDED
+from sawplan.store.schema import SAW_PROFILE_COLUMNS
+
+if TYPE_CHECKING:  # pragma: no cover
+    from sqlite_utils import Database
+
+# column kinds: text, real, int, flag (0/1), day (ISO date); "!" marks a required column
+_SAW_KINDS = {
+    c: ("real" if t is float else "int" if t is int else "text")
+    for c, t in SAW_PROFILE_COLUMNS.items()
+}
+_SAW_KINDS["coolant"] = "flag"
+TABLES: dict[str, dict[str, str]] = {
+    "saws": {"name": "text!", **_SAW_KINDS, "source": "text", "added_on": "day"},
+    "blades": {
+        "tag": "text!",
+        "blade_material": "text!",
+        "grade": "text",
+        "width_mm": "real!",
+        "thickness_mm": "real!",
+        "length_mm": "real",
+        "tpi_coarse": "real!",
+        "tpi_fine": "real!",
+        "tooth_form": "text",
+        "tooth_set": "text",
+        "supplier": "text",
+        "lot": "text",
+        "price": "real",
+        "bought_on": "day",
+        "welded": "text",
+        "status": "text!",
+        "retired_on": "day",
+        "retire_cause": "text",
+        "notes": "text",
+        "added_on": "day",
+    },
+    "fittings": {
+        "blade": "text!",
+        "saw": "text!",
+        "fitted_on": "day!",
+        "removed_on": "day",
+        "tension_mpa": "real",
+        "break_in": "flag",
+        "break_in_how": "text",
+    },
+    "cuts": {
+        "blade": "text!",
+        "saw": "text",
+        "cut_on": "day!",
+        "material": "text!",
+        "material_group": "text",
+        "section": "text!",
+        "area_mm2": "real!",
+        "pieces": "int!",
+        "count": "int!",
+        "band_speed_m_min": "real",
+        "feed_mm_min": "real",
+        "feed_setting": "text",
+        "time_min": "real",
+        "predicted_time_min": "real",
+        "coolant": "flag",
+        "job": "text",
+        "heat": "text",
+        "note": "text",
+    },
+    "events": {
+        "blade": "text!",
+        "happened_on": "day!",
+        "kind": "text!",
+        "mode": "text",
+        "location": "text",
+        "teeth": "int",
+        "note": "text",
+    },
+}
+_POSITIVE = {"width_mm", "thickness_mm", "length_mm", "tpi_coarse", "tpi_fine", "area_mm2",
+             "pieces", "count", "band_speed_m_min", "feed_mm_min", "time_min",
+             "predicted_time_min", "tension_mpa", "teeth"}  # fmt: skip
+
+_EXPORT_SQL = {
+    "saws": "SELECT * FROM saws ORDER BY id",
+    "blades": "SELECT * FROM blades ORDER BY id",
+    "fittings": "SELECT f.*, b.tag AS blade, s.name AS saw FROM fittings f "
+    "JOIN blades b ON b.id = f.blade_id JOIN saws s ON s.id = f.saw_id ORDER BY f.id",
+    "cuts": "SELECT c.*, b.tag AS blade, s.name AS saw FROM cuts c "
+    "JOIN blades b ON b.id = c.blade_id LEFT JOIN saws s ON s.id = c.saw_id ORDER BY c.id",
+    "events": "SELECT e.*, b.tag AS blade FROM events e "
+    "JOIN blades b ON b.id = e.blade_id ORDER BY e.id",
+}
+
+
+@dataclass(frozen=True)
+class TransferResult:
+    """Rows written per table (export or import) and where."""
+
+    folder: str
+    rows: dict[str, int]
+
+
+# --- export ------------------------------------------------------------------------------
+
+
+def export_csv(
+    db: Database, folder: str | os.PathLike[str], *, overwrite: bool = False
+) -> TransferResult:
+    """Write ``saws.csv``, ``blades.csv``, ``fittings.csv``, ``cuts.csv``, ``events.csv``."""
+    from sawplan.render import to_csv
+
+    out = Path(folder)
+    if out.exists() and not out.is_dir():
+        raise UsageError(f"{out} is a file; give a folder", field="folder")
+    clashes = [f"{t}.csv" for t in TABLES if (out / f"{t}.csv").exists()]
+    if clashes and not overwrite:
+        raise ConflictError(
+            f"{out} already holds {', '.join(clashes)}",
+            field="folder",
+            hint="add --force to replace them",
+        )
+    out.mkdir(parents=True, exist_ok=True)
+    counts: dict[str, int] = {}
+    texts: dict[str, str] = {}
+    db.conn.execute("BEGIN")  # one consistent snapshot of every table
+    try:
+        for table, columns in TABLES.items():
+            rows = [
+                [_export_cell(row.get(c), columns[c]) for c in columns]
+                for row in db.query(_EXPORT_SQL[table])
+            ]
+            counts[table] = len(rows)
+            texts[table] = to_csv(list(columns), rows)
+    finally:
+        db.conn.execute("COMMIT")
+    for table, text in texts.items():
+        _write_atomic(out / f"{table}.csv", text)
+    return TransferResult(str(out), counts)
+
+
+def _export_cell(value: Any, kind: str) -> Any:
+    if value is None:
+        return ""
+    if kind.startswith("text") and isinstance(value, str) and value.startswith("'"):
+        return "'" + value  # import strips one apostrophe from any text cell
+    return value
+
+
+def _write_atomic(path: Path, text: str) -> None:
+    tmp = path.with_name(path.name + ".tmp")
+    with tmp.open("w", encoding="utf-8", newline="") as handle:
+        handle.write(text)
+    os.replace(tmp, path)
+
+
+# --- import ------------------------------------------------------------------------------
+
+
+def import_csv(db: Database, folder: str | os.PathLike[str]) -> TransferResult:
+    """Read a folder written by ``export_csv`` into the log: all rows or none."""
+    src = Path(folder)
+    if not src.is_dir():
+        raise NotFoundError(f"no folder {src}", field="folder")
+    present = [t for t in TABLES if (src / f"{t}.csv").is_file()]
+    if not present:
+        raise NotFoundError(
+            f"{src} holds none of {', '.join(f'{t}.csv' for t in TABLES)}", field="folder"
+        )
+    parsed = {t: _read_table(src / f"{t}.csv", t) if t in present else [] for t in TABLES}
+    with write_transaction(db):
+        counts = _write_all(db, parsed)
+    return TransferResult(str(src), counts)
+
+
+Row = tuple[int, dict[str, Any]]  # (data row number, values)
+
+
+def _read_table(path: Path, table: str) -> list[Row]:
+    columns = TABLES[table]
+    try:
+        with path.open(encoding="utf-8-sig", newline="") as handle:
+            reader = csv.DictReader(handle)
+            header = [h.strip() for h in (reader.fieldnames or [])]
+            missing = [c for c in columns if c not in header]
+            if missing:
+                raise BadDataError(
+                    f"missing columns {', '.join(missing)}",
+                    field=path.name,
+                    hint=f"expected {', '.join(columns)}",
+                )
+            unknown = [h for h in header if h not in columns]
+            if unknown:
+                raise BadDataError(
+                    f"unknown columns {', '.join(unknown)}",
+                    field=path.name,
+                    hint="was it written by a newer sawplan?",
+                )
+            reader.fieldnames = header
+            rows = []
+            for number, raw in enumerate(reader, start=1):
+                if None in raw:
+                    raise _row_error(path.name, number, "row", "has more cells than the header")
+                rows.append((number, _convert_row(path.name, number, raw, columns)))
+    except UnicodeDecodeError:
+        raise BadDataError("is not UTF-8 text", field=path.name) from None
+    except csv.Error as err:
+        raise BadDataError(f"is not readable CSV ({err})", field=path.name) from None
+    return rows
+
+
+def _convert_row(
+    name: str, number: int, raw: dict[str, str | None], columns: dict[str, str]
+) -> dict[str, Any]:
+    from sawplan.store.dates import check_stored_day
+
+    out: dict[str, Any] = {}
+    for column, kind in columns.items():
+        cell = raw.get(column)
+        text = "" if cell is None else cell
+        required = kind.endswith("!")
+        kind = kind.rstrip("!")
+        try:
+            if kind == "text":
+                value: Any = text[1:] if text.startswith("'") else text
+                value = value if value.strip() else None
+            elif text.strip() == "":
+                value = None
+            elif kind == "real":
+                value = _number(text, float)
+            elif kind == "int":
+                value = _number(text, int)
+            elif kind == "flag":
+                value = _flag(text)
+            else:
+                value = check_stored_day(text, field=column)
+        except SawplanError as err:
+            raise _row_error(name, number, column, err.message) from None
+        if value is None and required:
+            raise _row_error(name, number, column, "is required")
+        if column in _POSITIVE and value is not None and not value > 0:
+            raise _row_error(name, number, column, f"must be above 0, got {text!r}")
+        out[column] = value
+    return out
+
+
+def _number(text: str, kind: type) -> float | int:
+    try:
+        value = float(text) if kind is float else int(text)
+    except ValueError:
+        what = "a number" if kind is float else "a whole number"
+        raise BadDataError(f"expected {what}, got {text!r}") from None
+    if isinstance(value, float) and not math.isfinite(value):
+        raise BadDataError(f"expected a finite number, got {text!r}")
+    return value
+
+
+def _flag(text: str) -> int:
+    key = text.strip().lower()
+    if key in ("1", "yes", "true", "y"):
+        return 1
+    if key in ("0", "no", "false", "n"):
+        return 0
+    raise BadDataError(f"expected 1 or 0, got {text!r}")
+
+
+def _row_error(name: str, number: int, column: str, message: str) -> BadDataError:
+    return BadDataError(f"{name} row {number} (line {number + 1}): {column}: {message}")
+
+
+def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
+    """Check references and rules against the log, then insert; any error rolls all back."""
+    from sawplan.store.records import check_failure_mode, row_to_saw
+
+    saw_ids = {r["name"].lower(): (r["id"], r) for r in db.query("SELECT * FROM saws")}
+    blade_ids = {r[1].lower(): r[0] for r in db.execute("SELECT id, tag FROM blades")}
+    counts = dict.fromkeys(TABLES, 0)
+
+    for number, row in parsed["saws"]:
+        key = row["name"].lower()
+        if key in saw_ids:
+            old = saw_ids[key][1]
+            if any(old.get(c) != row.get(c) for c in SAW_PROFILE_COLUMNS):
+                raise _row_error(
+                    "saws.csv",
+                    number,
+                    "name",
+                    f"saw {row['name']} is in the log with another profile",
+                )
+            continue
+        row["source"] = row["source"] or "blade log"
+        try:
+            row_to_saw(row)  # the profile must make a valid saw for `sawplan cut`
+        except SawplanError as err:
+            raise _row_error("saws.csv", number, err.field or "profile", err.message) from None
+        saw_ids[key] = (db["saws"].insert(row).last_pk, row)
+        counts["saws"] += 1
+
+    for number, row in parsed["blades"]:
+        where = ("blades.csv", number)
+        if row["tag"].lower() in blade_ids:
+            raise _row_error(*where, "tag", f"blade {row['tag']} is already in the log")
+        _one_of(where, "status", row["status"], BLADE_STATUSES)
+        if row["welded"] is not None:
+            _one_of(where, "welded", row["welded"], WELDED)
+        if row["status"] == "retired":
+            try:
+                row["retire_cause"] = check_failure_mode(row["retire_cause"], field="retire_cause")
+            except SawplanError as err:
+                raise _row_error(*where, "retire_cause", err.message) from None
+        blade_ids[row["tag"].lower()] = db["blades"].insert(row).last_pk
+        counts["blades"] += 1
+
+    open_blades: set[int] = set()
+    open_saws: set[int] = set()
+    for blade_id, saw_id in db.execute(
+        "SELECT blade_id, saw_id FROM fittings WHERE removed_on IS NULL"
+    ):
+        open_blades.add(blade_id)
+        open_saws.add(saw_id)
+    fittings = []
+    for number, row in parsed["fittings"]:
+        where = ("fittings.csv", number)
+        values = _resolve(where, row, blade_ids, saw_ids, saw_required=True)
+        if row["removed_on"] is None:
+            if values["blade_id"] in open_blades or values["saw_id"] in open_saws:
+                raise _row_error(
+                    *where, "removed_on", "a blade or saw would have two open fittings"
+                )
+            open_blades.add(values["blade_id"])
+            open_saws.add(values["saw_id"])
+        fittings.append(values)
+
+    cuts = [_resolve(("cuts.csv", n), r, blade_ids, saw_ids) for n, r in parsed["cuts"]]
+
+    events = []
+    for number, row in parsed["events"]:
+        where = ("events.csv", number)
+        _one_of(where, "kind", row["kind"], EVENT_KINDS)
+        if row["mode"] is not None:
+            try:
+                row["mode"] = check_failure_mode(row["mode"], field="mode")
+            except SawplanError as err:
+                raise _row_error(*where, "mode", err.message) from None
+        events.append(_resolve(where, row, blade_ids, saw_ids))
+
+    try:
+        for table, rows in (("fittings", fittings), ("cuts", cuts), ("events", events)):
+            if rows:
+                db[table].insert_all(rows, batch_size=500)
+            counts[table] = len(rows)
+    except sqlite3.IntegrityError as err:
+        raise BadDataError(f"the rows break a rule of the log ({err})", field="import") from None
+    return counts
+
+
+def _resolve(
+    where: tuple[str, int],
+    row: dict[str, Any],
+    blades: dict,
+    saws: dict,
+    *,
+    saw_required: bool = False,
+) -> dict[str, Any]:
+    values = dict(row)
+    tag = values.pop("blade")
+    if tag.lower() not in blades:
+        raise _row_error(*where, "blade", f"no blade {tag!r} in the log or in blades.csv")
+    values["blade_id"] = blades[tag.lower()]
+    if "saw" in values:
+        name = values.pop("saw")
+        if name is None:
+            if saw_required:
+                raise _row_error(*where, "saw", "is required")
+            values["saw_id"] = None
+        elif name.lower() not in saws:
+            raise _row_error(*where, "saw", f"no saw {name!r} in the log or in saws.csv")
+        else:
+            values["saw_id"] = saws[name.lower()][0]
+    return values
+
+
+def _one_of(where: tuple[str, int], column: str, value: str, allowed: tuple[str, ...]) -> None:
+    if value not in allowed:
+        raise _row_error(*where, column, f"must be one of {', '.join(allowed)}, got {value!r}")
+
+
+# --- backup ------------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class BackupResult:
+    source: str
+    backup: str
+    bytes: int
+
+
+def backup(
+    db_path: str | os.PathLike[str] | None, dest: str | os.PathLike[str], *, overwrite: bool = False
+) -> BackupResult:
+    """Copy the live log to one self-contained file with SQLite's online backup API.
+
+    Other programs may keep writing meanwhile; the copy is a consistent
+    snapshot.  The file appears only when complete (written beside, then renamed).
+    """
+    source = resolve_db_path(db_path)
+    target = Path(dest).expanduser()
+    if not source.exists():
+        raise NotFoundError(f"no blade log at {source}", field="db")
+    if target.exists() and target.resolve() == source.resolve():
+        raise UsageError("the backup cannot be the log itself", field="file")
+    if target.is_dir():
+        raise UsageError(f"{target} is a folder; give a file name", field="file")
+    if target.exists() and not overwrite:
+        raise ConflictError(f"{target} exists", field="file", hint="add --force to replace it")
+    target.parent.mkdir(parents=True, exist_ok=True)
+    tmp = target.with_name(target.name + ".partial")
+    tmp.unlink(missing_ok=True)
+    with connect(source, create=False) as db:
+        out = sqlite3.connect(tmp)
+        try:
+            db.conn.backup(out)
+            out.execute("PRAGMA journal_mode = DELETE")  # one file, no -wal beside it
+        finally:
+            out.close()
+    os.replace(tmp, target)
+    return BackupResult(str(source), str(target), target.stat().st_size)

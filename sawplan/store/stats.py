@@ -1,0 +1,156 @@
+"""Queries that turn the log into the plain lists ``sawplan.life`` works on.
+
+A blade's life is the area it cut (cm²).  A retired blade is a failure at that
+area; a blade still fitted, or removed unworn, is right-censored: its life is
+at least that area (reference §7).  A blade that has cut nothing and is not
+retired tells nothing about life and is left out.
+"""
+
+from __future__ import annotations
+
+from collections import defaultdict
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, NamedTuple
+
+if TYPE_CHECKING:  # pragma: no cover
+    from sqlite_utils import Database
+
+from sawplan.store.records import fmt_num, pitch_label
+
+
+@dataclass(frozen=True)
+class BladeLife:
+    """One blade as a life observation."""
+
+    tag: str
+    blade_type: str
+    material_group: str | None  # the group it cut most area of
+    area_cm2: float
+    failed: bool
+    mode: str | None
+    price: float | None
+    status: str
+
+
+def blade_type_of(row: dict) -> str:
+    """Material, grade, width × thickness and pitch: what makes blades comparable."""
+    size = f"{fmt_num(row['width_mm'])}×{fmt_num(row['thickness_mm'])}"
+    parts = [row["blade_material"], row.get("grade") or "", size]
+    parts.append(pitch_label(row["tpi_coarse"], row["tpi_fine"]))
+    return " ".join(p for p in parts if p)
+
+
+def blade_lives(db: Database, *, include_unused_failures: bool = False) -> list[BladeLife]:
+    """Every blade that is a life observation, in the order blades were added.
+
+    Retired blades that never cut anything are left out unless
+    ``include_unused_failures`` (a zero life cannot enter a Weibull fit).
+    """
+    by_group: dict[int, dict[str | None, float]] = defaultdict(dict)
+    for blade_id, group, area in db.execute(
+        "SELECT blade_id, material_group, SUM(area_mm2) FROM cuts GROUP BY blade_id, material_group"
+    ):
+        by_group[blade_id][group] = float(area)
+    lives = []
+    for row in db.query(
+        "SELECT id, tag, blade_material, grade, width_mm, thickness_mm, tpi_coarse, tpi_fine, "
+        "price, status, retire_cause FROM blades ORDER BY id"
+    ):
+        groups = by_group.get(row["id"], {})
+        area_cm2 = sum(groups.values()) / 100.0
+        failed = row["status"] == "retired"
+        if area_cm2 <= 0.0 and not (failed and include_unused_failures):
+            continue
+        dominant = max(groups.items(), key=lambda kv: kv[1])[0] if groups else None
+        lives.append(
+            BladeLife(
+                tag=row["tag"],
+                blade_type=blade_type_of(row),
+                material_group=dominant,
+                area_cm2=area_cm2,
+                failed=failed,
+                mode=row["retire_cause"] if failed else None,
+                price=row["price"],
+                status=row["status"],
+            )
+        )
+    return lives
+
+
+def unused_retired(db: Database) -> list[str]:
+    """Tags of blades retired before they cut anything (left out of the fit)."""
+    return [
+        r[0]
+        for r in db.execute(
+            "SELECT tag FROM blades b WHERE status = 'retired' "
+            "AND NOT EXISTS (SELECT 1 FROM cuts c WHERE c.blade_id = b.id) ORDER BY id"
+        )
+    ]
+
+
+class TimedCut(NamedTuple):
+    """A cut with both its measured and its predicted time (batch totals).
+
+    A named tuple, not a frozen dataclass: a big log has 10⁵ of them.
+    """
+
+    saw: str | None
+    material_group: str | None
+    time_min: float
+    predicted_time_min: float
+
+
+CALIBRATION_WINDOW = 200
+
+
+def timed_cuts(
+    db: Database,
+    *,
+    saw: str | None = None,
+    material_group: str | None = None,
+    latest: int = CALIBRATION_WINDOW,
+) -> list[TimedCut]:
+    """The latest ``latest`` cuts carrying both times, per saw and material group.
+
+    Only recent cuts count: a saw's calibration drifts as it is serviced and
+    re-set, and 200 cuts give a steady median.  Each (saw, group) is read
+    newest first through the (saw_id, material_group) index, so a big log
+    costs no more than a small one.
+    """
+    names = {sid: name for sid, name in db.execute("SELECT id, name FROM saws")}
+    pair_sql = "SELECT DISTINCT saw_id, material_group FROM cuts"
+    pairs = list(db.execute(pair_sql))
+    if saw is not None:
+        wanted = saw.strip().lower()
+        pairs = [p for p in pairs if (names.get(p[0]) or "").lower() == wanted]
+    if material_group is not None:
+        pairs = [p for p in pairs if p[1] == material_group]
+    out: list[TimedCut] = []
+    for saw_id, group in sorted(pairs, key=lambda p: (str(names.get(p[0])), str(p[1]))):
+        rows = db.execute(
+            "SELECT time_min, predicted_time_min FROM cuts WHERE saw_id IS ? AND "
+            "material_group IS ? AND time_min > 0 AND predicted_time_min > 0 "
+            "ORDER BY id DESC LIMIT ?",
+            [saw_id, group, latest],
+        ).fetchall()
+        name = names.get(saw_id)
+        out += [TimedCut(name, group, t, p) for t, p in reversed(rows)]
+    return out
+
+
+@dataclass(frozen=True)
+class LogCounts:
+    saws: int
+    blades: int
+    cuts: int  # entries
+    cut_count: int  # cuts, batches counted in full
+    events: int
+
+
+def log_counts(db: Database) -> LogCounts:
+    one = db.execute(
+        "SELECT (SELECT COUNT(*) FROM saws), (SELECT COUNT(*) FROM blades), "
+        "(SELECT COUNT(*) FROM cuts), (SELECT COALESCE(SUM(count), 0) FROM cuts), "
+        "(SELECT COUNT(*) FROM events)"
+    ).fetchone()
+    return LogCounts(*(int(v) for v in one))

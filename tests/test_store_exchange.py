@@ -1,0 +1,278 @@
+"""Moving the log: CSV export/import (atomic, row-numbered errors), backup, and two writers.
+
+External checks: SQLite's ``iterdump`` (the database before and after), Python's
+``csv`` module reading the exported files back as a spreadsheet would, and
+SQLite's online backup producing a file that opens as the same log.
+"""
+
+from __future__ import annotations
+
+import csv
+import math
+import multiprocessing
+import sqlite3
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from sawplan.errors import BadDataError, ConflictError
+from sawplan.render import to_csv
+from sawplan.saws import load_saws
+from sawplan.store import connect
+from sawplan.store.exchange import (
+    TABLES,
+    _convert_row,
+    _export_cell,
+    backup,
+    export_csv,
+    import_csv,
+)
+from sawplan.store.records import (
+    BladeSpec,
+    CutEntry,
+    EventEntry,
+    add_blade,
+    fit_blade,
+    log_cut,
+    log_event,
+    retire_blade,
+)
+
+ROUND_60_MM2 = math.pi * 60.0**2 / 4.0  # closed form πd²/4
+TRICKY = ('=HYPERLINK("x")', "+44 cut", "-dull edge", "@once", "'quoted", "plain, with comma")
+
+
+def build_log(path, cuts: int = 80) -> None:
+    """A small log touching every table and every kind of column."""
+    saw = load_saws()["mid-production"]
+    with connect(path) as db:
+        add_blade(db, BladeSpec("B-1", 27.0, 0.9, 3.0, 4.0, length_mm=3505.0, price=60.0,
+                                grade="M42", supplier="north depot", lot="=2291", bought_on="2024-01-01"),
+                  added_on="2024-01-01")  # fmt: skip
+        add_blade(
+            db, BladeSpec("B-2", 27.0, 0.9, 4.0, 6.0, welded="in-house"), added_on="2024-01-01"
+        )
+        fit_blade(db, "B-1", "mid-production", on="2024-01-02", saw_profile=saw, tension_mpa=200.0,
+                  break_in=True, break_in_how="half feed")  # fmt: skip
+        for i in range(cuts):
+            log_cut(
+                db,
+                CutEntry(
+                    blade_id=1 + (i >= cuts // 2),
+                    saw_id=1 if i < cuts // 2 else None,
+                    cut_on=f"2024-02-{1 + i % 28:02d}",
+                    material="304",
+                    material_group="austenitic-stainless",
+                    section="round 60mm",
+                    area_mm2=ROUND_60_MM2 * (1 + i % 3),
+                    count=1 + i % 3,
+                    time_min=0.1 + i / 7,
+                    predicted_time_min=0.1 + i / 9 if i % 2 else None,
+                    band_speed_m_min=61.5,
+                    feed_setting="3" if i % 4 == 0 else None,
+                    coolant=bool(i % 5),
+                    job=TRICKY[i % len(TRICKY)],
+                    heat=f"H{i}",
+                    note=TRICKY[(i + 1) % len(TRICKY)],
+                ),
+            )
+        log_event(db, EventEntry("B-1", "teeth-lost", "2024-03-01", teeth=2, note="-2 teeth"))
+        retire_blade(db, "B-2", "body-crack", on="2024-03-02", location="gullet")
+
+
+def dump(path) -> list[str]:
+    conn = sqlite3.connect(path)
+    try:
+        return list(conn.iterdump())
+    finally:
+        conn.close()
+
+
+def rows(path) -> dict[str, list[tuple]]:
+    conn = sqlite3.connect(path)
+    try:
+        return {t: conn.execute(f"SELECT * FROM {t} ORDER BY id").fetchall() for t in TABLES}
+    finally:
+        conn.close()
+
+
+@pytest.fixture(scope="module")
+def exported(tmp_path_factory):
+    base = tmp_path_factory.mktemp("exported")
+    build_log(base / "log.sqlite")
+    with connect(base / "log.sqlite") as db:
+        export_csv(db, base / "csv")
+    return base
+
+
+def test_round_trip_into_a_fresh_log_gives_the_same_rows(exported, tmp_path):
+    fresh = tmp_path / "fresh.sqlite"
+    with connect(fresh) as db:
+        result = import_csv(db, exported / "csv")
+    assert result.rows["cuts"] == 80
+    assert rows(fresh) == rows(exported / "log.sqlite")
+
+
+def test_formula_cells_are_neutralised(exported):
+    with (exported / "csv" / "cuts.csv").open(newline="", encoding="utf-8") as handle:
+        cells = [c for row in csv.reader(handle) for c in row]
+    leads = ("=", "+", "-", "@")
+    risky = [c for c in cells if c.startswith(leads)]
+    # numbers may start with "-" (none here are negative); no text cell may
+    assert risky == []
+    assert '\'=HYPERLINK("x")' in cells and "'@once" in cells
+    assert "''quoted" in cells  # one apostrophe more, so import strips exactly one
+
+
+_TEXT = st.text(st.characters(blacklist_categories=("Cs", "Cc")), max_size=30)
+
+
+@settings(max_examples=200, deadline=None)
+@given(value=_TEXT)
+def test_any_text_cell_round_trips(value):
+    """Export cell → CSV text → csv reader → import cell gives the value back."""
+    text = to_csv(["note"], [[_export_cell(value, "text")]])
+    header, cell = list(csv.reader(text.splitlines()))
+    row = _convert_row("x.csv", 1, dict(zip(header, cell, strict=True)), {"note": "text"})
+    assert row["note"] == (value if value.strip() else None)
+
+
+def test_bad_value_on_row_57_leaves_the_log_as_it_was(exported, tmp_path):
+    target = tmp_path / "target.sqlite"
+    build_log(target, cuts=5)
+    with connect(target) as db:  # blade tags of the export must not clash: rename them
+        db.execute("UPDATE blades SET tag = tag || '-old'")
+    bad = tmp_path / "bad"
+    bad.mkdir()
+    for name in TABLES:
+        lines = (exported / "csv" / f"{name}.csv").read_text(encoding="utf-8").splitlines()
+        if name == "cuts":
+            header = lines[0].split(",")
+            cells = next(csv.reader([lines[57]]))  # data row 57 is line 58
+            cells[header.index("area_mm2")] = "lots"
+            lines[57] = to_csv(header, [cells]).splitlines()[1]
+        (bad / f"{name}.csv").write_text("\n".join(lines) + "\n", encoding="utf-8")
+    before = dump(target)
+    with connect(target) as db, pytest.raises(BadDataError) as err:
+        import_csv(db, bad)
+    assert "cuts.csv row 57 (line 58): area_mm2" in str(err.value)
+    assert dump(target) == before
+
+
+def test_interrupted_import_rolls_back_rows_already_written(exported, tmp_path, monkeypatch):
+    """Stop the import after saws and blades are written: nothing may stay."""
+    import sawplan.store.exchange as exchange
+
+    target = tmp_path / "target.sqlite"
+    with connect(target):
+        pass
+    before = dump(target)
+    calls = {"n": 0}
+    real = exchange._resolve
+
+    def flaky(*args, **kw):
+        calls["n"] += 1
+        if calls["n"] == 30:
+            raise KeyboardInterrupt  # the user pressed Ctrl-C mid-import
+        return real(*args, **kw)
+
+    monkeypatch.setattr(exchange, "_resolve", flaky)
+    with connect(target) as db, pytest.raises(KeyboardInterrupt):
+        import_csv(db, exported / "csv")
+    assert calls["n"] == 30
+    assert dump(target) == before
+
+
+def test_missing_columns_are_named(exported, tmp_path):
+    folder = tmp_path / "cols"
+    folder.mkdir()
+    text = (exported / "csv" / "blades.csv").read_text(encoding="utf-8").splitlines()
+    header = text[0].split(",")
+    keep = [i for i, h in enumerate(header) if h not in ("tpi_fine", "status")]
+    with (folder / "blades.csv").open("w", newline="", encoding="utf-8") as handle:
+        writer = csv.writer(handle)
+        for row in csv.reader(text):
+            writer.writerow([row[i] for i in keep])
+    target = tmp_path / "t.sqlite"
+    with connect(target):
+        pass
+    before = dump(target)
+    with (
+        connect(target) as db,
+        pytest.raises(BadDataError, match="missing columns tpi_fine, status"),
+    ):
+        import_csv(db, folder)
+    assert dump(target) == before
+
+
+def test_import_refuses_tags_already_in_the_log(exported, tmp_path):
+    target = tmp_path / "t.sqlite"
+    build_log(target, cuts=2)
+    before = dump(target)
+    with (
+        connect(target) as db,
+        pytest.raises(BadDataError, match="blades.csv row 1 .*already in the log"),
+    ):
+        import_csv(db, exported / "csv")
+    assert dump(target) == before
+
+
+def test_backup_is_the_same_log_in_one_file(exported, tmp_path):
+    copy = tmp_path / "copy.sqlite"
+    result = backup(exported / "log.sqlite", copy)
+    assert result.bytes == copy.stat().st_size
+    assert not (tmp_path / "copy.sqlite-wal").exists()
+    assert rows(copy) == rows(exported / "log.sqlite")
+    with connect(copy, create=False) as db:  # opens as a sawplan log
+        assert db.execute("SELECT COUNT(*) FROM cuts").fetchone()[0] == 80
+    with pytest.raises(ConflictError):
+        backup(exported / "log.sqlite", copy)
+
+
+# --- two writers at once -------------------------------------------------------------------
+
+
+def _writer(path: str, tag: str, n: int, start, errors) -> None:
+    try:
+        from sawplan.store import connect
+        from sawplan.store.records import BladeSpec, CutEntry, add_blade, get_blade, log_cut
+
+        start.wait(30)
+        with connect(path) as db:  # both processes may create and migrate the file
+            add_blade(db, BladeSpec(tag, 27.0, 0.9, 3.0, 4.0), added_on="2024-01-01")
+            blade_id = get_blade(db, tag).id
+        for i in range(n):
+            with connect(path) as db:  # one open per cut, as the command does
+                log_cut(db, CutEntry(blade_id, "2024-02-01", "304", "austenitic-stainless",
+                                     "round 60mm", 2827.43, note=f"{tag} {i}"))  # fmt: skip
+    except BaseException as err:  # report to the parent instead of dying quietly
+        errors.put(f"{tag}: {type(err).__name__}: {err}")
+
+
+def test_two_processes_log_200_cuts_each(tmp_path):
+    path = str(tmp_path / "shared.sqlite")
+    ctx = multiprocessing.get_context("fork")
+    start = ctx.Event()
+    errors = ctx.Queue()
+    workers = [
+        ctx.Process(target=_writer, args=(path, tag, 200, start, errors)) for tag in ("A", "B")
+    ]
+    for w in workers:
+        w.start()
+    start.set()
+    for w in workers:
+        w.join(120)
+    problems = []
+    while not errors.empty():
+        problems.append(errors.get())
+    assert problems == []
+    assert [w.exitcode for w in workers] == [0, 0]
+    with connect(path) as db:
+        assert db.execute("SELECT COUNT(*) FROM cuts").fetchone()[0] == 400
+        per_blade = dict(
+            db.execute(
+                "SELECT b.tag, COUNT(*) FROM cuts c JOIN blades b ON b.id = c.blade_id GROUP BY b.tag"
+            )
+        )
+    assert per_blade == {"A": 200, "B": 200}
