@@ -29,22 +29,23 @@ Estimates only: the saw maker's manual, the blade maker's data, shop rules and
 local regulations govern.
 """
 
-# command modules in the order they appear in --help
-COMMAND_MODULES = (
-    "sawplan.cli.cmd_cut",
-    "sawplan.cli.cmd_weigh",
-    "sawplan.cli.cmd_materials",
-)
-
-app = typer.Typer(
-    name="sawplan",
-    help=HELP,
-    no_args_is_help=True,
-    add_completion=False,
-    rich_markup_mode=None,
-    pretty_exceptions_enable=False,
-    context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100},
-)
+# command word -> the module that registers it; --help lists them in this order
+COMMANDS: dict[str, str] = {
+    "plan": "sawplan.cli.cmd_plan",
+    "cut": "sawplan.cli.cmd_cut",
+    "weigh": "sawplan.cli.cmd_weigh",
+    "materials": "sawplan.cli.cmd_materials",
+    "saw": "sawplan.cli.cmd_saw",
+    "blade": "sawplan.cli.cmd_blade",
+    "log": "sawplan.cli.cmd_log",
+    "life": "sawplan.cli.cmd_life",
+    "forecast": "sawplan.cli.cmd_life",
+    "chart": "sawplan.cli.cmd_life",
+    "export": "sawplan.cli.cmd_logdata",
+    "import": "sawplan.cli.cmd_logdata",
+    "backup": "sawplan.cli.cmd_logdata",
+}
+COMMAND_MODULES = tuple(dict.fromkeys(COMMANDS.values()))
 
 
 def _version(value: bool) -> None:
@@ -53,22 +54,50 @@ def _version(value: bool) -> None:
         raise typer.Exit()
 
 
-@app.callback()
-def _root(
-    version: bool = typer.Option(
-        False, "--version", callback=_version, is_eager=True, help="Show the version and exit."
-    ),
-) -> None:
-    """Plan band-saw work on metal stock."""
+def make_app(modules: tuple[str, ...] = COMMAND_MODULES) -> typer.Typer:
+    """The Typer app with the given command modules registered."""
+    new = typer.Typer(
+        name="sawplan",
+        help=HELP,
+        no_args_is_help=True,
+        add_completion=False,
+        rich_markup_mode=None,
+        pretty_exceptions_enable=False,
+        context_settings={"help_option_names": ["-h", "--help"], "max_content_width": 100},
+    )
+
+    @new.callback()
+    def _root(
+        version: bool = typer.Option(
+            False, "--version", callback=_version, is_eager=True, help="Show the version and exit."
+        ),
+    ) -> None:
+        """Plan band-saw work on metal stock."""
+
+    for name in modules:
+        importlib.import_module(name).register(new)
+    return new
 
 
-for _name in COMMAND_MODULES:
-    importlib.import_module(_name).register(app)
+def _modules_for(args: list[str]) -> tuple[str, ...]:
+    """Only the module of the command being run: start-up stays light."""
+    word = next((a for a in args if not a.startswith("-")), None)
+    if word in COMMANDS:
+        return (COMMANDS[word],)
+    return COMMAND_MODULES
+
+
+def __getattr__(name: str) -> typer.Typer:
+    """``app`` (every command registered) is built on first use, for tests and tools."""
+    if name == "app":
+        globals()["app"] = built = make_app()
+        return built
+    raise AttributeError(name)
 
 
 def run(args: list[str]) -> int:
     """Run the CLI without the boundary (tests use this through ``main``)."""
-    command = typer.main.get_command(app)
+    command = typer.main.get_command(make_app(_modules_for(args)))
     return int(command.main(args=args, prog_name="sawplan", standalone_mode=False) or 0)
 
 

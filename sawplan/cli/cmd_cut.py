@@ -76,7 +76,7 @@ def cut_command(
     saws_file: Annotated[
         Path | None,
         typer.Option(
-            "--saws-file",
+            "--saws",
             help="Your own saw profiles (TOML; env SAWPLAN_SAWS).",
             show_default=False,
         ),
