@@ -5,7 +5,7 @@ BIN := $(VENV)/bin
 STAMP := $(VENV)/.installed
 TEST_STAMP := $(VENV)/.installed-test
 
-.PHONY: demo test lint bench clean
+.PHONY: demo test lint bench clean browser
 
 $(BIN)/python:
 	$(PY) -m venv $(VENV)
@@ -22,8 +22,18 @@ $(TEST_STAMP): pyproject.toml | $(BIN)/python
 demo: $(STAMP)
 	$(BIN)/python demo/run_demo.py
 
-test: $(TEST_STAMP)
+test: $(TEST_STAMP) browser
 	$(BIN)/python -m pytest
+
+# The job-sheet test prints through headless Chromium (Debian's package). Install
+# it when missing and we may; otherwise that one test skips and says why.
+browser:
+	@command -v chromium >/dev/null 2>&1 || { \
+	  if [ "$$(id -u)" = 0 ] && command -v apt-get >/dev/null 2>&1; then \
+	    echo "installing chromium for the job-sheet test (Debian package)"; \
+	    (apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium >/dev/null) \
+	      || echo "chromium could not be installed: the browser test will be skipped"; \
+	  else echo "chromium not installed: the browser test will be skipped"; fi; }
 
 lint: $(TEST_STAMP)
 	$(BIN)/ruff check sawplan tests bench demo

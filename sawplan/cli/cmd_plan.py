@@ -1,0 +1,299 @@
+"""``sawplan plan``: lay out a job's cut lists on the stock on hand, time, blade and cost it."""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Annotated
+
+import typer
+
+from sawplan.cli.options import DbOpt, JsonOpt, MaterialsFileOpt, UnitsOpt
+from sawplan.units import UnitSystem
+
+HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote.
+
+JOBFILE is a TOML file with a [job] table (name, kerf, trim, grip,
+min_remnant, saw, shop_rate, handling_time, blade_price, currency, customer,
+due), [[stock]] entries (material, section, length, count, price or
+price_per_kg, heat, location, remnant) and [[part]] entries (name, material,
+section, length, count, tolerance, drawing). Lengths carry their unit.
+
+Parts are cut only from stock of the same material and section. The plan
+prints the bars to fetch, every cut from the head end, remnants to keep
+(with the heat number to mark on them), weights and how to lift them, blade
+and settings per section, time, blades to have on hand and the quote.
+Nothing is written when the job has an error.
+
+\b
+Examples:
+  sawplan plan job.toml
+  sawplan plan job.toml --sheet job.html
+  sawplan plan job.toml --sheet job.md --units us
+  sawplan plan job.toml --csv out/ --saw large-column
+  sawplan plan job.toml --json --db shop-log.sqlite
+
+Estimates only: the saw maker's manual, the blade maker's data, shop rules and
+local regulations govern.
+"""
+
+
+def plan_command(
+    jobfile: Annotated[
+        Path, typer.Argument(help="The job file (TOML).", show_default=False, metavar="JOBFILE")
+    ],
+    json_out: JsonOpt = False,
+    csv_dir: Annotated[
+        Path | None,
+        typer.Option(
+            "--csv",
+            help="Write cuts.csv, bars.csv and summary.csv into DIR.",
+            show_default=False,
+            metavar="DIR",
+        ),
+    ] = None,
+    sheet: Annotated[
+        Path | None,
+        typer.Option(
+            "--sheet",
+            help="Write a printable cut sheet: HTML, or Markdown when FILE ends in .md.",
+            show_default=False,
+            metavar="FILE",
+        ),
+    ] = None,
+    units: UnitsOpt = UnitSystem.METRIC,
+    db: DbOpt = None,
+    saw_name: Annotated[
+        str | None,
+        typer.Option(
+            "--saw",
+            help="Saw to plan for (overrides saw in [job]).",
+            show_default=False,
+            metavar="NAME",
+        ),
+    ] = None,
+    saws_file: Annotated[
+        Path | None,
+        typer.Option(
+            "--saws",
+            help="Your own saws TOML file (env SAWPLAN_SAWS).",
+            show_default=False,
+            metavar="FILE",
+        ),
+    ] = None,
+    materials_file: MaterialsFileOpt = None,
+    time_limit: Annotated[
+        float,
+        typer.Option(
+            "--time-limit", help="Seconds the optimiser may spend per section.", metavar="SECONDS"
+        ),
+    ] = 5.0,
+) -> None:
+    import sys
+
+    from sawplan.cutlist.jobfile import load_job
+    from sawplan.cutlist.planning import plan_job
+    from sawplan.errors import UsageError
+    from sawplan.materials import load_catalogue
+    from sawplan.render import to_json
+
+    if not 0 < time_limit <= 600:
+        raise UsageError(f"must be between 0 and 600 s, got {time_limit:g}", field="time-limit")
+    catalogue = load_catalogue(materials_file)
+    job = load_job(jobfile, catalogue)
+    log = BladeLog(db)
+    saw = choose_saw(job, saw_name, saws_file, log)
+    plan = plan_job(
+        job,
+        saw,
+        calibration_for=log.calibration,
+        life_for=log.life,
+        log_label=log.label,
+        time_limit_s=time_limit,
+    )
+    outputs = render_outputs(plan, units, csv_dir, sheet)
+    if json_out:
+        print(to_json(plan, kind="plan"))
+    else:
+        from sawplan.cutlist.sheet_text import render_plan
+
+        print(render_plan(plan, units))
+    written = write_all(outputs)
+    for path in written:
+        print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
+
+
+# --- the blade log, when there is one -------------------------------------------------------
+
+
+class BladeLog:
+    """Read-only access to the blade log: calibration factors, life fits, saws.
+
+    A missing file is not created: the plan then uses the model's times and the
+    default lives, and says so.
+    """
+
+    def __init__(self, db: Path | None):
+        from sawplan.store import resolve_db_path
+
+        self.path = resolve_db_path(db)
+        self.exists = self.path.is_file()
+        self.label = f"blade log {self.path}" if self.exists else "no blade log"
+
+    def calibration(self, saw_name: str, material_group: str):
+        if not self.exists:
+            return None
+        from sawplan.store import calibration_factor
+
+        return calibration_factor(self.path, saw_name, material_group)
+
+    def life(self, material_group: str):
+        if not self.exists:
+            return None
+        from sawplan.store import life_for
+
+        return life_for(self.path, material_group)
+
+    def saws(self) -> list:
+        if not self.exists:
+            return []
+        from sawplan.store import saws_from_db
+
+        return saws_from_db(self.path)
+
+
+def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: BladeLog):
+    """``--saw``, else ``saw`` in [job], else the smallest saw that takes every section."""
+    from sawplan.cutlist.jobfile import Where, located
+    from sawplan.errors import BadDataError, SawplanError
+    from sawplan.saws import check_capacity, get_saw, load_saws
+
+    extra = log.saws()
+    if saw_name:
+        return get_saw(saw_name, saws_file, extra)
+    if job.header.saw:
+        try:
+            return get_saw(job.header.saw, saws_file, extra)
+        except SawplanError as err:
+            raise located(err, Where(job.file, "[job]", job.job_lines.get("saw"))) from None
+    sections = [job.sections[g[1]] for g in job.groups()]
+    saws = sorted(
+        load_saws(saws_file, extra).values(),
+        key=lambda s: (s.capacity_round_mm, s.capacity_rect_w_mm, s.name),
+    )
+    for saw in saws:
+        try:
+            for section in sections:
+                check_capacity(saw, section)
+        except SawplanError:
+            continue
+        return saw
+    raise BadDataError(
+        "no known saw takes every section of the job",
+        field="saw",
+        hint="name one with --saw or add yours with --saws FILE",
+    )
+
+
+# --- files --------------------------------------------------------------------------------
+
+
+def render_outputs(
+    plan, units: UnitSystem, csv_dir: Path | None, sheet: Path | None
+) -> dict[Path, str]:
+    """Every file to write, as text, before anything touches the disk."""
+    outputs: dict[Path, str] = {}
+    if csv_dir is not None:
+        for name, text in plan_csv(plan).items():
+            outputs[csv_dir / name] = text
+    if sheet is not None:
+        if sheet.suffix.lower() == ".md":
+            from sawplan.cutlist.sheet_text import render_markdown
+
+            outputs[sheet] = render_markdown(plan, units)
+        else:
+            from sawplan.cutlist.sheet_html import render_html
+
+            outputs[sheet] = render_html(plan, units)
+    return outputs
+
+
+def write_all(outputs: dict[Path, str]) -> list[Path]:
+    """Write each file to a temporary name beside it, then move them all into place."""
+    import contextlib
+    import os
+    import tempfile
+
+    staged: list[tuple[str, Path]] = []
+    mask = os.umask(0)
+    os.umask(mask)
+    try:
+        for path, text in outputs.items():
+            path.parent.mkdir(parents=True, exist_ok=True)
+            fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+            staged.append((tmp, path))
+            with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
+                handle.write(text)
+            os.chmod(tmp, 0o666 & ~mask)  # mkstemp makes 0600; give the usual permissions
+        for tmp, path in staged:
+            os.replace(tmp, path)
+    except BaseException:
+        for tmp, _path in staged:
+            with contextlib.suppress(FileNotFoundError):
+                os.unlink(tmp)
+        raise
+    return [path for _tmp, path in staged]
+
+
+def plan_csv(plan) -> dict[str, str]:
+    """cuts.csv, bars.csv and summary.csv (metric, units in the headers, cells neutralised)."""
+    from sawplan.render import to_csv
+
+    cuts = to_csv(
+        ["bar", "stock", "heat", "seq", "mark", "part", "start_mm", "end_mm", "length_mm",
+         "weight_kg", "handling", "drawing", "tolerance"],
+        [
+            [b.bar, b.stock, b.heat, p.seq, p.mark, p.part, _r(p.start_mm), _r(p.end_mm),
+             _r(p.length_mm), _r(p.weight_kg, 3), p.handling, p.drawing, p.tolerance]
+            for b in plan.bars
+            for p in b.pieces
+        ],
+    )  # fmt: skip
+    bars = to_csv(
+        ["bar", "group", "stock_entry", "stock", "location", "heat", "length_mm", "pieces", "cuts",
+         "trim_mm", "kerf_mm", "remnant_mm", "remnant_kept", "weight_kg", "handling", "cost",
+         "cut_time_min"],
+        [
+            [b.bar, b.group, b.stock_entry, b.stock, b.location, b.heat, _r(b.length_mm),
+             len(b.pieces), b.cuts, _r(b.trim_mm), _r(b.kerf_mm), _r(b.remnant_mm),
+             "yes" if b.remnant_kept else "no", _r(b.weight_kg, 3), b.handling, _r(b.cost, 2),
+             _r(b.cut_time_min, 2)]
+            for b in plan.bars
+        ],
+    )  # fmt: skip
+    rows = [
+        [s.group, s.bars_used, s.lp_bound_bars, s.gap_bars, s.pieces, s.cuts, _r(s.kerf_mm),
+         s.pitch, _r(s.band_speed_m_min, 1), _r(s.feed_mm_min, 1), _r(s.cut_time_min, 3),
+         _r(s.total_time_min, 2), _r(s.cut_area_cm2, 1), _r(s.blades_consumed, 3),
+         _r(s.waste_pct, 2), _r(s.material_cost, 2)]
+        for s in plan.sections
+    ]  # fmt: skip
+    rows.append(
+        ["total", plan.bars_used, plan.lp_bound_bars, plan.gap_bars, plan.pieces, plan.cuts, "",
+         "", "", "", "", _r(plan.total_time_min, 2), _r(plan.cut_area_cm2, 1),
+         _r(plan.blades_consumed, 3), _r(plan.waste_pct, 2), _r(plan.material_cost, 2)]
+    )  # fmt: skip
+    summary = to_csv(
+        ["group", "bars_used", "lp_bound_bars", "gap_bars", "pieces", "cuts", "kerf_mm", "pitch",
+         "band_speed_m_min", "feed_mm_min", "cut_time_min", "total_time_min", "cut_area_cm2",
+         "blades_consumed", "waste_pct", "material_cost"],
+        rows,
+    )  # fmt: skip
+    return {"cuts.csv": cuts, "bars.csv": bars, "summary.csv": summary}
+
+
+def _r(value: float, digits: int = 1) -> float:
+    return round(value, digits)
+
+
+def register(app: typer.Typer) -> None:
+    app.command("plan", help=HELP)(plan_command)

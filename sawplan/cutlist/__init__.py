@@ -1,0 +1,1 @@
+"""Cut lists: which pieces to cut from which bars (optimiser in ``optimise``)."""

@@ -1,0 +1,185 @@
+"""Exact step: the arc-flow model of cutting stock (Valério de Carvalho 1999).
+
+A bar is a path from position 0 to the capacity of its stock along arcs
+"cut one piece of length j here" and "leave this much unused".  Pieces enter a
+path longest first, which removes most symmetric paths.  The integer program
+(minimise the cost of the flow into the end node, demand rows >= pieces
+ordered, stock rows <= bars on hand) is solved by HiGHS through
+``scipy.optimize.milp``; the flow splits into one path per bar.  Used only when
+rounding did not reach the bound and the graph is small (instances where
+rounding fails, such as bars filled exactly by three pieces, have small graphs).
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Sequence
+from dataclasses import dataclass
+from math import gcd
+
+from sawplan.cutlist.opt_problem import Bar, Problem, downsize
+
+
+@dataclass(frozen=True)
+class ArcFlowResult:
+    bars: tuple[Bar, ...]
+    proven_optimal: bool  # optimal, or (no bars) proven that nothing is under the cap
+    none_under_cap: bool = False
+
+
+def solve_arc_flow(
+    problem: Problem,
+    *,
+    deadline: float,
+    demand: Sequence[int] | None = None,
+    limits: Sequence[int | None] | None = None,
+    max_arcs: int = 15_000,
+    cost_cap: float | None = None,
+) -> ArcFlowResult | None:
+    """Optimal plan for ``demand`` (default: the order) from the stock ``limits`` left.
+
+    ``cost_cap``: only plans costing at most this are wanted (prunes the search).
+    None when the graph is too large, or no plan is found in time or under the cap.
+    """
+    import numpy as np
+    from scipy.optimize import Bounds, LinearConstraint, milp
+    from scipy.sparse import coo_matrix
+
+    demand = problem.demand if demand is None else demand
+    limits = problem.limits if limits is None else limits
+    usable = [s for s, left in enumerate(limits) if left is None or left > 0]
+    items = [j for j, d in enumerate(demand) if d > 0]
+    if not usable or not items:
+        return None
+    weights = problem.weights
+    unit = 0
+    for j in items:
+        unit = gcd(unit, weights[j])
+    ends = {s: problem.capacity(s) // unit for s in usable}
+    top = max(ends.values())
+    arcs = _item_arcs(
+        [weights[j] // unit for j in items], [demand[j] for j in items], top, max_arcs
+    )
+    if arcs is None:
+        return None
+    nodes = sorted({0, *ends.values(), *(head for _, head, _ in arcs)})
+    all_arcs: list[tuple[int, int, int]] = [(t, h, items[k]) for t, h, k in arcs]
+    all_arcs += [(a, b, -1) for a, b in zip(nodes, nodes[1:], strict=False)]  # unused length
+    sink = -1
+    all_arcs += [(ends[s], sink, -2 - s) for s in usable]  # bar of stock s ends here
+    index = {node: i for i, node in enumerate(nodes)}
+    n_arcs = len(all_arcs)
+    rows: list[int] = []
+    cols: list[int] = []
+    vals: list[float] = []
+    n_nodes = len(nodes)
+    for a, (tail, head, _) in enumerate(all_arcs):
+        if tail != 0:
+            rows.append(index[tail] - 1)
+            cols.append(a)
+            vals.append(-1.0)
+        if head != sink:
+            rows.append(index[head] - 1)
+            cols.append(a)
+            vals.append(1.0)
+    n_flow_rows = n_nodes - 1  # conservation at every node but the start
+    row_of_item = {j: n_flow_rows + r for r, j in enumerate(items)}
+    cost = np.zeros(n_arcs)
+    ub = np.full(n_arcs, np.inf)
+    for a, (_, _, kind) in enumerate(all_arcs):
+        if kind >= 0:
+            rows.append(row_of_item[kind])
+            cols.append(a)
+            vals.append(1.0)
+            ub[a] = demand[kind]
+        elif kind <= -2:
+            s = -2 - kind
+            cost[a] = problem.costs[s]
+            if limits[s] is not None:
+                ub[a] = limits[s]
+    n_rows = n_flow_rows + len(items)
+    matrix = coo_matrix((vals, (rows, cols)), shape=(n_rows, n_arcs)).tocsr()
+    # Exactly the pieces wanted: a surplus piece can always become unused length.
+    wanted = np.array([demand[j] for j in items], dtype=float)
+    constraints = [
+        LinearConstraint(
+            matrix,
+            np.concatenate([np.zeros(n_flow_rows), wanted]),
+            np.concatenate([np.zeros(n_flow_rows), wanted]),
+        )
+    ]
+    if cost_cap is not None:
+        constraints.append(LinearConstraint(cost.reshape(1, -1), -np.inf, cost_cap))
+    remaining = deadline - time.perf_counter()
+    if remaining <= 0.1:
+        return None
+    # HiGHS checks its time limit only now and then (seen 1 s late): leave a margin.
+    remaining *= 0.5
+    res = milp(
+        cost,
+        constraints=constraints,
+        integrality=np.ones(n_arcs),
+        bounds=Bounds(np.zeros(n_arcs), ub),
+        options={"time_limit": remaining},
+    )
+    if res.status == 2:  # infeasible: no plan costs at most the cap
+        return ArcFlowResult((), proven_optimal=True, none_under_cap=True)
+    if res.x is None:
+        return None
+    flow = [int(round(v)) for v in res.x]
+    bars = _split_paths(all_arcs, flow, sink, demand)
+    return ArcFlowResult(tuple(downsize(problem, bars, limits)), proven_optimal=res.status == 0)
+
+
+def _item_arcs(
+    weights: Sequence[int], bounds: Sequence[int], top: int, max_arcs: int
+) -> list[tuple[int, int, int]] | None:
+    """Arcs (tail, head, item) with pieces entering longest first, at most ``bounds`` in a row."""
+    reached = {0}
+    arcs: set[tuple[int, int, int]] = set()
+    work = 0
+    for k, (w, bound) in enumerate(zip(weights, bounds, strict=True)):
+        new: set[int] = set()
+        for start in reached:
+            position = start
+            for _ in range(bound):
+                if position + w > top:
+                    break
+                arcs.add((position, position + w, k))
+                new.add(position + w)
+                position += w
+            work += bound
+        reached |= new
+        if len(arcs) > max_arcs or work > 20 * max_arcs:
+            return None
+    return sorted(arcs)
+
+
+def _split_paths(
+    arcs: Sequence[tuple[int, int, int]], flow: list[int], sink: int, demand: Sequence[int]
+) -> list[Bar]:
+    """Decompose an integer flow into one path (bar) per unit, trimming surplus pieces."""
+    leaving: dict[int, list[int]] = {}
+    for a, (tail, _, _) in enumerate(arcs):
+        if flow[a] > 0:
+            leaving.setdefault(tail, []).append(a)
+    wanted = list(demand)
+    bars: list[Bar] = []
+    while leaving.get(0):
+        node = 0
+        counts = [0] * len(demand)
+        while True:
+            a = leaving[node][-1]
+            flow[a] -= 1
+            if flow[a] == 0:
+                leaving[node].pop()
+            tail, head, kind = arcs[a]
+            if kind >= 0 and wanted[kind] > 0:
+                counts[kind] += 1
+                wanted[kind] -= 1
+            if head == sink:
+                if any(counts):
+                    bars.append((-2 - kind, tuple(counts)))
+                break
+            node = head
+    return bars

@@ -1,0 +1,302 @@
+"""Column generation for the cutting-stock LP (Gilmore & Gomory 1961).
+
+Master LP:  minimise sum(cost_p x_p)  subject to  sum(a_jp x_p) >= demand_j  for
+every length j,  sum(x_p over fillings of stock s) <= on hand_s  for limited
+stock,  x >= 0.  It is solved with HiGHS through ``scipy.optimize.linprog``;
+the duals of the demand rows price one bounded knapsack per stock length
+(reduced cost = cost_s - sum(dual_j a_j) + dual of the stock row) and any
+filling of negative reduced cost joins the master.  One artificial column per
+length (a very dear bar holding one piece) keeps every master feasible; if it
+is still used at the end, the stock on hand cannot hold the order.
+
+At every iteration Farley's bound (1990), master value / max(1, best ratio of
+priced value to cost), is a valid lower bound on the LP optimum, so the search
+stops as soon as rounding it up can no longer change.
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Sequence
+from dataclasses import dataclass
+from math import ceil
+from typing import Any
+
+from sawplan.cutlist.knapsack import solve_bounded_knapsack
+from sawplan.cutlist.opt_problem import Problem
+
+_ROUND_EPS = 1e-6  # slack when rounding LP values up to whole bars
+
+
+class LpFailure(RuntimeError):
+    """HiGHS did not return an optimal master (numerical trouble); fall back to FFD."""
+
+
+class ColumnPool:
+    """Bar fillings found so far: the master's columns, shared by every re-solve."""
+
+    def __init__(self, problem: Problem) -> None:
+        import numpy as np
+
+        self.problem = problem
+        self.stock: list[int] = []
+        self._index: dict[tuple[int, tuple[int, ...]], int] = {}
+        self._matrix = np.zeros((len(problem.lengths), 64))
+
+    def __len__(self) -> int:
+        return len(self.stock)
+
+    def add(self, s: int, counts: Sequence[int]) -> int:
+        """Index of the filling ``counts`` of stock ``s`` (added if new); -1 if empty or too long."""
+        import numpy as np
+
+        key = (s, tuple(counts))
+        known = self._index.get(key)
+        if known is not None:
+            return known
+        if not any(counts) or not self.problem.fits(s, counts):
+            return -1
+        n = len(self.stock)
+        if n == self._matrix.shape[1]:
+            grown = np.zeros((self._matrix.shape[0], 2 * n))
+            grown[:, :n] = self._matrix
+            self._matrix = grown
+        self._matrix[:, n] = counts
+        self.stock.append(s)
+        self._index[key] = n
+        return n
+
+    def counts(self, column: int) -> tuple[int, ...]:
+        return tuple(int(round(v)) for v in self._matrix[:, column])
+
+    @property
+    def matrix(self) -> Any:
+        return self._matrix[:, : len(self.stock)]
+
+
+@dataclass(frozen=True)
+class LpOutcome:
+    """The master at the end of column generation."""
+
+    columns: tuple[int, ...]  # pool indices with a positive value
+    values: tuple[float, ...]
+    value: float  # master objective
+    bound: float  # valid lower bound on the LP optimum (= value when converged)
+    converged: bool
+    shortfall: float  # pieces carried by artificial columns (> 0: stock cannot hold the order)
+    iterations: int
+
+
+@dataclass(frozen=True)
+class _Duals:
+    items: Any  # numpy array, one price per item (0 for items not wanted)
+    stock: dict[int, float]  # price of each limited stock row (>= 0)
+
+
+def solve_master_lp(
+    pool: ColumnPool,
+    demand: Sequence[int],
+    limits: Sequence[int | None],
+    costs: Sequence[float],
+    *,
+    deadline: float,
+    bar_cost: float | None = None,
+    max_iterations: int = 5000,
+    extra_columns: int = 4,
+    smoothing: float = 0.8,
+    near: float | None = None,
+) -> LpOutcome:
+    """Column generation on the residual ``demand`` and ``limits``, warm-started from the pool.
+
+    ``bar_cost``: when every usable bar costs the same, stop once the bound and
+    the master value round up to the same number of bars.  ``near``: stop once
+    the master value is within this much of the bound.  Pricing uses duals
+    smoothed towards those of the best bound so far (Wentges 1997), which cuts
+    the number of master solves; a smoothed pricing that finds nothing is
+    repeated with the master's own duals, so the result is exact.
+    """
+    import numpy as np
+
+    problem = pool.problem
+    rows = [j for j, d in enumerate(demand) if d > 0]
+    usable = [s for s, left in enumerate(limits) if left is None or left > 0]
+    if not rows:
+        return LpOutcome((), (), 0.0, 0.0, True, 0.0, 0)
+    if not usable:  # no stock left at all
+        return LpOutcome((), (), float("inf"), float("inf"), True, float(sum(demand)), 0)
+    usable_set = set(usable)
+    master = _Master(pool, rows, demand, limits, usable, costs)
+    active = [i for i, s in enumerate(pool.stock) if s in usable_set]
+    wanted = np.array([max(d, 0) for d in demand], dtype=float)
+    tol = 1e-9 * max(costs)
+    best_bound = 0.0
+    centre: _Duals | None = None
+    iterations = 0
+    while True:
+        iterations += 1
+        x, z, duals = master.solve(active)
+        solved = active
+        active = master.prune(solved, x, duals)
+        in_master = set(active)
+        new: list[int] = []
+        tries = [duals] if centre is None else [_blend(centre, duals, smoothing), duals]
+        for prices in tries:
+            fillings, bound = _price(
+                problem, prices, demand, limits, usable, costs, wanted, extra_columns
+            )
+            if bound > best_bound:
+                best_bound, centre = bound, prices
+            new = [
+                column
+                for s, counts in fillings
+                if _reduced_cost(costs, duals, s, counts) < -tol
+                and (column := pool.add(s, counts)) >= 0
+                and column not in in_master
+            ]
+            if new:
+                break
+        converged = not new
+        done = converged or time.perf_counter() > deadline or iterations >= max_iterations
+        if bar_cost is not None and _rounds_up_alike(best_bound, z, bar_cost):
+            done = True  # the bound already rounds up to the master's bar count
+        if near is not None and z - best_bound <= near:
+            done = True  # close enough for rounding
+        if done:
+            if converged:
+                best_bound = z
+            columns = solved
+            chosen = [k for k in range(len(columns)) if x[k] > 1e-9]
+            return LpOutcome(
+                columns=tuple(columns[k] for k in chosen),
+                values=tuple(float(x[k]) for k in chosen),
+                value=z,
+                bound=min(best_bound, z),
+                converged=converged,
+                shortfall=float(x[len(columns) :].sum()),
+                iterations=iterations,
+            )
+        active = active + new
+
+
+def _rounds_up_alike(bound: float, value: float, bar_cost: float) -> bool:
+    return ceil(bound / bar_cost - _ROUND_EPS) >= ceil(value / bar_cost - _ROUND_EPS)
+
+
+def _blend(centre: _Duals, duals: _Duals, weight: float) -> _Duals:
+    stock = {
+        s: weight * centre.stock.get(s, 0.0) + (1 - weight) * v for s, v in duals.stock.items()
+    }
+    return _Duals(weight * centre.items + (1 - weight) * duals.items, stock)
+
+
+def _reduced_cost(costs: Sequence[float], duals: _Duals, s: int, counts: Sequence[int]) -> float:
+    priced = sum(n * float(duals.items[j]) for j, n in enumerate(counts) if n)
+    return costs[s] - priced + duals.stock.get(s, 0.0)
+
+
+def _price(
+    problem: Problem,
+    prices: _Duals,
+    demand: Sequence[int],
+    limits: Sequence[int | None],
+    usable: Sequence[int],
+    costs: Sequence[float],
+    wanted: Any,
+    extra_columns: int,
+) -> tuple[list[tuple[int, tuple[int, ...]]], float]:
+    """Best fillings per stock under ``prices`` and the Farley bound these prices prove."""
+    capacities = problem.capacities
+    bounds = [d if d > 0 else 0 for d in demand]
+    top = max(capacities[s] for s in usable)
+    table = solve_bounded_knapsack(problem.weights, list(prices.items), bounds, top)
+    ratio = 0.0
+    fillings: list[tuple[int, tuple[int, ...]]] = []
+    for s in usable:
+        stock_price = prices.stock.get(s, 0.0)
+        priced = table.value(capacities[s]) - stock_price
+        ratio = max(ratio, priced / costs[s])
+        if priced > costs[s]:
+            fillings.append((s, table.filling(capacities[s])))
+            above = costs[s] + stock_price
+            for counts in table.good_fillings(capacities[s], above, extra_columns):
+                fillings.append((s, counts))
+    dual_value = float(wanted @ prices.items) - sum(
+        (limits[s] or 0) * v for s, v in prices.stock.items()
+    )
+    return fillings, dual_value / max(ratio, 1.0)
+
+
+class _Master:
+    """The restricted master LP over a working set of pool columns, plus artificials."""
+
+    def __init__(
+        self,
+        pool: ColumnPool,
+        rows: list[int],
+        demand: Sequence[int],
+        limits: Sequence[int | None],
+        usable: list[int],
+        costs: Sequence[float],
+    ) -> None:
+        import numpy as np
+
+        self.pool = pool
+        self.rows = rows
+        self.limited = [s for s in usable if limits[s] is not None]
+        self.limits = limits
+        self.costs = costs
+        self.d_rows = np.array([demand[j] for j in rows], dtype=float)
+        self.big = 1e3 * max(max(costs), 1e-9)
+        self.n_items = len(demand)
+        self.keep = max(2 * len(rows), 100)
+
+    def solve(self, active: list[int]) -> tuple[Any, float, _Duals]:
+        import numpy as np
+        from scipy.optimize import linprog
+
+        pool, rows = self.pool, self.rows
+        a = pool.matrix[np.ix_(rows, active)] if active else np.zeros((len(rows), 0))
+        n_art = len(rows)
+        blocks = [np.hstack([-a, -np.eye(n_art)])]
+        b_ub = [-self.d_rows]
+        if self.limited:
+            stock_of = np.array([pool.stock[i] for i in active], dtype=int)
+            e = np.zeros((len(self.limited), len(active) + n_art))
+            for r, s in enumerate(self.limited):
+                e[r, : len(active)] = stock_of == s
+            blocks.append(e)
+            b_ub.append(np.array([self.limits[s] for s in self.limited], dtype=float))
+        c = np.concatenate([[self.costs[pool.stock[i]] for i in active], np.full(n_art, self.big)])
+        a_ub, b = np.vstack(blocks), np.concatenate(b_ub)
+        # Dual simplex without presolve is fastest on these small dense masters; the
+        # default HiGHS set-up is the second try.
+        res = linprog(
+            c, A_ub=a_ub, b_ub=b, bounds=(0, None), method="highs-ds", options={"presolve": False}
+        )
+        if res.status != 0 or res.x is None:
+            res = linprog(c, A_ub=a_ub, b_ub=b, bounds=(0, None), method="highs")
+        if res.status != 0 or res.x is None:
+            raise LpFailure(f"master LP not solved: {res.message}")
+        marginals = -np.asarray(res.ineqlin.marginals)
+        items = np.zeros(self.n_items)
+        items[rows] = np.maximum(marginals[: len(rows)], 0.0)
+        stock = {s: max(float(marginals[len(rows) + r]), 0.0) for r, s in enumerate(self.limited)}
+        return np.asarray(res.x), float(res.fun), _Duals(items, stock)
+
+    def prune(self, active: list[int], x: Any, duals: _Duals) -> list[int]:
+        """Keep the working set small: columns in use and those of least reduced cost."""
+        import numpy as np
+
+        if len(active) <= 2 * self.keep:
+            return active
+        pool = self.pool
+        values = duals.items @ pool.matrix[:, active]
+        reduced = (
+            np.array(
+                [self.costs[pool.stock[i]] + duals.stock.get(pool.stock[i], 0.0) for i in active]
+            )
+            - values
+        )
+        reduced[x[: len(active)] > 1e-9] = -np.inf
+        order = np.argsort(reduced, kind="stable")[: self.keep]
+        return [active[k] for k in sorted(order)]

@@ -1,0 +1,329 @@
+"""The printable cut sheet: one self-contained HTML page, one to-scale SVG per bar.
+
+No scripts, no external files: the page prints the same on any machine.  CSS
+sets ``@page { size: auto; margin: 12mm }`` so A4 and Letter both work; every
+drawing is ``width: 100%`` with a ``viewBox``, so it never runs off the page;
+a bar's block is kept on one page (``break-inside: avoid``).  All user text is
+escaped.
+"""
+
+from __future__ import annotations
+
+from html import escape
+
+from sawplan.cutlist.sheet_text import (
+    breakin_text,
+    forecast_text,
+    length,
+    mass,
+    minutes,
+    money,
+    piece_rows,
+    pos,
+    stock_text,
+)
+from sawplan.units import Display, UnitSystem, fmt_number
+
+VIEW_W = 1000.0  # drawing width in viewBox units
+BAR_Y, BAR_H = 26.0, 34.0
+LABEL_GAP = 48.0  # least distance between two position labels
+_PALETTE = ("#cfe2f3", "#d9ead3", "#fff2cc", "#f4cccc", "#d9d2e9", "#fce5cd", "#d0e0e3", "#ead1dc")
+
+CSS = """
+@page { size: auto; margin: 12mm }
+* { box-sizing: border-box }
+html { -webkit-print-color-adjust: exact; print-color-adjust: exact }
+body { font: 10pt/1.35 system-ui, -apple-system, "Segoe UI", Roboto, sans-serif; color: #000;
+       margin: 0 auto; max-width: 190mm; overflow-wrap: anywhere }
+@media screen { body { padding: 12px } }
+@media print { body { max-width: none } a { color: inherit } }
+h1 { font-size: 15pt; margin: 0 0 2mm }
+h2 { font-size: 12pt; margin: 5mm 0 2mm; break-after: avoid; page-break-after: avoid }
+h3 { font-size: 10.5pt; margin: 0 0 1mm }
+table { border-collapse: collapse; width: 100%; margin: 1mm 0 }
+th, td { border: 0.5pt solid #888; padding: 1px 4px; text-align: left; vertical-align: top }
+th { background: #eee }
+td.n, th.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap }
+.facts { display: grid; grid-template-columns: max-content 1fr; gap: 0 6mm; margin: 0 }
+.facts dt { font-weight: 600 }
+.facts dd { margin: 0 }
+.bar { border: 0.8pt solid #000; padding: 2mm; margin: 3mm 0;
+       break-inside: avoid; page-break-inside: avoid }
+.bar svg { display: block; width: 100%; height: auto; max-width: 100% }
+.lift-aid { font-weight: 700 }
+.keep { font-weight: 700 }
+.cautions { border: 1.2pt solid #000; padding: 2mm 3mm; break-inside: avoid;
+            page-break-inside: avoid }
+.cautions li, .notes li { margin: 0.5mm 0 }
+footer { margin-top: 4mm; font-size: 8pt; color: #444 }
+"""
+
+
+def render_html(plan, units: UnitSystem = UnitSystem.METRIC) -> str:
+    """The whole sheet as one HTML document (UTF-8, self-contained)."""
+    from sawplan import __version__
+
+    d = Display(units)
+    e = escape
+    body = [
+        f"<h1>Cut sheet: {e(plan.job)}</h1>",
+        _facts(plan, d),
+        "<h2>Blade and settings per section</h2>",
+        _sections_table(plan, d),
+        "<h2>Bars</h2>",
+        *(_bar_block(plan, b, d) for b in plan.bars),
+        _remnants(plan, d),
+        "<h2>Blades and quote</h2>",
+        _quote(plan, d),
+        _cautions(plan),
+        f"<footer>sawplan {e(__version__)} · {e(plan.file)} · estimates only</footer>",
+    ]
+    return (
+        '<!DOCTYPE html>\n<html lang="en">\n<head>\n<meta charset="utf-8">\n'
+        '<meta name="viewport" content="width=device-width, initial-scale=1">\n'
+        f"<title>Cut sheet: {e(plan.job)}</title>\n<style>{CSS}</style>\n</head>\n<body>\n"
+        + "\n".join(part for part in body if part)
+        + "\n</body>\n</html>\n"
+    )
+
+
+def _facts(plan, d: Display) -> str:
+    materials = "; ".join(f"{s.group} ({s.designation})" for s in plan.sections)
+    rows = []
+    if plan.customer:
+        rows.append(("Customer", plan.customer))
+    if plan.due:
+        rows.append(("Due", plan.due))
+    rows += [
+        ("Material", materials),
+        ("Saw", plan.saw),
+        ("Bars", f"{plan.bars_used} (LP bound {plan.lp_bound_bars}, gap {plan.gap_bars})"),
+        ("Pieces / cuts", f"{plan.pieces} / {plan.cuts}"),
+        ("Waste", f"{plan.waste_pct:.1f} % of {length(d, plan.stock_length_mm)}"),
+        ("Time", f"{minutes(plan.total_time_min)} ({minutes(plan.total_cut_time_min)} cutting)"),
+        ("Blades on hand", str(plan.blades_needed)),
+        ("Job file", plan.file),
+    ]
+    items = "".join(f"<dt>{escape(k)}</dt><dd>{escape(v)}</dd>" for k, v in rows)
+    return f'<dl class="facts">{items}</dl>'
+
+
+def _sections_table(plan, d: Display) -> str:
+    head = (
+        "<tr><th>Material and section</th><th>Blade</th><th class=n>Band speed</th>"
+        "<th class=n>Feed</th><th class=n>Kerf</th><th class=n>Time/cut</th>"
+        "<th class=n>Cuts</th><th class=n>Bars (⌈LP⌉)</th></tr>"
+    )
+    rows = []
+    for s in plan.sections:
+        per_cut = minutes(s.cut_time_min)
+        if s.calibration_n:
+            per_cut += f" (×{s.calibration_factor:.2f} from log)"
+        rows.append(
+            f"<tr><td>{escape(s.group)}</td>"
+            f"<td>{escape(f'{s.pitch} TPI, {s.tooth_form}, {s.tooth_set} set')}</td>"
+            f"<td class=n>{escape(d.fmt('speed', s.band_speed_m_min, 3))}</td>"
+            f"<td class=n>{escape(d.fmt('feed', s.feed_mm_min, 3))}</td>"
+            f"<td class=n>{escape(length(d, s.kerf_mm))}</td>"
+            f"<td class=n>{escape(per_cut)}</td><td class=n>{s.cuts}</td>"
+            f"<td class=n>{s.bars_used} ({s.lp_bound_bars})</td></tr>"
+        )
+        if s.breakin_cuts:
+            rows.append(
+                f"<tr><td colspan=8>{escape(s.group)}: {escape(breakin_text(s, d))}</td></tr>"
+            )
+        for w in s.warnings:
+            rows.append(f"<tr><td colspan=8>⚠ {escape(s.group)}: {escape(w)}</td></tr>")
+    return f"<table>{head}{''.join(rows)}</table>"
+
+
+def _bar_block(plan, b, d: Display) -> str:
+    e = escape
+    lift = f'<span class="{e(b.handling)}">{e(b.handling)}</span>'
+    title = (
+        f"<h3>Bar {b.bar} · {e(stock_text(b, d))}"
+        + (f" · heat {e(b.heat)}" if b.heat else "")
+        + (f" · rack {e(b.location)}" if b.location else "")
+        + f" · {e(mass(d, b.weight_kg))} {lift}</h3>"
+    )
+    rows = []
+    if b.trim_cut_mm is not None:
+        rows.append(
+            f"<tr><td>trim</td><td class=n>0–{e(pos(d, b.trim_mm))}</td>"
+            "<td>squaring cut</td><td></td><td></td></tr>"
+        )
+    for row in piece_rows(b):
+        p = row.first
+        extra = "".join(f" · {e(x)}" for x in (p.drawing, p.tolerance) if x)
+        rows.append(
+            f"<tr><td>{e(row.step(d))}</td><td class=n>{e(row.span(d))}</td>"
+            f"<td>{e(row.what(d))}{extra}</td>"
+            f"<td class=n>{e(row.weight(d))}</td><td>{e(p.handling)}</td></tr>"
+        )
+    if b.length_mm - b.remnant_start_mm > 1e-9:
+        if b.remnant_kept:
+            what = (
+                f'<span class="keep">keep remnant {e(length(d, b.remnant_mm))}, '
+                f"mark heat {e(b.heat or '—')}</span>"
+            )
+        else:
+            what = f"scrap {e(length(d, b.remnant_mm))}"
+        weight = e(mass(d, b.remnant_weight_kg)) if b.remnant_mm > 0 else ""
+        rows.append(
+            f"<tr><td>end</td>"
+            f"<td class=n>{e(pos(d, b.remnant_start_mm))}–{e(pos(d, b.length_mm))}</td>"
+            f"<td>{what}</td><td class=n>{weight}</td><td></td></tr>"
+        )
+    head = (
+        f"<tr><th>Step</th><th class=n>From head ({e(d.label('length'))})</th><th>Piece</th>"
+        "<th class=n>Weight</th><th>Lift</th></tr>"
+    )
+    return (
+        f'<section class="bar" id="bar-{b.bar}">{title}{bar_svg(b, d)}'
+        f"<table>{head}{''.join(rows)}</table></section>"
+    )
+
+
+def bar_svg(b, d: Display) -> str:
+    """The bar to scale: trim, pieces with marks, kerfs, remnant or scrap, cut positions."""
+    e = escape
+    total = b.length_mm if b.length_mm > 0 else 1.0
+    sx = VIEW_W / total
+    height = BAR_Y + BAR_H + 22
+    out = [
+        f'<svg xmlns="http://www.w3.org/2000/svg" viewBox="-4 0 {VIEW_W + 8:g} {height:g}" '
+        f'role="img" aria-label="bar {b.bar}, {e(length(d, b.length_mm))}" '
+        'font-family="sans-serif" font-size="12">',
+        f'<defs><pattern id="keep-{b.bar}" width="8" height="8" patternUnits="userSpaceOnUse" '
+        'patternTransform="rotate(45)"><rect width="8" height="8" fill="#fff"/>'
+        '<line x1="0" y1="0" x2="0" y2="8" stroke="#2a7" stroke-width="3"/></pattern></defs>',
+        f'<text x="0" y="14">head</text><text x="{VIEW_W:g}" y="14" text-anchor="end">'
+        f"{e(length(d, b.length_mm))}</text>",
+    ]
+
+    def rect(x0: float, x1: float, fill: str, cls: str) -> str:
+        w = max((x1 - x0) * sx, 0.6)
+        return (
+            f'<rect class="{cls}" x="{x0 * sx:.2f}" y="{BAR_Y:g}" width="{w:.2f}" '
+            f'height="{BAR_H:g}" fill="{fill}" stroke="#000" stroke-width="0.5"/>'
+        )
+
+    def label(x0: float, x1: float, text: str, *, bold: bool = False) -> str:
+        w = (x1 - x0) * sx
+        if w < 7.5 * len(text) + 4:
+            return ""
+        weight = ' font-weight="bold"' if bold else ""
+        return (
+            f'<text x="{(x0 + x1) / 2 * sx:.2f}" y="{BAR_Y + BAR_H / 2 + 4:g}" '
+            f'text-anchor="middle"{weight}>{e(text)}</text>'
+        )
+
+    if b.trim_mm > 0:
+        out.append(rect(0.0, b.trim_mm, "#555", "trim"))
+    marks = sorted({p.mark for p in b.pieces})
+    for i, p in enumerate(b.pieces):
+        colour = _PALETTE[marks.index(p.mark) % len(_PALETTE)]
+        out.append(rect(p.start_mm, p.end_mm, colour, "piece"))
+        nxt = b.pieces[i + 1].start_mm if i + 1 < len(b.pieces) else None
+        if nxt is not None and nxt > p.end_mm:
+            out.append(rect(p.end_mm, nxt, "#000", "kerf"))
+    for row in piece_rows(b, run=2):
+        first, last = row.first, row.last
+        one = label(first.start_mm, first.end_mm, first.mark, bold=True)
+        if row.count == 1 or one:  # each piece wide enough for its own mark
+            for p in b.pieces[first.seq - 1 : last.seq]:
+                out.append(label(p.start_mm, p.end_mm, p.mark, bold=True))
+            continue
+        text = f"{first.mark} ×{row.count}"
+        mid = (first.start_mm + last.end_mm) / 2 * sx
+        half = 4.0 * len(text) + 4
+        out.append(
+            f'<rect x="{mid - half:.2f}" y="{BAR_Y + BAR_H / 2 - 9:g}" width="{2 * half:.2f}" '
+            'height="16" rx="3" fill="#fff" fill-opacity="0.9"/>'
+        )
+        out.append(
+            f'<text x="{mid:.2f}" y="{BAR_Y + BAR_H / 2 + 4:g}" text-anchor="middle" '
+            f'font-weight="bold">{e(text)}</text>'
+        )
+    if b.length_mm - b.remnant_start_mm > 1e-9:
+        last = b.pieces[-1].end_mm if b.pieces else b.trim_mm
+        if b.remnant_start_mm > last:
+            out.append(rect(last, b.remnant_start_mm, "#000", "kerf"))
+        if b.remnant_mm > 0:
+            if b.remnant_kept:
+                out.append(rect(b.remnant_start_mm, b.length_mm, f"url(#keep-{b.bar})", "remnant"))
+                text = f"R {length(d, b.remnant_mm)}" + (f" {b.heat}" if b.heat else "")
+                out.append(
+                    label(b.remnant_start_mm, b.length_mm, text, bold=True)
+                    or label(b.remnant_start_mm, b.length_mm, "R", bold=True)
+                )
+            else:
+                out.append(rect(b.remnant_start_mm, b.length_mm, "#ddd", "scrap"))
+                out.append(label(b.remnant_start_mm, b.length_mm, "scrap"))
+    # cut positions under the bar, skipping labels that would overlap
+    ticks = [0.0]
+    if b.trim_cut_mm is not None:
+        ticks.append(b.trim_mm)
+    ticks += [p.end_mm for p in b.pieces]
+    ticks.append(b.length_mm)
+    shown = -LABEL_GAP
+    y = BAR_Y + BAR_H
+    for i, x in enumerate(ticks):
+        px = x * sx
+        out.append(f'<line x1="{px:.2f}" y1="{y:g}" x2="{px:.2f}" y2="{y + 6:g}" stroke="#000"/>')
+        is_end = i == len(ticks) - 1
+        if px - shown >= LABEL_GAP and (is_end or VIEW_W - px >= LABEL_GAP):
+            anchor = "start" if i == 0 else "end" if is_end else "middle"
+            out.append(
+                f'<text x="{px:.2f}" y="{y + 18:g}" text-anchor="{anchor}" font-size="11">'
+                f"{e(pos(d, x))}</text>"
+            )
+            shown = px
+    out.append("</svg>")
+    return "".join(part for part in out if part)
+
+
+def _remnants(plan, d: Display) -> str:
+    if not plan.remnants:
+        return ""
+    rows = "".join(
+        f"<tr><td class=n>{r.bar}</td><td>{escape(r.group)}</td>"
+        f"<td class=n>{escape(length(d, r.length_mm))}</td><td>{escape(r.heat or '—')}</td>"
+        f"<td>{escape(r.location or '—')}</td><td class=n>{escape(mass(d, r.weight_kg))}</td></tr>"
+        for r in plan.remnants
+    )
+    return (
+        "<h2>Remnants to mark and rack</h2><table><tr><th class=n>Bar</th><th>Material and "
+        "section</th><th class=n>Length</th><th>Heat</th><th>Rack</th><th class=n>Weight</th></tr>"
+        f"{rows}</table>"
+    )
+
+
+def _quote(plan, d: Display) -> str:
+    c = plan.currency
+    rate = f" at {money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
+    rows = [
+        ("Area cut", d.fmt("area", plan.cut_area_cm2 * 100, 4)),
+        ("Blades worn by this job", f"{fmt_number(plan.blades_consumed, 2)}"),
+        (
+            "Blades to have on hand",
+            f"{plan.blades_needed} ({forecast_text(plan)})",
+        ),
+        ("Blade life", plan.blade_life_source),
+        ("Material", money(plan.material_cost, c)),
+        (f"Saw time {minutes(plan.total_time_min)}{rate}", money(plan.saw_cost, c)),
+        ("Blade wear", money(plan.blade_cost, c)),
+        ("Quoted total", money(plan.total_cost, c)),
+    ]
+    body = "".join(f"<tr><th>{escape(k)}</th><td>{escape(v)}</td></tr>" for k, v in rows)
+    return f"<table>{body}</table>"
+
+
+def _cautions(plan) -> str:
+    notes = "".join(f"<li>{escape(n)}</li>" for n in plan.notes)
+    cautions = "".join(f"<li>{escape(c)}</li>" for c in plan.cautions)
+    out = ""
+    if notes:
+        out += f'<h2>Notes</h2><ul class="notes">{notes}</ul>'
+    out += f'<div class="cautions"><h2>Cautions</h2><ul>{cautions}</ul></div>'
+    return out
