@@ -44,6 +44,8 @@ class Quadrature:
     weights_mm: tuple[float, ...]
     chords_mm: tuple[float, ...]
     kink_chords_mm: tuple[float, ...]  # chords at the kinks, for the worst depth
+    runs_mm: tuple[float, ...] = ()  # longest single stretch of metal at each depth
+    kink_runs_mm: tuple[float, ...] = ()
 
 
 def sample(section: ChordProfile, subintervals: int = SUBINTERVALS) -> Quadrature:
@@ -67,7 +69,12 @@ def sample(section: ChordProfile, subintervals: int = SUBINTERVALS) -> Quadratur
     chord = section.chord_mm
     chords = tuple(max(0.0, float(chord(y))) for y in depths)
     kinks = tuple(max(0.0, float(chord(y))) for y in marks)
-    return Quadrature(height, tuple(depths), tuple(weights), chords, kinks)
+    run = getattr(section, "longest_run_mm", None)
+    if run is None or getattr(section, "is_solid", False) and getattr(section, "pieces", 1) == 1:
+        return Quadrature(height, tuple(depths), tuple(weights), chords, kinks, chords, kinks)
+    runs = tuple(max(0.0, float(run(y))) for y in depths)
+    kink_runs = tuple(max(0.0, float(run(y))) for y in marks)
+    return Quadrature(height, tuple(depths), tuple(weights), chords, kinks, runs, kink_runs)
 
 
 @dataclass(frozen=True)
@@ -95,15 +102,22 @@ class Bite:
     limit: str
 
 
-def bite(pitch: Pitch, chord: float, cond: CutConditions) -> Bite:
-    """The limiting bite at one chord (``effective`` allows for rubbing)."""
+def bite(pitch: Pitch, chord: float, cond: CutConditions, run: float | None = None) -> Bite:
+    """The limiting bite at one chord (``effective`` allows for rubbing).
+
+    ``run`` is the longest single stretch of metal in the chord: the gullet
+    fills over one stretch and empties where the tooth leaves metal (a bore,
+    the gap between bars of a bundle; derived), so the gullet limit uses it
+    while power and feed force use the whole chord.
+    """
     h = cond.material_bite_mm
     limit = "material"
     if cond.tooth_max_mm < h:
         h, limit = cond.tooth_max_mm, "tooth"
     if chord > 0:
         p_fine = pitch.spacing_fine_mm
-        gullet = cond.fill_fraction * cond.gullet_factor * p_fine * p_fine / chord
+        loaded = chord if run is None or run <= 0 else min(run, chord)
+        gullet = cond.fill_fraction * cond.gullet_factor * p_fine * p_fine / loaded
         if gullet < h:
             h, limit = gullet, "gullet"
         # power: u·kerf·W·v_f ≤ η·P  (J/min on both sides), v_f = 1000·V·h/p
@@ -144,6 +158,14 @@ class FeedIntegral:
     min_bite_mm: float
 
 
+def _runs(quad: Quadrature) -> tuple[float, ...]:
+    return quad.runs_mm or quad.chords_mm
+
+
+def _kink_runs(quad: Quadrature) -> tuple[float, ...]:
+    return quad.kink_runs_mm or quad.kink_chords_mm
+
+
 def integrate(
     pitch: Pitch, quad: Quadrature, cond: CutConditions, *, constant_feed: bool
 ) -> FeedIntegral:
@@ -153,8 +175,10 @@ def integrate(
     height = quad.height_mm
     if constant_feed:
         worst: Bite | None = None
-        for chord in quad.chords_mm + quad.kink_chords_mm:
-            b = bite(pitch, chord, cond)
+        for chord, run in zip(
+            quad.chords_mm + quad.kink_chords_mm, _runs(quad) + _kink_runs(quad), strict=True
+        ):
+            b = bite(pitch, chord, cond, run)
             if worst is None or b.nominal_mm < worst.nominal_mm:
                 worst = b
         assert worst is not None
@@ -177,8 +201,8 @@ def integrate(
     min_bite = math.inf
     stalled = False
     shares = dict.fromkeys(LIMITS, 0.0)
-    for chord, weight in zip(quad.chords_mm, quad.weights_mm, strict=True):
-        b = bite(pitch, chord, cond)
+    for chord, run, weight in zip(quad.chords_mm, _runs(quad), quad.weights_mm, strict=True):
+        b = bite(pitch, chord, cond, run)
         feed = feed_mm_min(pitch, b.effective_mm, speed)
         dt = weight / feed
         total += dt
@@ -189,8 +213,8 @@ def integrate(
             stalled = stalled or b.nominal_mm <= 1.0001e-3 * floor
         slowest = min(slowest, feed)
         min_bite = min(min_bite, b.nominal_mm)
-    for chord in quad.kink_chords_mm:
-        b = bite(pitch, chord, cond)
+    for chord, run in zip(quad.kink_chords_mm, _kink_runs(quad), strict=True):
+        b = bite(pitch, chord, cond, run)
         slowest = min(slowest, feed_mm_min(pitch, b.effective_mm, speed))
     ranked = tuple(
         sorted(((k, v / total) for k, v in shares.items() if v > 0), key=lambda kv: -kv[1])

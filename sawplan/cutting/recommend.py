@@ -40,7 +40,8 @@ def _profile(plan: Plan, cand: Candidate) -> tuple[ProfilePoint, ...]:
     for k in range(PROFILE_POINTS):
         y = height * k / (PROFILE_POINTS - 1)
         chord = max(0.0, float(plan.section.chord_mm(y)))
-        b = bite(cand.pitch, chord, cond)
+        longest = getattr(plan.section, "longest_run_mm", None)
+        b = bite(cand.pitch, chord, cond, longest(y) if longest else None)
         allowed = feed_mm_min(cand.pitch, b.effective_mm, cond.band_speed_m_min)
         feed = cand.run.feed_set_mm_min if constant else allowed
         shown = cand.run.bite_mean_mm if constant else b.nominal_mm

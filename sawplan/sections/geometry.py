@@ -311,3 +311,59 @@ def _merged_breaks(parts: list[Part], height: float) -> tuple[float, ...]:
             merged.append(y)
     merged.append(height)
     return tuple(merged)
+
+
+def _part_intervals(fig: Polygon | Circle, y: float) -> list[tuple[float, float]]:
+    """Where the horizontal line at depth y lies inside one figure (even-odd rule)."""
+    if isinstance(fig, Circle):
+        q = fig.r * fig.r - (y - fig.cy) ** 2
+        if q <= 0.0:
+            return []
+        half = math.sqrt(q)
+        return [(fig.cx - half, fig.cx + half)]
+    xs: list[float] = []
+    pts = fig.points
+    for j, (xa, ya) in enumerate(pts):
+        xb, yb = pts[(j + 1) % len(pts)]
+        if (ya <= y < yb) or (yb <= y < ya):  # half-open: each vertex counted once
+            xs.append(xa + (y - ya) * (xb - xa) / (yb - ya))
+    xs.sort()
+    return [(xs[k], xs[k + 1]) for k in range(0, len(xs) - 1, 2)]
+
+
+def _union(intervals: list[tuple[float, float]], gap: float) -> list[tuple[float, float]]:
+    merged: list[tuple[float, float]] = []
+    for a, b in sorted(intervals):
+        if merged and a <= merged[-1][1] + gap:
+            if b > merged[-1][1]:
+                merged[-1] = (merged[-1][0], b)
+        else:
+            merged.append((a, b))
+    return merged
+
+
+def metal_runs(parts: Iterable[Part], y: float, tol: float = 1e-9) -> list[tuple[float, float]]:
+    """The separate stretches of metal the blade crosses at depth y, left to right.
+
+    Metal is the union of the + parts less the union of the − parts (holes lie
+    inside metal).  Pieces that touch (a bundle of flats side by side) form one
+    run; a gap or a bore between them splits the run.  Their lengths add up to
+    W(y).
+    """
+    plus: list[tuple[float, float]] = []
+    minus: list[tuple[float, float]] = []
+    for part in parts:
+        (plus if part.sign > 0 else minus).extend(_part_intervals(part.figure, y))
+    runs = _union(plus, tol)
+    for ha, hb in _union(minus, 0.0):
+        cut: list[tuple[float, float]] = []
+        for a, b in runs:
+            if hb <= a or ha >= b:
+                cut.append((a, b))
+                continue
+            if ha > a:
+                cut.append((a, ha))
+            if hb < b:
+                cut.append((hb, b))
+        runs = cut
+    return [(a, b) for a, b in runs if b - a > tol]

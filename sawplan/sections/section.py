@@ -206,6 +206,32 @@ class Section:
         """
         return self._profile.chord(y_mm)
 
+    def runs_mm(self, y_mm: float) -> tuple[float, ...]:
+        """Lengths of the separate stretches of metal at depth y (they sum to W(y)).
+
+        A tooth's gullet empties where the tooth leaves metal (a bore, the gap
+        between bars of a bundle), so chip load is set by the longest run.
+        """
+        from sawplan.sections.geometry import metal_runs
+
+        if not (0.0 <= y_mm <= self.height_mm):
+            return ()
+        parts = self._placed[0]
+        runs = tuple(b - a for a, b in metal_runs(parts, y_mm))
+        chord = self.chord_mm(y_mm)
+        if abs(sum(runs) - chord) > 1e-9 * max(chord, 1.0):
+            # on a horizontal face W(y) takes the side the teeth touch: do the same
+            eps = 1e-9 * max(self.height_mm, 1.0)
+            for y in (y_mm - eps, y_mm + eps):
+                side = tuple(b - a for a, b in metal_runs(parts, y))
+                if abs(sum(side) - chord) < abs(sum(runs) - chord):
+                    runs = side
+        return runs
+
+    def longest_run_mm(self, y_mm: float) -> float:
+        """The longest single stretch of metal at depth y (0 outside the section)."""
+        return max(self.runs_mm(y_mm), default=0.0)
+
     def breakpoints_mm(self) -> tuple[float, ...]:
         """Sorted depths, 0 and H included, between which W(y) is smooth."""
         return self._profile.breaks
