@@ -45,11 +45,6 @@ def render_cut(r: Any, units: UnitSystem, *, section_label: str | None = None) -
         f"Time {fmt_number(r.cut_time_min, 3)} min per cut   "
         f"Limit {limit_name(r.governing_limit)} ({share:.0%} of the cut)"
     )
-    if abs(r.calibration_factor - 1.0) > 1e-9:
-        lines.append(
-            f"            includes the shop's calibration ×{r.calibration_factor:.2f} "
-            f"(model alone {fmt_number(r.cut_time_model_min, 3)} min)"
-        )
     for i, text in enumerate(r.explanation):
         lines.append(("Why         " if i == 0 else "            ") + text)
     for i, text in enumerate(r.warnings):

@@ -61,7 +61,7 @@ def _explanation(plan: Plan, cand: Candidate, cands: list[Candidate] | None) -> 
     lines.append(explain.feed_line(plan, cand))
     if plan.calibration != 1.0:
         lines.append(
-            f"time × {plan.calibration:g} shop calibration (model {run.cut_time_min:.3g} min)"
+            f"time × {plan.calibration:.2f} shop calibration (model {run.cut_time_min:.3g} min)"
         )
     lines.extend(plan.notes)
     return tuple(lines)
