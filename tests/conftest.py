@@ -7,6 +7,13 @@ import os
 from dataclasses import dataclass
 
 import pytest
+from hypothesis import settings
+
+# CI runs the same examples every time (a clean clone has no example database),
+# so a landing never hinges on a lucky draw; locally hypothesis explores freely.
+settings.register_profile("ci", derandomize=True, print_blob=True)
+if os.environ.get("CI"):
+    settings.load_profile("ci")
 
 os.environ.setdefault("TYPER_USE_RICH", "0")
 os.environ.setdefault("_TYPER_FORCE_DISABLE_TERMINAL", "1")

@@ -467,9 +467,10 @@ def test_every_orientation_keeps_area_and_pieces(section: Section) -> None:
             section.bundle_cols,
             section.nested,
         )
-        assert turned.area_mm2 == pytest.approx(section.area_mm2, rel=1e-12)
+        # rotation moves the vertices: the shoelace sum loses ~1e-12 on thin, long shapes
+        assert turned.area_mm2 == pytest.approx(section.area_mm2, rel=1e-9)
     single = Section(section.shape, section.dims_mm, section.orientation)
-    assert section.area_mm2 == pytest.approx(section.pieces * single.area_mm2, rel=1e-12)
+    assert section.area_mm2 == pytest.approx(section.pieces * single.area_mm2, rel=1e-9)
     if not section.nested:
         assert section.height_mm == pytest.approx(section.bundle_rows * single.height_mm)
         assert section.width_mm == pytest.approx(section.bundle_cols * single.width_mm)
