@@ -316,7 +316,8 @@ def _merged_breaks(parts: list[Part], height: float) -> tuple[float, ...]:
 def _part_intervals(fig: Polygon | Circle, y: float) -> list[tuple[float, float]]:
     """Where the horizontal line at depth y lies inside one figure (even-odd rule)."""
     if isinstance(fig, Circle):
-        q = fig.r * fig.r - (y - fig.cy) ** 2
+        # (y − top)(bottom − y), as W(y) has it: no cancellation near the tangents
+        q = (y - (fig.cy - fig.r)) * ((fig.cy + fig.r) - y)
         if q <= 0.0:
             return []
         half = math.sqrt(q)
