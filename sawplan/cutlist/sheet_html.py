@@ -3,8 +3,11 @@
 No scripts, no external files: the page prints the same on any machine.  CSS
 sets ``@page { size: auto; margin: 12mm }`` so A4 and Letter both work; every
 drawing is ``width: 100%`` with a ``viewBox``, so it never runs off the page;
-a bar's block is kept on one page (``break-inside: avoid``).  All user text is
-escaped.
+a bar's block is kept on one page (``break-inside: avoid``).  Table headers
+wrap only between words, and the calibration note of a cut time takes a line
+of its own, so the tables fit the 186 mm of an A4 page between its margins
+without splitting words (``tests/test_sheet_browser.py`` checks the layout in
+Chromium at A4 and Letter width).  All user text is escaped.
 """
 
 from __future__ import annotations
@@ -25,8 +28,14 @@ from sawplan.cutlist.sheet_text import (
 from sawplan.units import Display, UnitSystem, fmt_number
 
 VIEW_W = 1000.0  # drawing width in viewBox units
-BAR_Y, BAR_H = 26.0, 34.0
-LABEL_GAP = 48.0  # least distance between two position labels
+# The drawing is about 690 px wide on an A4 page (186 mm between the margins), so
+# one viewBox unit prints at about 0.69 px: 16-unit text prints near 8 pt.
+FONT = 16.0  # marks and the bar's length, in viewBox units
+TICK_FONT = 14.0  # cut positions under the bar
+CHAR_W = 0.62  # width of a bold sans-serif character, in ems (estimate for fitting labels)
+BAR_Y, BAR_H = 30.0, 38.0
+LABEL_GAP = 64.0  # least distance between two position labels
+MAX_SINGLE_MARKS = 8  # longer runs of one part are marked once, "A ×56"
 _PALETTE = ("#cfe2f3", "#d9ead3", "#fff2cc", "#f4cccc", "#d9d2e9", "#fce5cd", "#d0e0e3", "#ead1dc")
 
 CSS = """
@@ -42,8 +51,10 @@ h2 { font-size: 12pt; margin: 5mm 0 2mm; break-after: avoid; page-break-after: a
 h3 { font-size: 10.5pt; margin: 0 0 1mm }
 table { border-collapse: collapse; width: 100%; margin: 1mm 0 }
 th, td { border: 0.5pt solid #888; padding: 1px 4px; text-align: left; vertical-align: top }
-th { background: #eee }
+th { background: #eee; overflow-wrap: normal }
 td.n, th.n { text-align: right; font-variant-numeric: tabular-nums; white-space: nowrap }
+td.step { white-space: nowrap }
+td.n .sub { display: block; white-space: normal; font-size: 8.5pt }
 .facts { display: grid; grid-template-columns: max-content 1fr; gap: 0 6mm; margin: 0 }
 .facts dt { font-weight: 600 }
 .facts dd { margin: 0 }
@@ -116,16 +127,16 @@ def _sections_table(plan, d: Display) -> str:
     )
     rows = []
     for s in plan.sections:
-        per_cut = minutes(s.cut_time_min)
-        if s.calibration_n:
-            per_cut += f" (×{s.calibration_factor:.2f} from log)"
+        per_cut = escape(minutes(s.cut_time_min))
+        if s.calibration_n:  # on a line of its own, so the column can stay narrow
+            per_cut += f' <span class="sub">(×{s.calibration_factor:.2f} from log)</span>'
         rows.append(
             f"<tr><td>{escape(s.group)}</td>"
             f"<td>{escape(f'{s.pitch} TPI, {s.tooth_form}, {s.tooth_set} set')}</td>"
             f"<td class=n>{escape(d.fmt('speed', s.band_speed_m_min, 3))}</td>"
             f"<td class=n>{escape(d.fmt('feed', s.feed_mm_min, 3))}</td>"
             f"<td class=n>{escape(length(d, s.kerf_mm))}</td>"
-            f"<td class=n>{escape(per_cut)}</td><td class=n>{s.cuts}</td>"
+            f"<td class=n>{per_cut}</td><td class=n>{s.cuts}</td>"
             f"<td class=n>{s.bars_used} ({s.lp_bound_bars})</td></tr>"
         )
         if s.breakin_cuts:
@@ -149,14 +160,14 @@ def _bar_block(plan, b, d: Display) -> str:
     rows = []
     if b.trim_cut_mm is not None:
         rows.append(
-            f"<tr><td>trim</td><td class=n>0–{e(pos(d, b.trim_mm))}</td>"
+            f"<tr><td class=step>trim</td><td class=n>0–{e(pos(d, b.trim_mm))}</td>"
             "<td>squaring cut</td><td></td><td></td></tr>"
         )
     for row in piece_rows(b):
         p = row.first
         extra = "".join(f" · {e(x)}" for x in (p.drawing, p.tolerance) if x)
         rows.append(
-            f"<tr><td>{e(row.step(d))}</td><td class=n>{e(row.span(d))}</td>"
+            f"<tr><td class=step>{e(row.step(d))}</td><td class=n>{e(row.span(d))}</td>"
             f"<td>{e(row.what(d))}{extra}</td>"
             f"<td class=n>{e(row.weight(d))}</td><td>{e(p.handling)}</td></tr>"
         )
@@ -170,7 +181,7 @@ def _bar_block(plan, b, d: Display) -> str:
             what = f"scrap {e(length(d, b.remnant_mm))}"
         weight = e(mass(d, b.remnant_weight_kg)) if b.remnant_mm > 0 else ""
         rows.append(
-            f"<tr><td>end</td>"
+            f"<tr><td class=step>end</td>"
             f"<td class=n>{e(pos(d, b.remnant_start_mm))}–{e(pos(d, b.length_mm))}</td>"
             f"<td>{what}</td><td class=n>{weight}</td><td></td></tr>"
         )
@@ -189,15 +200,16 @@ def bar_svg(b, d: Display) -> str:
     e = escape
     total = b.length_mm if b.length_mm > 0 else 1.0
     sx = VIEW_W / total
-    height = BAR_Y + BAR_H + 22
+    height = BAR_Y + BAR_H + TICK_FONT + 12
     out = [
         f'<svg xmlns="http://www.w3.org/2000/svg" viewBox="-4 0 {VIEW_W + 8:g} {height:g}" '
         f'role="img" aria-label="bar {b.bar}, {e(length(d, b.length_mm))}" '
-        'font-family="sans-serif" font-size="12">',
+        f'font-family="sans-serif" font-size="{FONT:g}">',
         f'<defs><pattern id="keep-{b.bar}" width="8" height="8" patternUnits="userSpaceOnUse" '
         'patternTransform="rotate(45)"><rect width="8" height="8" fill="#fff"/>'
         '<line x1="0" y1="0" x2="0" y2="8" stroke="#2a7" stroke-width="3"/></pattern></defs>',
-        f'<text x="0" y="14">head</text><text x="{VIEW_W:g}" y="14" text-anchor="end">'
+        f'<text x="0" y="{FONT:g}">head</text><text x="{VIEW_W:g}" y="{FONT:g}" '
+        'text-anchor="end">'
         f"{e(length(d, b.length_mm))}</text>",
     ]
 
@@ -210,11 +222,11 @@ def bar_svg(b, d: Display) -> str:
 
     def label(x0: float, x1: float, text: str, *, bold: bool = False) -> str:
         w = (x1 - x0) * sx
-        if w < 7.5 * len(text) + 4:
+        if w < CHAR_W * FONT * len(text) + 4:
             return ""
         weight = ' font-weight="bold"' if bold else ""
         return (
-            f'<text x="{(x0 + x1) / 2 * sx:.2f}" y="{BAR_Y + BAR_H / 2 + 4:g}" '
+            f'<text x="{(x0 + x1) / 2 * sx:.2f}" y="{BAR_Y + BAR_H / 2 + FONT * 0.35:g}" '
             f'text-anchor="middle"{weight}>{e(text)}</text>'
         )
 
@@ -230,19 +242,20 @@ def bar_svg(b, d: Display) -> str:
     for row in piece_rows(b, run=2):
         first, last = row.first, row.last
         one = label(first.start_mm, first.end_mm, first.mark, bold=True)
-        if row.count == 1 or one:  # each piece wide enough for its own mark
+        # each piece its own mark when a few pieces are wide enough; a long run gets "A ×56"
+        if row.count == 1 or (one and row.count <= MAX_SINGLE_MARKS):
             for p in b.pieces[first.seq - 1 : last.seq]:
                 out.append(label(p.start_mm, p.end_mm, p.mark, bold=True))
             continue
         text = f"{first.mark} ×{row.count}"
         mid = (first.start_mm + last.end_mm) / 2 * sx
-        half = 4.0 * len(text) + 4
+        half = CHAR_W * FONT * len(text) / 2 + 4
         out.append(
-            f'<rect x="{mid - half:.2f}" y="{BAR_Y + BAR_H / 2 - 9:g}" width="{2 * half:.2f}" '
-            'height="16" rx="3" fill="#fff" fill-opacity="0.9"/>'
+            f'<rect x="{mid - half:.2f}" y="{BAR_Y + BAR_H / 2 - FONT * 0.7:g}" '
+            f'width="{2 * half:.2f}" height="{FONT * 1.3:g}" rx="3" fill="#fff" fill-opacity="0.9"/>'
         )
         out.append(
-            f'<text x="{mid:.2f}" y="{BAR_Y + BAR_H / 2 + 4:g}" text-anchor="middle" '
+            f'<text x="{mid:.2f}" y="{BAR_Y + BAR_H / 2 + FONT * 0.35:g}" text-anchor="middle" '
             f'font-weight="bold">{e(text)}</text>'
         )
     if b.length_mm - b.remnant_start_mm > 1e-9:
@@ -275,7 +288,8 @@ def bar_svg(b, d: Display) -> str:
         if px - shown >= LABEL_GAP and (is_end or VIEW_W - px >= LABEL_GAP):
             anchor = "start" if i == 0 else "end" if is_end else "middle"
             out.append(
-                f'<text x="{px:.2f}" y="{y + 18:g}" text-anchor="{anchor}" font-size="11">'
+                f'<text x="{px:.2f}" y="{y + TICK_FONT + 6:g}" text-anchor="{anchor}" '
+                f'font-size="{TICK_FONT:g}">'
                 f"{e(pos(d, x))}</text>"
             )
             shown = px
