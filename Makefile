@@ -5,7 +5,7 @@ BIN := $(VENV)/bin
 STAMP := $(VENV)/.installed
 TEST_STAMP := $(VENV)/.installed-test
 
-.PHONY: demo test lint bench clean browser
+.PHONY: demo test lint bench clean browser readme
 
 $(BIN)/python:
 	$(PY) -m venv $(VENV)
@@ -38,6 +38,10 @@ browser:
 lint: $(TEST_STAMP)
 	$(BIN)/ruff check sawplan tests bench demo
 	$(BIN)/ruff format --check sawplan tests bench demo
+
+# regenerate the README tour from the demo shop (tests/test_readme.py checks it)
+readme: $(STAMP)
+	$(BIN)/python demo/make_readme.py
 
 bench: $(TEST_STAMP)
 	for f in bench/bench_*.py; do echo "== $$f"; $(BIN)/python $$f || exit 1; done

@@ -19,7 +19,9 @@ def limit_name(code: str) -> str:
     return _LIMIT_NAMES.get(code, code)
 
 
-def render_cut(r: Any, units: UnitSystem, *, section_label: str | None = None) -> str:
+def render_cut(
+    r: Any, units: UnitSystem, *, section_label: str | None = None, calibration_cuts: int = 0
+) -> str:
     """The operator's card: blade, speed, feed, time, why, warnings, break-in."""
     d = Display(units)
     lines = [f"{r.material} · {section_label or r.section} · saw {r.saw} ({r.feed_type} feed)"]
@@ -47,6 +49,10 @@ def render_cut(r: Any, units: UnitSystem, *, section_label: str | None = None) -
     )
     for i, text in enumerate(r.explanation):
         lines.append(("Why         " if i == 0 else "            ") + text)
+    if calibration_cuts:
+        lines.append(
+            f"            (calibration from {calibration_cuts} logged cuts on this saw and material group)"
+        )
     for i, text in enumerate(r.warnings):
         lines.append(("Warnings    ! " if i == 0 else "            ! ") + text)
     if r.breakin:

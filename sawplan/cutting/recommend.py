@@ -87,7 +87,8 @@ def _result(plan: Plan, cand: Candidate, cands: list[Candidate] | None) -> CutRe
         band_speed_m_min=plan.speed.band_speed_m_min,
         band_speed_clipped=plan.speed.clipped,
         feed_mm_min=section.height_mm / time,
-        feed_set_mm_min=run.feed_set_mm_min,
+        # the shop's calibration slows every feed alike, the setting included
+        feed_set_mm_min=run.feed_set_mm_min / plan.calibration,
         cut_time_min=time,
         cut_time_model_min=run.cut_time_min,
         calibration_factor=plan.calibration,
@@ -111,7 +112,9 @@ def _result(plan: Plan, cand: Candidate, cands: list[Candidate] | None) -> CutRe
         warnings=tuple(explain.warnings(plan, cand)),
         explanation=_explanation(plan, cand, cands),
         profile=_profile(plan, cand),
-        breakin=breakin_schedule(run.feed_set_mm_min, section.area_mm2, plan.material.group),
+        breakin=breakin_schedule(
+            run.feed_set_mm_min / plan.calibration, section.area_mm2, plan.material.group
+        ),
         caution=f"{CAUTION} {BREAKIN_CAUTION}",
         cutting_rate_mm2_min=section.area_mm2 / time,
     )
