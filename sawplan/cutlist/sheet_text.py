@@ -376,7 +376,7 @@ def breakin_text(s, d: Display) -> str:
     return (
         f"new blade: start at {s.breakin_start_percent:.0f} % of the feed and raise it step by "
         f"step over the first {d.fmt('area', s.breakin_area_cm2 * 100, 3)} "
-        f"(about {s.breakin_cuts:.0f} cuts)"
+        f"(about {s.breakin_cuts:.0f} {'cut' if round(s.breakin_cuts) == 1 else 'cuts'})"
     )
 
 
