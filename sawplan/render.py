@@ -12,6 +12,7 @@ import dataclasses
 import io
 import json
 import math
+import re
 from collections.abc import Iterable, Sequence
 from enum import Enum
 from typing import Any
@@ -62,15 +63,19 @@ def to_json(obj: Any, *, kind: str) -> str:
 
 
 _FORMULA_LEADS = ("=", "+", "-", "@", "\t", "\r")
+_PLAIN_NUMBER = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?", re.ASCII)
 
 
 def safe_cell(value: Any) -> Any:
-    """Neutralise text a spreadsheet would run as a formula (numbers pass untouched)."""
-    if isinstance(value, str) and value.startswith(_FORMULA_LEADS):
-        try:
-            float(value)
-        except ValueError:
-            return "'" + value
+    """Neutralise text a spreadsheet would run as a formula (plain numbers pass untouched).
+
+    Only a plain decimal number ("-5", "+1.5e3") keeps its sign unquoted: Python's
+    float() also reads "-inf", "+nan" and "-1_000", which a spreadsheet would take
+    for formulas.
+    """
+    text_lead = isinstance(value, str) and value.startswith(_FORMULA_LEADS)
+    if text_lead and not _PLAIN_NUMBER.fullmatch(value):
+        return "'" + value
     return value
 
 

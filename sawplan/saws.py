@@ -150,7 +150,7 @@ def _read_toml(path: Path, *, origin: str) -> dict[str, Saw]:
             raw = tomllib.load(handle)
     except FileNotFoundError:
         raise NotFoundError(f"no such saws file: {path}", field="saws") from None
-    except (OSError, tomllib.TOMLDecodeError) as exc:
+    except (OSError, tomllib.TOMLDecodeError, RecursionError, UnicodeDecodeError) as exc:
         raise DamagedFileError(f"cannot read the saws file {path}: {exc}", field="saws") from None
     table = raw.get("saw")
     if not isinstance(table, dict):

@@ -75,15 +75,20 @@ _EXAMPLES = {
     "frequency": "e.g. 2 /min",
 }
 
+# No quantity a saw shop types comes near a billion core units (1,000 km, 1,000 m²,
+# 1e9 min...); beyond it the number is a typing slip, not a size.
+MAX_CORE_MAGNITUDE = 1e9
+
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
 # a mixed number "7-1/4" or "7 1/4", a plain fraction "1/4", or a decimal
 _VALUE = re.compile(
     rf"\s*(?:(?P<whole>\d+)(?:\s+|-)(?P<num>\d+)/(?P<den>\d+)"
     rf"|(?P<fnum>\d+)/(?P<fden>\d+)"
-    rf"|(?P<dec>{_NUMBER}))"
+    rf"|(?P<dec>{_NUMBER}))",
+    re.ASCII,  # digits 0-9 only: other scripts' digits are refused, never guessed
 )
 # a foot/inch mark is a whole unit by itself (so 1'6" reads as two terms)
-_UNIT = re.compile(r"\s*(?P<unit>''|['\"′″]|[^\d\s.+\-'\"′″][^\s'\"′″]*)?")
+_UNIT = re.compile(r"\s*(?P<unit>''|['\"′″]|[^\d\s.+\-'\"′″][^\s'\"′″]*)?", re.ASCII)
 # capitalised shop spellings that pint would read as other units (MM = megamolar)
 _UPPER_FOLD = {"MM", "CM", "IN", "FT", "KG", "LB", "LBS", "IN.", "FT.", "M/MIN", "FT/MIN", "MM/MIN"}
 
@@ -182,9 +187,10 @@ def parse_quantity(
     try:
         terms = _split_terms(raw)
     except ValueError:
-        raise UsageError(
-            f"expected {_a(dimension)}, got {raw!r}", field=field, hint=_EXAMPLES[dimension]
-        ) from None
+        hint = _EXAMPLES[dimension]
+        if any(c.isdigit() and not c.isascii() for c in raw):
+            hint = f"write the number with the digits 0-9, {hint}"
+        raise UsageError(f"expected {_a(dimension)}, got {raw!r}", field=field, hint=hint) from None
     total = None
     for value, unit in terms:
         if not math.isfinite(value):
@@ -217,10 +223,19 @@ def to_core(
 ) -> float:
     """Parse ``text`` and return a float in the core unit of ``dimension``."""
     q = parse_quantity(text, dimension, field=field, default_unit=default_unit)
-    value = float(q.to(DIMENSIONS[dimension][1]).magnitude)
+    core_unit = DIMENSIONS[dimension][1]
+    value = float(q.to(core_unit).magnitude)
     if not math.isfinite(value):
         raise UsageError(
             f"expected a finite {dimension.replace('_', ' ')}, got {text!r}", field=field
+        )
+    if abs(value) > MAX_CORE_MAGNITUDE:
+        from sawplan.errors import BadDataError
+
+        raise BadDataError(
+            f"{str(text).strip()!r} is out of range (at most {MAX_CORE_MAGNITUDE:.0e} "
+            f"{core_unit.replace(' ** ', '^').replace(' ', '')})",
+            field=field,
         )
     return value
 

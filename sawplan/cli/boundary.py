@@ -1,27 +1,40 @@
 """The one error boundary: every failure becomes one line and a named exit code.
 
+Whatever goes wrong below the CLI — a typo, a damaged file, a full disk, a
+second program holding the log, a bug — the user sees exactly one line on
+stderr that says what went wrong and what to type instead, and the exit code
+of its kind (DEVELOPERS.md): 2 usage, 3 bad data, 4 not found, 5 conflict,
+6 damaged file, 7 storage, 1 a bug, 130 stopped.
+
 ``--debug`` (anywhere on the command line, or SAWPLAN_DEBUG=1) re-raises so the
 traceback shows.
 """
 
 from __future__ import annotations
 
+import errno
 import os
 import sqlite3
 import sys
 from collections.abc import Callable, Sequence
 
-from sawplan.errors import ExitCode, SawplanError, StorageError
+from sawplan.errors import (
+    DamagedFileError,
+    ExitCode,
+    NotFoundError,
+    SawplanError,
+    StorageError,
+    UsageError,
+)
 
-
-def _one_line(text: str) -> str:
-    return " ".join(str(text).split())
+STOPPED = 130  # the shell's code for a program stopped with Ctrl-C
+MAX_LINE = 1000  # characters: a hard stop for a line that is still too long
+_LONG_WORD = 160  # longer words (a pasted value, never a usual path) are shortened
+_DEBUG_HINT = "run again with --debug and report the traceback"
 
 
 def run_guarded(run: Callable[[list[str]], int | None], argv: Sequence[str]) -> int:
     """Run the CLI on ``argv``; turn any exception into one stderr line and an exit code."""
-    from typer._click import exceptions as click_exc
-
     args = list(argv)
     debug = os.environ.get("SAWPLAN_DEBUG", "") not in ("", "0")
     if "--debug" in args:
@@ -30,69 +43,139 @@ def run_guarded(run: Callable[[list[str]], int | None], argv: Sequence[str]) -> 
     try:
         code = run(args)
         return int(code or 0)
-    except SawplanError as err:
+    except (KeyboardInterrupt, _abort_class()):
+        _say("stopped.")
+        return STOPPED
+    except Exception as err:
         if debug:
             raise
-        _say(f"error: {err.one_line()}")
-        return int(err.exit_code)
-    except click_exc.UsageError as err:
-        if debug:
-            raise
+        code, line = describe(err)
+        _say(line)
+        return code
+
+
+def describe(err: BaseException) -> tuple[int, str]:
+    """The exit code and the one line shown for ``err`` (no traceback)."""
+    from typer._click import exceptions as click_exc
+
+    if isinstance(err, SawplanError):
+        return int(err.exit_code), f"error: {one_line(err.one_line())}"
+    if isinstance(err, click_exc.UsageError):
         hint = ""
         if err.ctx is not None:
             hint = f" (see `{err.ctx.command_path} --help`)"
-        _say(f"error: {_one_line(err.format_message())}{hint}")
-        return int(ExitCode.USAGE)
-    except click_exc.ClickException as err:
-        if debug:
-            raise
-        _say(f"error: {_one_line(err.format_message())}")
-        return int(ExitCode.USAGE)
-    except (KeyboardInterrupt, click_exc.Abort):
-        _say("stopped.")
-        return 130
-    except sqlite3.DatabaseError as err:
-        if debug:
-            raise
+        return int(ExitCode.USAGE), f"error: {one_line(err.format_message())}{hint}"
+    if isinstance(err, click_exc.ClickException):
+        return int(ExitCode.USAGE), f"error: {one_line(err.format_message())}"
+    if isinstance(err, sqlite3.DatabaseError):
         mapped = storage_error_from_sqlite(err)
-        _say(f"error: {mapped.one_line()}")
-        return int(mapped.exit_code)
-    except OSError as err:
-        if debug:
-            raise
-        mapped = StorageError(
-            _one_line(err.strerror or str(err)), field=getattr(err, "filename", None)
+        return int(mapped.exit_code), f"error: {one_line(mapped.one_line())}"
+    if isinstance(err, OSError):
+        mapped = storage_error_from_os(err)
+        return int(mapped.exit_code), f"error: {one_line(mapped.one_line())}"
+    if isinstance(err, UnicodeEncodeError):
+        return int(ExitCode.USAGE), (
+            "error: the terminal cannot show some characters of the answer "
+            "(set PYTHONIOENCODING=utf-8, or use --json)"
         )
-        _say(f"error: {mapped.one_line()}")
-        return int(mapped.exit_code)
-    except Exception as err:  # the last line of defence: no traceback for users
-        if debug:
-            raise
-        _say(
-            f"internal error: {type(err).__name__}: {_one_line(str(err))[:300]}"
-            " (run again with --debug and report the traceback)"
-        )
-        return int(ExitCode.INTERNAL)
+    if isinstance(err, MemoryError):
+        return int(ExitCode.STORAGE), "error: out of memory; close other programs and try again"
+    text = one_line(f"{type(err).__name__}: {err}")
+    return int(ExitCode.INTERNAL), f"internal error: {text} ({_DEBUG_HINT})"
 
 
 def storage_error_from_sqlite(err: sqlite3.DatabaseError) -> SawplanError:
     """Map SQLite's messages to errors a shop user can act on."""
-    from sawplan.errors import DamagedFileError
-
     text = str(err).lower()
     if "locked" in text or "busy" in text:
-        return StorageError("the blade log is busy in another program; try again in a moment")
+        return StorageError(
+            "the blade log stayed busy in another program; nothing was written, "
+            "try again in a moment"
+        )
     if "readonly" in text or "read-only" in text:
-        return StorageError("the blade log is read-only; check the file's permissions or use --db")
-    if "disk is full" in text or "full" in text:
-        return StorageError("the disk is full; nothing was written, free some space and try again")
+        return StorageError(
+            "the blade log is read-only; nothing was written",
+            hint="check the file's permissions, or give --db another file",
+        )
+    if "disk is full" in text or "database or disk is full" in text:
+        return StorageError(
+            "the disk is full; nothing was written", hint="free some space and try again"
+        )
     if "not a database" in text or "malformed" in text or "corrupt" in text:
         return DamagedFileError(
             "the blade log file is damaged or not a sawplan database",
-            hint="restore the last backup (see `sawplan backup --help`)",
+            hint="restore the newest backup (see `sawplan backup --help`)",
         )
-    return StorageError(_one_line(str(err)))
+    if "unable to open" in text or "disk i/o" in text:
+        return StorageError(
+            f"the blade log cannot be read or written ({one_line(str(err))})",
+            hint="check the disk and the path given to --db",
+        )
+    return StorageError(one_line(str(err)))
+
+
+def storage_error_from_os(err: OSError) -> SawplanError:
+    """Map an operating-system error to the kind of mistake it points at."""
+    name = err.filename if isinstance(err.filename, str | bytes) else None
+    where = short(os.fsdecode(name)) if name is not None else None
+    code = err.errno
+    if code in (errno.ENOSPC, getattr(errno, "EDQUOT", -1)):
+        return StorageError(
+            "the disk is full; nothing more was written", hint="free some space and try again"
+        )
+    if code == errno.EROFS:
+        return StorageError(f"{where or 'the file'} is on a read-only disk")
+    if code in (errno.EACCES, errno.EPERM):
+        return StorageError(
+            f"no permission to use {where or 'the file'}", hint="check its permissions"
+        )
+    if code == errno.ENOENT:
+        return NotFoundError(f"no such file or folder: {where or '?'}")
+    if code == errno.ENAMETOOLONG:
+        return UsageError("a file name is too long for the disk", hint="give a shorter path")
+    if code == errno.EISDIR:
+        return UsageError(f"{where or 'the path'} is a folder; give a file name")
+    if code == errno.ENOTDIR:
+        return UsageError(f"part of {where or 'the path'} is a file, not a folder")
+    if code == errno.EEXIST:
+        return UsageError(f"{where or 'the file'} exists already")
+    reason = err.strerror or str(err)
+    return StorageError(f"{reason}: {where}" if where else reason)
+
+
+def one_line(text: str) -> str:
+    """White space collapsed, control characters shown escaped, very long words shortened."""
+    clean = "".join(_visible(c) for c in str(text))
+    line = " ".join(short(word, _LONG_WORD) for word in clean.split())
+    if len(line) > MAX_LINE:
+        line = line[: MAX_LINE - 1] + "…"
+    return line
+
+
+def short(text: str, limit: int = _LONG_WORD) -> str:
+    """``text`` cut to ``limit`` characters, saying how long it was."""
+    if len(text) <= limit:
+        return text
+    return f"{text[: limit // 2]}…({len(text):,} characters)"
+
+
+def _visible(char: str) -> str:
+    if char in "\t\n\r\f\v":
+        return " "
+    code = ord(char)
+    if code < 32 or code == 127 or 0x80 <= code < 0xA0:
+        return f"\\x{code:02x}"
+    return char
+
+
+def _abort_class() -> type[BaseException]:
+    from typer.exceptions import Abort
+
+    return Abort
 
 
 def _say(line: str) -> None:
-    print(line, file=sys.stderr)
+    try:
+        print(line, file=sys.stderr)
+    except UnicodeEncodeError:
+        print(line.encode("ascii", "backslashreplace").decode("ascii"), file=sys.stderr)

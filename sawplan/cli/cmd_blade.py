@@ -255,8 +255,9 @@ def blade_fit_command(
 
     on = parse_day(date)
     tension_mpa = None if tension is None else to_core(tension, "stress", field="tension")
+    known = load_saws(saws_file)  # read (and check) a --saws file even when the log has the saw
     with connect(db) as database:
-        profile = find_saw(database, saw) or load_saws(saws_file).get(saw.strip().lower())
+        profile = find_saw(database, saw) or known.get(saw.strip().lower())
         outcome = fit_blade(
             database,
             tag,
@@ -384,8 +385,12 @@ def blade_list_command(
 def blade_show_command(
     tag: Annotated[str, typer.Argument(help="The blade's tag.", show_default=False)],
     chart: Annotated[bool, typer.Option("--chart", help="Draw the wear curve.")] = False,
-    width: Annotated[int, typer.Option("--width", help="Chart width in characters.")] = 72,
-    height: Annotated[int, typer.Option("--height", help="Chart height in lines.")] = 20,
+    width: Annotated[
+        int, typer.Option("--width", help="Chart width in characters.", min=20, max=500)
+    ] = 72,
+    height: Annotated[
+        int, typer.Option("--height", help="Chart height in lines.", min=5, max=200)
+    ] = 20,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,

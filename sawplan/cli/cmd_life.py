@@ -15,8 +15,10 @@ from sawplan.units import UnitSystem
 ConfidenceOpt = Annotated[
     float, typer.Option("--confidence", help="Confidence for intervals and forecasts, 0-1.")
 ]
-WidthOpt = Annotated[int, typer.Option("--width", help="Chart width in characters.")]
-HeightOpt = Annotated[int, typer.Option("--height", help="Chart height in lines.")]
+WidthOpt = Annotated[
+    int, typer.Option("--width", help="Chart width in characters.", min=20, max=500)
+]
+HeightOpt = Annotated[int, typer.Option("--height", help="Chart height in lines.", min=5, max=200)]
 
 LIFE_HELP = """Blade life from the log: Weibull fit, failure modes, cost per area, calibration.
 
@@ -282,7 +284,8 @@ def forecast_command(
         return
     area_cm2 = to_core(area, "area", field="area") / 100.0
     life_cm2 = None if life is None else to_core(life, "area", field="life") / 100.0
-    mat = load_catalogue(materials_file).get(material) if material is not None else None
+    catalogue = load_catalogue(materials_file)  # a bad --materials-file is reported, not skipped
+    mat = catalogue.get(material) if material is not None else None
     with connect(db, create=False) as database:
         result = forecast_area(
             database,

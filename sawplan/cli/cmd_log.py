@@ -142,10 +142,14 @@ def log_cut_command(
     from sawplan.units import to_core
 
     mat = load_catalogue(materials_file).get(material)
+    if saws_file is not None:  # read (and check) a --saws file even when the log has the saw
+        from sawplan.saws import load_saws
+
+        load_saws(saws_file)
     words = list(section)
-    if orient:
+    if orient is not None:
         words += ["--orient", orient]
-    if bundle:
+    if bundle is not None:
         words += ["--bundle", bundle]
     if nest:
         words.append("--nest")
@@ -222,14 +226,18 @@ def batch_cut_area(section_area_mm2: float, area_mm2: float | None) -> float:
 
 def parse_feed(text: str | None) -> tuple[float | None, str | None]:
     """A rate with a unit (mm/min, in/min) or a bare dial setting, kept as text."""
+    from sawplan.errors import UsageError
     from sawplan.units import to_core
 
-    if text is None or not text.strip():
+    if text is None:
         return None, None
+    if not text.strip():
+        raise UsageError("expected a feed, got nothing", field="feed", hint="e.g. 40mm/min or 3")
     try:
-        float(text)
+        setting = float(text)
     except ValueError:
         return _positive(to_core(text, "feed", field="feed"), "feed"), None
+    _positive(setting, "feed")  # a dial setting is a number above 0
     return None, text.strip()
 
 

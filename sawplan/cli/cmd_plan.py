@@ -14,9 +14,11 @@ HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote
 
 JOBFILE is a TOML file with a [job] table (name, kerf, trim, grip,
 min_remnant, saw, shop_rate, handling_time, blade_price, currency, customer,
-due), [[stock]] entries (material, section, length, count, price or
+due, stock_file), [[stock]] entries (material, section, length, count, price or
 price_per_kg, heat, location, remnant) and [[part]] entries (name, material,
 section, length, count, tolerance, drawing). Lengths carry their unit.
+stock_file names a CSV with the [[stock]] columns, in the job file's folder;
+files elsewhere are read only with --allow.
 
 Parts are cut only from stock of the same material and section. The plan
 prints the bars to fetch, every cut from the head end, remnants to keep
@@ -87,6 +89,13 @@ def plan_command(
             "--time-limit", help="Seconds the optimiser may spend per section.", metavar="SECONDS"
         ),
     ] = 5.0,
+    allow: Annotated[
+        bool,
+        typer.Option(
+            "--allow",
+            help="Let the job file name files outside its own folder (stock_file).",
+        ),
+    ] = False,
 ) -> None:
     import sys
 
@@ -96,10 +105,14 @@ def plan_command(
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
 
+    if saw_name is not None and not saw_name.strip():
+        raise UsageError(
+            "expected a saw name, got nothing", field="saw", hint="see `sawplan saw list`"
+        )
     if not 0 < time_limit <= 600:
         raise UsageError(f"must be between 0 and 600 s, got {time_limit:g}", field="time-limit")
     catalogue = load_catalogue(materials_file)
-    job = load_job(jobfile, catalogue)
+    job = load_job(jobfile, catalogue, allow_outside=allow)
     log = BladeLog(db)
     saw = choose_saw(job, saw_name, saws_file, log)
     plan = plan_job(
@@ -133,9 +146,12 @@ class BladeLog:
     """
 
     def __init__(self, db: Path | None):
+        from sawplan.errors import UsageError
         from sawplan.store import resolve_db_path
 
         self.path = resolve_db_path(db)
+        if self.path.is_dir():
+            raise UsageError(f"{self.path} is a folder; give a file name", field="db")
         self.exists = self.path.is_file()
         self.label = f"blade log {self.path}" if self.exists else "no blade log"
 

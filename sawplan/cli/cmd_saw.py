@@ -17,6 +17,8 @@ SawsFileOpt = Annotated[
         "--saws",
         help="Your own saws TOML file, added to the packaged profiles (env SAWPLAN_SAWS).",
         show_default=False,
+        exists=True,
+        dir_okay=False,
     ),
 ]
 DateOpt = Annotated[

@@ -76,12 +76,14 @@ def weigh_command(
     defaults = LiftConditions()
     conditions = LiftConditions(
         horizontal_cm=to_core(reach, "length", field="reach") / 10
-        if reach
+        if reach is not None
         else defaults.horizontal_cm,
         vertical_cm=to_core(lift_from, "length", field="lift-from") / 10
-        if lift_from
+        if lift_from is not None
         else defaults.vertical_cm,
-        travel_cm=to_core(travel, "length", field="travel") / 10 if travel else defaults.travel_cm,
+        travel_cm=to_core(travel, "length", field="travel") / 10
+        if travel is not None
+        else defaults.travel_cm,
         frequency_per_min=lifts_per_min,
     )
     result = weigh(mat, sec, length_mm, count, conditions)

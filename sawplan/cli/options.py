@@ -31,6 +31,8 @@ MaterialsFileOpt = Annotated[
         "--materials-file",
         help="Your own materials CSV, added to the catalogue (env SAWPLAN_MATERIALS).",
         show_default=False,
+        exists=True,
+        dir_okay=False,
     ),
 ]
 OrientOpt = Annotated[

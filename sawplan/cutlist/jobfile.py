@@ -8,6 +8,7 @@ A job file is TOML read with the standard library's ``tomllib``::
     trim = "5mm"            # squaring cut at the head, its kerf included
     grip = "0mm"            # what the vise keeps at the tail, the last kerf included
     min_remnant = "300mm"   # shorter tails are scrap, longer ones go back on the rack
+    stock_file = "rack.csv" # more [[stock]] lines as CSV (same columns), beside the job file
 
     [[stock]]
     material = "4140"
@@ -28,11 +29,19 @@ Every error names the file, the line and the entry, in one line, e.g.
 its unit, e.g. "250mm", got 12``.  Lines are found by scanning the text for
 the n-th ``[[part]]`` header (and the key inside its block); tomllib's own
 syntax errors already carry a line and column.
+
+``stock_file`` is resolved relative to the job file's folder and must stay
+inside it: an absolute path, a ``..`` that climbs out or a symlink that leads
+out is refused (one line naming the key and its line) unless the caller
+allows it (``sawplan plan JOB --allow``), so a job file received from someone
+else cannot make sawplan read files elsewhere on the machine.
 """
 
 from __future__ import annotations
 
+import csv
 import difflib
+import io
 import math
 import re
 import tomllib
@@ -45,7 +54,7 @@ from sawplan.errors import BadDataError, NotFoundError, SawplanError, UsageError
 
 JOB_KEYS = (
     "name", "kerf", "trim", "grip", "min_remnant", "saw", "shop_rate", "handling_time",
-    "blade_price", "currency", "customer", "due",
+    "blade_price", "currency", "customer", "due", "stock_file",
 )  # fmt: skip
 STOCK_KEYS = (
     "material", "section", "length", "count", "price", "price_per_kg", "heat", "location",
@@ -101,6 +110,7 @@ class JobHeader:
     currency: str
     customer: str
     due: str
+    stock_file: str = ""  # as written in [job]; its lines are in Job.stock
 
 
 @dataclass(frozen=True)
@@ -120,6 +130,7 @@ class StockLine:
     location: str
     remnant: bool
     label: str  # "4140 round 60mm 3m", as written, for messages
+    source: str = field(default="", metadata={"json": False})  # the stock_file, or "" (job file)
 
     @property
     def group(self) -> tuple[str, str]:
@@ -169,6 +180,8 @@ class Job:
 
     def where(self, entry: StockLine | PartLine) -> Where:
         if isinstance(entry, StockLine):
+            if entry.source:
+                return Where(entry.source, "stock row", entry.line, entry.label)
             return Where(self.file, "[[stock]]", entry.line, entry.label)
         return Where(self.file, "[[part]]", entry.line, f'"{entry.name}"')
 
@@ -342,9 +355,16 @@ SectionParser = Callable[[str], Any]
 
 
 def load_job(
-    path: str | Path, catalogue: Any, *, parse_section: SectionParser | None = None
+    path: str | Path,
+    catalogue: Any,
+    *,
+    parse_section: SectionParser | None = None,
+    allow_outside: bool = False,
 ) -> Job:
-    """Read and validate the job file at ``path`` (see :func:`parse_job`)."""
+    """Read and validate the job file at ``path`` (see :func:`parse_job`).
+
+    ``allow_outside`` lets ``stock_file`` name a file outside the job's folder.
+    """
     path = Path(path)
     try:
         if path.stat().st_size > MAX_FILE_BYTES:
@@ -362,7 +382,14 @@ def load_job(
         raise BadDataError(
             "is not UTF-8 text (save the job file as UTF-8)", field=path.name
         ) from None
-    return parse_job(text, catalogue, file=path.name, parse_section=parse_section)
+    return parse_job(
+        text,
+        catalogue,
+        file=path.name,
+        parse_section=parse_section,
+        folder=path.parent,
+        allow_outside=allow_outside,
+    )
 
 
 def parse_job(
@@ -371,8 +398,13 @@ def parse_job(
     *,
     file: str = "job.toml",
     parse_section: SectionParser | None = None,
+    folder: str | Path | None = None,
+    allow_outside: bool = False,
 ) -> Job:
     """Validate a job file's text against the materials ``catalogue``.
+
+    ``folder`` is where the job file lies: ``stock_file`` is read from there
+    (and only from there unless ``allow_outside``).
 
     Checks every key and value, that each part has stock of the same material
     and section (canonical section spec and catalogue key), and that each part
@@ -386,6 +418,8 @@ def parse_job(
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as err:
         raise UsageError(f"{file}: not valid TOML: {err}") from None
+    except RecursionError:
+        raise UsageError(f"{file}: not valid TOML: arrays or tables nested too deeply") from None
 
     for key, value in data.items():
         if key not in TABLES:
@@ -426,33 +460,18 @@ def parse_job(
     stock: list[StockLine] = []
     for i, item in enumerate(data.get("stock", [])):
         entry = _Entry(item, "[[stock]]", i, lines, file, _raw_stock_label(item, i))
-        entry.check_keys(STOCK_KEYS)
-        material, spec, section_text = resolve(entry)
-        price = entry.money("price")
-        per_kg = entry.money("price_per_kg")
-        if price is not None and per_kg is not None:
-            err = UsageError("give price (per bar) or price_per_kg, not both", field="price_per_kg")
-            raise entry.fail(err, "price_per_kg")
-        length = entry.quantity("length", "length", "6m", positive=True)
-        if length is None:
-            raise entry.fail(BadDataError("is missing", field="length"))
-        stock.append(
-            StockLine(
-                index=i + 1,
-                line=entry.where().line,
-                material=material,
-                section=spec,
-                section_text=section_text,
-                length_mm=length,
-                count=entry.count("count", minimum=0),
-                price=price,
-                price_per_kg=per_kg,
-                heat=entry.text("heat"),
-                location=entry.text("location"),
-                remnant=entry.flag("remnant"),
-                label=entry.label or f"#{i + 1}",
-            )
-        )
+        stock.append(_stock_line(entry, len(stock) + 1, resolve))
+    if header.stock_file:
+        where = Where(file, "[job]", lines.key_line("[job]", 0, "stock_file"))
+        if folder is None:
+            err = UsageError("needs the job file's folder to be read", field="stock_file")
+            raise located(err, where)
+        try:
+            path = resolve_stock_file(header.stock_file, Path(folder), allow_outside=allow_outside)
+        except SawplanError as err:
+            raise located(err, where) from None
+        for entry in _stock_file_entries(path, header.stock_file, where):
+            stock.append(_stock_line(entry, len(stock) + 1, resolve, source=header.stock_file))
 
     parts: list[PartLine] = []
     names: dict[str, int | None] = {}
@@ -494,6 +513,159 @@ def parse_job(
     job = Job(file, header, tuple(stock), tuple(parts), materials, sections, job_lines)
     _check_parts_have_stock(job, lines)
     return job
+
+
+def _stock_line(
+    entry: _Entry,
+    index: int,
+    resolve: Callable[[_Entry], tuple[str, str, str]],
+    *,
+    source: str = "",
+) -> StockLine:
+    """One stock entry, from a [[stock]] table or a row of the stock file."""
+    entry.check_keys(STOCK_KEYS)
+    material, spec, section_text = resolve(entry)
+    price = entry.money("price")
+    per_kg = entry.money("price_per_kg")
+    if price is not None and per_kg is not None:
+        err = UsageError("give price (per bar) or price_per_kg, not both", field="price_per_kg")
+        raise entry.fail(err, "price_per_kg")
+    length = entry.quantity("length", "length", "6m", positive=True)
+    if length is None:
+        raise entry.fail(BadDataError("is missing", field="length"))
+    return StockLine(
+        index=index,
+        line=entry.where().line,
+        material=material,
+        section=spec,
+        section_text=section_text,
+        length_mm=length,
+        count=entry.count("count", minimum=0),
+        price=price,
+        price_per_kg=per_kg,
+        heat=entry.text("heat"),
+        location=entry.text("location"),
+        remnant=entry.flag("remnant"),
+        label=entry.label or f"#{index}",
+        source=source,
+    )
+
+
+# --- the stock file -------------------------------------------------------------------------
+
+
+def resolve_stock_file(value: str, folder: Path, *, allow_outside: bool = False) -> Path:
+    """Where ``stock_file = value`` points, refusing paths that leave the job's folder.
+
+    Refused unless ``allow_outside``: an absolute path, ``..`` that climbs out
+    of the folder, and a symlink (anywhere on the way) that leads out of it.
+    """
+    hint = "name a file in the job's folder, or run `sawplan plan JOBFILE --allow`"
+    raw = Path(value)
+    if raw.is_absolute() and not allow_outside:
+        raise UsageError(
+            f"{value!r} is an absolute path; the job file may only name files in its own folder",
+            field="stock_file",
+            hint=hint,
+        )
+    target = folder / raw
+    if allow_outside:
+        return target
+    try:
+        base = folder.resolve()
+        real = target.resolve()  # follows every symlink on the way
+    except (ValueError, OSError) as err:  # a NUL byte, a name too long, a symlink loop
+        raise UsageError(
+            f"cannot use {value!r} as a file name ({err})", field="stock_file"
+        ) from None
+    if not real.is_relative_to(base):
+        how = "with '..'" if ".." in raw.parts else "through a symlink"
+        raise UsageError(
+            f"{value!r} leads outside the job's folder {how} (to {real})",
+            field="stock_file",
+            hint=hint,
+        )
+    return real  # the checked path itself, not the text that led there
+
+
+def _stock_file_entries(path: Path, shown: str, where: Where) -> list[_Entry]:
+    """The stock file's rows as entries whose errors name the CSV file and line."""
+    try:
+        if path.stat().st_size > MAX_FILE_BYTES:
+            raise BadDataError("is over 5 MB; a stock list is a short text file", field=shown)
+        text = path.read_bytes().decode("utf-8-sig")
+    except FileNotFoundError:
+        raise located(NotFoundError(f"no such file: {path}", field="stock_file"), where) from None
+    except IsADirectoryError:
+        err = BadDataError(f"{path} is a folder, expected a CSV file", field="stock_file")
+        raise located(err, where) from None
+    except UnicodeDecodeError:
+        raise BadDataError("is not UTF-8 text (save it as UTF-8 CSV)", field=shown) from None
+    except OSError as err:
+        msg = f"cannot read {path}: {err.strerror or err}"
+        raise located(BadDataError(msg, field="stock_file"), where) from None
+    try:
+        reader = csv.reader(io.StringIO(text, newline=""))
+        rows = [(reader.line_num, row) for row in reader]
+    except csv.Error as err:
+        raise BadDataError(f"is not readable CSV ({err})", field=shown) from None
+    rows = [(n, r) for n, r in rows if any(c.strip() for c in r)]
+    if not rows:
+        raise BadDataError("is empty; expected a header row and stock rows", field=shown)
+    header_line, header = rows[0]
+    names = [h.strip() for h in header]
+    for name in names:
+        if name not in STOCK_KEYS:
+            close = difflib.get_close_matches(name, STOCK_KEYS, n=1, cutoff=0.6)
+            hint = f"did you mean {close[0]}?" if close else "columns: " + ", ".join(STOCK_KEYS)
+            err = UsageError(f"unknown column {name!r}", hint=hint)
+            raise located(err, Where(shown, "", header_line))
+    entries = []
+    for n, (line, row) in enumerate(rows[1:], start=1):
+        if len(row) > len(names):
+            err = BadDataError(f"has {len(row)} cells, the header names {len(names)}")
+            raise located(err, Where(shown, "", line))
+        cells = {k: v.strip() for k, v in zip(names, row, strict=False) if v.strip()}
+        label = _raw_stock_label(cells, n - 1)
+        entry = _CsvEntry(cells, shown, line, label)
+        entry.data = entry.typed()
+        entries.append(entry)
+    return entries
+
+
+class _CsvEntry(_Entry):
+    """A stock-file row: CSV text typed like TOML values; errors name the CSV line."""
+
+    def __init__(self, data: dict, file: str, line: int, label: str):
+        super().__init__(data, "stock row", 0, _Lines(""), file, label)
+        self.line = line
+
+    def where(self, key: str | None = None) -> Where:
+        return Where(self.file, "stock row", self.line, self.label)
+
+    def typed(self) -> dict[str, Any]:
+        out: dict[str, Any] = dict(self.data)
+        for key in ("count",):
+            if key in out:
+                try:
+                    out[key] = int(out[key])
+                except ValueError:
+                    err = BadDataError(f"expected a whole number, got {out[key]!r}", field=key)
+                    raise self.fail(err, key) from None
+        for key in ("price", "price_per_kg"):
+            if key in out:
+                try:
+                    out[key] = float(out[key])
+                except ValueError:
+                    err = BadDataError(f"expected a number, got {out[key]!r}", field=key)
+                    raise self.fail(err, key) from None
+        if "remnant" in out:
+            word = out["remnant"].lower()
+            if word not in ("yes", "no", "true", "false", "1", "0"):
+                err = BadDataError(f"expected yes or no, got {out['remnant']!r}", field="remnant")
+                raise self.fail(err, "remnant")
+            out["remnant"] = word in ("yes", "true", "1")
+        return out
 
 
 def stock_key(section: Any) -> str:
@@ -545,6 +717,7 @@ def _read_header(table: dict, lines: _Lines, file: str, *, default_name: str) ->
         currency=entry.text("currency"),
         customer=entry.text("customer"),
         due=entry.text("due"),
+        stock_file=entry.text("stock_file"),
     )
 
 

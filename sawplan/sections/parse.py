@@ -93,6 +93,8 @@ def _take_options(tokens: list[str]) -> tuple[list[str], dict[str, str | bool]]:
                 raise UsageError(f"{name} needs a value", field=key)
             value = tokens[i]
             i += 1
+        if not value.strip():
+            raise UsageError(f"{name} needs a value", field=key)
         if key in found and found[key] != value:
             raise UsageError(f"given twice ({found[key]} and {value})", field=key)
         found[key] = value
@@ -207,6 +209,9 @@ def parse_section(
     for key, given in (("orientation", orientation), ("bundle", bundle)):
         if given is None:
             continue
+        if not str(given).strip():
+            option = "--orient" if key == "orientation" else f"--{key}"
+            raise UsageError(f"{option} needs a value", field=key)
         written = inline.get(key)
         if written is not None and _meaning(shape, key, str(written)) != _meaning(
             shape, key, given

@@ -342,15 +342,17 @@ def existing_blade_row(db: Database, tag: str) -> dict[str, Any]:
 def _open_fitting(
     db: Database, *, blade_id: int | None = None, saw_id: int | None = None
 ) -> dict[str, Any] | None:
-    column, value = ("blade_id", blade_id) if blade_id is not None else ("saw_id", saw_id)
-    rows = list(
-        db.query(
-            "SELECT f.*, b.tag, s.name AS saw FROM fittings f JOIN blades b ON b.id = f.blade_id "
-            f"JOIN saws s ON s.id = f.saw_id WHERE f.removed_on IS NULL AND f.{column} = ?",
-            [value],
-        )
-    )
+    if blade_id is not None:
+        rows = list(db.query(_OPEN_FITTING + " AND f.blade_id = ?", [blade_id]))
+    else:
+        rows = list(db.query(_OPEN_FITTING + " AND f.saw_id = ?", [saw_id]))
     return rows[0] if rows else None
+
+
+_OPEN_FITTING = (
+    "SELECT f.*, b.tag, s.name AS saw FROM fittings f JOIN blades b ON b.id = f.blade_id "
+    "JOIN saws s ON s.id = f.saw_id WHERE f.removed_on IS NULL"
+)
 
 
 def _close_fitting(db: Database, fitting: dict[str, Any], on: str) -> dict[str, Any]:

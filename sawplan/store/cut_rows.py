@@ -40,6 +40,13 @@ class CutEntry:
     note: str | None = None
 
 
+# the columns are CutEntry's own field names; every value is a bound parameter
+_CUT_COLUMNS = tuple(f.name for f in dataclasses.fields(CutEntry))
+_INSERT_CUT = (
+    f"INSERT INTO cuts ({', '.join(_CUT_COLUMNS)}) VALUES ({', '.join('?' * len(_CUT_COLUMNS))})"
+)
+
+
 def cut_row(entry: CutEntry) -> dict[str, Any]:
     """The row written for an entry (free text trimmed, coolant as 0/1)."""
     row = dataclasses.asdict(entry)
@@ -62,10 +69,7 @@ def log_cut(db: Database, entry: CutEntry) -> int:
             raise NotFoundError(f"no blade with id {entry.blade_id}", field="blade")
         if status[0] == "retired":
             raise ConflictError(f"blade {status[1]} is retired; no more cuts can be logged on it")
-        cursor = db.execute(
-            f"INSERT INTO cuts ({', '.join(row)}) VALUES ({', '.join('?' * len(row))})",
-            list(row.values()),
-        )
+        cursor = db.execute(_INSERT_CUT, [row[c] for c in _CUT_COLUMNS])
         return int(cursor.lastrowid or 0)
 
 
@@ -78,6 +82,8 @@ def list_cuts(
     limit: int = 30,
 ) -> list[dict[str, Any]]:
     """Cut entries, newest first, optionally for one blade, saw or job (limit 0: all)."""
+    if limit < 0:
+        raise UsageError(f"must be 0 (all) or more, got {limit}", field="limit")
     sql = (
         "SELECT c.*, b.tag AS blade, s.name AS saw FROM cuts c JOIN blades b ON b.id = c.blade_id "
         "LEFT JOIN saws s ON s.id = c.saw_id WHERE 1 = 1"
@@ -133,6 +139,8 @@ def log_event(db: Database, entry: EventEntry) -> Blade:
             field="kind",
             hint=f"did you mean {close[0]}?" if close else None,
         )
+    if entry.mode is not None and not entry.mode.strip():
+        raise UsageError("expected a failure mode, got nothing", field="mode", hint=modes_hint())
     if kind == "failure":
         if not entry.mode:
             raise UsageError("a failure needs --mode", field="mode", hint=modes_hint())

@@ -21,16 +21,21 @@ def today() -> dt.date:
 
 
 def parse_day(text: str | None, *, field: str = "date", now: dt.date | None = None) -> str:
-    """User text → ISO date; ``None`` or empty means today.
+    """User text → ISO date; ``None`` (no date given) means today.
 
     Accepts ``YYYY-MM-DD`` (or with slashes), ``today``, ``yesterday`` and
-    ``N days ago``.  Raises ``UsageError`` when unreadable and ``BadDataError``
-    when the date is in the future or before 1950.
+    ``N days ago``.  Raises ``UsageError`` when unreadable or empty (an empty
+    ``--date ""`` is a slip, not "today") and ``BadDataError`` when the date is
+    in the future or before 1950.
     """
     current = now or today()
-    if text is None or not str(text).strip():
+    if text is None:
         return current.isoformat()
     raw = str(text).strip().lower()
+    if not raw:
+        raise UsageError("expected a date, got nothing", field=field, hint=_HINT)
+    if len(raw) > 40:
+        raise UsageError(f"expected a date, got {len(raw):,} characters", field=field, hint=_HINT)
     if raw == "today":
         day = current
     elif raw == "yesterday":

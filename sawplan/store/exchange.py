@@ -22,9 +22,17 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from sawplan.errors import BadDataError, ConflictError, NotFoundError, SawplanError, UsageError
+from sawplan.errors import (
+    BadDataError,
+    ConflictError,
+    NotFoundError,
+    SawplanError,
+    StorageError,
+    UsageError,
+)
 from sawplan.store.db import connect, resolve_db_path, write_transaction
 from sawplan.store.records import BLADE_STATUSES, EVENT_KINDS, WELDED
+from sawplan.store.safety import copy_verified
 from sawplan.store.schema import SAW_PROFILE_COLUMNS
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -423,7 +431,8 @@ def backup(
     """Copy the live log to one self-contained file with SQLite's online backup API.
 
     Other programs may keep writing meanwhile; the copy is a consistent
-    snapshot.  The file appears only when complete (written beside, then renamed).
+    snapshot, checked with ``PRAGMA quick_check``.  The file appears only when
+    complete and sound (written beside, then renamed).
     """
     source = resolve_db_path(db_path)
     target = Path(dest).expanduser()
@@ -436,14 +445,18 @@ def backup(
     if target.exists() and not overwrite:
         raise ConflictError(f"{target} exists", field="file", hint="add --force to replace it")
     target.parent.mkdir(parents=True, exist_ok=True)
-    tmp = target.with_name(target.name + ".partial")
-    tmp.unlink(missing_ok=True)
-    with connect(source, create=False) as db:
-        out = sqlite3.connect(tmp)
-        try:
-            db.conn.backup(out)
-            out.execute("PRAGMA journal_mode = DELETE")  # one file, no -wal beside it
-        finally:
-            out.close()
-    os.replace(tmp, target)
-    return BackupResult(str(source), str(target), target.stat().st_size)
+    with connect(source, create=False):  # refuses files that are not a sawplan log
+        pass
+    try:
+        size = copy_verified(source, target)
+    except sqlite3.Error as err:
+        from sawplan.store.db import _damaged
+
+        if "full" in str(err).lower():  # the copy's disk, not the log's
+            raise StorageError(
+                f"the disk holding {target} is full; no backup was written",
+                field="file",
+                hint="free some space or give another place",
+            ) from None
+        raise _damaged(err, source) from None
+    return BackupResult(str(source), str(target), size)

@@ -14,6 +14,7 @@ in the answer.
 
 from __future__ import annotations
 
+import difflib
 import math
 import os
 from collections import defaultdict
@@ -21,7 +22,7 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any, NamedTuple
 
-from sawplan.errors import BadDataError
+from sawplan.errors import BadDataError, UsageError
 from sawplan.store.stats import BladeLife, blade_lives, timed_cuts, unused_retired
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -206,7 +207,12 @@ def life_report(
     from sawplan.life import rank_failure_modes
 
     if group_by is not None and group_by not in GROUP_BY:
-        raise BadDataError(f"must be one of {', '.join(GROUP_BY)}, got {group_by!r}", "group-by")
+        close = difflib.get_close_matches(group_by.strip().lower(), GROUP_BY, n=1)
+        raise UsageError(
+            f"must be one of {', '.join(GROUP_BY)}, got {group_by!r}",
+            field="group-by",
+            hint=f"did you mean {close[0]}?" if close else None,
+        )
     lives = blade_lives(db)
     overall = group_life("all blades", lives, confidence)
     groups: tuple[GroupLife, ...] = ()

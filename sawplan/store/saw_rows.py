@@ -7,7 +7,7 @@ from typing import TYPE_CHECKING, Any
 
 from sawplan.errors import ConflictError, NotFoundError, UsageError
 from sawplan.store.db import write_transaction
-from sawplan.store.fields import clean_text
+from sawplan.store.fields import MAX_TEXT, clean_text
 from sawplan.store.schema import SAW_PROFILE_COLUMNS
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -44,6 +44,8 @@ def add_saw(db: Database, saw: Saw, *, added_on: str, replace: bool = False) -> 
     if name is None:
         raise UsageError("a saw needs a name", field="name")
     row = saw_to_row(saw) | {"name": name, "added_on": added_on}
+    row["notes"] = clean_text(row.get("notes"), field="notes", limit=MAX_TEXT["note"])
+    row["source"] = clean_text(row.get("source"), field="source") or "blade log"
     with write_transaction(db):
         existing = _find_saw_row(db, name)
         if existing is not None and not replace:

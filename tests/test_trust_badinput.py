@@ -1,0 +1,258 @@
+"""Every command, every argument and option, fed the values people really mistype.
+
+The list of commands is read from the Typer app itself, so a command added
+later is walked too (and ``test_every_command_has_a_baseline`` asks for a
+valid invocation to start from).  For each parameter the walk swaps in each
+bad value and asserts what DEVELOPERS.md promises: no traceback, never the
+"internal error" code 1, and on failure exactly one line on stderr with one
+of the documented exit codes (2 usage, 3 bad data, 4 not found, 5 conflict,
+6 damaged file, 7 storage).  A value that is clearly invalid for that kind of
+parameter (a mass for a length, a negative count, ``nan``, ``1e308mm``, an
+empty date, digits of another script...) must never exit 0.
+
+Runs in-process through the real error boundary, in a sandbox folder eight
+levels deep so the path-traversal value lands on a planted ``etc/passwd``
+inside the test's own temporary folder.
+"""
+
+from __future__ import annotations
+
+import contextlib
+import io
+import shutil
+import sqlite3
+from pathlib import Path
+
+import pytest
+import typer
+
+from sawplan.cli.app import app, run
+from sawplan.cli.boundary import run_guarded
+
+DEPTH = 8
+TRAVERSAL = "/".join([".."] * DEPTH) + "/etc/passwd"
+LONG = "x" * 10_000
+BAD_VALUES: dict[str, str] = {
+    "wrong unit": "7kg",
+    "negative": "-5",
+    "zero": "0",
+    "huge": "1e308mm",
+    "nan": "nan",
+    "empty": "",
+    "diameter sign": "⌀60mm",
+    "other script digits": "६०mm",
+    "10k characters": LONG,
+    "path traversal": TRAVERSAL,
+}
+DOCUMENTED_FAILURES = {2, 3, 4, 5, 6, 7}
+
+# Parameters whose values are the user's own words: anything short may be accepted.
+FREE_TEXT = {"note", "notes", "job", "heat", "location", "supplier", "lot", "grade", "break_in_how"}
+NEW_NAMES = {("saw", "add", "name"), ("blade", "add", "tag")}
+FILTERS = {("log", "list", "saw"), ("log", "list", "job")}  # an unknown value matches nothing
+OUTPUT_PATHS = {"csv_dir", "sheet", ("export", "csvdir"), ("backup", "file")}
+# "0" is meaningful here: a free blade, an occasional lift, "all entries"
+ZERO_OK = {("blade", "add", "price"), ("weigh", "lifts_per_min"), ("log", "list", "limit")}
+
+
+def invoke(args: list[str]) -> tuple[int, str, str]:
+    out, err = io.StringIO(), io.StringIO()
+    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
+        code = run_guarded(run, args)
+    return code, out.getvalue(), err.getvalue()
+
+
+def _walk(command, path=()):
+    if isinstance(getattr(command, "commands", None), dict):
+        for name, sub in command.commands.items():
+            yield from _walk(sub, (*path, name))
+    else:
+        yield path, command
+
+
+LEAVES = list(_walk(typer.main.get_command(app)))
+
+
+# --- the shop the walk starts from --------------------------------------------------------
+
+
+@pytest.fixture(scope="module")
+def shop(tmp_path_factory) -> dict[str, Path]:
+    """A blade log with a saw, two blades (one fitted) and cuts; a job; a CSV folder."""
+    root = tmp_path_factory.mktemp("shop")
+    log = root / "template.sqlite"
+
+    def ok(*args: str, db: Path = log) -> None:
+        code, _out, err = invoke([*args, "--db", str(db)])
+        assert code == 0, (args, err)
+
+    ok("saw", "add", "bay 2", "--like", "mid-production")
+    ok("blade", "add", "B-017", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm",
+       "--price", "60")  # fmt: skip
+    ok("blade", "add", "B-018", "--pitch", "4/6", "--width", "27mm", "--thickness", "0.9mm")
+    ok("blade", "fit", "B-017", "--saw", "bay 2")
+    for _ in range(3):
+        ok("log", "cut", "304", "round", "60mm", "--cuts", "5", "--time", "10min")
+    other = root / "other.sqlite"
+    ok("blade", "add", "B-900", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm",
+       db=other)  # fmt: skip
+    code, _out, err = invoke(["export", str(root / "csv-in"), "--db", str(other)])
+    assert code == 0, err
+    job = root / "job.toml"
+    shutil.copy(Path(__file__).parent / "data" / "plan_small.toml", job)
+    foreign = root / "foreign.sqlite"
+    conn = sqlite3.connect(foreign)
+    conn.execute("CREATE TABLE invoices (id INTEGER PRIMARY KEY)")
+    conn.close()
+    garbage = root / "garbage.sqlite"
+    garbage.write_bytes(b"SQLite format 3\x00" + bytes(range(256)) * 16)
+    return {"root": root, "log": log, "job": job, "csv": root / "csv-in", "foreign": foreign,
+            "garbage": garbage}  # fmt: skip
+
+
+def baselines(shop: dict[str, Path]) -> dict[tuple[str, ...], dict[str, object]]:
+    """A valid invocation of every command: parameter name -> value."""
+    return {
+        ("plan",): {"jobfile": str(shop["job"])},
+        ("cut",): {"material": "4140", "section": ["round", "60mm"]},
+        ("weigh",): {"material": "4140", "section": ["round", "60mm"], "length": "1m"},
+        ("materials",): {},
+        ("life",): {},
+        ("forecast",): {"area": "5m2"},
+        ("export",): {"csvdir": "out"},
+        ("import",): {"csvdir": str(shop["csv"])},
+        ("backup",): {"file": "copy.sqlite"},
+        ("saw", "add"): {"name": "bay 9", "like": "mid-production"},
+        ("saw", "list"): {},
+        ("blade", "add"): {"tag": "B-100", "pitch": "3/4", "width": "27mm", "thickness": "0.9mm"},
+        ("blade", "fit"): {"tag": "B-018", "saw": "bay 2"},
+        ("blade", "remove"): {"tag": "B-017"},
+        ("blade", "retire"): {"tag": "B-017", "cause": "dull"},
+        ("blade", "list"): {},
+        ("blade", "show"): {"tag": "B-017"},
+        ("log", "cut"): {"material": "304", "section": ["round", "60mm"]},
+        ("log", "event"): {"tag": "B-017", "kind": "teeth-lost"},
+        ("log", "list"): {},
+        ("chart", "wear"): {"tag": "B-017"},
+        ("chart", "weibull"): {},
+        ("chart", "modes"): {},
+        ("chart", "cost"): {},
+    }
+
+
+def argv(path: tuple[str, ...], command, values: dict[str, object]) -> list[str]:
+    options: list[str] = []
+    positional: list[str] = []
+    for param in command.params:
+        if param.name not in values:
+            continue
+        value = values[param.name]
+        if param.param_type_name == "option":
+            options += [param.opts[0], str(value)]
+        else:
+            positional += value if isinstance(value, list) else [str(value)]
+    # "--" so a positional value such as "-5" is read as a value, not an option
+    return [*path, *options, "--", *positional] if positional else [*path, *options]
+
+
+def may_succeed(path: tuple[str, ...], name: str, label: str, value: str) -> bool:
+    """Whether exit 0 is an acceptable answer to this value for this parameter."""
+    key = (*path, name)
+    if key in FILTERS:
+        return True
+    if name in FREE_TEXT or key in NEW_NAMES:
+        return label != "10k characters"  # stored text has a length limit
+    if name in OUTPUT_PATHS or key in OUTPUT_PATHS:
+        return label != "10k characters"  # any other name is a file the user may want
+    if name == "db":  # a new name starts a new log (or reads as an empty one)
+        return label not in ("10k characters", "empty", "path traversal")
+    return label == "zero" and key in ZERO_OK
+
+
+def check_answer(code: int, err: str, what: str) -> None:
+    assert "Traceback" not in err, what
+    assert code != 1, f"{what}: internal error: {err}"
+    if code != 0:
+        assert code in DOCUMENTED_FAILURES, f"{what}: exit {code}: {err}"
+        assert err.endswith("\n") and err.count("\n") == 1, f"{what}: not one line: {err!r}"
+        assert err.startswith("error: "), f"{what}: {err!r}"
+        assert len(err) <= 600, f"{what}: a {len(err)}-character line"
+
+
+def test_every_command_has_a_baseline(shop):
+    missing = [" ".join(path) for path, _cmd in LEAVES if path not in baselines(shop)]
+    assert missing == [], (
+        f"add a valid invocation of `sawplan {', '.join(missing)}` to baselines() so the "
+        "bad-input walk starts from a command that works"
+    )
+
+
+@pytest.mark.parametrize(("path", "command"), LEAVES, ids=[" ".join(p) for p, _c in LEAVES])
+def test_bad_values_get_one_line_and_a_documented_code(shop, tmp_path, monkeypatch, path, command):
+    work = tmp_path.joinpath(*[f"d{i}" for i in range(DEPTH)])
+    work.mkdir(parents=True)
+    (tmp_path / "etc").mkdir()
+    (tmp_path / "etc" / "passwd").write_text("root:x:0:0:root:/root:/bin/sh\n", encoding="utf-8")
+    monkeypatch.chdir(work)
+    db = work / "log.sqlite"
+    takes_db = any(p.name == "db" for p in command.params)
+    base = dict(baselines(shop).get(path, {}))
+
+    def attempt(values: dict[str, object]) -> tuple[int, str, str]:
+        shutil.copyfile(shop["log"], db)
+        args = argv(path, command, values)
+        if takes_db and "db" not in values:
+            args[len(path) : len(path)] = ["--db", str(db)]
+        return invoke(args)
+
+    if path in baselines(shop):
+        code, _out, err = attempt(base)
+        assert code == 0, f"the baseline of `sawplan {' '.join(path)}` fails: {err}"
+
+    for param in command.params:
+        if getattr(param, "is_flag", False) or param.name in ("help",):
+            continue
+        cases: list[tuple[str, object]] = list(BAD_VALUES.items())
+        if param.nargs == -1:  # a section: the bad value as a size, and alone
+            cases = [(label, ["round", v]) for label, v in BAD_VALUES.items()]
+            cases += [(f"{label} alone", [v]) for label, v in BAD_VALUES.items()]
+        if param.name == "db":
+            cases += [
+                ("a folder", str(shop["root"])),
+                ("a job file", str(shop["job"])),
+                ("another program's database", str(shop["foreign"])),
+                ("a damaged database", str(shop["garbage"])),
+            ]
+        for label, value in cases:
+            code, _out, err = attempt({**base, param.name: value})
+            what = f"sawplan {' '.join(path)} {param.opts[0]} <{label}>"
+            check_answer(code, err, what)
+            text = value if isinstance(value, str) else " ".join(value)
+            if code == 0 and not may_succeed(path, param.name, label.removesuffix(" alone"), text):
+                pytest.fail(f"{what} was accepted (exit 0); a clearly invalid value")
+
+
+def test_the_long_value_is_shortened_in_the_message(tmp_path):
+    code, _out, err = invoke(["blade", "show", LONG, "--db", str(tmp_path / "log.sqlite")])
+    assert code == 4
+    assert err.count("\n") == 1 and len(err) < 300
+    assert "10,002 characters" in err  # the 10,000 x's and the quotes around them
+
+
+def test_a_value_naming_no_real_unit_says_what_to_type(cli):
+    result = cli("weigh", "4140", "round", "60mm", "--length", "7kg")
+    assert result.code == 2
+    assert result.err == (
+        "error: length: expected a length, got '7kg' (e.g. 60mm, 2.5in, 7-1/4 in, 3' 6\")\n"
+    )
+
+
+def test_digits_of_another_script_are_refused_not_guessed(cli):
+    result = cli("weigh", "4140", "round", "६०mm", "--length", "1m")
+    assert result.code == 2
+    assert "digits 0-9" in result.err
+
+
+def test_debug_shows_the_traceback():
+    with pytest.raises(Exception, match="expected a length"):
+        run_guarded(run, ["weigh", "4140", "round", "60mm", "--length", "7kg", "--debug"])
