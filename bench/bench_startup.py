@@ -36,6 +36,13 @@ def main() -> int:
     sawplan = [PY, "-m", "sawplan"]
     base = median_time([PY, "-c", "import typer, pint"], env)
     base_log = median_time([PY, "-c", "import typer, pint, sqlite_utils"], env)
+    # a log with a fitted blade, so `log cut` has somewhere to write
+    for setup in (
+        ["blade", "add", "B1", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm",
+         "--length", "3505mm"],
+        ["blade", "fit", "B1", "--saw", "mid-production"],
+    ):  # fmt: skip
+        subprocess.run(sawplan + setup, check=True, env=env, stdout=subprocess.DEVNULL)
     cases = [
         ("sawplan --help", sawplan + ["--help"], base),
         (
@@ -44,6 +51,11 @@ def main() -> int:
             base,
         ),
         ("sawplan cut 4140 round 7in", sawplan + ["cut", "4140", "round", "7in"], base),
+        (
+            "sawplan log cut 4140 round 60mm --time 1min",
+            sawplan + ["log", "cut", "4140", "round", "60mm", "--time", "1min"],
+            base_log,
+        ),
     ]
     print(f"baseline  import typer, pint                 {base * 1000:7.1f} ms")
     print(f"baseline  import typer, pint, sqlite_utils   {base_log * 1000:7.1f} ms")

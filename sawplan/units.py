@@ -221,10 +221,17 @@ def parse_quantity(
 def to_core(
     text: str | float | int, dimension: str, *, field: str, default_unit: str | None = None
 ) -> float:
-    """Parse ``text`` and return a float in the core unit of ``dimension``."""
-    q = parse_quantity(text, dimension, field=field, default_unit=default_unit)
+    """Parse ``text`` and return a float in the core unit of ``dimension``.
+
+    The spellings shops type most (``60mm``, ``7in``, ``3' 6"``) are converted
+    with exact factors, so everyday commands never pay for loading pint; all
+    else goes through the registry.  Both give the same number (tested).
+    """
     core_unit = DIMENSIONS[dimension][1]
-    value = float(q.to(core_unit).magnitude)
+    value = _fast_core(text, dimension, default_unit)
+    if value is None:
+        q = parse_quantity(text, dimension, field=field, default_unit=default_unit)
+        value = float(q.to(core_unit).magnitude)
     if not math.isfinite(value):
         raise UsageError(
             f"expected a finite {dimension.replace('_', ' ')}, got {text!r}", field=field
@@ -238,6 +245,55 @@ def to_core(
             field=field,
         )
     return value
+
+
+# Exact factors to the core unit for the commonest spellings (after
+# _normalise_unit).  Definitions: 1 in = 25.4 mm, 1 ft = 304.8 mm,
+# 1 lb = 0.45359237 kg; checked against pint in tests/test_units.py.
+FAST_FACTORS: dict[str, dict[str, float]] = {
+    "length": {
+        "mm": 1.0,
+        "cm": 10.0,
+        "m": 1000.0,
+        "in": 25.4,
+        "inch": 25.4,
+        "inches": 25.4,
+        "ft": 304.8,
+        "foot": 304.8,
+        "feet": 304.8,
+    },
+    "area": {"mm**2": 1.0, "cm**2": 100.0, "m**2": 1e6, "in**2": 645.16, "ft**2": 92903.04},
+    "mass": {"kg": 1.0, "g": 1e-3, "lb": 0.45359237},
+    "time": {"min": 1.0, "s": 1 / 60, "h": 60.0},
+    "speed": {"m/min": 1.0, "ft/min": 0.3048},
+    "feed": {"mm/min": 1.0, "in/min": 25.4},
+    "rate": {"mm**2/min": 1.0, "cm**2/min": 100.0, "in**2/min": 645.16},
+    "power": {"W": 1.0, "kW": 1000.0},
+    "force": {"N": 1.0, "kN": 1000.0},
+}
+
+
+def _fast_core(text: str | float | int, dimension: str, default_unit: str | None) -> float | None:
+    """The value in core units when every term is a common spelling, else None."""
+    factors = FAST_FACTORS.get(dimension)
+    raw = str(text).strip()
+    if not factors or not raw or len(raw) > 200:
+        return None
+    try:
+        terms = _split_terms(raw)
+    except ValueError:
+        return None
+    total = 0.0
+    for value, unit in terms:
+        if not unit:
+            if default_unit is None or len(terms) > 1:
+                return None
+            unit = default_unit
+        factor = factors.get(_normalise_unit(unit))
+        if factor is None or not math.isfinite(value):
+            return None
+        total += value * factor
+    return total
 
 
 def positive(value: float, *, field: str, what: str = "a positive value") -> float:

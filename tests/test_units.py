@@ -136,3 +136,28 @@ def test_shop_capitals_and_tight_marks(text, expected_expr):
     assert to_core(text, "length", field="length") == pytest.approx(
         ref_mm(expected_expr), rel=1e-12
     )
+
+
+@pytest.mark.parametrize(
+    ("dimension", "unit"),
+    [
+        (dim, unit)
+        for dim, table in __import__("sawplan.units").units.FAST_FACTORS.items()
+        for unit in table
+    ],
+)
+def test_fast_factors_agree_with_pint(dimension, unit):
+    from sawplan.units import DIMENSIONS, FAST_FACTORS
+
+    core = DIMENSIONS[dimension][1]
+    assert FAST_FACTORS[dimension][unit] == pytest.approx(
+        REF(f"1 {unit}").to(core).magnitude, rel=1e-12
+    )
+
+
+@pytest.mark.parametrize("text", ["7in", "3' 6\"", "7 1/4 in", "178mm", "2.5 m", "1'6\"", "50MM"])
+def test_fast_path_and_pint_path_agree(text):
+    from sawplan.units import parse_quantity
+
+    slow = parse_quantity(text, "length", field="x").to("mm").magnitude
+    assert to_core(text, "length", field="x") == pytest.approx(slow, rel=1e-12)

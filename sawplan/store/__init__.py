@@ -50,7 +50,7 @@ def saws_from_db(db_path: str | os.PathLike[str] | None = None) -> list[Saw]:
     """Saw profiles kept in the log (none when the log does not exist yet)."""
     from sawplan.store.records import logged_saws
 
-    with connect(db_path, create=False) as db:
+    with connect(db_path, create=False, light=True) as db:
         return logged_saws(db)
 
 

@@ -24,7 +24,7 @@ import time
 from collections.abc import Iterator
 from contextlib import contextmanager
 from pathlib import Path
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from sawplan.errors import DamagedFileError, StorageError, UsageError
 from sawplan.store.schema import APPLICATION_ID, MIGRATION_NAMES, MIGRATION_SET, migrations
@@ -55,7 +55,32 @@ def resolve_db_path(db: str | os.PathLike[str] | None = None) -> Path:
     return default_db_path()
 
 
-def open_log(db: str | os.PathLike[str] | None = None, *, create: bool = True) -> Database:
+class LightLog:
+    """Just enough of sqlite-utils' ``Database`` for read-only queries.
+
+    ``sawplan cut`` only asks the log for its saws and calibration; importing
+    sqlite_utils would pull in pandas and triple its start-up.
+    """
+
+    def __init__(self, conn: sqlite3.Connection) -> None:
+        self.conn = conn
+
+    def execute(self, sql: str, params: Any = ()) -> sqlite3.Cursor:
+        return self.conn.execute(sql, params)
+
+    def query(self, sql: str, params: Any = ()) -> Iterator[dict[str, Any]]:
+        cursor = self.conn.execute(sql, params)
+        keys = [d[0] for d in cursor.description]
+        for row in cursor:
+            yield dict(zip(keys, row, strict=True))
+
+    def close(self) -> None:
+        self.conn.close()
+
+
+def open_log(
+    db: str | os.PathLike[str] | None = None, *, create: bool = True, light: bool = False
+) -> Database:
     """Open (creating or upgrading as needed) the blade log and return a sqlite-utils Database.
 
     With ``create=False`` a missing file is not made: an empty in-memory log
@@ -84,6 +109,11 @@ def open_log(db: str | os.PathLike[str] | None = None, *, create: bool = True) -
     except sqlite3.Error as err:
         raise _damaged(err, path) from None
     try:
+        if light and not create:
+            app_id, version = _retry_busy(lambda: _header(conn))
+            if app_id == APPLICATION_ID and version == len(MIGRATION_NAMES):
+                conn.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
+                return LightLog(conn)  # type: ignore[return-value]
         return _prepare(conn, path, writing=create)
     except BaseException:
         conn.close()
@@ -91,7 +121,9 @@ def open_log(db: str | os.PathLike[str] | None = None, *, create: bool = True) -
 
 
 @contextmanager
-def connect(db: str | os.PathLike[str] | None = None, *, create: bool = True) -> Iterator[Database]:
+def connect(
+    db: str | os.PathLike[str] | None = None, *, create: bool = True, light: bool = False
+) -> Iterator[Database]:
     """``with connect(path) as db:`` — open the log and always close it.
 
     SQLite errors raised inside become sawplan errors that name the file:
@@ -99,7 +131,7 @@ def connect(db: str | os.PathLike[str] | None = None, *, create: bool = True) ->
     full or read-only disk a ``StorageError`` (the open transaction is rolled
     back, so nothing was written).
     """
-    database = open_log(db, create=create)
+    database = open_log(db, create=create, light=light)
     path = _path_of(database)
     try:
         yield database

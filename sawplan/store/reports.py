@@ -308,7 +308,7 @@ def calibration_factor(
     from sawplan.life import calibration_factors
     from sawplan.store.db import connect
 
-    with connect(db_path, create=False) as db:
+    with connect(db_path, create=False, light=True) as db:
         cuts = timed_cuts(db, saw=saw_name, material_group=material_group)
     if not cuts:
         return None
