@@ -1,0 +1,163 @@
+"""One material and section of a plan: the optimiser's layout, its bars, time and cost.
+
+Time: time per cut (cutting model, × the blade log's calibration factor for
+this saw and material group when there is one) × cuts, plus the handling and
+indexing time per cut.  The optimiser works in whole 0.1 mm; lengths are
+rounded against the plan (see ``_up`` and ``_down``).
+"""
+
+from __future__ import annotations
+
+import math
+from typing import Any
+
+from sawplan.cutlist.bar_layout import bar_cost, bar_cut
+from sawplan.cutlist.job_lines import located
+from sawplan.cutlist.job_types import Job
+from sawplan.cutlist.plan_types import BarCut, SectionPlan
+from sawplan.errors import SawplanError
+from sawplan.weights import mass_per_length_kg_m
+
+RESOLUTION_PER_MM = 10  # the optimiser works in whole 0.1 mm
+
+
+def plan_section(
+    job: Job,
+    group: tuple[str, str],
+    material: Any,
+    section: Any,
+    cut: Any,
+    factor: float,
+    n_cal: int,
+    kerf_mm: float,
+    kerf_source: str,
+    life: tuple[float, str, Any],
+    marks: dict[int, str],
+    *,
+    first_bar: int,
+    time_limit_s: float,
+) -> tuple[SectionPlan, list[BarCut]]:
+    """The group's plan and its bars (numbered from ``first_bar``), from the optimiser's layout."""
+    from sawplan.cutlist.optimise import Allowances, Demand, StockType, optimise
+
+    h = job.header
+    kg_per_m = mass_per_length_kg_m(section.area_mm2, material.density_kg_m3)
+    stock = [s for s in job.stock if s.group == group and s.count != 0]
+    parts = [p for p in job.parts if p.group == group]
+    by_stock = {f"S{s.index}": s for s in stock}
+    by_part = {f"P{p.index}": p for p in parts}
+    stock_types = [
+        StockType(
+            key=key,
+            length=_down(s.length_mm),
+            count=s.count,
+            cost=bar_cost(s, kg_per_m),
+            is_remnant=s.remnant,
+        )
+        for key, s in by_stock.items()
+    ]
+    demand = [Demand(key=key, length=_up(p.length_mm), count=p.count) for key, p in by_part.items()]
+    allow = Allowances(
+        kerf=_up(kerf_mm),
+        trim=_up(h.trim_mm),
+        grip=_up(h.grip_mm),
+        min_remnant=_up(h.min_remnant_mm),
+    )
+    try:
+        result = optimise(
+            stock_types,
+            demand,
+            allow,
+            time_limit_s=time_limit_s,
+            length_text=lambda units: f"{units / RESOLUTION_PER_MM:g} mm",
+        )
+    except SawplanError as err:  # e.g. too few bars for the layout, though enough length
+        raise located(err, job.where(stock[0])) from None
+
+    # the section as the job file's first stock entry writes it: what is on the rack label
+    label = f"{material.key} {stock[0].section_text}"
+    time_per_cut = cut.cut_time_min
+    bars: list[BarCut] = []
+    for i, pattern in enumerate(result.bars):
+        s = by_stock[pattern.stock_key]
+        pieces = [by_part[k] for k in pattern.pieces]
+        bars.append(
+            bar_cut(first_bar + i, label, s, pieces, marks, kerf_mm, h.trim_mm, kg_per_m,
+                 time_per_cut, h.min_remnant_mm)
+        )  # fmt: skip
+
+    cuts = sum(b.cuts for b in bars)
+    stock_len = sum(b.length_mm for b in bars)
+    made = sum(p.length_mm for b in bars for p in b.pieces)
+    kept = sum(b.remnant_mm for b in bars if b.remnant_kept)
+    waste = max(stock_len - made - kept, 0.0)
+    area_cm2 = cuts * section.area_mm2 / 100.0
+    life_cm2, life_source, _fit = life
+    lp_bound = int(math.ceil(result.lp_bound_bars - 1e-9))
+    warnings = tuple(cut.warnings)
+    steps = tuple(cut.breakin)
+    plan = SectionPlan(
+        group=label,
+        material=material.key,
+        designation=material.designation,
+        material_group=material.group,
+        section=section.label(),
+        section_spec=group[1],
+        area_mm2=section.area_mm2,
+        mass_per_length_kg_m=kg_per_m,
+        kerf_mm=kerf_mm,
+        kerf_source=kerf_source,
+        trim_mm=h.trim_mm,
+        grip_mm=h.grip_mm,
+        min_remnant_mm=h.min_remnant_mm,
+        pieces=sum(len(b.pieces) for b in bars),
+        bars_used=len(bars),
+        lp_bound_bars=lp_bound,
+        gap_bars=len(bars) - lp_bound,
+        method=str(result.method),
+        solve_seconds=float(result.solve_seconds),
+        stock_length_mm=stock_len,
+        waste_mm=waste,
+        waste_pct=100.0 * waste / stock_len if stock_len else 0.0,
+        cuts=cuts,
+        pitch=str(cut.pitch_label),
+        tooth_form=str(cut.tooth_form),
+        tooth_set=str(cut.tooth_set),
+        band_speed_m_min=float(cut.band_speed_m_min),
+        feed_mm_min=float(cut.feed_mm_min),
+        governing_limit=str(cut.governing_limit),
+        cut_time_min=time_per_cut,
+        model_cut_time_min=cut.cut_time_model_min,
+        calibration_factor=factor,
+        calibration_n=n_cal,
+        cutting_time_min=time_per_cut * cuts,
+        handling_time_min=h.handling_time_min * cuts,
+        total_time_min=(time_per_cut + h.handling_time_min) * cuts,
+        cut_area_cm2=area_cm2,
+        blade_life_cm2=life_cm2,
+        blade_life_source=life_source,
+        blades_consumed=area_cm2 / life_cm2,
+        material_cost=sum(b.cost for b in bars),
+        warnings=warnings,
+        breakin_start_percent=float(steps[0].feed_percent) if steps else 100.0,
+        breakin_area_cm2=float(steps[-1].area_to_mm2) / 100.0 if steps else 0.0,
+        breakin_cuts=float(sum(step.cuts for step in steps)),
+    )
+    return plan, bars
+
+
+# Lengths off the 0.1 mm grid (inch sizes: a 0.063 in kerf is 1.6002 mm) are
+# rounded against the plan, pieces and allowances up and bars down, except
+# within 0.001 mm of the grid: far below what a saw holds, and it keeps a
+# 1.6002 mm kerf at 1.6 mm instead of 1.7 mm.
+_SLOP_UNITS = 0.01
+
+
+def _up(mm: float) -> int:
+    """mm → whole 0.1 mm, rounded up (pieces, kerf, trim, grip: never less than needed)."""
+    return max(math.ceil(mm * RESOLUTION_PER_MM - _SLOP_UNITS), 0)
+
+
+def _down(mm: float) -> int:
+    """mm → whole 0.1 mm, rounded down (bars: never more than there is)."""
+    return math.floor(mm * RESOLUTION_PER_MM + _SLOP_UNITS)
