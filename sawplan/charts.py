@@ -23,7 +23,6 @@ if TYPE_CHECKING:  # pragma: no cover
 
 WIDTH = 72
 HEIGHT = 20
-PROBABILITIES = (0.01, 0.02, 0.05, 0.1, 0.2, 0.5, 0.632, 0.9, 0.99)
 
 
 def _figure(width: int, height: int) -> Any:
@@ -108,11 +107,13 @@ def wear_chart(
     width: int = WIDTH,
     height: int = HEIGHT,
     colorless: bool = True,
+    verdict: str | None = None,
 ) -> str:
     """Cutting rate of each cut against area cut so far, with the trend and the steady level.
 
     A falling rate at the same feed setting is the wear; the end-of-life line
-    sits ``rise_threshold`` slower than the steady rate.
+    sits ``rise_threshold`` slower than the steady rate.  ``verdict`` replaces the
+    curve's own verdict, e.g. the life line of a blade already retired.
     """
     if not curve.points:
         return f"{title}: no timed cuts to draw"
@@ -149,12 +150,15 @@ def wear_chart(
     x_ticks = _nice_ticks(0, x_hi)
     fig.ruler("x").lim(0, x_hi)
     fig.ruler("x").ticks(x_ticks, labels=[_plain(t) for t in x_ticks])
-    status = {
-        "break-in": "still breaking in",
-        "steady": "steady wear",
-        "end-of-life-signs": "end-of-life signs",
-        "too-few-cuts": "too few cuts after break-in to judge",
-    }[curve.status]
+    status = (
+        verdict
+        or {
+            "break-in": "still breaking in",
+            "steady": "steady wear",
+            "end-of-life-signs": "end-of-life signs",
+            "too-few-cuts": "too few cuts after break-in to judge",
+        }[curve.status]
+    )
     return _text(fig, "   ".join(key) + f"\nverdict: {status}", colorless)
 
 
@@ -224,28 +228,103 @@ def weibull_chart(
     fig.draw(fig.signal(xs, ys, marker="o"))
     fig.ruler("x").lim(x_lo, x_hi)
     fig.ruler("y").lim(y_lo, y_hi)
-    lives = _log_ticks(math.exp(x_lo) * to_display, math.exp(x_hi) * to_display)
+    probs = _probability_ticks(y_lo, y_hi, rows=height - 5)
+    y_labels = [f"{100 * p:g}%" for p in probs]
+    columns = width - max((len(label) for label in y_labels), default=0) - 2
+    lives = _log_ticks(math.exp(x_lo) * to_display, math.exp(x_hi) * to_display, columns)
     fig.ruler("x").ticks(
         [math.log(v / to_display) for v in lives], labels=[_plain(v) for v in lives]
     )
-    probs = [p for p in PROBABILITIES if y_lo <= math.log(-math.log1p(-p)) <= y_hi]
-    fig.ruler("y").ticks(
-        [math.log(-math.log1p(-p)) for p in probs], labels=[f"{100 * p:g}%" for p in probs]
-    )
+    fig.ruler("y").ticks([_weibull_y(p) for p in probs], labels=y_labels)
     return _text(fig, "   ".join(key), colorless)
 
 
-def _log_ticks(lo: float, hi: float) -> list[float]:
-    """1, 2, 5 × 10ⁿ values inside [lo, hi] (at least the two ends when none fall inside)."""
+def _weibull_y(p: float) -> float:
+    """Weibull-paper ordinate ln(−ln(1 − p)) of a failed fraction ``p``."""
+    return math.log(-math.log1p(-p))
+
+
+# probability labels, most wanted first: η (63.2 %), B10, median, then the rest
+PROBABILITY_PRIORITY = (0.632, 0.1, 0.5, 0.9, 0.01, 0.99, 0.2, 0.05, 0.02)
+
+
+def _probability_ticks(y_lo: float, y_hi: float, rows: int) -> list[float]:
+    """Probability ticks inside [y_lo, y_hi], one per text row.
+
+    plotext puts a tick on row round((y − y_lo) / (y_hi − y_lo) · (rows − 1)) and a later
+    label on the same row overprints an earlier one, so only the most useful level of
+    each row is kept.
+    """
+    taken: set[int] = set()
+    kept: list[float] = []
+    for p in PROBABILITY_PRIORITY:
+        y = _weibull_y(p)
+        row = round((y - y_lo) / (y_hi - y_lo) * (rows - 1))
+        if y_lo <= y <= y_hi and row not in taken:
+            taken.add(row)
+            kept.append(p)
+    return sorted(kept)
+
+
+LABEL_GAP = 2  # blank columns wanted between two tick labels
+
+
+def _log_ticks(lo: float, hi: float, columns: int = WIDTH) -> list[float]:
+    """Round values for a log axis from ``lo`` to ``hi`` drawn ``columns`` wide.
+
+    1, 2, 5 × 10ⁿ when their labels fit; else whole decades (every second, third …
+    decade on a crowded axis); on an axis shorter than a decade, 1 … 9 × 10ⁿ.  The largest 1-2-5 value on the axis is always kept, so
+    the ticks run to the top of the data rather than stopping a decade short.
+    """
+    span = math.log(hi / lo)
+
+    def column(v: float) -> float:
+        return math.log(v / lo) / span * (columns - 1)
+
+    def clash(a: float, b: float) -> bool:
+        room = (len(_plain(a)) + len(_plain(b))) / 2 + LABEL_GAP
+        return abs(column(a) - column(b)) < room
+
+    def fits(ticks: list[float]) -> bool:
+        return all(not clash(a, b) for a, b in zip(ticks, ticks[1:], strict=False))
+
+    candidates = _mantissa_values(lo, hi, (1, 2, 5))
+    if len(candidates) < 2:
+        candidates = _mantissa_values(lo, hi, range(1, 10))
+    if not candidates:
+        return [lo, hi]  # a very short axis: its two ends
+    top = candidates[-1]
+    if fits(candidates):
+        return candidates
+    decades = [v for v in candidates if _is_decade(v)]
+    e_top = round(math.log10(decades[-1])) if decades else 0
+    for every in range(1, len(decades) + 1):
+        level = [v for v in decades if (round(math.log10(v)) - e_top) % every == 0]
+        ticks = sorted(set(level) | {top})
+        if len(ticks) > 1 and not _is_decade(top) and clash(ticks[-2], top):
+            del ticks[-2]  # the top of the data matters more than the decade just below it
+        if fits(ticks):
+            return ticks
+    for every in range(2, len(candidates) + 1):  # no decade on the axis: every n-th value
+        ticks = candidates[::-1][::every][::-1]
+        if fits(ticks):
+            return ticks
+    return [top]
+
+
+def _mantissa_values(lo: float, hi: float, mantissas: Any) -> list[float]:
+    """m × 10ⁿ values inside [lo, hi], smallest first."""
     out = []
     for e in range(math.floor(math.log10(lo)), math.ceil(math.log10(hi)) + 1):
-        for m in (1, 2, 5):
-            v = m * 10.0**e
+        for m in mantissas:
+            v = float(f"{m}e{e}")  # exact decimal, no 2 × 10⁻¹ drift
             if lo <= v <= hi:
                 out.append(v)
-    if len(out) > 6:
-        out = [v for v in out if str(v).lstrip("0.").startswith("1")] or out
-    return out or [float(f"{lo:.2g}"), float(f"{hi:.2g}")]
+    return out
+
+
+def _is_decade(v: float) -> bool:
+    return f"{v:e}".startswith("1.")
 
 
 # --- bar charts ----------------------------------------------------------------------------

@@ -12,6 +12,8 @@ from __future__ import annotations
 import math
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from sawplan.charts import cost_chart, modes_chart, wear_chart, weibull_chart
 from sawplan.life import (
@@ -204,3 +206,76 @@ def test_empty_data_says_so():
     assert "no timed cuts" in wear_chart(wear_curve([], []))
     assert "no failures" in modes_chart(rank_failure_modes([]))
     assert "no blade type" in cost_chart([])
+
+
+# --- axis ticks of the Weibull plot ---------------------------------------------------------
+
+WIDE_LIVES = [8.66, 37.1, 685.0, 1390.0, 3590.0, 7660.0, 17300.0, 36500.0, 55200.0, 72700.0]
+PROBABILITY_LABELS = {"1%", "2%", "5%", "10%", "20%", "50%", "63.2%", "90%", "99%"}
+
+
+def _weibull_axes(text: str) -> tuple[list[str], list[str]]:
+    """(probability labels down the left, tick labels under the plot) of a Weibull chart."""
+    lines = text.split("\n")
+    y_labels = [line.split("┤")[0].strip() for line in lines if "┤" in line]
+    bottom = next(i for i, line in enumerate(lines) if line.lstrip().startswith("└"))
+    return y_labels, lines[bottom + 1].split()
+
+
+def _number(label: str) -> float:
+    return float(label.replace(",", ""))
+
+
+def _is_round_log_value(v: float) -> bool:
+    """m × 10ⁿ with m a whole number 1-9."""
+    mantissa = v / 10 ** math.floor(math.log10(v) + 1e-9)
+    return abs(mantissa - round(mantissa)) < 1e-6 and 1 <= round(mantissa) <= 9
+
+
+def test_weibull_ticks_reach_the_decade_of_the_longest_life():
+    # failures only, no fitted line: the axis ends at the longest life × e^0.05 (the margin)
+    text = weibull_chart(weibull_plot(WIDE_LIVES, [True] * len(WIDE_LIVES), None))
+    _, x_labels = _weibull_axes(text)
+    ticks = [_number(label) for label in x_labels]
+    axis_end = max(WIDE_LIVES) * math.exp(0.05)
+    # the largest 1-2-5 × 10ⁿ value on the axis, found by counting up (derived)
+    top = max(m * 10.0**e for e in range(0, 8) for m in (1, 2, 5) if m * 10.0**e <= axis_end)
+    assert top == 50000.0
+    assert ticks[-1] == top
+    assert ticks == sorted(ticks) and all(_is_round_log_value(t) for t in ticks)
+    assert ticks[0] <= 10 * min(WIDE_LIVES)  # and they start within a decade of the shortest
+
+
+@pytest.mark.parametrize("height", [8, 10, 12, 14, 16, 20, 30])
+@pytest.mark.parametrize("width", [30, 50, 72, 120])
+def test_weibull_axis_labels_never_overprint(width, height):
+    plot = weibull_plot(WIDE_LIVES, [True] * len(WIDE_LIVES), fixed_fit(0.6, 9000.0))
+    y_labels, x_labels = _weibull_axes(weibull_chart(plot, width=width, height=height))
+    shown = [label for label in y_labels if label]
+    # each label is a whole probability level ("6390%" would be 63.2% and 90% on one row)
+    assert shown and set(shown) <= PROBABILITY_LABELS
+    assert len(shown) == len(set(shown))
+    ticks = [_number(label) for label in x_labels]  # a merged "1,00010,000" would not parse
+    assert ticks and all(_is_round_log_value(t) for t in ticks)
+    assert ticks == sorted(set(ticks))
+
+
+@settings(max_examples=40, deadline=None)
+@given(
+    lives=st.lists(st.floats(1.0, 1.0e6), min_size=2, max_size=12, unique=True),
+    width=st.integers(30, 140),
+    height=st.integers(8, 40),
+)
+def test_weibull_axis_labels_never_overprint_for_any_lives(lives, width, height):
+    text = weibull_chart(weibull_plot(lives, [True] * len(lives), None), width=width, height=height)
+    y_labels, x_labels = _weibull_axes(text)
+    shown = [label for label in y_labels if label]
+    assert set(shown) <= PROBABILITY_LABELS and len(shown) == len(set(shown))
+    ticks = [_number(label) for label in x_labels]
+    assert ticks == sorted(set(ticks))
+
+
+def test_wear_chart_verdict_can_be_given():
+    text = wear_chart(wear_curve(AREAS[:2], TIMES[:2]), verdict="retired after 400 cm² (weld)")
+    assert text.endswith("verdict: retired after 400 cm² (weld)")
+    assert "still breaking in" in wear_chart(wear_curve(AREAS[:2], TIMES[:2]))  # 400 < 650 cm²

@@ -443,6 +443,8 @@ def wear_chart_text(history: Any, units: UnitSystem, width: int, height: int) ->
         width=width,
         height=height,
         colorless=not sys.stdout.isatty(),
+        # a retired or removed blade's verdict is its life, not "still breaking in"
+        verdict=history.wear_summary if history.blade.status in ("retired", "removed") else None,
     )
     return "\n".join([text, *history.wear_notes])
 

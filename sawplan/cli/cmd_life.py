@@ -158,22 +158,14 @@ def render_life(r: Any, units: UnitSystem) -> str:
         unfitted = [g for g in r.groups if not g.fitted]
         if unfitted:
             lines.append("  — no fit: " + "; ".join(f"{g.key}: {g.reason}" for g in unfitted))
-    if r.early_failure is not None:
-        w = r.early_failure
-        lines += ["", f"WARNING: {w.message}"]
-        if w.causes:
-            lines.append(
-                f"  usual causes of {w.mode_name} (common practice): " + "; ".join(w.causes)
-            )
-        lines.append("  check: " + "; ".join(w.setup_checks))
-        lines.append("  " + w.caution)
+    lines += _warning_lines(r)
     modes = r.failure_modes
     if modes.modes:
         rows = [[m.code, m.name, m.count, f"{m.share:.0%}"] for m in modes.modes]
         lines.append(table(["failure mode", "", "blades", "share"], rows,
                            align="llrr", title="\nfailure modes, most frequent first"))  # fmt: skip
         top = modes.modes[0]
-        if r.early_failure is None or r.early_failure.mode != top.code:
+        if top.code not in _warned_modes(r):  # its causes are printed with the warning
             lines.append(
                 f"  usual causes of {top.name} (common practice): " + "; ".join(top.causes)
             )
@@ -199,6 +191,39 @@ def render_life(r: Any, units: UnitSystem) -> str:
         lines.append(f"\nleft out (retired before cutting anything): {', '.join(r.left_out)}")
     lines += [f"\nnote: {n}" for n in r.notes]
     return "\n".join(lines)
+
+
+def _warned_modes(r: Any) -> set[str]:
+    """Failure modes whose usual causes a warning already lists."""
+    found = [r.early_failure] + [g.early_failure for g in r.groups]
+    return {w.mode for w in found if w is not None and w.mode is not None}
+
+
+def _warning_lines(r: Any) -> list[str]:
+    """The early-failure warnings (β < 1) of all blades and of each group, as JSON has them.
+
+    Each warning names its most frequent early failure mode and that mode's usual
+    causes; the set-up checks and the caution, the same for all, follow once.
+    """
+    warnings = [
+        (f" for {r.group_by} {g.key}", g.early_failure)
+        for g in r.groups
+        if g.early_failure is not None
+    ]
+    if r.early_failure is not None:
+        warnings.insert(0, (" for all blades" if warnings else "", r.early_failure))
+    lines: list[str] = []
+    for who, w in warnings:
+        lines += ["", f"WARNING{who}: {w.message}"]
+        if w.causes:
+            lines.append(
+                f"  usual causes of {w.mode_name} (common practice): " + "; ".join(w.causes)
+            )
+    if warnings:
+        w = warnings[0][1]
+        lines.append("  check: " + "; ".join(w.setup_checks))
+        lines.append("  " + w.caution)
+    return lines
 
 
 def _n(n: int, word: str) -> str:

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import math
+from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any
 
@@ -53,28 +55,40 @@ def blade_history(db: Database, tag: str) -> BladeHistory:
     cost = None
     if blade.price is not None and blade.area_mm2 > 0:
         cost = blade.price / (blade.area_mm2 / 1.0e6)
+    fittings = tuple(fittings_of(db, blade.id))
     return BladeHistory(
         blade=blade,
-        fittings=tuple(fittings_of(db, blade.id)),
+        fittings=fittings,
         cuts=cuts,
         events=tuple(events_of(db, blade.id)),
         wear=wear,
-        wear_summary=wear_summary(wear),
+        wear_summary=wear_summary(wear, blade, cuts, fittings),
         wear_notes=tuple(notes),
         cost_per_m2=cost,
     )
 
 
-def wear_summary(wear: WearCurve | None) -> str:
-    """One line on where the blade is on its wear curve."""
+def wear_summary(
+    wear: WearCurve | None,
+    blade: Blade | None = None,
+    cuts: Sequence[dict[str, Any]] = (),
+    fittings: Sequence[dict[str, Any]] = (),
+) -> str:
+    """One line on where the blade is on its wear curve.
+
+    A retired or removed blade is off the saw, so the line tells the life it had
+    instead (see ``life_summary``).
+    """
+    if blade is not None and blade.status in ("retired", "removed"):
+        return life_summary(blade, wear, cuts, fittings)
     if wear is None:
         return "no timed cuts yet (log cuts with --time to follow the wear)"
-    if wear.status == "break-in":
+    if wear.status == "break-in" and wear.total_area_cm2 < wear.break_in_cm2:
         return (
             f"breaking in: {wear.total_area_cm2:,.0f} of {wear.break_in_cm2:,.0f} cm² cut "
             "(reduced feed, common practice)"
         )
-    if wear.status == "too-few-cuts":
+    if wear.status in ("break-in", "too-few-cuts"):
         return "past break-in, too few timed cuts yet to set a steady rate"
     rise = wear.latest_rise or 0.0
     steady = f"steady rate {wear.steady_rate_cm2_min:.3g} cm²/min"
@@ -88,3 +102,86 @@ def wear_summary(wear: WearCurve | None) -> str:
         f"{steady}; the latest cuts are {rise:+.0%} against it "
         f"(end-of-life signs from +{wear.rise_threshold:.0%}, common practice)"
     )
+
+
+def life_summary(
+    blade: Blade,
+    wear: WearCurve | None,
+    cuts: Sequence[dict[str, Any]] = (),
+    fittings: Sequence[dict[str, Any]] = (),
+) -> str:
+    """One line on the life of a blade that is off the saw: retired (a failure) or removed
+    unworn (a censored life, reference §7).
+
+    A retired blade whose last cut began inside the break-in area (the first 650 cm²,
+    reference §6, common practice) failed during break-in; when its fittings record no
+    break-in and skipping it is a usual cause of its failure mode, the line says so.
+    """
+    from sawplan.life import failure_modes
+    from sawplan.life.wear import BREAK_IN_CM2
+
+    area_cm2 = blade.area_mm2 / 100.0
+    break_in_cm2 = wear.break_in_cm2 if wear is not None else BREAK_IN_CM2
+    if blade.status == "removed":
+        line = (
+            f"removed unworn after {_cm2(area_cm2)} cm² cut: counts as a life of at least "
+            "that (censored) until it is refitted and retired"
+        )
+        if wear is not None and wear.status == "end-of-life-signs":
+            line += "; its last cuts showed end-of-life signs, check the teeth before refitting"
+        return line
+    mode = failure_modes().get(blade.retire_cause or "")
+    cause = mode.name if mode is not None else (blade.retire_cause or "no cause recorded")
+    if area_cm2 <= 0:
+        return f"retired before cutting anything ({cause})"
+    line = f"retired after {_cm2(area_cm2)} cm² ({cause})"
+    early = _failed_in_break_in(cuts, area_cm2, break_in_cm2)
+    if early:
+        line += f": failed during break-in (the first {_cm2(break_in_cm2)} cm², common practice)"
+    elif wear is not None and wear.status == "end-of-life-signs":
+        line += f", with end-of-life signs from {_cm2(wear.end_of_life_from_cm2 or 0.0)} cm²"
+    elif wear is not None and wear.status == "steady":
+        line += (
+            f", past break-in; its last cuts ran {wear.latest_rise or 0.0:+.0%} against its "
+            f"steady rate of {wear.steady_rate_cm2_min:.3g} cm²/min"
+        )
+    else:
+        line += ", past break-in"
+    skipped = _break_in(fittings)
+    if skipped is not True and mode is not None and any("broken in" in c for c in mode.causes):
+        how = "fitted without break-in" if skipped is False else "no break-in recorded"
+        line += f"; {how}, one of the usual causes of {mode.name} (common practice)"
+    return line
+
+
+def _failed_in_break_in(
+    cuts: Sequence[dict[str, Any]], area_cm2: float, break_in_cm2: float
+) -> bool:
+    """Did the last cut begin inside the break-in area?  (A batch counts as equal cuts.)"""
+    if not cuts:
+        return area_cm2 <= break_in_cm2
+    last = cuts[-1]
+    one_cut_cm2 = last["area_mm2"] / max(int(last["count"] or 1), 1) / 100.0
+    return area_cm2 - one_cut_cm2 < break_in_cm2
+
+
+def _break_in(fittings: Sequence[dict[str, Any]]) -> bool | None:
+    """True when a fitting records a break-in, False when every fitting records none,
+    None when it was not recorded."""
+    marks = [f.get("break_in") for f in fittings]
+    if any(m == 1 for m in marks):
+        return True
+    if marks and all(m == 0 for m in marks):
+        return False
+    return None
+
+
+def _cm2(v: float) -> str:
+    """3 significant figures, thousands separated: 37.14 → '37.1', 16,934 → '16,900'."""
+    if v == 0 or not math.isfinite(v):
+        return f"{v:g}"
+    r = float(f"{v:.3g}")
+    if r.is_integer():
+        return f"{int(r):,}"
+    decimals = max(0, 2 - math.floor(math.log10(abs(r))))
+    return f"{r:,.{decimals}f}".rstrip("0").rstrip(".")
