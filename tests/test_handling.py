@@ -177,7 +177,7 @@ def test_example_4_package_inspection_origin():
     """Pub. 94-110 Example 4 (package inspection), worksheet Figure 14 (p. 46),
     origin: H = 10 in, V = 22 in, D = 37 in, A = 0, fair coupling; printed
     multipliers HM 1.0, VM .94, DM .87, AM 1.0, FM .88, CM .95 and
-    RWL = 34.9 lb (read from a public transcription of the manual).  The
+    RWL = 34.9 lb (read from a public copy of the manual's worksheets).  The
     frequency is taken as 3 lifts/min for under an hour, which is the Table 5
     cell giving the printed FM .88.  The manual works in inches and pounds
     (LC 51 lb, H floor 10 in); the metric equation (LC 23 kg, H floor 25 cm)
