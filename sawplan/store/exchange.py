@@ -298,6 +298,19 @@ def _row_error(name: str, number: int, column: str, message: str) -> BadDataErro
     return BadDataError(f"{name} row {number} (line {number + 1}): {column}: {message}")
 
 
+def _required_saw_fields() -> list[str]:
+    """The Saw profile fields without a default: a saws row must give them all."""
+    import dataclasses
+
+    from sawplan.saws import Saw
+
+    return [
+        f.name
+        for f in dataclasses.fields(Saw)
+        if f.default is dataclasses.MISSING and f.default_factory is dataclasses.MISSING
+    ]
+
+
 def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
     """Check references and rules against the log, then insert; any error rolls all back."""
     from sawplan.store.records import check_failure_mode, row_to_saw
@@ -319,6 +332,9 @@ def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
                 )
             continue
         row["source"] = row["source"] or "blade log"
+        missing = [c for c in _required_saw_fields() if row.get(c) is None]
+        if missing:
+            raise _row_error("saws.csv", number, missing[0], "is required for a saw profile")
         try:
             row_to_saw(row)  # the profile must make a valid saw for `sawplan cut`
         except SawplanError as err:

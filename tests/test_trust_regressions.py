@@ -1,0 +1,19 @@
+"""Regressions found by the fuzzers, pinned as plain cases."""
+
+from __future__ import annotations
+
+
+def test_import_of_a_saw_row_without_its_profile_is_one_line(cli, tmp_path):
+    # found by test_a_mangled_export_imports_whole_or_not_at_all: a stray "[" line in
+    # saws.csv became a saw named "[" with no sizes and crashed the import
+    source, target = tmp_path / "a.sqlite", tmp_path / "b.sqlite"
+    assert cli("saw", "add", "bay 2", "--like", "mid-production", "--db", str(source)).code == 0
+    assert cli("export", str(tmp_path / "csv"), "--db", str(source)).code == 0
+    with (tmp_path / "csv" / "saws.csv").open("a", encoding="utf-8") as handle:
+        handle.write("[\n")
+    result = cli("import", str(tmp_path / "csv"), "--db", str(target))
+    assert result.code == 3
+    assert "saws.csv row 2" in result.err and "kind" in result.err
+    assert "Traceback" not in result.err and "internal error" not in result.err
+    listing = cli("saw", "list", "--db", str(target))
+    assert "bay 2" not in listing.out  # all rows or none
