@@ -374,11 +374,18 @@ def render_job_forecast(j: Any, units: UnitSystem) -> str:
     ]
     out = [
         table(
-            ["material group", f"area {d.label('area')}", "blades", "life from"], rows, align="lrrl"
+            ["material group", f"area {d.label('area')}", "blades if alone", "life from"],
+            rows,
+            align="lrrl",
         ),
         f"blades needed: {j.blades_needed} ({j.confidence:.0%} confidence; one cut per part, "
         "bar-end trim cuts not counted)",
     ]
+    if j.combined_on:
+        out.append(
+            f"  one blade cuts every group: areas put on the {j.combined_on} scale by mean life, "
+            "as `sawplan plan` does"
+        )
     out += [f"  {g.material_group}: {g.note}" for g in j.groups]
     return "\n".join(out)
 

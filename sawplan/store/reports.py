@@ -443,6 +443,7 @@ class JobForecast:
     blades_needed: int
     area_cm2: float
     confidence: float
+    combined_on: str | None = None  # the group whose life scale the total uses
 
 
 def forecast_job(
@@ -453,8 +454,10 @@ def forecast_job(
 ) -> JobForecast:
     """Hook for job files: total cut area per material group → blades needed.
 
-    Each group is forecast on its own (blades are not shared across groups in
-    the count, which errs on the safe side).  ``sawplan.cutlist`` computes the
+    Each group is forecast on its own for the table; the total follows
+    ``sawplan plan``: one blade cuts every group, so the areas are put on the
+    scale of the group that wears blades most (other groups scaled by the
+    ratio of mean lives) and forecast once.  ``sawplan.cutlist`` computes the
     areas from a job file and calls this.
     """
     from sawplan.store.db import connect
@@ -466,9 +469,26 @@ def forecast_job(
             forecast_area(db, area, material_group=group, confidence=confidence)
             for group, area in sorted(area_by_group_cm2.items())
         )
+        lives = {p.material_group: _mean_life_cm2(p) for p in parts}
+        wear = {p.material_group: p.area_cm2 / lives[p.material_group] for p in parts}
+        ref = max(wear, key=wear.get)
+        total = parts[0].blades_needed
+        if len(parts) > 1:
+            equivalent_cm2 = sum(wear.values()) * lives[ref]
+            total = forecast_area(
+                db, equivalent_cm2, material_group=ref, confidence=confidence
+            ).blades_needed
     return JobForecast(
         groups=parts,
-        blades_needed=sum(p.blades_needed for p in parts),
+        blades_needed=total,
         area_cm2=sum(p.area_cm2 for p in parts),
         confidence=confidence,
+        combined_on=ref if len(parts) > 1 else None,
     )
+
+
+def _mean_life_cm2(p: BladeForecast) -> float:
+    """Mean blade life behind a forecast: η·Γ(1 + 1/β) for a fit, else the life used."""
+    if p.weibull_shape and p.weibull_scale_cm2:
+        return p.weibull_scale_cm2 * math.gamma(1.0 + 1.0 / p.weibull_shape)
+    return float(p.life_cm2)
