@@ -406,3 +406,46 @@ def _hbars(
     fig.ruler("x").lim(0, upper)
     fig.ruler("x").ticks(ticks, labels=[_plain(t) for t in ticks])
     return _text(fig, "", colorless)
+
+
+# --- one cut: width of cut and feed against depth -----------------------------------------
+
+
+def cut_chart(r: Any, units: UnitSystem, *, width: int = 72, height: int = 18) -> str:
+    """Chord W(y) and the predicted feed through the cut, against depth."""
+    from sawplan.cutting.explain import LIMIT_WORDS
+
+    d = Display(units)
+    ys = [d.value("length", p.y_mm) for p in r.profile]
+    chords = [d.value("length", p.chord_mm) for p in r.profile]
+    feeds = [d.value("feed", p.feed_mm_min) for p in r.profile]
+    allowed = [d.value("feed", p.allowed_feed_mm_min) for p in r.profile]
+    parts = []
+    fig = _figure(width, height // 2 + 2)
+    fig.title(f"width of cut ({d.label('length')}) against depth ({d.label('length')})")
+    fig.draw(fig.signal(ys, chords).lines(True))
+    _depth_axes(fig, ys, chords)
+    parts.append(_text(fig, "", True))
+    fig = _figure(width, height // 2 + 2)
+    fig.title(f"down-feed ({d.label('feed')}) against depth ({d.label('length')})")
+    fig.draw(fig.signal(ys, allowed).lines(True))
+    fig.draw(fig.signal(ys, feeds, marker="o"))
+    _depth_axes(fig, ys, allowed + feeds)
+    slow = min(r.profile, key=lambda p: p.allowed_feed_mm_min)
+    key = (
+        "▚ what the limits allow   o what the saw runs   slowest at "
+        f"{d.fmt('length', slow.y_mm, 3)} deep ({LIMIT_WORDS[slow.limit]})"
+    )
+    parts.append(_text(fig, key, True))
+    return "\n".join(parts)
+
+
+def _depth_axes(fig: Any, xs: list[float], ys: list[float]) -> None:
+    top = max(ys) * 1.08 if max(ys) > 0 else 1.0
+    y_ticks = _nice_ticks(0, top, 4)
+    fig.ruler("y").lim(0, top)
+    fig.ruler("y").ticks(y_ticks, labels=[_plain(t) for t in y_ticks])
+    x_hi = max(xs) if max(xs) > 0 else 1.0
+    x_ticks = _nice_ticks(0, x_hi)
+    fig.ruler("x").lim(0, x_hi)
+    fig.ruler("x").ticks(x_ticks, labels=[_plain(t) for t in x_ticks])

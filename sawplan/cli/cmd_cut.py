@@ -83,13 +83,15 @@ def cut_command(
     ] = None,
     materials_file: MaterialsFileOpt = None,
 ) -> None:
-    from sawplan.cli.cut_view import cut_chart, render_cut
+    from sawplan.charts import cut_chart
+    from sawplan.cli.cut_view import render_cut
     from sawplan.cutting import compare, recommend
     from sawplan.errors import UsageError
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
     from sawplan.saws import check_capacity, get_saw
     from sawplan.sections import parse_section
+    from sawplan.store.lookup import BladeLog
     from sawplan.units import to_core
 
     if blade_material not in ("bi-metal", "carbon", "carbide"):
@@ -102,9 +104,10 @@ def cut_command(
         )
     mat = load_catalogue(materials_file).get(material)
     sec = parse_section(section, orientation=orient, bundle=bundle, nest=nest)
-    the_saw = get_saw(saw, saws_file, extra=_logged_saws(db))
+    log = BladeLog(db)
+    the_saw = get_saw(saw, saws_file, extra=log.saws())
     check_capacity(the_saw, sec)
-    calibration, calibration_n = _calibration(db, the_saw.name, mat.group)
+    calibration, calibration_n = log.calibration(the_saw.name, mat.group) or (1.0, 0)
     kw = {"dry": dry, "blade_material": blade_material, "calibration": calibration}
     summary = None
     if blade_tpi is None:
@@ -123,42 +126,11 @@ def cut_command(
     if summary:
         print(summary)
         print()
-    print(render_cut(result, units, section_label=sec.label(units.value)))
-    if calibration_n:
-        print(
-            f"            (calibration from {calibration_n} logged cuts on this saw and material group)"
-        )
+    label = sec.label(units.value)
+    print(render_cut(result, units, section_label=label, calibration_cuts=calibration_n))
     if chart:
         print()
         print(cut_chart(result, units))
-
-
-def _logged_saws(db: Path | None):
-    """Saws added with `sawplan saw add`, when a blade log exists (never creates one)."""
-    from sawplan.store.db import resolve_db_path
-
-    path = resolve_db_path(db)
-    if not path.exists():
-        return ()
-    from sawplan.store import saws_from_db
-
-    return saws_from_db(path)
-
-
-def _calibration(db: Path | None, saw_name: str, group: str) -> tuple[float, int]:
-    """The shop's actual ÷ predicted time for this saw and material group, if logged."""
-    from sawplan.store.db import resolve_db_path
-
-    path = resolve_db_path(db)
-    if not path.exists():
-        return 1.0, 0
-    from sawplan.store import calibration_factor
-
-    found = calibration_factor(path, saw_name, group)
-    if not found:
-        return 1.0, 0
-    factor, n = found
-    return factor, n
 
 
 def register(app: typer.Typer) -> None:

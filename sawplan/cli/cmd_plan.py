@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Annotated
+from typing import Annotated, Any
 
 import typer
 
@@ -113,6 +113,8 @@ def plan_command(
         raise UsageError(f"must be between 0 and 600 s, got {time_limit:g}", field="time-limit")
     catalogue = load_catalogue(materials_file)
     job = load_job(jobfile, catalogue, allow_outside=allow)
+    from sawplan.store.lookup import BladeLog
+
     log = BladeLog(db)
     saw = choose_saw(job, saw_name, saws_file, log)
     plan = plan_job(
@@ -135,49 +137,7 @@ def plan_command(
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
 
 
-# --- the blade log, when there is one -------------------------------------------------------
-
-
-class BladeLog:
-    """Read-only access to the blade log: calibration factors, life fits, saws.
-
-    A missing file is not created: the plan then uses the model's times and the
-    default lives, and says so.
-    """
-
-    def __init__(self, db: Path | None):
-        from sawplan.errors import UsageError
-        from sawplan.store import resolve_db_path
-
-        self.path = resolve_db_path(db)
-        if self.path.is_dir():
-            raise UsageError(f"{self.path} is a folder; give a file name", field="db")
-        self.exists = self.path.is_file()
-        self.label = f"blade log {self.path}" if self.exists else "no blade log"
-
-    def calibration(self, saw_name: str, material_group: str):
-        if not self.exists:
-            return None
-        from sawplan.store import calibration_factor
-
-        return calibration_factor(self.path, saw_name, material_group)
-
-    def life(self, material_group: str):
-        if not self.exists:
-            return None
-        from sawplan.store import life_for
-
-        return life_for(self.path, material_group)
-
-    def saws(self) -> list:
-        if not self.exists:
-            return []
-        from sawplan.store import saws_from_db
-
-        return saws_from_db(self.path)
-
-
-def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: BladeLog):
+def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
     """``--saw``, else ``saw`` in [job], else the smallest saw that takes every section."""
     from sawplan.cutlist.jobfile import Where, located
     from sawplan.errors import BadDataError, SawplanError

@@ -6,23 +6,13 @@ from typing import Any
 
 from sawplan.units import Display, UnitSystem, fmt_number
 
-_LIMIT_NAMES = {
-    "material": "material bite",
-    "gullet": "gullet capacity",
-    "tooth": "tooth strength",
-    "power": "motor power",
-    "force": "feed force",
-}
-
-
-def limit_name(code: str) -> str:
-    return _LIMIT_NAMES.get(code, code)
-
 
 def render_cut(
     r: Any, units: UnitSystem, *, section_label: str | None = None, calibration_cuts: int = 0
 ) -> str:
     """The operator's card: blade, speed, feed, time, why, warnings, break-in."""
+    from sawplan.cutting.explain import LIMIT_WORDS
+
     d = Display(units)
     lines = [f"{r.material} · {section_label or r.section} · saw {r.saw} ({r.feed_type} feed)"]
     blade = f"{r.pitch_label} TPI, {r.tooth_form} teeth, {r.tooth_set} set ({r.blade_material})"
@@ -45,7 +35,7 @@ def render_cut(
     lines.append(
         f"Rate        {d.fmt('rate', r.cutting_rate_mm2_min, 3)}   "
         f"Time {fmt_number(r.cut_time_min, 3)} min per cut   "
-        f"Limit {limit_name(r.governing_limit)} ({share:.0%} of the cut)"
+        f"Limit {LIMIT_WORDS[r.governing_limit]} ({share:.0%} of the cut)"
     )
     for i, text in enumerate(r.explanation):
         lines.append(("Why         " if i == 0 else "            ") + text)
@@ -71,43 +61,3 @@ def render_cut(
     )
     lines.append(f"Caution     {r.caution}")
     return "\n".join(lines)
-
-
-def cut_chart(r: Any, units: UnitSystem, *, width: int = 72, height: int = 18) -> str:
-    """Chord W(y) and the predicted feed through the cut, against depth."""
-    from sawplan.charts import _figure, _nice_ticks, _plain, _text
-
-    d = Display(units)
-    ys = [d.value("length", p.y_mm) for p in r.profile]
-    chords = [d.value("length", p.chord_mm) for p in r.profile]
-    feeds = [d.value("feed", p.feed_mm_min) for p in r.profile]
-    allowed = [d.value("feed", p.allowed_feed_mm_min) for p in r.profile]
-    parts = []
-    fig = _figure(width, height // 2 + 2)
-    fig.title(f"width of cut ({d.label('length')}) against depth ({d.label('length')})")
-    fig.draw(fig.signal(ys, chords).lines(True))
-    _axes(fig, ys, chords, _nice_ticks, _plain)
-    parts.append(_text(fig, "", True))
-    fig = _figure(width, height // 2 + 2)
-    fig.title(f"down-feed ({d.label('feed')}) against depth ({d.label('length')})")
-    fig.draw(fig.signal(ys, allowed).lines(True))
-    fig.draw(fig.signal(ys, feeds, marker="o"))
-    _axes(fig, ys, allowed + feeds, _nice_ticks, _plain)
-    slow = min(r.profile, key=lambda p: p.allowed_feed_mm_min)
-    key = (
-        "▚ what the limits allow   o what the saw runs   slowest at "
-        f"{d.fmt('length', slow.y_mm, 3)} deep ({limit_name(slow.limit)})"
-    )
-    parts.append(_text(fig, key, True))
-    return "\n".join(parts)
-
-
-def _axes(fig: Any, xs: list[float], ys: list[float], nice_ticks: Any, plain: Any) -> None:
-    top = max(ys) * 1.08 if max(ys) > 0 else 1.0
-    y_ticks = nice_ticks(0, top, 4)
-    fig.ruler("y").lim(0, top)
-    fig.ruler("y").ticks(y_ticks, labels=[plain(t) for t in y_ticks])
-    x_hi = max(xs) if max(xs) > 0 else 1.0
-    x_ticks = nice_ticks(0, x_hi)
-    fig.ruler("x").lim(0, x_hi)
-    fig.ruler("x").ticks(x_ticks, labels=[plain(t) for t in x_ticks])

@@ -7,7 +7,7 @@ from typing import Annotated
 
 import typer
 
-from sawplan.units import Display, UnitSystem
+from sawplan.units import UnitSystem
 
 UnitsOpt = Annotated[
     UnitSystem,
@@ -53,9 +53,3 @@ BundleOpt = Annotated[
 NestOpt = Annotated[
     bool, typer.Option("--nest", help="Rounds in a bundle nest into the row below.")
 ]
-
-DEFAULT_UNITS = UnitSystem.METRIC
-
-
-def display(units: UnitSystem) -> Display:
-    return Display(units)

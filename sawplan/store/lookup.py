@@ -1,0 +1,49 @@
+"""Read-only questions to the blade log from commands that only consult it.
+
+``sawplan cut`` and ``sawplan plan`` ask the log for its saws, the shop's
+time calibration and blade lives; a missing log is never created, and they
+fall back to the model's times and the default lives.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+
+class BladeLog:
+    """Read-only access to the blade log: calibration factors, life fits, saws.
+
+    A missing file is not created: the plan then uses the model's times and the
+    default lives, and says so.
+    """
+
+    def __init__(self, db: Path | None):
+        from sawplan.errors import UsageError
+        from sawplan.store import resolve_db_path
+
+        self.path = resolve_db_path(db)
+        if self.path.is_dir():
+            raise UsageError(f"{self.path} is a folder; give a file name", field="db")
+        self.exists = self.path.is_file()
+        self.label = f"blade log {self.path}" if self.exists else "no blade log"
+
+    def calibration(self, saw_name: str, material_group: str):
+        if not self.exists:
+            return None
+        from sawplan.store import calibration_factor
+
+        return calibration_factor(self.path, saw_name, material_group)
+
+    def life(self, material_group: str):
+        if not self.exists:
+            return None
+        from sawplan.store import life_for
+
+        return life_for(self.path, material_group)
+
+    def saws(self) -> list:
+        if not self.exists:
+            return []
+        from sawplan.store import saws_from_db
+
+        return saws_from_db(self.path)
