@@ -44,10 +44,7 @@ def fixed_fit(shape: float, scale: float) -> WeibullFit:
         scale_ci_cm2=(scale, scale),
         confidence=0.9,
         log_likelihood=0.0,
-        median_life_cm2=scale * math.log(2) ** (1 / shape),
-        b10_life_cm2=scale * (-math.log(0.9)) ** (1 / shape),
         b10_ci_cm2=(0.0, 0.0),
-        mean_life_cm2=scale * math.gamma(1 + 1 / shape),
         shape_se=0.0,
         scale_se_cm2=0.0,
     )

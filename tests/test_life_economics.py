@@ -31,10 +31,7 @@ def test_cost_per_area_with_fit_uses_weibull_mean():
         scale_ci_cm2=(8_000.0, 12_000.0),
         confidence=0.9,
         log_likelihood=0.0,
-        median_life_cm2=10_000.0 * math.sqrt(math.log(2)),
-        b10_life_cm2=10_000.0 * math.sqrt(-math.log(0.9)),
         b10_ci_cm2=(0.0, 0.0),
-        mean_life_cm2=10_000.0 * math.gamma(1.5),
         shape_se=0.0,
         scale_se_cm2=0.0,
     )

@@ -45,14 +45,34 @@ class WeibullFit:
     scale_ci_cm2: tuple[float, float]
     confidence: float
     log_likelihood: float
-    median_life_cm2: float
-    b10_life_cm2: float
     b10_ci_cm2: tuple[float, float]
-    mean_life_cm2: float
     shape_se: float
     scale_se_cm2: float
     ci_method: str = "likelihood-ratio"
     fitted: Literal[True] = True
+
+    @property
+    def median_life_cm2(self) -> float:
+        """η(ln 2)^(1/β): half the blades have failed by this area."""
+        return self.scale_cm2 * math.log(2.0) ** (1.0 / self.shape)
+
+    @property
+    def b10_life_cm2(self) -> float:
+        """η(−ln 0.9)^(1/β): one blade in ten has failed by this area."""
+        return self.scale_cm2 * (-math.log(0.9)) ** (1.0 / self.shape)
+
+    @property
+    def mean_life_cm2(self) -> float:
+        """η·Γ(1 + 1/β), the expected life of a blade."""
+        return self.scale_cm2 * math.gamma(1.0 + 1.0 / self.shape)
+
+    def json_extra(self) -> dict[str, float]:
+        """The lives derived from shape and scale, for JSON."""
+        return {
+            "median_life_cm2": self.median_life_cm2,
+            "b10_life_cm2": self.b10_life_cm2,
+            "mean_life_cm2": self.mean_life_cm2,
+        }
 
     def quantile_cm2(self, p: float) -> float:
         """Life by which a fraction ``p`` of blades has failed: η(−ln(1−p))^(1/β)."""
@@ -260,8 +280,6 @@ class _Model:
 
         se_log_shape, se_log_scale = self.log_param_se(shape, log_eta_u)
         scale = math.exp(log_eta_u + self.log_ref)
-        ln2_root = math.log(2.0) ** (1.0 / shape)
-        b10_root = (-math.log(0.9)) ** (1.0 / shape)
         return WeibullFit(
             shape=shape,
             scale_cm2=scale,
@@ -272,10 +290,7 @@ class _Model:
             scale_ci_cm2=quantile_ci(1.0 - math.exp(-1.0)),  # η is the 63.2 % life
             confidence=confidence,
             log_likelihood=ll_max,
-            median_life_cm2=scale * ln2_root,
-            b10_life_cm2=scale * b10_root,
             b10_ci_cm2=quantile_ci(0.1),
-            mean_life_cm2=scale * math.gamma(1.0 + 1.0 / shape),
             shape_se=shape * se_log_shape,
             scale_se_cm2=scale * se_log_scale,
         )
