@@ -25,7 +25,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from sawplan.cutlist.optimise import (  # noqa: E402
+from sawplan.cutlist.optimise.solve import (  # noqa: E402
     Allowances,
     Demand,
     StockType,

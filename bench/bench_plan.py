@@ -47,10 +47,10 @@ def job_text(seed: int = 7) -> str:
 
 def main() -> int:
     from sawplan.cli.cmd_plan import plan_csv
-    from sawplan.cutlist.jobfile import load_job
-    from sawplan.cutlist.planning import plan_job
-    from sawplan.cutlist.sheet_html import render_html
-    from sawplan.cutlist.sheet_text import render_markdown, render_plan
+    from sawplan.cutlist.jobfile.load import load_job
+    from sawplan.cutlist.plan.job import plan_job
+    from sawplan.cutlist.sheets.html import render_html
+    from sawplan.cutlist.sheets.text import render_markdown, render_plan
     from sawplan.materials import load_catalogue
     from sawplan.saws import get_saw
 

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import pytest
 
-from sawplan.cutlist.jobfile import check_supply, parse_job
+from sawplan.cutlist.jobfile.load import check_supply, parse_job
 from sawplan.errors import BadDataError, NotFoundError, SawplanError, UsageError
 from sawplan.materials import load_catalogue
 

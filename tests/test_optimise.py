@@ -13,7 +13,7 @@ import pytest
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from sawplan.cutlist.optimise import (
+from sawplan.cutlist.optimise.solve import (
     Allowances,
     CutPlan,
     Demand,
@@ -331,7 +331,7 @@ def test_remnants_are_used_before_new_bars(count: int, used: dict[str, int], cos
 
 
 def test_shorter_remnant_goes_first() -> None:
-    # Our rule (documented in opt_build): among remnants that fit, the shorter is cut.
+    # Our rule (documented in optimise/build.py): among remnants that fit, the shorter is cut.
     stock = [
         StockType("new", 6000, None, 50.0),
         StockType("R-long", 2500, 1, 0.0, is_remnant=True),
@@ -537,7 +537,7 @@ def test_cheapest_plan_against_exhaustive_search(
     st.integers(0, 30),
 )
 def test_knapsack_against_enumeration(items: list[tuple[int, float, int]], capacity: int) -> None:
-    from sawplan.cutlist.knapsack import solve_bounded_knapsack
+    from sawplan.cutlist.optimise.knapsack import solve_bounded_knapsack
 
     weights = [w for w, _, _ in items]
     values = [v for _, v, _ in items]
@@ -566,8 +566,8 @@ def _triplets(count: int, seed: int) -> list[Demand]:
 
 
 def test_arc_flow_packs_triplets_exactly() -> None:
-    from sawplan.cutlist.opt_arcflow import solve_arc_flow
-    from sawplan.cutlist.opt_build import make_instance
+    from sawplan.cutlist.optimise.arcflow import solve_arc_flow
+    from sawplan.cutlist.optimise.build import make_instance
 
     demand = _triplets(8, seed=3)
     problem = make_instance([StockType("bar", 1000, None, 1.0)], demand, Allowances()).problem

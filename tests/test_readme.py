@@ -117,8 +117,8 @@ def test_readme_keeps_its_sections_and_cautions():
 
 
 def test_job_file_section_names_every_key():
-    """The job-file example lists every key the loader accepts (sawplan.cutlist.jobfile)."""
-    from sawplan.cutlist.jobfile import JOB_KEYS, PART_KEYS, STOCK_KEYS
+    """The job-file example lists every key the loader accepts (sawplan.cutlist.jobfile.load)."""
+    from sawplan.cutlist.jobfile.load import JOB_KEYS, PART_KEYS, STOCK_KEYS
 
     text = README.read_text(encoding="utf-8")
     section = text[text.index("## Job files") : text.index("## How the estimates are made")]

@@ -234,7 +234,7 @@ def test_a_stock_file_beside_the_job_is_read(cli, job_folder):
 
     bars = json.loads(result.out)["bars"]
     assert {b["heat"] for b in bars} <= {"H-2231", "H-1980"} and bars
-    from sawplan.cutlist.jobfile import load_job
+    from sawplan.cutlist.jobfile.load import load_job
     from sawplan.materials import load_catalogue
 
     job = load_job(job_folder / "job.toml", load_catalogue())

@@ -26,7 +26,7 @@ import pytest
 from hypothesis import HealthCheck, assume, given, settings
 from hypothesis import strategies as st
 
-from sawplan.cutlist.jobfile import parse_job
+from sawplan.cutlist.jobfile.load import parse_job
 from sawplan.errors import SawplanError, UsageError
 from sawplan.sections import parse_section
 from sawplan.units import to_core

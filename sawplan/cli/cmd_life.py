@@ -331,7 +331,7 @@ def job_cut_areas(path: Path, catalogue: Any) -> dict[str, float]:
 
     The head trim of each bar is not counted, so the area is a small underestimate.
     """
-    from sawplan.cutlist.jobfile import load_job
+    from sawplan.cutlist.jobfile.load import load_job
     from sawplan.sections import parse_section
 
     job = load_job(path, catalogue)

@@ -99,8 +99,8 @@ def plan_command(
 ) -> None:
     import sys
 
-    from sawplan.cutlist.jobfile import load_job
-    from sawplan.cutlist.planning import plan_job
+    from sawplan.cutlist.jobfile.load import load_job
+    from sawplan.cutlist.plan.job import plan_job
     from sawplan.errors import UsageError
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
@@ -129,7 +129,7 @@ def plan_command(
     if json_out:
         print(to_json(plan, kind="plan"))
     else:
-        from sawplan.cutlist.sheet_text import render_plan
+        from sawplan.cutlist.sheets.text import render_plan
 
         print(render_plan(plan, units))
     written = write_all(outputs)
@@ -139,7 +139,7 @@ def plan_command(
 
 def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
     """``--saw``, else ``saw`` in [job], else the smallest saw that takes every section."""
-    from sawplan.cutlist.jobfile import Where, located
+    from sawplan.cutlist.jobfile.load import Where, located
     from sawplan.errors import BadDataError, SawplanError
     from sawplan.saws import check_capacity, get_saw, load_saws
 
@@ -183,11 +183,11 @@ def render_outputs(
             outputs[csv_dir / name] = text
     if sheet is not None:
         if sheet.suffix.lower() == ".md":
-            from sawplan.cutlist.sheet_text import render_markdown
+            from sawplan.cutlist.sheets.text import render_markdown
 
             outputs[sheet] = render_markdown(plan, units)
         else:
-            from sawplan.cutlist.sheet_html import render_html
+            from sawplan.cutlist.sheets.html import render_html
 
             outputs[sheet] = render_html(plan, units)
     return outputs

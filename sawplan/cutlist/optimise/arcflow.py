@@ -17,7 +17,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from math import gcd
 
-from sawplan.cutlist.opt_problem import Bar, Problem, downsize
+from sawplan.cutlist.optimise.problem import Bar, Problem, downsize
 
 
 @dataclass(frozen=True)

@@ -26,7 +26,7 @@ A job file is TOML read with the standard library's ``tomllib``::
 
 Every error names the file, the line and the entry, in one line, e.g.
 ``job.toml line 23 ([[part]] "flange blank"): length: expected a length with
-its unit, e.g. "250mm", got 12`` (lines are found by ``job_lines``).
+its unit, e.g. "250mm", got 12`` (lines are found by ``lines``).
 
 ``stock_file`` is resolved relative to the job file's folder and must stay
 inside it: an absolute path, a ``..`` that climbs out or a symlink that leads
@@ -34,9 +34,9 @@ out is refused (one line naming the key and its line) unless the caller
 allows it (``sawplan plan JOB --allow``), so a job file received from someone
 else cannot make sawplan read files elsewhere on the machine.
 
-Modules beside this one: ``job_types`` (keys, defaults, the dataclasses),
-``job_entry`` (reading values), ``stock_file`` (the CSV file and its path) and
-``job_checks`` (parts against stock); their public names import from here too.
+Modules beside this one: ``types`` (keys, defaults, the dataclasses),
+``entry`` (reading values), ``stock_file`` (the CSV file and its path) and
+``checks`` (parts against stock); their public names import from here too.
 """
 
 from __future__ import annotations
@@ -47,10 +47,11 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
-from sawplan.cutlist.job_checks import check_parts_have_stock, check_supply, not_enough
-from sawplan.cutlist.job_entry import JobEntry, raw_part_label, raw_stock_label
-from sawplan.cutlist.job_lines import TomlLines, Where, located
-from sawplan.cutlist.job_types import (
+from sawplan.cutlist.jobfile.checks import check_parts_have_stock, check_supply, not_enough
+from sawplan.cutlist.jobfile.entry import JobEntry, raw_part_label, raw_stock_label
+from sawplan.cutlist.jobfile.lines import TomlLines, Where, located
+from sawplan.cutlist.jobfile.stock_file import resolve_stock_file, stock_file_entries
+from sawplan.cutlist.jobfile.types import (
     DEFAULT_GRIP_MM,
     DEFAULT_HANDLING_TIME_MIN,
     DEFAULT_MIN_REMNANT_MM,
@@ -66,7 +67,6 @@ from sawplan.cutlist.job_types import (
     PartLine,
     StockLine,
 )
-from sawplan.cutlist.stock_file import resolve_stock_file, stock_file_entries
 from sawplan.errors import BadDataError, NotFoundError, SawplanError, UsageError
 
 __all__ = [

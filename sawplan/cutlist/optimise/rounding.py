@@ -10,7 +10,7 @@ the next-ranked filling there (depth first, a few branches per step, a budget
 of LP re-solves, and a stop after many re-solves without a better plan).
 After every step the pieces left are packed by first-fit decreasing into a
 complete plan, and the first time they are few, exactly by arc-flow
-(``opt_arcflow``) if its graph is small.  The search ends at the lower bound,
+(``arcflow``) if its graph is small.  The search ends at the lower bound,
 when the dives run out, or at the deadline.
 """
 
@@ -21,10 +21,10 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from math import ceil, floor
 
-from sawplan.cutlist.ffd import pack_first_fit_decreasing
-from sawplan.cutlist.opt_arcflow import solve_arc_flow
-from sawplan.cutlist.opt_colgen import ColumnPool, LpFailure, LpOutcome, solve_master_lp
-from sawplan.cutlist.opt_problem import Bar, Problem, downsize, score
+from sawplan.cutlist.optimise.arcflow import solve_arc_flow
+from sawplan.cutlist.optimise.colgen import ColumnPool, LpFailure, LpOutcome, solve_master_lp
+from sawplan.cutlist.optimise.ffd import pack_first_fit_decreasing
+from sawplan.cutlist.optimise.problem import Bar, Problem, downsize, score
 
 _ROUND_EPS = 1e-6
 

@@ -2,9 +2,9 @@
 
 1. First-fit decreasing gives a plan at once (and the master's first columns).
 2. Column generation solves the LP and gives the lower bound.
-3. Rounding and repair (``opt_rounding``) look for a plan meeting the bound.
+3. Rounding and repair (``rounding``) look for a plan meeting the bound.
 4. If none is found and the instance is small, the arc-flow integer program.
-5. Spare length is gathered into keepable remnants (``opt_polish``).
+5. Spare length is gathered into keepable remnants (``polish``).
 6. With several stock types, a second LP with every bar costing 1 bounds the bar count.
 If the LP fails or time runs out, the best plan so far (at worst FFD) stands.
 """
@@ -14,14 +14,19 @@ from __future__ import annotations
 import time
 from dataclasses import dataclass
 
-from sawplan.cutlist.ffd import pack_first_fit_decreasing
-from sawplan.cutlist.opt_arcflow import solve_arc_flow
-from sawplan.cutlist.opt_build import Instance
-from sawplan.cutlist.opt_colgen import ColumnPool, LpFailure, LpOutcome, solve_master_lp
-from sawplan.cutlist.opt_polish import gather_remnants
-from sawplan.cutlist.opt_problem import Bar, Problem
-from sawplan.cutlist.opt_report import Bounds, material_bounds
-from sawplan.cutlist.opt_rounding import Incumbent, reaches_bound, round_and_repair, same_bar_cost
+from sawplan.cutlist.optimise.arcflow import solve_arc_flow
+from sawplan.cutlist.optimise.build import Instance
+from sawplan.cutlist.optimise.colgen import ColumnPool, LpFailure, LpOutcome, solve_master_lp
+from sawplan.cutlist.optimise.ffd import pack_first_fit_decreasing
+from sawplan.cutlist.optimise.polish import gather_remnants
+from sawplan.cutlist.optimise.problem import Bar, Problem
+from sawplan.cutlist.optimise.report import Bounds, material_bounds
+from sawplan.cutlist.optimise.rounding import (
+    Incumbent,
+    reaches_bound,
+    round_and_repair,
+    same_bar_cost,
+)
 
 _TINY = 1e-6
 

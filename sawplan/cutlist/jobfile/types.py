@@ -9,7 +9,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Any
 
-from sawplan.cutlist.job_lines import Where
+from sawplan.cutlist.jobfile.lines import Where
 
 JOB_KEYS = (
     "name", "kerf", "trim", "grip", "min_remnant", "saw", "shop_rate", "handling_time",

@@ -14,7 +14,7 @@ from __future__ import annotations
 
 from html import escape
 
-from sawplan.cutlist.sheet_text import (
+from sawplan.cutlist.sheets.text import (
     breakin_text,
     forecast_text,
     length,

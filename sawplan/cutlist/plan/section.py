@@ -11,10 +11,10 @@ from __future__ import annotations
 import math
 from typing import Any
 
-from sawplan.cutlist.bar_layout import bar_cost, bar_cut
-from sawplan.cutlist.job_lines import located
-from sawplan.cutlist.job_types import Job
-from sawplan.cutlist.plan_types import BarCut, SectionPlan
+from sawplan.cutlist.jobfile.lines import located
+from sawplan.cutlist.jobfile.types import Job
+from sawplan.cutlist.plan.types import BarCut, SectionPlan
+from sawplan.cutlist.sheets.bar_layout import bar_cost, bar_cut
 from sawplan.errors import SawplanError
 from sawplan.weights import mass_per_length_kg_m
 
@@ -38,7 +38,7 @@ def plan_section(
     time_limit_s: float,
 ) -> tuple[SectionPlan, list[BarCut]]:
     """The group's plan and its bars (numbered from ``first_bar``), from the optimiser's layout."""
-    from sawplan.cutlist.optimise import Allowances, Demand, StockType, optimise
+    from sawplan.cutlist.optimise.solve import Allowances, Demand, StockType, optimise
 
     h = job.header
     kg_per_m = mass_per_length_kg_m(section.area_mm2, material.density_kg_m3)

@@ -9,8 +9,8 @@ the last cut is made, and what is left is the remnant.  A bar filled exactly
 
 from __future__ import annotations
 
-from sawplan.cutlist.job_types import PartLine, StockLine
-from sawplan.cutlist.plan_types import BarCut, PieceCut
+from sawplan.cutlist.jobfile.types import PartLine, StockLine
+from sawplan.cutlist.plan.types import BarCut, PieceCut
 
 
 def bar_layout(

@@ -15,8 +15,8 @@ from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 from math import isfinite
 
-from sawplan.cutlist.opt_problem import Problem
-from sawplan.cutlist.opt_types import Allowances, Demand, StockType
+from sawplan.cutlist.optimise.problem import Problem
+from sawplan.cutlist.optimise.types import Allowances, Demand, StockType
 from sawplan.errors import BadDataError
 
 LengthText = Callable[[int], str]

@@ -8,8 +8,8 @@ from __future__ import annotations
 
 import math
 
-from sawplan.cutlist.job_lines import TomlLines, Where, located
-from sawplan.cutlist.job_types import Job
+from sawplan.cutlist.jobfile.lines import TomlLines, Where, located
+from sawplan.cutlist.jobfile.types import Job
 from sawplan.errors import BadDataError, SawplanError
 
 

@@ -9,8 +9,8 @@ from __future__ import annotations
 import difflib
 import math
 
-from sawplan.cutlist.job_lines import TomlLines, Where, located
-from sawplan.cutlist.job_types import MAX_LENGTH_MM
+from sawplan.cutlist.jobfile.lines import TomlLines, Where, located
+from sawplan.cutlist.jobfile.types import MAX_LENGTH_MM
 from sawplan.errors import BadDataError, SawplanError, UsageError
 
 

@@ -22,8 +22,8 @@ from dataclasses import dataclass
 from math import ceil
 from typing import Any
 
-from sawplan.cutlist.knapsack import solve_bounded_knapsack
-from sawplan.cutlist.opt_problem import Problem
+from sawplan.cutlist.optimise.knapsack import solve_bounded_knapsack
+from sawplan.cutlist.optimise.problem import Problem
 
 _ROUND_EPS = 1e-6  # slack when rounding LP values up to whole bars
 

@@ -20,7 +20,7 @@ import time
 from bisect import bisect_left, insort
 from collections.abc import Sequence
 
-from sawplan.cutlist.opt_problem import Bar, Problem, score
+from sawplan.cutlist.optimise.problem import Bar, Problem, score
 
 
 class _Plan:

@@ -1,14 +1,14 @@
 """Plan a job: per material and section, lay out the bars, then time, blade and cost it.
 
-For each (material, section) group of a validated :class:`~sawplan.cutlist.jobfile.Job`
+For each (material, section) group of a validated :class:`~sawplan.cutlist.jobfile.load.Job`
 the cutting model recommends the blade and settings (and gives the kerf when the
 job file does not), the optimiser lays the pieces out on the bars on hand, and
 each bar is turned into positions from the head, weights and a handling class.
 Pure: the caller looks the blade log up and passes callables.
 
-Modules beside this one: ``section_plan`` (one group: layout, time, cost),
-``bar_layout`` (positions on a bar), ``plan_blades`` (blade life, blades on
-hand) and ``plan_types`` (the results); their public names import from here too.
+Modules beside this one: ``section`` (one group: layout, time, cost),
+``sheets.bar_layout`` (positions on a bar), ``blades`` (blade life, blades on
+hand) and ``types`` (the results); their public names import from here too.
 """
 
 from __future__ import annotations
@@ -16,13 +16,13 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any
 
-from sawplan.cutlist.bar_layout import bar_layout
-from sawplan.cutlist.job_checks import check_supply
-from sawplan.cutlist.job_lines import located
-from sawplan.cutlist.job_types import Job
-from sawplan.cutlist.plan_blades import LifeLookup, blade_life, blades_on_hand
-from sawplan.cutlist.plan_types import BarCut, JobPlan, PieceCut, Remnant, SectionPlan
-from sawplan.cutlist.section_plan import RESOLUTION_PER_MM, plan_section
+from sawplan.cutlist.jobfile.checks import check_supply
+from sawplan.cutlist.jobfile.lines import located
+from sawplan.cutlist.jobfile.types import Job
+from sawplan.cutlist.plan.blades import LifeLookup, blade_life, blades_on_hand
+from sawplan.cutlist.plan.section import RESOLUTION_PER_MM, plan_section
+from sawplan.cutlist.plan.types import BarCut, JobPlan, PieceCut, Remnant, SectionPlan
+from sawplan.cutlist.sheets.bar_layout import bar_layout
 from sawplan.errors import SawplanError
 
 __all__ = [

@@ -7,9 +7,9 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from math import ceil
 
-from sawplan.cutlist.opt_build import Instance
-from sawplan.cutlist.opt_problem import Bar
-from sawplan.cutlist.opt_types import BarPattern, CutPlan
+from sawplan.cutlist.optimise.build import Instance
+from sawplan.cutlist.optimise.problem import Bar
+from sawplan.cutlist.optimise.types import BarPattern, CutPlan
 
 
 @dataclass(frozen=True)

@@ -9,7 +9,7 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any
 
-from sawplan.cutlist.plan_types import SectionPlan
+from sawplan.cutlist.plan.types import SectionPlan
 
 LifeLookup = Callable[[str], Any]  # material group -> Weibull fit or None
 

@@ -25,7 +25,7 @@ Method: Gilmore-Gomory column generation with a bounded-knapsack pricing step,
 rounding with repeated re-solves of the residual and first-fit decreasing for
 the last pieces, an exact arc-flow integer program when rounding stops short of
 the bound on a small instance, and first-fit decreasing alone as the fallback
-(see ``opt_search``).
+(see ``search``).
 """
 
 from __future__ import annotations
@@ -33,10 +33,10 @@ from __future__ import annotations
 import time
 from collections.abc import Sequence
 
-from sawplan.cutlist.ffd import pack_first_fit_decreasing
-from sawplan.cutlist.opt_build import LengthText, make_instance, shortage_error
-from sawplan.cutlist.opt_report import Bounds, build_plan, material_bounds
-from sawplan.cutlist.opt_types import Allowances, BarPattern, CutPlan, Demand, StockType
+from sawplan.cutlist.optimise.build import LengthText, make_instance, shortage_error
+from sawplan.cutlist.optimise.ffd import pack_first_fit_decreasing
+from sawplan.cutlist.optimise.report import Bounds, build_plan, material_bounds
+from sawplan.cutlist.optimise.types import Allowances, BarPattern, CutPlan, Demand, StockType
 
 __all__ = [
     "Allowances",
@@ -65,7 +65,7 @@ def optimise(
     Raises BadDataError for impossible data, a part no bar can hold, or too
     little stock on hand.
     """
-    from sawplan.cutlist.opt_search import search_plan
+    from sawplan.cutlist.optimise.search import search_plan
 
     started = time.perf_counter()
     instance = make_instance(stock, demand, allow, length_text)

@@ -12,7 +12,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-from sawplan.cutlist.opt_problem import Bar, Problem, downsize
+from sawplan.cutlist.optimise.problem import Bar, Problem, downsize
 
 
 class _FirstFitTree:

@@ -14,9 +14,9 @@ import io
 from pathlib import Path
 from typing import Any
 
-from sawplan.cutlist.job_entry import JobEntry, raw_stock_label
-from sawplan.cutlist.job_lines import TomlLines, Where, located
-from sawplan.cutlist.job_types import MAX_FILE_BYTES, STOCK_KEYS
+from sawplan.cutlist.jobfile.entry import JobEntry, raw_stock_label
+from sawplan.cutlist.jobfile.lines import TomlLines, Where, located
+from sawplan.cutlist.jobfile.types import MAX_FILE_BYTES, STOCK_KEYS
 from sawplan.errors import BadDataError, NotFoundError, UsageError
 
 

@@ -1,0 +1,1 @@
+"""Reading and checking job files and stock files: line-numbered errors, parts, stock on hand."""

@@ -1,0 +1,1 @@
+"""The cutting-stock optimiser: column generation, rounding and repair, exact steps, bounds."""

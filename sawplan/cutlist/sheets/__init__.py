@@ -1,0 +1,1 @@
+"""Renderings of a plan: text, CSV and Markdown sheets, HTML with a drawing per bar."""
