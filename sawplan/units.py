@@ -350,6 +350,8 @@ class Display:
         """Format with sensible significant figures and the unit label."""
         if core_value is None or not math.isfinite(core_value):
             return "—"
+        if kind == "time":
+            return fmt_duration(core_value, digits)
         v = self.value(kind, core_value)
         return f"{fmt_number(v, digits)} {self.label(kind)}"
 
@@ -362,3 +364,24 @@ def fmt_number(v: float, digits: int = 3) -> str:
     mag = math.floor(math.log10(abs(v)))
     decimals = max(0, digits - 1 - mag)
     return f"{v:,.{decimals}f}"
+
+
+LONG_TIME_MIN = 90.0  # above this a time reads better as hours and minutes
+
+
+def fmt_duration(minutes: float | None, digits: int = 3) -> str:
+    """A time for people: '42.5 min' up to 90 min, then '3 h 20 min' (whole minutes)."""
+    if minutes is None or not math.isfinite(minutes):
+        return "—"
+    if minutes <= LONG_TIME_MIN:
+        return f"{fmt_number(minutes, digits)} min"
+    whole = round(minutes)
+    hours, mins = divmod(whole, 60)
+    return f"{hours:,} h {mins} min" if mins else f"{hours:,} h"
+
+
+def fmt_ratio(ratio: float) -> str:
+    """A ratio for people: '0.4×', '2.5×', and 'over ten times' beyond 10."""
+    if not math.isfinite(ratio) or ratio > 10:
+        return "over ten times"
+    return f"{fmt_number(ratio, 2)}×"

@@ -161,3 +161,25 @@ def test_fast_path_and_pint_path_agree(text):
 
     slow = parse_quantity(text, "length", field="x").to("mm").magnitude
     assert to_core(text, "length", field="x") == pytest.approx(slow, rel=1e-12)
+
+
+@pytest.mark.parametrize(
+    ("minutes", "text"),
+    [
+        pytest.param(42.5, "42.5 min", id="short-stays-minutes"),
+        pytest.param(200.0, "3 h 20 min", id="200-min-is-3h20"),  # 3 × 60 + 20 = 200
+        pytest.param(180.0, "3 h", id="whole-hours"),
+        pytest.param(928_000.0, "15,466 h 40 min", id="no-scientific-notation"),  # 15466 × 60 + 40
+    ],
+)
+def test_durations_read_as_hours_and_minutes_past_ninety(minutes, text):
+    from sawplan.units import fmt_duration
+
+    assert fmt_duration(minutes) == text
+
+
+def test_ratios_over_ten_are_words():
+    from sawplan.units import fmt_ratio
+
+    assert fmt_ratio(42_000.0) == "over ten times"
+    assert fmt_ratio(0.4) == "0.40×"
