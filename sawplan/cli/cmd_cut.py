@@ -22,7 +22,10 @@ HELP = """Choose the blade, band speed and feed for one cut, and time it.
 
 Without --blade-tpi it recommends a pitch, tooth form and set for the section;
 with it, it says what that blade will do instead (time, what limits it, what
-goes wrong) beside the recommendation.
+goes wrong) beside the recommendation.  --band-speed and --feed plan the cut
+as set on the saw and say what it costs in blade wear.  Bundles are timed per
+piece against single cuts; sections that can lie another way say so when it
+saves time or blade.
 
 \b
 Examples:
@@ -31,6 +34,7 @@ Examples:
   sawplan cut 304 round 250mm --blade-tpi 4/6
   sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm --units us
   sawplan cut 1018 tube 60mm 3mm --bundle 3x4 --json
+  sawplan cut 4140 round 7in --blade-tpi 2/3 --band-speed 300ft/min
 
 Estimates only: the saw maker's manual and the blade maker's data govern.
 """
@@ -56,7 +60,15 @@ def cut_command(
         str | None,
         typer.Option(
             "--band-speed",
-            help="Run at this band speed, e.g. 60m/min (with --blade-tpi).",
+            help="Run at this band speed, e.g. 60m/min or 200ft/min.",
+            show_default=False,
+        ),
+    ] = None,
+    feed: Annotated[
+        str | None,
+        typer.Option(
+            "--feed",
+            help="Run at this down-feed, e.g. 25mm/min or 1in/min.",
             show_default=False,
         ),
     ] = None,
@@ -85,11 +97,11 @@ def cut_command(
 ) -> None:
     from sawplan.charts import cut_chart
     from sawplan.cli.cut_view import render_cut
-    from sawplan.cutting import compare, recommend
+    from sawplan.cutting import check_fits, compare, recommend
     from sawplan.errors import UsageError
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
-    from sawplan.saws import check_capacity, get_saw
+    from sawplan.saws import get_saw
     from sawplan.sections import parse_section
     from sawplan.store.lookup import BladeLog
     from sawplan.units import to_core
@@ -98,23 +110,21 @@ def cut_command(
         raise UsageError(
             f"expected bi-metal, carbon or carbide, got {blade_material!r}", field="blade-material"
         )
-    if band_speed is not None and blade_tpi is None:
-        raise UsageError(
-            "give --blade-tpi with --band-speed (the blade on the saw)", field="band-speed"
-        )
     mat = load_catalogue(materials_file).get(material)
     sec = parse_section(section, orientation=orient, bundle=bundle, nest=nest)
     log = BladeLog(db)
     the_saw = get_saw(saw, saws_file, extra=log.saws())
-    check_capacity(the_saw, sec)
+    check_fits(the_saw, sec)
     calibration, calibration_n = log.calibration(the_saw.name, mat.group) or (1.0, 0)
     kw = {"dry": dry, "blade_material": blade_material, "calibration": calibration}
+    if band_speed is not None:
+        kw["band_speed_m_min"] = to_core(band_speed, "speed", field="band-speed")
+    if feed is not None:
+        kw["feed_mm_min"] = to_core(feed, "feed", field="feed")
     summary = None
-    if blade_tpi is None:
+    if blade_tpi is None and band_speed is None and feed is None:
         result = recommend(mat, sec, the_saw, **kw)
     else:
-        if band_speed is not None:
-            kw["band_speed_m_min"] = to_core(band_speed, "speed", field="band-speed")
         comparison = compare(mat, sec, the_saw, blade_tpi, **kw)
         result, summary = comparison.chosen, comparison.summary
     if json_out:

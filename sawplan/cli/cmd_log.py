@@ -292,6 +292,8 @@ def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float |
         )
     except SawplanError as err:
         return None, err.one_line()
+    if result.stalled:
+        return None, result.stall_reason
     return result.cut_time_model_min, None
 
 

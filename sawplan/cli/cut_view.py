@@ -4,15 +4,39 @@ from __future__ import annotations
 
 from typing import Any
 
-from sawplan.units import Display, UnitSystem, fmt_number
+from sawplan.units import Display, UnitSystem, fmt_duration, fmt_number
+
+
+def _time_line(r: Any, d: Display) -> str:
+    from sawplan.cutting.explain import LIMIT_WORDS
+
+    if r.cut_time_min is None:
+        return f"Time        {r.stall_reason}"
+    share = dict(r.limit_shares).get(r.governing_limit, 1.0)
+    time = f"Time {fmt_duration(r.cut_time_min)} per cut"
+    if r.pieces > 1:
+        time += f" ({fmt_duration(r.time_per_piece_min)} per piece)"
+    return (
+        f"Rate        {d.fmt('rate', r.cutting_rate_mm2_min, 3)}   {time}   "
+        f"Limit {LIMIT_WORDS[r.governing_limit]} ({share:.0%} of the cut)"
+    )
+
+
+def _feed_line(r: Any, d: Display) -> str:
+    if r.cut_time_min is None:
+        return "Down-feed   —"
+    if r.feed_type == "constant":
+        return f"Down-feed   set {d.fmt('feed', r.feed_set_mm_min, 3)}"
+    return (
+        f"Down-feed   {d.fmt('feed', r.feed_mm_min, 3)} average, "
+        f"{d.fmt('feed', r.feed_set_mm_min, 3)} at the slowest depth"
+    )
 
 
 def render_cut(
     r: Any, units: UnitSystem, *, section_label: str | None = None, calibration_cuts: int = 0
 ) -> str:
-    """The operator's card: blade, speed, feed, time, why, warnings, break-in."""
-    from sawplan.cutting.explain import LIMIT_WORDS
-
+    """The operator's card: blade, speed, feed, time, why, warnings, bundle, break-in."""
     d = Display(units)
     lines = [f"{r.material} · {section_label or r.section} · saw {r.saw} ({r.feed_type} feed)"]
     blade = f"{r.pitch_label} TPI, {r.tooth_form} teeth, {r.tooth_set} set ({r.blade_material})"
@@ -23,27 +47,20 @@ def render_cut(
     if r.dry:
         speed += "  dry"
     lines.append(f"Band speed  {speed}")
-    if r.feed_type == "constant":
-        feed = f"set {d.fmt('feed', r.feed_set_mm_min, 3)}"
-    else:
-        feed = (
-            f"{d.fmt('feed', r.feed_mm_min, 3)} average, "
-            f"{d.fmt('feed', r.feed_set_mm_min, 3)} at the slowest depth"
-        )
-    lines.append(f"Down-feed   {feed}")
-    share = dict(r.limit_shares).get(r.governing_limit, 1.0)
-    lines.append(
-        f"Rate        {d.fmt('rate', r.cutting_rate_mm2_min, 3)}   "
-        f"Time {fmt_number(r.cut_time_min, 3)} min per cut   "
-        f"Limit {LIMIT_WORDS[r.governing_limit]} ({share:.0%} of the cut)"
-    )
+    lines.append(_feed_line(r, d))
+    lines.append(_time_line(r, d))
     for i, text in enumerate(r.explanation):
         lines.append(("Why         " if i == 0 else "            ") + text)
     if calibration_cuts:
         lines.append(
             f"            (calibration from {calibration_cuts} logged cuts on this saw and material group)"
         )
-    for i, text in enumerate(r.warnings):
+    if r.bundle is not None:
+        lines.append(f"Bundle      {r.bundle.why}")
+    if r.better_orientation:
+        lines.append(f"Orient      {r.better_orientation}")
+    warnings = [w for w in r.warnings if w != r.stall_reason]
+    for i, text in enumerate(warnings):
         lines.append(("Warnings    ! " if i == 0 else "            ! ") + text)
     if r.breakin:
         steps = []

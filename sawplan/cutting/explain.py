@@ -1,14 +1,16 @@
-"""Plain-language lines for a planned cut: why this pitch, what goes wrong.
+"""Plain-language lines for a planned cut: why this pitch, what its neighbours would do.
 
 Kept apart from the physics so the wording can change without touching it.
+Warnings are in ``warnings``; bundles, orientations and off-recommendation
+speeds and feeds in ``advice``.
 """
 
 from __future__ import annotations
 
 from sawplan.cutting import constants as K
-from sawplan.cutting.mechanics import wheel_ratio_warning
-from sawplan.cutting.pitch import catalogue
-from sawplan.cutting.plan import Candidate, Plan, SectionLike, pool, thin_wall, thinnest_length_mm
+from sawplan.cutting.choice import Choice, beyond_window, pool
+from sawplan.cutting.plan import Candidate, Plan, SectionLike, single_solid
+from sawplan.units import fmt_number, fmt_ratio
 
 LIMIT_WORDS = {
     "material": "the material's bite",
@@ -16,202 +18,173 @@ LIMIT_WORDS = {
     "tooth": "tooth strength",
     "power": "motor power",
     "force": "head force",
+    "set": "the down-feed as set",
 }
 SHORT_WHY = {
     "gullet": "gullets full",
-    "material": "bite held by the material, wider tooth spacing",
+    "material": "bite held by the material",
     "power": "motor-limited",
     "force": "head force spread over the teeth",
     "tooth": "tooth strength",
+    "set": "the down-feed as set",
 }
-CLIP_NOTICE = 1.03  # a speed held back by under 3 % is not worth a warning
 
 
-def where_thinnest(section: SectionLike) -> str:
-    if section.min_wall_mm is not None:
-        return f"the {section.min_wall_mm:.3g} mm wall"
-    return f"the {section.max_chord_mm:.3g} mm width"
+def mm(v: float) -> str:
+    """A length as a measurement: 0.01 mm under 10 mm, 0.1 mm under 100 mm, then whole mm."""
+    text = f"{v:,.0f}" if v >= 100 else f"{v:.{2 if v < 10 else 1}f}".rstrip("0").rstrip(".")
+    return f"{text} mm"
+
+
+def um(v_mm: float, digits: int = 2) -> str:
+    return f"{fmt_number(v_mm * 1000.0, digits)} µm"
+
+
+def share(v: float) -> str:
+    """A share as a whole percentage that never reads 0 % or 100 % when it is not."""
+    pct = 100.0 * v
+    if 0 < pct < 1:
+        return "under 1%"
+    if 99 < pct < 100:
+        return "over 99%"
+    return f"{pct:.0f}%"
+
+
+def thinnest_text(section: SectionLike) -> str:
+    """Where the three-tooth rule is read, in words."""
+    if single_solid(section):
+        return f"the {mm(section.max_chord_mm)} widest chord"
+    return f"the {mm(section.thinnest_chord_mm)} of metal at the thinnest depth"
 
 
 def ratio_text(ratio: float) -> str:
+    """'1.4× slower', 'about as fast', 'over ten times faster'."""
     if ratio >= 1.05:
-        return f"{ratio:.1f}× slower"
+        return f"{fmt_ratio(ratio)} slower"
     if ratio > 1 / 1.05:
         return "about as fast"
-    return f"{1 / ratio:.1f}× faster"
+    return f"{fmt_ratio(1 / ratio)} faster"
 
 
-def _teeth_text(cand: Candidate, section: SectionLike) -> str:
-    if section.is_solid:
+def teeth_text(cand: Candidate, section: SectionLike) -> str:
+    if single_solid(section):
         teeth = f"{cand.teeth_thinnest:.1f}" if cand.too_few else f"{cand.teeth_widest:.0f}"
-        return f"{teeth} teeth in the {section.max_chord_mm:.3g} mm widest chord"
-    return f"{cand.teeth_thinnest:.1f} teeth in {where_thinnest(section)}"
+        return f"{teeth} teeth in the {mm(section.max_chord_mm)} widest chord"
+    return f"{cand.teeth_thinnest:.1f} teeth over {thinnest_text(section)}"
 
 
-def why_chosen(cand: Candidate, section: SectionLike) -> str:
+def limit_text(cand: Candidate) -> str:
     run = cand.run
-    share = dict(run.limit_shares).get(run.governing_limit, 0.0)
-    limit = f"{LIMIT_WORDS[run.governing_limit]} sets the feed for {share:.0%} of the cut"
-    teeth = _teeth_text(cand, section)
-    if cand.allowed:
-        return f"{cand.pitch.label} cuts fastest within the tooth-count rules ({teeth}); {limit}"
-    if cand.too_few:
-        return f"{cand.pitch.label}: the finest pitch, still only {teeth}; {limit}"
-    return f"{cand.pitch.label}: the coarsest pitch, {teeth}; {limit}"
+    part = dict(run.limit_shares).get(run.governing_limit, 0.0)
+    return f"{LIMIT_WORDS[run.governing_limit]} sets the feed for {share(part)} of the cut"
 
 
-def neighbour_line(side: str, cand: Candidate, chosen: Candidate, section: SectionLike) -> str:
+def why_chosen(choice: Choice, plan: Plan) -> str:
+    """The first 'Why' line of a recommendation."""
+    cand, section = choice.chosen, plan.section
+    label, teeth = cand.pitch.label, teeth_text(cand, section)
+    if cand.stalled:
+        return f"{label}: the coarsest pitch, and the head still cannot load its teeth"
+    limit = limit_text(cand)
+    chart = choice.chart
+    width = f"the {mm(choice.width_of_cut_mm or 0.0)} average width of cut"
+    if choice.how == "fastest":
+        if cand.allowed:
+            return f"{label} cuts fastest within the tooth-count rules ({teeth}); {limit}"
+        if cand.too_few:
+            return f"{label}: the finest pitch, still only {teeth}; {limit}"
+        return f"{label}: the coarsest pitch, {teeth}; {limit}"
+    assert chart is not None
+    if choice.how == "chart":
+        return (
+            f"{label}: the pitch for {width} (metal area ÷ blade travel, as the trade reads "
+            f"tube, sections and bundles), {teeth}; {limit}"
+        )
+    if choice.how == "near-chart":
+        side = "finer" if cand.pitch.tpi_mean > chart.pitch.tpi_mean else "coarser"
+        return (
+            f"{label}: one step {side} than the {chart.pitch.label} read off {width} (metal "
+            f"area ÷ blade travel), and faster here; {teeth}; {limit}"
+        )
+    if choice.how == "finer-for-teeth":
+        return (
+            f"{label}: {chart.pitch.label} reads off {width} but leaves "
+            f"{chart.teeth_thinnest:.1f} teeth over {thinnest_text(section)}; {label} keeps "
+            f"{cand.teeth_thinnest:.1f}; {limit}"
+        )
+    if choice.how == "coarser-for-rubbing":
+        return (
+            f"{label}: coarser than the {chart.pitch.label} read off {width}, whose bite sits "
+            f"under the rubbing floor over {share(chart.run.rubbing_share)} of the metal; "
+            f"{teeth}; {limit}"
+        )
+    if choice.how == "thin-walls":
+        return (
+            f"{label}: the finest pitch made for this blade; no pitch keeps 3 teeth over "
+            f"{thinnest_text(section)} ({cand.teeth_thinnest:.1f} here); {limit}"
+        )
+    return (
+        f"{label}: the pitch nearest the {chart.pitch.label} read off {width} that keeps "
+        f"3 teeth and bites above the rubbing floor, {teeth}; {limit}"
+    )
+
+
+def neighbour_line(
+    side: str, cand: Candidate, chosen: Candidate, section: SectionLike, far: str = ""
+) -> str:
     label = f"{side} {cand.pitch.label}"
+    if cand.stalled:
+        return f"{label}: will not cut (the head cannot load its teeth)"
     if cand.too_few:
-        return f"{label}: only {cand.teeth_thinnest:.1f} teeth in {where_thinnest(section)}"
+        return f"{label}: only {cand.teeth_thinnest:.1f} teeth over {thinnest_text(section)}"
     if cand.too_many:
-        width = f"{section.max_chord_mm:.3g} mm"
-        return f"{label}: {cand.teeth_widest:.0f} teeth in the {width} widest chord (over about 24)"
+        most = K.number("bite", "max_teeth_widest_chord")
+        return (
+            f"{label}: {cand.teeth_widest:.0f} teeth in the {mm(section.max_chord_mm)} widest "
+            f"chord (over about {most:.0f})"
+        )
     why = SHORT_WHY[cand.run.governing_limit]
+    if cand.run.governing_limit == "material" and side == "coarser":
+        why += ", wider tooth spacing"
     if cand.run.rubbing_share > 0.05:
         why += ", teeth rub"
-    return f"{label}: {why}, {ratio_text(cand.run.cut_time_min / chosen.run.cut_time_min)}"
+    if chosen.stalled:
+        return f"{label}: {why}"
+    ratio = cand.time / chosen.time
+    return f"{label}: {why}, {ratio_text(ratio)}{far if ratio < 1 else ''}"
 
 
-def neighbours(chosen: Candidate, cands: list[Candidate], section: SectionLike) -> str | None:
+def neighbours(choice: Choice, cands: list[Candidate], section: SectionLike) -> str | None:
     """What the next finer and next coarser pitch of the same family would do."""
-    family = [c for c in pool(cands, solid=section.is_solid) if c.pitch.kind == chosen.pitch.kind]
+    chosen = choice.chosen
+    solid = single_solid(section)
+    family = [c for c in pool(cands, solid=solid) if c.pitch.kind == chosen.pitch.kind]
     if not any(c.pitch.same_teeth(chosen.pitch) for c in family):
         family = cands
     ordered = sorted(family, key=lambda c: (c.pitch.tpi_mean, c.pitch.tpi_coarse))
     i = next(k for k, c in enumerate(ordered) if c.pitch.same_teeth(chosen.pitch))
     parts = []
-    if i + 1 < len(ordered):
-        parts.append(neighbour_line("finer", ordered[i + 1], chosen, section))
-    if i > 0:
-        parts.append(neighbour_line("coarser", ordered[i - 1], chosen, section))
+    for side, k in (("finer", i + 1), ("coarser", i - 1)):
+        if not 0 <= k < len(ordered):
+            continue
+        cand = ordered[k]
+        far = ""
+        if choice.chart is not None and beyond_window(choice, cand, cands):
+            far = f", but more than a step from the {choice.chart.pitch.label} the trade reads here"
+        parts.append(neighbour_line(side, cand, chosen, section, far))
     return "; ".join(parts) if parts else None
-
-
-def _coarser_keeps_three_teeth(plan: Plan, cand: Candidate) -> bool:
-    length = thinnest_length_mm(plan.section)
-    need = K.number("bite", "min_teeth")
-    return any(p.tpi_mean < cand.pitch.tpi_mean and p.teeth_in(length) >= need for p in catalogue())
-
-
-def _tooth_count_warnings(plan: Plan, cand: Candidate) -> list[str]:
-    section = plan.section
-    need = K.number("bite", "min_teeth")
-    out = []
-    if thin_wall(section):
-        out.append(
-            f"walls under {K.number('bite', 'thin_wall_mm'):g} mm cannot hold {need:.0f} teeth "
-            "even with the finest pitch: wavy set, light feed, support the work close to the cut"
-        )
-    elif cand.too_few:
-        out.append(
-            f"only {cand.teeth_thinnest:.1f} teeth of {cand.pitch.label} in "
-            f"{where_thinnest(section)} (fewer than {need:.0f}): teeth can snag and strip; "
-            "use a finer pitch"
-        )
-    if cand.too_many:
-        most = K.number("bite", "max_teeth_widest_chord")
-        out.append(
-            f"{cand.teeth_widest:.0f} teeth in the {section.max_chord_mm:.3g} mm widest chord "
-            f"(over about {most:.0f}): gullets pack; a coarser pitch cuts faster"
-        )
-    return out
-
-
-def _rubbing_warnings(plan: Plan, cand: Candidate) -> list[str]:
-    run = cand.run
-    if run.rubbing_share <= 0.0:
-        return []
-    floor_um = plan.base.rubbing_floor_mm * 1000
-    head = (
-        f"tooth bite falls to {run.min_bite_mm * 1000:.2g} µm, under the {floor_um:.2g} µm "
-        f"rubbing floor, for {run.rubbing_share:.0%} of the cut: teeth rub instead of cutting"
-    )
-    if _coarser_keeps_three_teeth(plan, cand):
-        out = [f"{head}; coarser pitch needed"]
-    else:
-        out = [
-            f"{head}; a coarser pitch would leave fewer than 3 teeth in "
-            f"{where_thinnest(plan.section)}, so expect a slow cut across the "
-            f"{plan.section.max_chord_mm:.3g} mm chord"
-        ]
-    if plan.material.work_hardens:
-        out.append(
-            f"rubbing work-hardens {plan.material.key}: keep the feed up and never let the "
-            "blade dwell in the cut"
-        )
-    return out
-
-
-def _limit_warnings(plan: Plan, cand: Candidate) -> list[str]:
-    run, saw = cand.run, plan.saw
-    shares = dict(run.limit_shares)
-    out = []
-    material_um = plan.base.material_bite_mm * 1000
-    if shares.get("gullet", 0.0) > 0.5 and run.bite_mean_mm * 1000 < 0.5 * material_um:
-        out.append(
-            f"gullets overloaded: chips fill them at a {run.bite_mean_mm * 1000:.2g} µm bite, "
-            f"under half the {material_um:.2g} µm the material takes"
-        )
-    if shares.get("power", 0.0) > 0.2:
-        out.append(
-            f"power-limited for {shares['power']:.0%} of the cut: "
-            f"{saw.cutting_power_w:.0f} W at the blade "
-            f"({saw.motor_power_w:.0f} W motor × {saw.drive_efficiency:g})"
-        )
-    if shares.get("force", 0.0) > 0.2:
-        out.append(
-            f"head force {saw.head_force_n:.0f} N is shared by up to {cand.teeth_widest:.0f} "
-            f"teeth: it sets the feed for {shares['force']:.0%} of the cut"
-        )
-    if run.stalled:
-        out.append(
-            "the head force is too low for the teeth to bite at the widest chord: "
-            "add force or use a coarser pitch"
-        )
-    return out
-
-
-def _speed_warning(plan: Plan) -> list[str]:
-    s = plan.speed
-    if not s.clipped:
-        return []
-    wanted = s.base_m_min * s.width_factor * s.blade_factor * s.coolant_factor
-    held = s.band_speed_m_min
-    if max(wanted, held) / min(wanted, held) < CLIP_NOTICE:
-        return []
-    which = "highest" if s.clipped == "max" else "lowest"
-    return [
-        f"band speed held at the saw's {which} {held:g} m/min (the cut wants {wanted:.0f} m/min)"
-    ]
-
-
-def warnings(plan: Plan, cand: Candidate) -> list[str]:
-    out = _tooth_count_warnings(plan, cand)
-    width = plan.saw.blade_width_mm
-    if cand.pitch.source != "given" and not cand.pitch.fits_blade(width):
-        out.append(
-            f"{cand.pitch.label} is not usually made in a {width:g} mm wide blade "
-            f"(made {cand.pitch.min_blade_width_mm:g}-{cand.pitch.max_blade_width_mm:g} mm, memory)"
-        )
-    out += _rubbing_warnings(plan, cand)
-    out += _limit_warnings(plan, cand)
-    out += _speed_warning(plan)
-    wheel = wheel_ratio_warning(plan.saw.blade_thickness_mm, plan.saw.wheel_diameter_mm)
-    if wheel:
-        out.append(wheel)
-    return out
 
 
 def speed_line(plan: Plan) -> str:
     s = plan.speed
     if s.given:
-        return f"band speed {s.band_speed_m_min:.0f} m/min as given"
+        return (
+            f"band speed {fmt_number(s.band_speed_m_min, 3)} m/min as given "
+            f"(recommended {fmt_number(s.recommended_m_min, 3)} m/min)"
+        )
     parts = [f"{s.base_m_min:.0f} m/min for {plan.material.key}"]
     if abs(s.width_factor - 1) > 0.005:
-        parts.append(
-            f"{s.width_factor - 1:+.0%} for a {s.width_of_cut_mm:.3g} mm mean width of cut"
-        )
+        parts.append(f"{s.width_factor - 1:+.0%} for a {mm(s.width_of_cut_mm)} mean width of cut")
     if s.blade_factor != 1:
         parts.append(f"{s.blade_factor - 1:+.0%} {plan.blade_material} blade")
     if s.coolant_factor != 1:
@@ -223,9 +196,19 @@ def speed_line(plan: Plan) -> str:
 
 def feed_line(plan: Plan, cand: Candidate) -> str:
     run = cand.run
+    if cand.stalled:
+        return f"{plan.saw.feed_type} feed: the head cannot load the teeth, so it does not advance"
+    if plan.set_feed_mm_min is not None:
+        if plan.saw.force_limited:
+            return (
+                f"down-feed set to {fmt_number(plan.set_feed_mm_min, 3)} mm/min; the "
+                f"{plan.saw.feed_type} head holds it where its force allows, "
+                f"{fmt_number(run.feed_mean_mm_min, 3)} mm/min on average"
+            )
+        return f"down-feed set to {fmt_number(plan.set_feed_mm_min, 3)} mm/min as given"
     if plan.saw.force_limited:
         return (
-            f"{plan.saw.feed_type} feed follows the chord: {run.feed_mean_mm_min:.3g} mm/min on "
-            f"average, {run.feed_set_mm_min:.3g} mm/min at the slowest depth"
+            f"{plan.saw.feed_type} feed follows the chord: {fmt_number(run.feed_mean_mm_min, 3)} "
+            f"mm/min on average, {fmt_number(run.feed_set_mm_min, 3)} mm/min at the slowest depth"
         )
-    return f"set the down-feed to {run.feed_set_mm_min:.3g} mm/min, safe at the widest chord"
+    return "the down-feed is what the slowest depth allows, so it is safe at the widest chord"

@@ -51,6 +51,12 @@ _PHRASES = {
 }
 
 
+def orientation_words(shape: str, orientation: str) -> str:
+    """How a person says an orientation of a shape: 'on edge', 'in a vee', 'web down'."""
+    phrases = _PHRASES.get(orientation, {})
+    return phrases.get(shape, phrases.get("", "on a flat"))
+
+
 def canonical_shape(word: str) -> str | None:
     """The catalogue name ``word`` stands for, or None."""
     key = word.strip().lower().replace("_", "-")
@@ -182,8 +188,23 @@ class Section:
 
     @property
     def mean_chord_mm(self) -> float:
-        """Area / height: the W a constant-rate cut averages over."""
+        """Area / height: the average width of cut (metal area ÷ blade travel)."""
         return self.area_mm2 / self.height_mm
+
+    @cached_property
+    def thinnest_chord_mm(self) -> float:
+        """Metal on the blade's line where the teeth span the least of it.
+
+        Counted over the whole chord: both walls at a round tube's equator, the
+        two side walls of a box section, every column of a bundle.  Entry and
+        exit over a tangent or a corner are passing moments, not walls, and
+        are left out; a single solid bar is counted at its widest chord (the
+        trade's reading of the three-tooth rule for solids).
+        """
+        if self.is_solid and self.pieces == 1:
+            return self.max_chord_mm
+        thinnest = self._profile.thinnest_wall()
+        return self.max_chord_mm if thinnest is None else thinnest
 
     @property
     def min_wall_mm(self) -> float | None:
@@ -276,8 +297,7 @@ class Section:
         if system is not None:
             text += " in" if us else " mm"
         if len(SHAPES[self.shape].orientations) > 1:
-            phrases = _PHRASES.get(self.orientation, {})
-            text += " " + phrases.get(self.shape, phrases.get("", "on a flat"))
+            text += " " + orientation_words(self.shape, self.orientation)
         if self.pieces > 1:
             text += f", bundle {self.bundle_rows}×{self.bundle_cols}" + (
                 " nested" if self.nested else ""
@@ -302,3 +322,27 @@ class Section:
             "mean_chord_mm": self.mean_chord_mm,
             "min_wall_mm": self.min_wall_mm,
         }
+
+
+def largest_bundle(section: Section, width_mm: float, height_mm: float) -> tuple[int, int] | None:
+    """The most rows × columns of ``section``'s pieces that fit a width × height opening.
+
+    Grid bundles stack whole pieces; nested rounds sit D·√3/2 apart in rows
+    shifted by half a diameter (as ``Section`` lays them).  None when not even
+    one piece fits.
+    """
+    one = Section(section.shape, section.dims_mm, section.orientation)
+    w, h = one.width_mm, one.height_mm
+    slack = 1e-9
+    if w > width_mm + slack or h > height_mm + slack:
+        return None
+    if not (section.nested and section.shape in NESTABLE):
+        rows = int(height_mm / h + slack)
+        cols = int(width_mm / w + slack)
+        return min(rows, MAX_BUNDLE_SIDE), min(cols, MAX_BUNDLE_SIDE)
+    d = section.dims_mm[0]
+    rows = 1 + int((height_mm - d) / (d * math.sqrt(3.0) / 2.0) + slack)
+    cols = int((width_mm - d / 2) / d + slack) if rows > 1 else int(width_mm / d + slack)
+    if cols < 1:  # the half-diameter shift does not fit: one row, no nesting needed
+        rows, cols = 1, int(width_mm / d + slack)
+    return min(rows, MAX_BUNDLE_SIDE), min(cols, MAX_BUNDLE_SIDE)
