@@ -13,9 +13,14 @@ from dataclasses import dataclass
 
 from sawplan.cutting import constants as K
 from sawplan.cutting import tool_life as tl
-from sawplan.cutting.explain import LIMIT_WORDS, mm, share, um
+from sawplan.cutting.explain import LIMIT_WORDS
 from sawplan.cutting.plan import Candidate, Plan
 from sawplan.cutting.result import BundleVerdict, OrientationOption
+from sawplan.cutting.words import bite as um
+from sawplan.cutting.words import feed as feed_text
+from sawplan.cutting.words import force as newton
+from sawplan.cutting.words import length as mm
+from sawplan.cutting.words import power, rate, share, speed
 from sawplan.units import fmt_duration, fmt_number, fmt_ratio
 
 
@@ -71,8 +76,8 @@ def off_recommendation(
         wear *= speed_wear
         side = s.outside_band()
         band = K.number("speed", "recommended_band_percent")
-        rec = f"{fmt_number(s.recommended_m_min, 3)} m/min recommended for this cut"
-        given = f"{fmt_number(s.band_speed_m_min, 3)} m/min"
+        rec = f"{speed(s.recommended_m_min)} recommended for this cut"
+        given = speed(s.band_speed_m_min)
         if side == "above":
             life = tl.life_ratio(s.off_ratio, exp.n)
             lines.append(
@@ -106,8 +111,10 @@ def _feed_lines(
     out = []
     over = run.overload
     slowest = "" if not plan.saw.force_limited else " at the slowest depth"
-    allowed = f"{fmt_number(model.run.feed_set_mm_min, 3)} mm/min{slowest}"
-    head = f"down-feed {fmt_number(plan.set_feed_mm_min or 0.0, 3)} mm/min is over the {allowed} the model allows"
+    allowed = f"{feed_text(model.run.feed_set_mm_min)}{slowest}"
+    head = (
+        f"down-feed {feed_text(plan.set_feed_mm_min or 0.0)} is over the {allowed} the model allows"
+    )
     if over is not None:
         x = fmt_ratio(over.ratio)
         where = f"over {share(over.share)} of the cut"
@@ -134,7 +141,7 @@ def _feed_lines(
     if forced > 0.05:
         out.append(
             f"the head's force cannot push the set down-feed over {share(forced)} of the cut "
-            f"time: there the feed falls to what {plan.saw.head_force_n:.0f} N allows"
+            f"time: there the feed falls to what {newton(plan.saw.head_force_n or 0.0)} allows"
         )
     return out
 
@@ -200,7 +207,7 @@ def _touching(plan_b: Plan, plan_s: Plan) -> bool:
 
 
 def _rate(plan: Plan, cand: Candidate) -> str:
-    return f"{fmt_number(plan.section.area_mm2 / cand.time / 100.0, 3)} cm²/min"
+    return rate(plan.section.area_mm2 / cand.time)
 
 
 def _why_bundle_faster(
@@ -230,12 +237,12 @@ def _why_bundle_slower(
     rates = f"the saw removes {_rate(plan_b, cand_b)} against {_rate(plan_s, cand_s)} on one piece"
     if shares_b.get("force", 0) > 0.3:
         return (
-            f"{rates}: the head force ({saw.head_force_n:.0f} N) is shared by the teeth across "
+            f"{rates}: the head force ({newton(saw.head_force_n or 0.0)}) is shared by the teeth across "
             f"the whole {mm(plan_b.section.max_chord_mm)} chord, so each tooth bites less"
         )
     if shares_b.get("power", 0) > 0.3:
         return (
-            f"{rates}: the motor's {saw.cutting_power_w:.0f} W at the blade is spread over "
+            f"{rates}: the motor's {power(saw.cutting_power_w)} at the blade is spread over "
             f"{mm(plan_b.section.max_chord_mm)} of metal in the chord instead of "
             f"{mm(plan_s.section.max_chord_mm)}"
         )

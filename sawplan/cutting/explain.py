@@ -10,7 +10,9 @@ from __future__ import annotations
 from sawplan.cutting import constants as K
 from sawplan.cutting.choice import Choice, beyond_window, pool
 from sawplan.cutting.plan import Candidate, Plan, SectionLike, single_solid
-from sawplan.units import fmt_number, fmt_ratio
+from sawplan.cutting.words import feed, share, speed
+from sawplan.cutting.words import length as mm
+from sawplan.units import fmt_ratio
 
 LIMIT_WORDS = {
     "material": "the material's bite",
@@ -28,26 +30,6 @@ SHORT_WHY = {
     "tooth": "tooth strength",
     "set": "the down-feed as set",
 }
-
-
-def mm(v: float) -> str:
-    """A length as a measurement: 0.01 mm under 10 mm, 0.1 mm under 100 mm, then whole mm."""
-    text = f"{v:,.0f}" if v >= 100 else f"{v:.{2 if v < 10 else 1}f}".rstrip("0").rstrip(".")
-    return f"{text} mm"
-
-
-def um(v_mm: float, digits: int = 2) -> str:
-    return f"{fmt_number(v_mm * 1000.0, digits)} µm"
-
-
-def share(v: float) -> str:
-    """A share as a whole percentage that never reads 0 % or 100 % when it is not."""
-    pct = 100.0 * v
-    if 0 < pct < 1:
-        return "under 1%"
-    if 99 < pct < 100:
-        return "over 99%"
-    return f"{pct:.0f}%"
 
 
 def thinnest_text(section: SectionLike) -> str:
@@ -146,7 +128,9 @@ def neighbour_line(
     why = SHORT_WHY[cand.run.governing_limit]
     if cand.run.governing_limit == "material" and side == "coarser":
         why += ", wider tooth spacing"
-    if cand.run.rubbing_share > 0.05:
+    if cand.rubs_most:
+        why += f", teeth rub over {share(cand.run.rubbing_share)} of the metal"
+    elif cand.run.rubbing_share > 0.05:
         why += ", teeth rub"
     if chosen.stalled:
         return f"{label}: {why}"
@@ -179,10 +163,10 @@ def speed_line(plan: Plan) -> str:
     s = plan.speed
     if s.given:
         return (
-            f"band speed {fmt_number(s.band_speed_m_min, 3)} m/min as given "
-            f"(recommended {fmt_number(s.recommended_m_min, 3)} m/min)"
+            f"band speed {speed(s.band_speed_m_min)} as given "
+            f"(recommended {speed(s.recommended_m_min)})"
         )
-    parts = [f"{s.base_m_min:.0f} m/min for {plan.material.key}"]
+    parts = [f"{s.base_m_min:.0f} m/min for {plan.material.key}"]  # chart speeds: whole m/min
     if abs(s.width_factor - 1) > 0.005:
         parts.append(f"{s.width_factor - 1:+.0%} for a {mm(s.width_of_cut_mm)} mean width of cut")
     if s.blade_factor != 1:
@@ -201,14 +185,14 @@ def feed_line(plan: Plan, cand: Candidate) -> str:
     if plan.set_feed_mm_min is not None:
         if plan.saw.force_limited:
             return (
-                f"down-feed set to {fmt_number(plan.set_feed_mm_min, 3)} mm/min; the "
+                f"down-feed set to {feed(plan.set_feed_mm_min)}; the "
                 f"{plan.saw.feed_type} head holds it where its force allows, "
-                f"{fmt_number(run.feed_mean_mm_min, 3)} mm/min on average"
+                f"{feed(run.feed_mean_mm_min)} on average"
             )
-        return f"down-feed set to {fmt_number(plan.set_feed_mm_min, 3)} mm/min as given"
+        return f"down-feed set to {feed(plan.set_feed_mm_min)} as given"
     if plan.saw.force_limited:
         return (
-            f"{plan.saw.feed_type} feed follows the chord: {fmt_number(run.feed_mean_mm_min, 3)} "
-            f"mm/min on average, {fmt_number(run.feed_set_mm_min, 3)} mm/min at the slowest depth"
+            f"{plan.saw.feed_type} feed follows the chord: {feed(run.feed_mean_mm_min)} "
+            f"on average, {feed(run.feed_set_mm_min)} at the slowest depth"
         )
     return "the down-feed is what the slowest depth allows, so it is safe at the widest chord"

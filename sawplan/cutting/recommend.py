@@ -13,7 +13,7 @@ import dataclasses
 from dataclasses import dataclass, replace
 from typing import Any
 
-from sawplan.cutting import advice, explain, warn
+from sawplan.cutting import advice, explain, warn, words
 from sawplan.cutting import tool_life as tl
 from sawplan.cutting.breakin import BREAKIN_CAUTION, breakin_schedule
 from sawplan.cutting.choice import Choice, choose
@@ -32,7 +32,7 @@ from sawplan.cutting.plan import (
 from sawplan.cutting.result import CAUTION, Comparison, CutResult, ProfilePoint
 from sawplan.errors import BadDataError
 from sawplan.saws import Saw
-from sawplan.units import fmt_duration, fmt_number, fmt_ratio
+from sawplan.units import fmt_duration, fmt_ratio
 
 PROFILE_POINTS = 41
 
@@ -329,9 +329,9 @@ def evaluate(
 def _describe(r: CutResult, *, speed: bool, feed: bool) -> str:
     text = r.pitch_label
     if speed:
-        text += f" at {fmt_number(r.band_speed_m_min, 3)} m/min"
+        text += f" at {words.speed(r.band_speed_m_min)}"
     if feed and r.feed_given and r.feed_set_mm_min is not None:
-        text += f" with {fmt_number(r.feed_set_mm_min, 3)} mm/min down-feed"
+        text += f" with {words.feed(r.feed_set_mm_min)} down-feed"
     return text
 
 

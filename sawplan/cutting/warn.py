@@ -10,11 +10,14 @@ nothing about its time.
 from __future__ import annotations
 
 from sawplan.cutting import constants as K
-from sawplan.cutting.explain import mm, share, thinnest_text, um
+from sawplan.cutting.explain import thinnest_text
 from sawplan.cutting.mechanics import wheel_ratio_warning
 from sawplan.cutting.plan import Candidate, Plan, single_solid
 from sawplan.cutting.ploughing import teeth_in_chord, teeth_the_head_can_load
-from sawplan.units import fmt_number
+from sawplan.cutting.words import bite as um
+from sawplan.cutting.words import force as newton
+from sawplan.cutting.words import length as mm
+from sawplan.cutting.words import power, share, speed
 
 CLIP_NOTICE = 1.03  # a speed held back by under 3 % is not worth a warning
 
@@ -27,8 +30,8 @@ def stall_reason(plan: Plan, cand: Candidate) -> str:
     edge = plan.base.plough_force_n
     most = teeth_the_head_can_load(force, edge)
     return (
-        f"will not cut: the head force ({force:.0f} N) cannot load the {teeth:.0f} teeth of "
-        f"{cand.pitch.label} in the {mm(chord)} chord (each needs about {edge:.1f} N before it "
+        f"will not cut: the head force ({newton(force)}) cannot load the {teeth:.0f} teeth of "
+        f"{cand.pitch.label} in the {mm(chord)} chord (each needs about {newton(edge)} before it "
         f"bites, so at most {most:.0f} teeth); fit a coarser pitch or add feed force"
     )
 
@@ -128,12 +131,12 @@ def _limits(plan: Plan, cand: Candidate) -> list[str]:
     if shares.get("power", 0.0) > 0.2:
         out.append(
             f"power-limited for {share(shares['power'])} of the cut: "
-            f"{saw.cutting_power_w:.0f} W at the blade "
-            f"({saw.motor_power_w:.0f} W motor × {saw.drive_efficiency:g})"
+            f"{power(saw.cutting_power_w)} at the blade "
+            f"({power(saw.motor_power_w)} motor × {saw.drive_efficiency:g})"
         )
     if shares.get("force", 0.0) > 0.2:
         out.append(
-            f"head force {saw.head_force_n:.0f} N is shared by up to {cand.teeth_widest:.0f} "
+            f"head force {newton(saw.head_force_n or 0.0)} is shared by up to {cand.teeth_widest:.0f} "
             f"teeth: it sets the feed for {share(shares['force'])} of the cut"
         )
     return out
@@ -148,10 +151,7 @@ def _clipped_speed(plan: Plan) -> list[str]:
     if max(wanted, held) / min(wanted, held) < CLIP_NOTICE:
         return []
     which = "highest" if s.clipped == "max" else "lowest"
-    return [
-        f"band speed held at the saw's {which} {held:g} m/min (the cut wants "
-        f"{fmt_number(wanted, 3)} m/min)"
-    ]
+    return [f"band speed held at the saw's {which} {speed(held)} (the cut wants {speed(wanted)})"]
 
 
 def warnings(
