@@ -35,12 +35,12 @@ def test_cut_json_has_the_contract_keys(cli):
 
 
 def test_constant_pitch_has_equal_numbers(cli):
-    data = json.loads(cli("cut", "1018", "flat", "50mm", "6mm", "--blade-tpi", "14", "--json").out)
+    data = json.loads(cli("cut", "1018", "flat", "50mm", "6mm", "--pitch", "14", "--json").out)
     assert data["tpi_coarse"] == data["tpi_fine"] == 14
 
 
 def test_fine_pitch_on_big_solid_is_compared_and_warned(cli):
-    result = cli("cut", "4140", "round", "10in", "--blade-tpi", "6/10")
+    result = cli("cut", "4140", "round", "10in", "--pitch", "6/10")
     assert result.code == 0, result.err
     assert "× the time of" in result.out
     assert "!" in result.out  # at least one warning line
@@ -61,9 +61,7 @@ def test_us_units(cli):
 @pytest.mark.parametrize(
     ("args", "fragment", "code"),
     [
-        pytest.param(
-            ["4140", "round", "7in", "--blade-tpi", "3-4x"], "blade-tpi", 2, id="not a pitch"
-        ),
+        pytest.param(["4140", "round", "7in", "--pitch", "3-4x"], "pitch", 2, id="not a pitch"),
         pytest.param(
             ["4140", "round", "7in", "--saw", "mid-prodution"],
             "mid-production",
@@ -72,13 +70,13 @@ def test_us_units(cli):
         ),
         pytest.param(["4140", "round", "2m"], "capacity", 3, id="over capacity"),
         pytest.param(
-            ["4140", "round", "7in", "--blade-tpi", "3/4", "--band-speed", "900m/min"],
+            ["4140", "round", "7in", "--pitch", "3/4", "--band-speed", "900m/min"],
             "band",
             3,
             id="band speed outside range",
         ),
         pytest.param(
-            ["4140", "round", "7in", "--blade-tpi", "3/4", "--band-speed", "900m/min"],
+            ["4140", "round", "7in", "--pitch", "3/4", "--band-speed", "900m/min"],
             "20-100 m/min",
             3,
             id="band speed outside range says the range",
@@ -122,7 +120,7 @@ def test_band_speed_alone_is_planned_and_compared(cli):
 
 def test_long_times_read_in_hours_and_ratios_in_words(cli):
     # 10/14 through a 7 in 17-4 PH billet on the small gravity saw takes hours
-    result = cli("cut", "17-4PH", "round", "7in", "--saw", "small-horizontal", "--blade-tpi",
+    result = cli("cut", "17-4PH", "round", "7in", "--saw", "small-horizontal", "--pitch",
                  "10/14")  # fmt: skip
     assert result.code == 0, result.err
     assert re.search(r"Time \d+ h \d+ min per cut", result.out)
@@ -131,7 +129,7 @@ def test_long_times_read_in_hours_and_ratios_in_words(cli):
 
 
 def test_over_speed_comparison_line(cli):
-    result = cli("cut", "17-4PH", "round", "7in", "--saw", "small-horizontal", "--blade-tpi",
+    result = cli("cut", "17-4PH", "round", "7in", "--saw", "small-horizontal", "--pitch",
                  "2/3", "--band-speed", "75m/min")  # fmt: skip
     assert result.code == 0, result.err
     first = result.out.splitlines()[0]

@@ -109,7 +109,7 @@ def test_stalled_cut_reads_in_json_as_null_time(cli):
 def test_every_pitch_stalling_still_gives_one_clear_answer():
     from sawplan.cutting.plan import available
 
-    feeble = dataclasses.replace(SMALL, head_force_n=5.0)
+    feeble = dataclasses.replace(SMALL, head_force_n=10.0)  # the least a saw profile takes
     result = recommend(CAT.get("17-4PH"), BILLET, feeble)
     assert result.stalled and result.cut_time_min is None
     # the coarsest pitch made for the blade is the nearest to cutting

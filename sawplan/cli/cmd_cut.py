@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-from pathlib import Path
 from typing import Annotated
 
 import typer
@@ -11,16 +10,21 @@ from sawplan.cli.options import (
     BundleOpt,
     DbOpt,
     JsonOpt,
+    MaterialArg,
     MaterialsFileOpt,
     NestOpt,
     OrientOpt,
+    SawsFileOpt,
+    SectionArg,
     UnitsOpt,
+    command,
+    opt,
 )
 from sawplan.units import UnitSystem
 
 HELP = """Choose the blade, band speed and feed for one cut, and time it.
 
-Without --blade-tpi it recommends a pitch, tooth form and set for the section;
+Without --pitch it recommends a pitch, tooth form and set for the section;
 with it, it says what that blade will do instead (time, what limits it, what
 goes wrong) beside the recommendation.  --band-speed and --feed plan the cut
 as set on the saw and say what it costs in blade wear.  Bundles are timed per
@@ -31,10 +35,10 @@ saves time or blade.
 Examples:
   sawplan cut 4140 round 7in
   sawplan cut 304 round 250mm --saw large-column --chart
-  sawplan cut 304 round 250mm --blade-tpi 4/6
+  sawplan cut 304 round 250mm --pitch 4/6
   sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm --units us
   sawplan cut 1018 tube 60mm 3mm --bundle 3x4 --json
-  sawplan cut 4140 round 7in --blade-tpi 2/3 --band-speed 300ft/min
+  sawplan cut 4140 round 7in --pitch 2/3 --band-speed 300ft/min
 
 Estimates only: the saw maker's manual and the blade maker's data govern.
 """
@@ -43,56 +47,32 @@ DEFAULT_SAW = "mid-production"
 
 
 def cut_command(
-    material: Annotated[str, typer.Argument(help="Material key, e.g. 4140.", show_default=False)],
-    section: Annotated[
-        list[str], typer.Argument(help="Shape and sizes, e.g. round 7in.", show_default=False)
-    ],
+    material: MaterialArg,
+    section: SectionArg,
     saw: Annotated[
-        str, typer.Option("--saw", "-s", help="Saw profile (see `sawplan saw list`).")
+        str, opt("saw", help="Saw profile (see `sawplan saw list`).", show_default=True)
     ] = DEFAULT_SAW,
     blade_tpi: Annotated[
-        str | None,
-        typer.Option(
-            "--blade-tpi", "-t", help="Evaluate this pitch, e.g. 3/4 or 6.", show_default=False
-        ),
+        str | None, opt("pitch", help="Evaluate this pitch, e.g. 3/4 or 6.")
     ] = None,
     band_speed: Annotated[
-        str | None,
-        typer.Option(
-            "--band-speed",
-            help="Run at this band speed, e.g. 60m/min or 200ft/min.",
-            show_default=False,
-        ),
+        str | None, opt("band_speed", help="Run at this band speed, e.g. 60m/min or 200ft/min.")
     ] = None,
     feed: Annotated[
-        str | None,
-        typer.Option(
-            "--feed",
-            help="Run at this down-feed, e.g. 25mm/min or 1in/min.",
-            show_default=False,
-        ),
+        str | None, opt("feed", help="Run at this down-feed, e.g. 25mm/min or 1in/min.")
     ] = None,
-    dry: Annotated[bool, typer.Option("--dry", help="Cut without coolant.")] = False,
-    blade_material: Annotated[
-        str, typer.Option("--blade-material", help="bi-metal, carbon or carbide.")
-    ] = "bi-metal",
+    dry: Annotated[bool, opt("dry")] = False,
+    blade_material: Annotated[str, opt("blade_material", show_default=True)] = "bi-metal",
     orient: OrientOpt = None,
     bundle: BundleOpt = None,
     nest: NestOpt = False,
     chart: Annotated[
-        bool, typer.Option("--chart", help="Chart width of cut and feed through the cut.")
+        bool, opt("chart", help="Chart width of cut and feed through the cut.")
     ] = False,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     db: DbOpt = None,
-    saws_file: Annotated[
-        Path | None,
-        typer.Option(
-            "--saws",
-            help="Your own saw profiles (TOML; env SAWPLAN_SAWS).",
-            show_default=False,
-        ),
-    ] = None,
+    saws_file: SawsFileOpt = None,
     materials_file: MaterialsFileOpt = None,
 ) -> None:
     from sawplan.charts import cut_chart
@@ -104,7 +84,7 @@ def cut_command(
     from sawplan.saws import get_saw
     from sawplan.sections import parse_section
     from sawplan.store.lookup import BladeLog
-    from sawplan.units import to_core
+    from sawplan.fields import parse
 
     if blade_material not in ("bi-metal", "carbon", "carbide"):
         raise UsageError(
@@ -118,9 +98,9 @@ def cut_command(
     calibration, calibration_n = log.calibration(the_saw.name, mat.group) or (1.0, 0)
     kw = {"dry": dry, "blade_material": blade_material, "calibration": calibration}
     if band_speed is not None:
-        kw["band_speed_m_min"] = to_core(band_speed, "speed", field="band-speed")
+        kw["band_speed_m_min"] = parse("band_speed", band_speed)
     if feed is not None:
-        kw["feed_mm_min"] = to_core(feed, "feed", field="feed")
+        kw["feed_mm_min"] = parse("feed", feed)
     summary = None
     if blade_tpi is None and band_speed is None and feed is None:
         result = recommend(mat, sec, the_saw, **kw)
@@ -144,4 +124,4 @@ def cut_command(
 
 
 def register(app: typer.Typer) -> None:
-    app.command("cut", help=HELP)(cut_command)
+    command(app, "cut", HELP)(cut_command)
