@@ -79,12 +79,12 @@ def cut_command(
     from sawplan.cli.cut_view import render_cut
     from sawplan.cutting import check_fits, compare, recommend
     from sawplan.errors import UsageError
+    from sawplan.fields import parse
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
     from sawplan.saws import get_saw
     from sawplan.sections import parse_section
     from sawplan.store.lookup import BladeLog
-    from sawplan.fields import parse
 
     if blade_material not in ("bi-metal", "carbon", "carbide"):
         raise UsageError(
