@@ -237,17 +237,35 @@ class Section:
 
         if not (0.0 <= y_mm <= self.height_mm):
             return ()
-        parts = self._placed[0]
+        eps = 1e-9 * max(self.height_mm, 1.0)
+        parts = self._parts_near(y_mm, 2 * eps)
         runs = tuple(b - a for a, b in metal_runs(parts, y_mm))
         chord = self.chord_mm(y_mm)
         if abs(sum(runs) - chord) > 1e-9 * max(chord, 1.0):
             # on a horizontal face W(y) takes the side the teeth touch: do the same
-            eps = 1e-9 * max(self.height_mm, 1.0)
             for y in (y_mm - eps, y_mm + eps):
                 side = tuple(b - a for a, b in metal_runs(parts, y))
                 if abs(sum(side) - chord) < abs(sum(runs) - chord):
                     runs = side
         return runs
+
+    @cached_property
+    def _by_depth(self) -> tuple[tuple[float, ...], tuple[tuple[float, float, Part], ...]]:
+        """Parts sorted by the depth of their top, with their depth extents (for runs_mm)."""
+        placed = []
+        for part in self._placed[0]:
+            _x0, top, _x1, bottom = part.figure.bounds()
+            placed.append((top, bottom, part))
+        placed.sort(key=lambda t: t[0])
+        return tuple(t[0] for t in placed), tuple(placed)
+
+    def _parts_near(self, y_mm: float, slack: float) -> list[Part]:
+        """The parts whose depth extent reaches depth y (a bundle cuts one row at a time)."""
+        tops, placed = self._by_depth
+        from bisect import bisect_right
+
+        end = bisect_right(tops, y_mm + slack)
+        return [part for top, bottom, part in placed[:end] if bottom >= y_mm - slack]
 
     def longest_run_mm(self, y_mm: float) -> float:
         """The longest single stretch of metal at depth y (0 outside the section)."""
