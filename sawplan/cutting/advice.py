@@ -25,14 +25,22 @@ from sawplan.units import fmt_duration, fmt_number, fmt_ratio
 
 
 def wear_text(ratio: float) -> str:
-    """'about 3.5× the blade wear per cut' / 'over ten times the blade wear per cut'."""
+    """'about 3.5× the blade wear per cut', 'over ten times …', 'about 1/60 of …'."""
     if ratio > 10:
         return "over ten times the blade wear per cut"
+    if ratio < 0.1:
+        return f"about 1/{fmt_number(1.0 / ratio, 2)} of the blade wear per cut"
     return f"about {fmt_ratio(ratio)} the blade wear per cut"
 
 
-def taylor_note(exp: tl.TaylorExponent) -> str:
-    return f"Taylor's relation V·Tⁿ = C, n = {exp.n:g} for {exp.tool.split(' (')[0]} teeth"
+def taylor_note(exp: tl.TaylorExponent, *, feed: bool = False) -> str:
+    tool = exp.tool.split(" (")[0]
+    if feed:
+        return (
+            f"Taylor's relation with feed, V·Tⁿ·fʸ = C, n = {exp.n:g} for {tool} teeth, "
+            f"y = {tl.FEED_EXPONENT:g}"
+        )
+    return f"Taylor's relation V·Tⁿ = C, n = {exp.n:g} for {tool} teeth"
 
 
 def _life_text(life: float) -> str:
@@ -117,7 +125,7 @@ def _feed_lines(
     )
     if over is not None:
         x = fmt_ratio(over.ratio)
-        where = f"over {share(over.share)} of the cut"
+        where = f"across {share(over.share)} of the cut"
         if over.limit == "material":
             out.append(
                 f"{head}: the bite reaches {x} what {plan.material.key} takes {where}: "
@@ -140,7 +148,7 @@ def _feed_lines(
     forced = dict(run.limit_shares).get("force", 0.0)
     if forced > 0.05:
         out.append(
-            f"the head's force cannot push the set down-feed over {share(forced)} of the cut "
+            f"the head's force cannot push the set down-feed for {share(forced)} of the cut "
             f"time: there the feed falls to what {newton(plan.saw.head_force_n or 0.0)} allows"
         )
     return out
@@ -250,7 +258,7 @@ def _why_bundle_slower(
         return (
             f"{rates}: the pieces touch, so chips fill the gullets over longer stretches of "
             f"metal and the bite falls under the {um(plan_b.base.rubbing_floor_mm)} rubbing "
-            f"floor over {share(cand_b.run.rubbing_share)} of the metal"
+            f"floor across {share(cand_b.run.rubbing_share)} of the metal"
         )
     if not saw.force_limited:
         return (

@@ -97,7 +97,7 @@ def why_chosen(choice: Choice, plan: Plan) -> str:
     if choice.how == "coarser-for-rubbing":
         return (
             f"{label}: coarser than the {chart.pitch.label} read off {width}, whose bite sits "
-            f"under the rubbing floor over {share(chart.run.rubbing_share)} of the metal; "
+            f"under the rubbing floor across {share(chart.run.rubbing_share)} of the metal; "
             f"{teeth}; {limit}"
         )
     if choice.how == "thin-walls":
@@ -129,7 +129,7 @@ def neighbour_line(
     if cand.run.governing_limit == "material" and side == "coarser":
         why += ", wider tooth spacing"
     if cand.rubs_most:
-        why += f", teeth rub over {share(cand.run.rubbing_share)} of the metal"
+        why += f", teeth rub across {share(cand.run.rubbing_share)} of the metal"
     elif cand.run.rubbing_share > 0.05:
         why += ", teeth rub"
     if chosen.stalled:

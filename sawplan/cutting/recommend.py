@@ -387,13 +387,16 @@ def _summary(chosen: CutResult, rec: CutResult) -> tuple[float | None, str, floa
     )
     if ratio < 0.995 and wear is not None and wear > 1.05:
         exp = tl.exponent_for(chosen.blade_material)
-        return (
-            ratio,
-            f"{times}: faster, but {advice.wear_text(wear)} ({advice.taylor_note(exp)})",
-            wear,
-        )
+        note = advice.taylor_note(exp, feed=feed)
+        return ratio, f"{times}: faster, but {advice.wear_text(wear)} ({note})", wear
     if ratio < 0.995:
         why = chosen.warnings[0] if chosen.warnings else "both are within the rules"
         return ratio, f"{times}: faster, but {why}", wear
-    problem = chosen.warnings[0] if chosen.warnings else explain.SHORT_WHY[chosen.governing_limit]
+    if feed and chosen.governing_limit == "set" and not chosen.warnings:
+        model = rec.feed_set_mm_min or 0.0
+        problem = f"slower: the down-feed is set under what the model allows ({words.feed(model)})"
+    else:
+        problem = (
+            chosen.warnings[0] if chosen.warnings else explain.SHORT_WHY[chosen.governing_limit]
+        )
     return ratio, f"{times}: {problem}", wear

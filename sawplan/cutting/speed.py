@@ -118,7 +118,7 @@ def band_speed(
             raise BadDataError(
                 f"the saw runs {speed_min_m_min:g}-{speed_max_m_min:g} m/min "
                 f"({speed_min_m_min * ft:.0f}-{speed_max_m_min * ft:.0f} ft/min), "
-                f"got {given_m_min:.3g} m/min",
+                f"got {given_m_min:.3g} m/min ({given_m_min * ft:.3g} ft/min)",
                 field="band-speed",
                 hint=f"sawplan recommends {speed:.0f} m/min for this cut",
             )

@@ -72,7 +72,7 @@ def _rubbing(plan: Plan, cand: Candidate, cands: list[Candidate], given: bool) -
     digits = 2 if um(run.min_bite_mm) != um(floor) else 3
     head = (
         f"tooth bite falls to {um(run.min_bite_mm, digits)}, under the {um(floor, digits)} "
-        f"rubbing floor, over {share(run.rubbing_share)} of the metal cut: teeth rub instead "
+        f"rubbing floor, across {share(run.rubbing_share)} of the metal cut: teeth rub instead "
         "of cutting"
     )
     if not given and not cand.rubs_most:  # the choice weighed it: say where, not what else
