@@ -94,15 +94,17 @@ def test_a_blade_that_cannot_bite_is_stalled_not_timed():
 
 
 def test_stalled_cut_reads_in_json_as_null_time(cli):
-    out = cli("cut", "17-4PH", "round", "7in", "--saw", "small-horizontal", "--blade-tpi", "14",
+    out = cli("cut", "17-4PH", "round", "7in", "--saw", "small-horizontal", "--pitch", "14",
               "--json")  # fmt: skip
     assert out.code == 0, out.err
     data = json.loads(out.out)
     assert data["stalled"] is True
     assert data["cut_time_min"] is None
     assert "will not cut" in data["stall_reason"]
-    text = cli("cut", "17-4PH", "round", "7in", "--saw", "small-horizontal", "--blade-tpi", "14")
-    assert "will not cut" in text.out
+    text = cli("cut", "17-4PH", "round", "7in", "--saw", "small-horizontal", "--pitch", "14",
+               "--chart")  # fmt: skip
+    assert text.code == 0, text.err
+    assert "will not cut" in text.out and "No chart: the cut does not progress." in text.out
     assert "e+" not in text.out and "min per cut" not in text.out
 
 
@@ -114,3 +116,33 @@ def test_every_pitch_stalling_still_gives_one_clear_answer():
     assert result.stalled and result.cut_time_min is None
     # the coarsest pitch made for the blade is the nearest to cutting
     assert math.isclose(result.tpi_coarse, min(p.tpi_coarse for p in available(feeble)))
+
+
+def test_a_job_planned_on_a_saw_that_cannot_cut_it_is_refused():
+    from sawplan.cutlist.jobfile.load import parse_job
+    from sawplan.cutlist.plan.job import plan_job
+    from sawplan.errors import BadDataError
+
+    text = "\n".join(
+        [
+            "[job]",
+            'name = "billet"',
+            'kerf = "2mm"',
+            "[[stock]]",
+            'material = "17-4PH"',
+            'section = "round 7in"',
+            'length = "1m"',
+            "count = 1",
+            "[[part]]",
+            'name = "disc"',
+            'material = "17-4PH"',
+            'section = "round 7in"',
+            'length = "40mm"',
+            "count = 2",
+        ]
+    )
+    feeble = dataclasses.replace(SMALL, head_force_n=10.0)
+    job = parse_job(text + "\n", CAT, file="job.toml")
+    with pytest.raises(BadDataError) as err:
+        plan_job(job, feeble, time_limit_s=2.0)
+    assert "will not cut" in str(err.value)

@@ -120,7 +120,9 @@ def cut_command(
     print(render_cut(result, units, section_label=label, calibration_cuts=calibration_n))
     if chart:
         print()
-        print(cut_chart(result, units))
+        print(
+            cut_chart(result, units) if result.profile else "No chart: the cut does not progress."
+        )
 
 
 def register(app: typer.Typer) -> None:
