@@ -152,3 +152,38 @@ def test_orientations_compared_for_angle_and_channel():
         assert o.cut_time_min is not None and o.wear_ratio is not None
     # a round tube looks the same every way: nothing to compare
     assert recommend(CAT.get("A36"), parse_section("tube 60mm 3mm"), MID).orientations == ()
+
+
+@pytest.mark.parametrize(
+    ("spec", "chart"),
+    [
+        # common practice: trade pitch charts for tube and structurals, read by wall
+        # thickness and size (from memory); each within one catalogue step
+        pytest.param("tube 2in 0.12in", "10/14", id="tube 2 in x 0.120 in"),
+        pytest.param("tube 4.5in 0.237in", "6/10", id="4 in sch 40 pipe"),
+        pytest.param("angle 3in 3in 0.25in", "6/10", id="angle 3 x 3 x 1/4"),
+        pytest.param("channel 6in 2in 0.2in 0.34in", "6/10", id="channel C6"),
+        pytest.param("rtube 4in 2in 0.1875in", "8/12", id="rect tube 4 x 2 x 3/16"),
+        pytest.param("stube 2in 0.125in", "10/14", id="square tube 2 x 2 x 1/8"),
+        pytest.param("ibeam 8in 5.25in 0.23in 0.36in --orient on-side", "6/10", id="W8 on side"),
+        # bundles by the average width of cut on the solids pairs (MH31: 3/4 in -> 6/10,
+        # 1 1/4 in -> 4/6)
+        pytest.param("tube 2in 0.12in --bundle 2x2", "6/10", id="2x2 tubes, 0.71 in"),
+        pytest.param("tube 60mm 3mm --bundle 3x4", "4/6", id="3x4 tubes, 1.41 in"),
+        pytest.param("angle 3in 3in 0.25in --bundle 2x2", "4/6", id="2x2 angles, 1.25 in"),
+    ],
+)
+def test_common_fabrication_cuts_within_one_step_of_a_trade_chart(spec, chart):
+    result = recommend(CAT.get("A36"), parse_section(spec), MID)
+    assert steps_apart(result.pitch_label, chart) <= 1, result.explanation
+
+
+def test_an_upright_i_beam_web_needs_a_fine_pitch_and_is_shown_on_its_side():
+    # three teeth over the 5.84 mm web alone need 3 × 25.4 / 5.84 = 13 TPI coarse (derived);
+    # structural charts give 6/10-8/12 here, so sawplan names the way that cuts with it
+    result = recommend(CAT.get("A36"), parse_section("ibeam 8in 5.25in 0.23in 0.36in"), MID)
+    assert result.tpi_coarse >= 3 * 25.4 / (0.23 * 25.4)
+    assert result.better_orientation is not None
+    assert "--orient on-side" in result.better_orientation
+    side = next(o for o in result.orientations if o.orientation == "on-side")
+    assert steps_apart(side.pitch_label, "6/10") <= 1

@@ -134,12 +134,9 @@ def pick_walls(plan: Plan, cands: list[Candidate]) -> Choice:
     if not keeps_teeth:  # the most teeth there are: stripped teeth cost more than rubbing
         finest = max(live, key=lambda c: (c.pitch.tpi_coarse, c.pitch.tpi_fine))
         return Choice(finest, "thin-walls", chart, width)
-    clean = [c for c in keeps_teeth if not c.rubs_most]
-    if clean:
-        group = clean
-    else:
-        least = min(c.run.rubbing_share for c in keeps_teeth)
-        group = [c for c in keeps_teeth if c.run.rubbing_share <= least + 0.05]
+    # every pitch that keeps the teeth may rub (thin faces across the blade): then the
+    # rubbing rule has nothing to choose between
+    group = [c for c in keeps_teeth if not c.rubs_most] or keeps_teeth
     near = [c for c in _window(chart, cands) if any(c is g for g in group)]
     if near:
         chosen = _fastest(near, plan.material.work_hardens)
