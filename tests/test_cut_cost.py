@@ -16,7 +16,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from sawplan.cutting import gilbert
+from sawplan.cutting import gilbert, tool_life
 from sawplan.cutting.cut_cost import (
     CostInputs,
     LifeRelation,
@@ -43,20 +43,14 @@ def test_gilbert_maximum_production_textbook_example():
     g = GROOVER
     life = gilbert.optimum_life_production_min(g["n"], g["change_min"])
     assert life == pytest.approx(14.0)  # printed: 14 min
-    assert round(gilbert.speed_for_life(g["c"], g["n"], life)) == 50  # printed: 50 m/min
+    assert round(tool_life.speed_for_life(life, g["c"], g["n"])) == 50  # printed: 50 m/min
 
 
 def test_gilbert_minimum_cost_textbook_example():
     g = GROOVER
     life = gilbert.optimum_life_cost_min(g["n"], g["change_min"], g["price"], g["rate_per_min"])
     assert life == pytest.approx(56.0)  # printed: 56 min
-    assert round(gilbert.speed_for_life(g["c"], g["n"], life)) == 42  # printed: 42 m/min
-
-
-def test_time_exponent_from_area_exponent():
-    # derived: L ∝ V^(−1/n_A) and T = L·t/A ∝ L/V ∝ V^(−(1 + 1/n_A)) → n_T = n_A/(1 + n_A)
-    assert gilbert.time_exponent(0.25) == pytest.approx(0.2)
-    assert gilbert.time_exponent(0.125) == pytest.approx(0.125 / 1.125)
+    assert round(tool_life.speed_for_life(life, g["c"], g["n"])) == 42  # printed: 42 m/min
 
 
 def test_time_constant_reproduces_blade_minutes():

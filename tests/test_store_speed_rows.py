@@ -55,9 +55,9 @@ def test_rows_carry_each_cut_at_its_speed_in_order(tmp_path):
     assert rows.failed == (True, False)  # retired = failed; still running = censored
     assert rows.prices == (60.0, 75.0)
     assert rows.material_groups == ("austenitic-stainless", "carbon-steel")
-    assert rows.blade == (0, 0, 1)
-    assert rows.speed_m_min == (40.0, 60.0, 50.0)  # in the order cut (date, then entry)
-    assert rows.area_cm2 == pytest.approx((2 * ROUND_60_CM2, ROUND_60_CM2, ROUND_60_CM2))
+    assert rows.blade.tolist() == [0, 0, 1]
+    assert rows.speed_m_min.tolist() == [40.0, 60.0, 50.0]  # in the order cut (date, then entry)
+    assert rows.area_cm2.tolist() == pytest.approx([2 * ROUND_60_CM2, ROUND_60_CM2, ROUND_60_CM2])
     assert rows.imputed_area_cm2 == 0.0
     assert rows.blade_types[0] != rows.blade_types[1]
 
@@ -76,7 +76,7 @@ def test_cut_without_speed_takes_the_blades_mean_and_blade_without_any_is_left_o
     assert rows.left_out == ("Q1",)
     # derived: area-weighted mean of 3 cuts at 40 and 1 at 80 = (3·40 + 80)/4 = 50 m/min
     assert rows.speed_m_min[-1] == pytest.approx(50.0)
-    assert rows.speed_logged == (True, True, False)
+    assert rows.speed_logged.tolist() == [True, True, False]
     assert rows.imputed_area_cm2 == pytest.approx(ROUND_60_CM2)
 
 
@@ -89,5 +89,5 @@ def test_only_one_group_and_type_renumbers_the_blades(tmp_path):
         _cut(db, b, 45.0)
         rows = speed_life_rows(db).only(material_group="austenitic-stainless")
     assert rows.tags == ("B1",)
-    assert rows.blade == (0,)
-    assert rows.speed_m_min == (45.0,)
+    assert rows.blade.tolist() == [0]
+    assert rows.speed_m_min.tolist() == [45.0]

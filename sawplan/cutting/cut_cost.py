@@ -21,7 +21,7 @@ import math
 from dataclasses import dataclass
 from typing import Literal
 
-from sawplan.cutting import gilbert
+from sawplan.cutting import gilbert, tool_life
 from sawplan.errors import BadDataError
 
 RunName = Literal["recommended", "cost", "production"]
@@ -74,7 +74,7 @@ class LifeRelation:
 
     def mean_life_cm2(self, speed_m_min: float) -> float:
         """L(V) = (C/V)^(1/n)."""
-        return (self.c_m_min / speed_m_min) ** (1.0 / self.n)
+        return tool_life.life_at(speed_m_min, self.c_m_min, self.n)
 
 
 @dataclass(frozen=True)
@@ -187,7 +187,7 @@ def cut_economics(
     """Cost and time of a cut at the recommended speed and at Gilbert's two optima."""
     lo, hi = _range(speed_range_m_min)
     _positive(recommended_m_min, "band-speed", "m/min")
-    n_t = gilbert.time_exponent(life.n)
+    n_t = tool_life.time_exponent(life.n)
     c_t = gilbert.time_constant(life.c_m_min, life.n, times.k_min_m_min, area_mm2 / 100.0)
     t_cost = gilbert.optimum_life_cost_min(
         n_t, inputs.change_min.value, inputs.blade_price.value, inputs.rate_per_min
@@ -200,7 +200,7 @@ def cut_economics(
 
     runs = [at("recommended", recommended_m_min, None, None, None)]
     for run, t_opt in (("cost", t_cost), ("production", t_prod)):
-        optimum = gilbert.speed_for_life(c_t, n_t, t_opt)
+        optimum = tool_life.speed_for_life(t_opt, c_t, n_t)
         v, held = _hold(optimum, lo, hi, times.feed_limit_m_min)
         runs.append(at(run, v, optimum, held, t_opt))
     return CutEconomics(

@@ -9,7 +9,8 @@ a tool price C_t and a tool change time t_c, the cost per piece
 is least at the tool life  T_cost = (1/n − 1)·(t_c + C_t/C_m)  and the time per
 piece  t_m + t_h + t_c·t_m/T  is least at  T_prod = (1/n − 1)·t_c  (Gilbert
 1950, "Economics of machining"; the form taught in manufacturing-processes
-textbooks).  The speed that gives a life T is V = C/Tⁿ.
+textbooks).  The speed that gives a life T is V = C/Tⁿ
+(``sawplan.cutting.tool_life.speed_for_life``).
 
 A band-saw blade's life is counted as area cut, V·Lⁿᴬ = C_A.  For one cut
 of area A whose time falls as 1/V (the tooth bite held, as in the cutting
@@ -25,6 +26,7 @@ from __future__ import annotations
 
 import math
 
+from sawplan.cutting.tool_life import time_exponent
 from sawplan.errors import BadDataError
 
 
@@ -44,21 +46,6 @@ def optimum_life_production_min(n: float, change_min: float) -> float:
     _exponent(n)
     _at_least_zero(change_min, "change-time")
     return (1.0 / n - 1.0) * change_min
-
-
-def speed_for_life(c_m_min: float, n: float, life_min: float) -> float:
-    """V = C/Tⁿ (Taylor's relation in time solved for the speed)."""
-    _exponent(n)
-    _above_zero(c_m_min, "taylor-c")
-    if life_min <= 0.0:
-        return math.inf  # no life to keep: as fast as the machine goes
-    return c_m_min / life_min**n
-
-
-def time_exponent(n_area: float) -> float:
-    """n in time from n in area cut, for a cut whose time falls as 1/V: n_A/(1 + n_A)."""
-    _above_zero(n_area, "n")
-    return n_area / (1.0 + n_area)
 
 
 def time_constant(c_area_m_min: float, n_area: float, k_min_m_min: float, area_cm2: float) -> float:

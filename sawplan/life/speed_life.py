@@ -323,6 +323,8 @@ class _Data:
         import numpy as np
 
         a, m, s = (float(t) for t in theta)
+        if not (_M_BOUNDS[0] < m < _M_BOUNDS[1] and _S_BOUNDS[0] < s < _S_BOUNDS[1]):
+            return math.inf, np.zeros(3)  # outside any sensible relation: the line search backs off
         beta = math.exp(s)
         big_e, big_f = self._exposures(m)
         log_z = np.log(big_e) - a
@@ -361,22 +363,21 @@ class _Data:
         import numpy as np
         from scipy.optimize import minimize
 
-        bounds = [(None, None), _M_BOUNDS, _S_BOUNDS]
+        # BFGS on the analytic gradient; the exponent and shape stay inside sensible bounds
         res = minimize(
             self.neg_loglik,
             self.start(),
             jac=True,
-            method="L-BFGS-B",
-            bounds=bounds,
-            options={"maxiter": 500, "ftol": 1e-14, "gtol": 1e-9},
+            method="BFGS",
+            options={"maxiter": 500, "gtol": 1e-8},
         )
         theta = res.x
-        at_edge = any(
-            lo is not None and (abs(theta[i] - lo) < 1e-6 or abs(theta[i] - hi) < 1e-6)
-            for i, (lo, hi) in enumerate(bounds)
-        )
+        m_lo, m_hi = _M_BOUNDS
+        s_lo, s_hi = _S_BOUNDS
+        if not (m_lo < theta[1] < m_hi and s_lo < theta[2] < s_hi):
+            return None
         _, grad = self.neg_loglik(theta)
-        if at_edge or not np.all(np.isfinite(theta)) or float(np.abs(grad).max()) > 1e-3:
+        if not np.all(np.isfinite(theta)) or float(np.abs(grad).max()) > 1e-3:
             return None
         hess = np.empty((3, 3))
         for k in range(3):

@@ -11,9 +11,8 @@ cut cannot say anything about speed and is left out (counted).
 
 from __future__ import annotations
 
-from collections import defaultdict
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from sawplan.store.stats import blade_type_of
 
@@ -23,103 +22,116 @@ if TYPE_CHECKING:  # pragma: no cover
 
 @dataclass(frozen=True)
 class SpeedLifeRows:
-    """Blades (one entry each) and their stretches at one speed (one entry per cut entry)."""
+    """Blades (one entry each) and their stretches at one speed (one entry per cut entry).
+
+    Per-stretch columns are numpy arrays (a big log has 10⁵ cut entries).
+    """
 
     tags: tuple[str, ...]
     blade_types: tuple[str, ...]
     material_groups: tuple[str | None, ...]
     failed: tuple[bool, ...]
     prices: tuple[float | None, ...]
-    blade: tuple[int, ...]  # index into the blade tuples, per stretch, in cut order
-    area_cm2: tuple[float, ...]
-    time_min: tuple[float | None, ...]
-    speed_m_min: tuple[float, ...]
-    speed_logged: tuple[bool, ...]  # False: no speed logged, the blade's mean speed stands in
+    blade: Any  # int array: index into the blade tuples, per stretch, in cut order
+    area_cm2: Any  # float array
+    time_min: Any  # float array, NaN where no time was logged
+    speed_m_min: Any  # float array
+    speed_logged: Any  # bool array; False: no speed logged, the blade's mean speed stands in
     left_out: tuple[str, ...]  # blades with cuts but no speed on any of them
 
     @property
     def area_cm2_total(self) -> float:
-        return sum(self.area_cm2)
+        return float(self.area_cm2.sum())
 
     @property
     def imputed_area_cm2(self) -> float:
         """Area of the cuts logged without a speed."""
-        return sum(
-            a for a, given in zip(self.area_cm2, self.speed_logged, strict=True) if not given
-        )
+        return float(self.area_cm2[~self.speed_logged].sum())
 
     def only(self, *, material_group: str | None = None, blade_type: str | None = None):
         """The rows of the blades of one material group and/or one blade type, renumbered."""
+        import numpy as np
+
         keep = [
             i
             for i in range(len(self.tags))
             if (material_group is None or self.material_groups[i] == material_group)
             and (blade_type is None or self.blade_types[i] == blade_type)
         ]
-        new = {old: k for k, old in enumerate(keep)}
-        stretches = [j for j, b in enumerate(self.blade) if b in new]
+        new = np.full(len(self.tags), -1, dtype=np.int64)
+        new[keep] = np.arange(len(keep))
+        mine = new[self.blade] >= 0 if len(self.blade) else np.zeros(0, dtype=bool)
         return SpeedLifeRows(
             tags=tuple(self.tags[i] for i in keep),
             blade_types=tuple(self.blade_types[i] for i in keep),
             material_groups=tuple(self.material_groups[i] for i in keep),
             failed=tuple(self.failed[i] for i in keep),
             prices=tuple(self.prices[i] for i in keep),
-            blade=tuple(new[self.blade[j]] for j in stretches),
-            area_cm2=tuple(self.area_cm2[j] for j in stretches),
-            time_min=tuple(self.time_min[j] for j in stretches),
-            speed_m_min=tuple(self.speed_m_min[j] for j in stretches),
-            speed_logged=tuple(self.speed_logged[j] for j in stretches),
+            blade=new[self.blade[mine]],
+            area_cm2=self.area_cm2[mine],
+            time_min=self.time_min[mine],
+            speed_m_min=self.speed_m_min[mine],
+            speed_logged=self.speed_logged[mine],
             left_out=self.left_out if material_group is None and blade_type is None else (),
         )
 
 
 def speed_life_rows(db: Database) -> SpeedLifeRows:
     """Every blade that has cut something at a logged band speed, with its cuts in order."""
-    cuts: dict[int, list[tuple[float, float | None, float | None, str | None]]] = defaultdict(list)
-    for blade_id, area, time, speed, group in db.execute(
-        "SELECT blade_id, area_mm2, time_min, band_speed_m_min, material_group FROM cuts "
+    import numpy as np
+
+    rows = db.execute(
+        "SELECT blade_id, area_mm2, time_min, band_speed_m_min FROM cuts "
         "WHERE area_mm2 > 0 ORDER BY blade_id, cut_on, id"
+    ).fetchall()
+    cols = np.array(rows, dtype=float).reshape(-1, 4)  # None → NaN
+    blade_id = cols[:, 0].astype(np.int64)
+    area = cols[:, 1] / 100.0
+    speed = cols[:, 3]
+    logged = np.isfinite(speed) & (speed > 0)
+    dominant: dict[int, tuple[str | None, float]] = {}
+    for bid, group, total in db.execute(
+        "SELECT blade_id, material_group, SUM(area_mm2) FROM cuts WHERE area_mm2 > 0 "
+        "GROUP BY blade_id, material_group"
     ):
-        cuts[blade_id].append((area / 100.0, time, speed, group))
-    tags, types, groups, failed, prices = [], [], [], [], []
-    blade, area_cm2, time_min, speed_m_min, logged = [], [], [], [], []
-    left_out = []
+        if bid not in dominant or total > dominant[bid][1]:
+            dominant[bid] = (group, total)
+    top = int(blade_id.max()) + 1 if len(blade_id) else 1
+    known_area = np.bincount(blade_id, weights=np.where(logged, area, 0.0), minlength=top)
+    known_av = np.bincount(
+        blade_id, weights=np.where(logged, area * np.nan_to_num(speed), 0.0), minlength=top
+    )
+    tags, types, groups, failed, prices, left_out = [], [], [], [], [], []
+    index = np.full(top, -1, dtype=np.int64)
     for row in db.query(
         "SELECT id, tag, blade_material, grade, width_mm, thickness_mm, tpi_coarse, tpi_fine, "
         "price, status FROM blades ORDER BY id"
     ):
-        mine = cuts.get(row["id"])
-        if not mine:
-            continue
-        known = [(a, v) for a, _t, v, _g in mine if v is not None and v > 0]
-        if not known:
+        bid = row["id"]
+        if bid not in dominant:
+            continue  # cut nothing
+        if known_area[bid] <= 0.0:
             left_out.append(row["tag"])
             continue
-        mean_v = sum(a * v for a, v in known) / sum(a for a, _ in known)
-        by_group: dict[str | None, float] = defaultdict(float)
-        index = len(tags)
-        for a, t, v, g in mine:
-            by_group[g] += a
-            logged.append(v is not None and v > 0)
-            blade.append(index)
-            area_cm2.append(a)
-            time_min.append(t)
-            speed_m_min.append(float(v) if logged[-1] else mean_v)
+        index[bid] = len(tags)
         tags.append(row["tag"])
         types.append(blade_type_of(row))
-        groups.append(max(by_group.items(), key=lambda kv: kv[1])[0])
+        groups.append(dominant[bid][0])
         failed.append(row["status"] == "retired")
         prices.append(row["price"])
+    keep = index[blade_id] >= 0 if len(blade_id) else np.zeros(0, dtype=bool)
+    mean_v = np.divide(known_av, known_area, out=np.zeros(top), where=known_area > 0)
+    filled = np.where(logged, speed, mean_v[blade_id])
     return SpeedLifeRows(
         tags=tuple(tags),
         blade_types=tuple(types),
         material_groups=tuple(groups),
         failed=tuple(failed),
         prices=tuple(prices),
-        blade=tuple(blade),
-        area_cm2=tuple(area_cm2),
-        time_min=tuple(time_min),
-        speed_m_min=tuple(speed_m_min),
-        speed_logged=tuple(logged),
+        blade=index[blade_id[keep]],
+        area_cm2=area[keep],
+        time_min=cols[keep, 2],
+        speed_m_min=filled[keep],
+        speed_logged=logged[keep],
         left_out=tuple(left_out),
     )
