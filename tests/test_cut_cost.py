@@ -25,6 +25,7 @@ from sawplan.cutting.cut_cost import (
     cost_curve,
     cost_per_cut,
     cut_economics,
+    speed_time_of,
 )
 from sawplan.errors import BadDataError
 
@@ -188,17 +189,45 @@ def test_cost_curve_spans_the_saw_and_has_its_minimum_near_gilbert():
 @pytest.mark.parametrize(
     ("kw", "field"),
     [
-        pytest.param({"rate": 0.0}, "rate", id="zero rate"),
-        pytest.param({"rate": -50.0}, "rate", id="negative rate"),
-        pytest.param({"price": 0.0}, "blade-price", id="zero price"),
-        pytest.param({"price": -1.0}, "blade-price", id="negative price"),
-        pytest.param({"change": 0.0}, "change-time", id="zero change time"),
-        pytest.param({"change": -3.0}, "change-time", id="negative change time"),
-        pytest.param({"handling": -0.1}, "handling-time", id="negative handling"),
-        pytest.param({"rate": math.inf}, "rate", id="infinite rate"),
+        pytest.param({"rate": 0.0}, "shop rate", id="zero rate"),
+        pytest.param({"rate": -50.0}, "shop rate", id="negative rate"),
+        pytest.param({"price": 0.0}, "blade price", id="zero price"),
+        pytest.param({"price": -1.0}, "blade price", id="negative price"),
+        pytest.param({"change": 0.0}, "blade change time", id="zero change time"),
+        pytest.param({"change": -3.0}, "blade change time", id="negative change time"),
+        pytest.param({"handling": -0.1}, "handling time per cut", id="negative handling"),
+        pytest.param({"rate": math.inf}, "shop rate", id="infinite rate"),
     ],
 )
 def test_bad_money_and_times_are_refused(kw, field):
     with pytest.raises(BadDataError) as err:
         inputs(**kw)
     assert err.value.field == field
+
+
+def test_speed_time_finds_where_the_feed_stops_keeping_up():
+    # derived: a model whose time is 125/V below 45 m/min and 125/45 above it
+    def model(v):
+        return 125.0 / min(v, 45.0)
+
+    times = speed_time_of(model, (15.0, 120.0))
+    assert times.k_min_m_min == pytest.approx(125.0)
+    assert times.feed_limit_m_min == pytest.approx(45.0, rel=0.03)
+    free = speed_time_of(lambda v: 125.0 / v, (15.0, 120.0))
+    assert free.feed_limit_m_min is None
+
+
+def test_life_relation_falls_back_to_the_published_exponent():
+    # Groover's n = 0.125 for HSS (tool_life.PUBLISHED) → for area life 0.125/0.875 = 0.142857
+    # (derived); C anchored so that the mean life at 60 m/min is 30 000 cm²
+    from sawplan.cutting.life_basis import life_relation
+    from sawplan.life.speed_life import fit_speed_life
+
+    no_fit = fit_speed_life([0], [100.0], [60.0], [True])
+    rel = life_relation(no_fit, blade_material="bi-metal", anchor_life_cm2=30_000.0,
+                        anchor_speed_m_min=60.0, anchor_source="the default life")  # fmt: skip
+    assert not rel.fitted
+    assert rel.n == pytest.approx(0.125 / 0.875)
+    assert rel.mean_life_cm2(60.0) == pytest.approx(30_000.0)
+    assert "Groover" in rel.source
+    assert "retired blade" in rel.note

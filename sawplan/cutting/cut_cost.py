@@ -18,6 +18,7 @@ feed limit.  Money is in the shop's currency; rates are per hour.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 from typing import Literal
 
@@ -47,12 +48,20 @@ class CostInputs:
     change_min: Sourced  # take a worn blade off and fit, tension and break in a new one
 
     def __post_init__(self) -> None:
-        _positive(self.rate_per_h.value, "rate", "per hour")
-        _positive(self.blade_price.value, "blade-price", "per blade")
-        _positive(self.change_min.value, "change-time", "min")
-        h = self.handling_min.value
-        if not (math.isfinite(h) and h >= 0.0):
-            raise BadDataError(f"must be 0 min or more, got {h:g} min", field="handling-time")
+        # the field rules (range and words), then the economics' own rule: a zero rate,
+        # price or change time would make blades free or time worthless
+        from sawplan import fields
+
+        for key, value, zero_ok in (
+            ("shop_rate", self.rate_per_h.value, False),
+            ("blade_price", self.blade_price.value, False),
+            ("change_time", self.change_min.value, False),
+            ("handling_time", self.handling_min.value, True),
+        ):
+            fields.check(key, value)
+            if not zero_ok and value <= 0.0:
+                f = fields.field(key)
+                raise BadDataError(f"must be above 0, got {value:g}", field=f.words)
 
     @property
     def rate_per_min(self) -> float:
@@ -67,6 +76,8 @@ class LifeRelation:
     c_m_min: float  # band speed for a mean life of 1 cm²
     source: str
     fitted: bool  # True: fitted to the shop's log; False: a published exponent
+    n_ci: tuple[float, float] | None = None  # the fit's interval for n
+    note: str | None = None  # why the log gave no fit, and what data would make one
 
     def __post_init__(self) -> None:
         _positive(self.n, "n", "")
@@ -259,3 +270,34 @@ def _positive(value: float, field: str, unit: str) -> None:
         raise BadDataError(
             f"must be above 0{' ' + unit if unit else ''}, got {value!r}", field=field
         )
+
+
+FEED_LIMIT_RISE = 1.02  # time × speed 2 % above its low-speed value: the feed no longer keeps up
+_FEED_LIMIT_STEPS = 8
+
+
+def speed_time_of(
+    time_at: Callable[[float], float],
+    speed_range_m_min: tuple[float, float],
+    source: str = "cutting model",
+) -> SpeedTime:
+    """Cut time against speed from a model ``time_at(speed) -> minutes``.
+
+    K is time × speed at the saw's slowest speed.  When the model's time ×
+    speed at the fastest speed is over 2 % above K the feed stops keeping up
+    (the motor's power holds it); the speed where it starts is found by
+    bisection on ln V (8 steps, within about 1 %).
+    """
+    lo, hi = _range(speed_range_m_min)
+    k = time_at(lo) * lo
+    if hi <= lo or time_at(hi) * hi <= k * FEED_LIMIT_RISE:
+        return SpeedTime(k, None, source)
+    a, b = math.log(lo), math.log(hi)
+    for _ in range(_FEED_LIMIT_STEPS):
+        mid = (a + b) / 2.0
+        v = math.exp(mid)
+        if time_at(v) * v <= k * FEED_LIMIT_RISE:
+            a = mid
+        else:
+            b = mid
+    return SpeedTime(k, math.exp(a), source)
