@@ -47,3 +47,13 @@ class BladeLog:
         from sawplan.store import saws_from_db
 
         return saws_from_db(self.path)
+
+    def speed_rows(self):
+        """The log as arrays for the life-against-speed fit (None without a log)."""
+        if not self.exists:
+            return None
+        from sawplan.store.db import connect
+        from sawplan.store.speed_rows import speed_life_rows
+
+        with connect(self.path, create=False, light=True) as db:
+            return speed_life_rows(db)

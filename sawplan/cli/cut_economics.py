@@ -1,0 +1,144 @@
+"""Glue for ``--economics``: the log's fit, the shop's figures and the cutting model, to the core.
+
+Every figure says where it comes from: given on the command line, the job
+file, the blade log, or a default (common practice).  The log is read only
+through the store (``BladeLog.speed_rows``); the fit, the costs and the speeds
+are the core's (``sawplan.life.speed_life``, ``sawplan.cutting.cut_cost``).
+"""
+
+from __future__ import annotations
+
+import statistics
+from dataclasses import dataclass
+from typing import Any
+
+DEFAULT_SHOP_RATE_PER_H = 60.0  # a round figure to be replaced by the shop's own
+DEFAULT_CHANGE_MIN = 15.0  # common practice: off, on, tension, track and break in a blade
+DEFAULT_BLADE_PRICE = 60.0  # a round figure for a bi-metal band; log prices replace it
+DEFAULT_SOURCE = "default: set your own with {option}"
+
+
+@dataclass(frozen=True)
+class ShopFigures:
+    """What the user typed (None where nothing was typed) and the job file's figures."""
+
+    shop_rate_per_h: float | None = None
+    handling_min: float | None = None
+    blade_price: float | None = None
+    change_min: float | None = None
+    job_rate_per_h: float | None = None
+    job_handling_min: float | None = None
+    job_blade_price: float | None = None
+
+
+def cost_inputs(figures: ShopFigures, log_prices: list[float]) -> Any:
+    """The four money and time figures, each with its source."""
+    from sawplan.cutlist.jobfile.types import DEFAULT_HANDLING_TIME_MIN
+    from sawplan.cutting.cut_cost import CostInputs, Sourced
+
+    def pick(given, job, log, default, option, log_words=None) -> Sourced:
+        if given is not None:
+            return Sourced(float(given), "given")
+        if job is not None:
+            return Sourced(float(job), "job file")
+        if log is not None:
+            return Sourced(float(log), log_words or "blade log")
+        return Sourced(default, DEFAULT_SOURCE.format(option=option))
+
+    price_log = statistics.median(log_prices) if log_prices else None
+    price_words = f"blade log: median price of {len(log_prices)} blades"
+    return CostInputs(
+        rate_per_h=pick(figures.shop_rate_per_h, figures.job_rate_per_h, None,
+                        DEFAULT_SHOP_RATE_PER_H, "--shop-rate"),
+        handling_min=pick(figures.handling_min, figures.job_handling_min, None,
+                          DEFAULT_HANDLING_TIME_MIN, "--handling-time (common practice)"),
+        blade_price=pick(figures.blade_price, figures.job_blade_price, price_log,
+                         DEFAULT_BLADE_PRICE, "--price", price_words),
+        change_min=pick(figures.change_min, None, None, DEFAULT_CHANGE_MIN,
+                        "--change-time (common practice)"),
+    )  # fmt: skip
+
+
+def group_fit(rows: Any, material_group: str, confidence: float = 0.9) -> Any:
+    """Fit life against speed over the group's blades (None without a log)."""
+    from sawplan.life.speed_life import fit_speed_life
+
+    if rows is None:
+        return None
+    part = rows.only(material_group=material_group)
+    return fit_speed_life(
+        part.blade, part.area_cm2, part.speed_m_min, part.failed, confidence=confidence
+    )
+
+
+def _per_blade(blade: Any, area: Any, blades: int) -> Any:
+    import numpy as np
+
+    return np.bincount(blade, weights=area, minlength=blades)
+
+
+def life_for_cut(log: Any, rows: Any, fit: Any, material_group: str, blade_material: str,
+                 recommended_m_min: float) -> Any:  # fmt: skip
+    """The relation: the fit, else the published exponent anchored on the group's life."""
+    from sawplan.cutting.life_basis import life_relation
+    from sawplan.life.weibull import fit_weibull
+    from sawplan.store.reports import default_life
+
+    weibull = None
+    if rows is not None:
+        part = rows.only(material_group=material_group)
+        if part.tags:
+            lives = [float(x) for x in _per_blade(part.blade, part.area_cm2, len(part.tags))]
+            weibull = fit_weibull(lives, part.failed)
+    if weibull is not None and weibull.fitted:
+        anchor_life = weibull.mean_life_cm2
+        words = f"the log's mean blade life for the group (Weibull, {weibull.n} blades)"
+    else:
+        d = default_life(material_group)
+        anchor_life, words = d.life_cm2, f"the default life ({d.source})"
+    speeds = None
+    if rows is not None:
+        part = rows.only(material_group=material_group)
+        if len(part.area_cm2):
+            speeds = float((part.area_cm2 * part.speed_m_min).sum() / part.area_cm2.sum())
+    if speeds is not None:
+        anchor_speed, where = speeds, "at the group's mean logged band speed"
+    else:
+        anchor_speed, where = recommended_m_min, "assumed run at the recommended band speed"
+    return life_relation(
+        fit,
+        blade_material=blade_material,
+        anchor_life_cm2=anchor_life,
+        anchor_speed_m_min=anchor_speed,
+        anchor_source=f"{words}, {where}",
+    )
+
+
+def economics_of_cut(result: Any, mat: Any, sec: Any, saw: Any, log: Any,
+                     figures: ShopFigures, *, dry: bool) -> tuple[Any, Any]:  # fmt: skip
+    """The cut's economics at three speeds, and the speed-time model behind the chart."""
+    from sawplan.cutting import evaluate
+    from sawplan.cutting.cut_cost import cut_economics, speed_time_of
+
+    rows = log.speed_rows()
+    fit = group_fit(rows, mat.group)
+    life = life_for_cut(log, rows, fit, mat.group, result.blade_material, result.band_speed_m_min)
+    prices = []
+    if rows is not None:
+        part = rows.only(material_group=mat.group)
+        prices = [p for p in part.prices if p is not None and p > 0]
+    inputs = cost_inputs(figures, prices)
+    span = (saw.band_speed_min_m_min, saw.band_speed_max_m_min)
+
+    def time_at(v: float) -> float:
+        r = evaluate(mat, sec, saw, result.pitch_label, dry=dry, band_speed_m_min=v,
+                     blade_material=result.blade_material,
+                     calibration=result.calibration_factor)  # fmt: skip
+        return r.cut_time_min
+
+    source = "cutting model"
+    if result.calibration_factor != 1.0:
+        source += f" × shop calibration {result.calibration_factor:.2f}"
+    times = speed_time_of(time_at, span, source)
+    econ = cut_economics(result.area_mm2, result.band_speed_m_min, times, life, inputs, span)
+    return econ, (times, fit)
