@@ -116,3 +116,31 @@ def test_rates_without_economics_say_how(cli):
     r = cli("cut", "4140", "round", "60mm", "--shop-rate", "80")
     assert r.code == 2
     assert "--economics" in r.err
+
+
+def test_plan_quotes_at_the_chosen_run(cli, tmp_path):
+    from pathlib import Path
+
+    job = Path(__file__).parent / "data" / "plan_small.toml"
+    r = cli("plan", str(job), "--run", "cost", "--json", "--db", str(tmp_path / "none.sqlite"))
+    assert r.code == 0, r.err
+    quote = json.loads(r.out)["run_quote"]
+    assert quote["run"] == "cost"
+    # derived: the quote is Σ cuts × cost per cut at each section's cheapest speed
+    total = 0.0
+    for s in quote["sections"]:
+        cheapest = next(x for x in s["economics"]["runs"] if x["run"] == "cost")
+        total += s["cuts"] * cheapest["cost"]["total"]
+        # the job file's shop rate is the source of the machine term
+        assert s["economics"]["inputs"]["rate_per_h"]["source"] == "job file"
+    assert quote["saw_and_blades"] == pytest.approx(total)
+
+
+def test_plan_run_must_be_a_known_speed(cli):
+    from pathlib import Path
+
+    job = Path(__file__).parent / "data" / "plan_small.toml"
+    r = cli("plan", str(job), "--run", "fastest-ever")
+    assert r.code in (2, 3)
+    assert "run speed" in r.err
+    assert "recommended, cost" in r.err or "recommended" in r.err

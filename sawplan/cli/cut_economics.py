@@ -142,3 +142,48 @@ def economics_of_cut(result: Any, mat: Any, sec: Any, saw: Any, log: Any,
     times = speed_time_of(time_at, span, source)
     econ = cut_economics(result.area_mm2, result.band_speed_m_min, times, life, inputs, span)
     return econ, (times, fit)
+
+
+@dataclass(frozen=True)
+class SectionEconomics:
+    """One section of a plan at three band speeds, and its cuts."""
+
+    section: str
+    cuts: int
+    economics: Any
+
+
+@dataclass(frozen=True)
+class RunQuote:
+    """The saw and blade part of a job's quote with every section run at one speed."""
+
+    run: str
+    sections: tuple[SectionEconomics, ...]
+    saw_and_blades: float  # Σ cuts × cost per cut at the run's speed
+    time_min: float  # Σ cuts × time per cut at the run's speed
+
+
+def plan_economics(plan: Any, job: Any, saw: Any, log: Any, run: str) -> RunQuote:
+    """Each section of ``plan`` priced at three speeds; the quote at ``run``."""
+    from sawplan.cutting import recommend
+
+    h = job.header
+    figures = ShopFigures(
+        job_rate_per_h=h.shop_rate_per_h,
+        job_handling_min=h.handling_time_min,
+        job_blade_price=h.blade_price,
+    )
+    parts = []
+    for (material_key, section_key), section_plan in zip(job.groups(), plan.sections, strict=True):
+        mat, sec = job.materials[material_key], job.sections[section_key]
+        factor = (log.calibration(saw.name, mat.group) or (1.0, 0))[0]
+        result = recommend(mat, sec, saw, calibration=factor)
+        econ, _ = economics_of_cut(result, mat, sec, saw, log, figures, dry=False)
+        parts.append(SectionEconomics(section_plan.group, section_plan.cuts, econ))
+    chosen = [p.economics.run(run).cost for p in parts]
+    return RunQuote(
+        run=run,
+        sections=tuple(parts),
+        saw_and_blades=sum(p.cuts * c.total for p, c in zip(parts, chosen, strict=True)),
+        time_min=sum(p.cuts * c.time_per_cut_min for p, c in zip(parts, chosen, strict=True)),
+    )

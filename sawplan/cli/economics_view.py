@@ -81,3 +81,26 @@ def render_economics(econ: Any, units: UnitSystem, *, currency: str | None = Non
         f"{fmt_duration(econ.run('production').optimum_life_min)}"
     )
     return "\n".join(lines)
+
+
+def render_run_quote(quote: Any, units: UnitSystem, *, currency: str | None = None) -> str:
+    """Per section: cost per cut at three speeds; then the job's saw and blades at ``--run``."""
+    d = Display(units)
+    cur = f" ({currency})" if currency else ""
+    lines = [f"Band speeds and cost per cut{cur}, per section"]
+    for s in quote.sections:
+        cells = []
+        for r in s.economics.runs:
+            cells.append(
+                f"{RUN_TITLES[r.run]} {d.fmt('speed', r.band_speed_m_min, 3)}: "
+                f"{money(r.cost.total)}, {fmt_duration(r.cost.time_per_cut_min)}"
+            )
+        lines.append(f"  {s.section} ({s.cuts} cuts): " + " · ".join(cells))
+        if s.economics.life.note:
+            lines.append(f"    ! {s.economics.life.note}")
+    lines.append(
+        f"Quote at the {RUN_TITLES[quote.run]} speeds: saw, operator and blades "
+        f"{money(quote.saw_and_blades)}{cur}, {fmt_duration(quote.time_min)} at the saw "
+        "(rates and prices as sourced in `sawplan cut … --economics`)"
+    )
+    return "\n".join(lines)
