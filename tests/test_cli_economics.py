@@ -19,22 +19,21 @@ AREA_MM2 = math.pi * 60.0**2 / 4.0  # round 60 mm, πd²/4
 N_TRUE = 0.2
 
 
-@pytest.fixture(scope="module")
-def speed_log(tmp_path_factory):
+def write_blades(path, grade, prefix, life_cuts, seed):
+    """45 invented blades of one type: 15 at each of 50, 60, 75 m/min, the last 6 running."""
     from sawplan.store import connect
     from sawplan.store.records import BladeSpec, CutEntry, add_blade, log_cut, retire_blade
 
-    path = tmp_path_factory.mktemp("econ") / "log.sqlite"
-    rng = random.Random(17)
-    c = 60.0 * (300 * AREA_MM2 / 100.0) ** N_TRUE  # mean life of 300 cuts at 60 m/min
+    rng = random.Random(seed)
+    c = 60.0 * (life_cuts * AREA_MM2 / 100.0) ** N_TRUE  # mean life of life_cuts at 60 m/min
     with connect(path) as db:
         for i in range(45):
             v = (50.0, 60.0, 75.0)[i % 3]
-            tag = f"T{i:03d}"
+            tag = f"{prefix}{i:03d}"
             blade = add_blade(
                 db,
                 BladeSpec(tag=tag, width_mm=27.0, thickness_mm=0.9, tpi_coarse=3.0,
-                          tpi_fine=4.0, price=(58.0, 62.0)[i % 2]),
+                          tpi_fine=4.0, price=(58.0, 62.0)[i % 2], grade=grade),
                 added_on="2025-01-02",
             ).id  # fmt: skip
             mean = (c / v) ** (1.0 / N_TRUE)
@@ -49,7 +48,29 @@ def speed_log(tmp_path_factory):
             )  # fmt: skip
             if not running:
                 retire_blade(db, tag, "dull", on="2025-03-03")
+
+
+@pytest.fixture(scope="module")
+def speed_log(tmp_path_factory):
+    path = tmp_path_factory.mktemp("econ") / "log.sqlite"
+    write_blades(path, "M42", "T", 300, 17)
     return path
+
+
+def test_blade_choice_buys_the_longer_lived_type(cli, tmp_path):
+    # invented: two types at the same prices, M51 lasting twice as long at every speed
+    path = tmp_path / "two.sqlite"
+    write_blades(path, "M42", "A", 300, 17)
+    write_blades(path, "M51", "B", 600, 18)
+    r = cli("cut", "4140", "round", "60mm", "--economics", "--db", str(path), "--json")
+    assert r.code == 0, r.err
+    choice = json.loads(r.out)["blade_choice"]
+    assert choice["buy"].startswith("bi-metal M51")
+    assert choice["runner_up"].startswith("bi-metal M42")
+    assert choice["saving_per_cut"] > 0
+    assert choice["on_fits"] is True
+    text = cli("cut", "4140", "round", "60mm", "--economics", "--db", str(path)).out
+    assert "Buy next: bi-metal M51" in text
 
 
 def test_economics_from_the_log(cli, speed_log):

@@ -110,9 +110,13 @@ def cut_command(
             kw["band_speed_m_min"] = to_core(band_speed, "speed", field="band-speed")
         comparison = compare(mat, sec, the_saw, blade_tpi, **kw)
         result, summary = comparison.chosen, comparison.summary
-    econ = times = None
+    econ = times = choice = None
     if economics:
-        from sawplan.cli.cut_economics import ShopFigures, economics_of_cut
+        from sawplan.cli.cut_economics import (
+            ShopFigures,
+            blade_choice_for_cut,
+            economics_of_cut,
+        )
 
         figures = ShopFigures(
             shop_rate_per_h=shop_rate,
@@ -121,6 +125,7 @@ def cut_command(
             change_min=_minutes(change_time, "change_time"),
         )
         econ, (times, _fit) = economics_of_cut(result, mat, sec, the_saw, log, figures, dry=dry)
+        choice = blade_choice_for_cut(result, mat, sec, the_saw, log, figures, dry=dry)
     elif any(v is not None for v in (shop_rate, handling_time, change_time, blade_price)):
         raise UsageError(
             "the shop's rates and prices are for the cost per cut",
@@ -133,6 +138,7 @@ def cut_command(
         payload = {**jsonable(result), "comparison": summary, "calibration_cuts": calibration_n}
         if econ is not None:
             payload["economics"] = jsonable(econ)
+            payload["blade_choice"] = jsonable(choice) if choice is not None else None
             if chart:
                 payload["cost_curve"] = _curve_rows(econ, times, the_saw)
         print(to_json(payload, kind="cut"))
@@ -147,6 +153,11 @@ def cut_command(
 
         print()
         print(render_economics(econ, units))
+        if choice is not None:
+            from sawplan.cli.economics_view import render_blade_choice
+
+            print()
+            print(render_blade_choice(choice, units))
     if chart:
         print()
         print(cut_chart(result, units))

@@ -77,32 +77,29 @@ def _per_blade(blade: Any, area: Any, blades: int) -> Any:
     return np.bincount(blade, weights=area, minlength=blades)
 
 
-def life_for_cut(log: Any, rows: Any, fit: Any, material_group: str, blade_material: str,
+def life_for_cut(part: Any, fit: Any, material_group: str, blade_material: str,
                  recommended_m_min: float) -> Any:  # fmt: skip
-    """The relation: the fit, else the published exponent anchored on the group's life."""
+    """The relation: the fit, else the published exponent anchored on these blades' life.
+
+    ``part`` is the log's rows for the blades in question (None without a log).
+    """
     from sawplan.cutting.life_basis import life_relation
     from sawplan.life.weibull import fit_weibull
     from sawplan.store.reports import default_life
 
     weibull = None
-    if rows is not None:
-        part = rows.only(material_group=material_group)
-        if part.tags:
-            lives = [float(x) for x in _per_blade(part.blade, part.area_cm2, len(part.tags))]
-            weibull = fit_weibull(lives, part.failed)
+    if part is not None and part.tags:
+        lives = [float(x) for x in _per_blade(part.blade, part.area_cm2, len(part.tags))]
+        weibull = fit_weibull(lives, part.failed)
     if weibull is not None and weibull.fitted:
         anchor_life = weibull.mean_life_cm2
-        words = f"the log's mean blade life for the group (Weibull, {weibull.n} blades)"
+        words = f"the log's mean blade life (Weibull, {weibull.n} blades)"
     else:
         d = default_life(material_group)
         anchor_life, words = d.life_cm2, f"the default life ({d.source})"
-    speeds = None
-    if rows is not None:
-        part = rows.only(material_group=material_group)
-        if len(part.area_cm2):
-            speeds = float((part.area_cm2 * part.speed_m_min).sum() / part.area_cm2.sum())
-    if speeds is not None:
-        anchor_speed, where = speeds, "at the group's mean logged band speed"
+    if part is not None and len(part.area_cm2):
+        anchor_speed = float((part.area_cm2 * part.speed_m_min).sum() / part.area_cm2.sum())
+        where = "at the mean logged band speed"
     else:
         anchor_speed, where = recommended_m_min, "assumed run at the recommended band speed"
     return life_relation(
@@ -114,34 +111,81 @@ def life_for_cut(log: Any, rows: Any, fit: Any, material_group: str, blade_mater
     )
 
 
-def economics_of_cut(result: Any, mat: Any, sec: Any, saw: Any, log: Any,
-                     figures: ShopFigures, *, dry: bool) -> tuple[Any, Any]:  # fmt: skip
-    """The cut's economics at three speeds, and the speed-time model behind the chart."""
+def _fit(part: Any) -> Any:
+    from sawplan.life.speed_life import fit_speed_life
+
+    if part is None:
+        return None
+    return fit_speed_life(part.blade, part.area_cm2, part.speed_m_min, part.failed)
+
+
+def _economics(result: Any, mat: Any, sec: Any, saw: Any, part: Any, figures: ShopFigures,
+               *, dry: bool, pitch: str) -> tuple[Any, Any, Any]:  # fmt: skip
+    """One pitch's cut at three speeds, with the life of the blades in ``part``."""
     from sawplan.cutting import evaluate
     from sawplan.cutting.cut_cost import cut_economics, speed_time_of
 
-    rows = log.speed_rows()
-    fit = group_fit(rows, mat.group)
-    life = life_for_cut(log, rows, fit, mat.group, result.blade_material, result.band_speed_m_min)
-    prices = []
-    if rows is not None:
-        part = rows.only(material_group=mat.group)
-        prices = [p for p in part.prices if p is not None and p > 0]
+    fit = _fit(part)
+    prices = [p for p in part.prices if p is not None and p > 0] if part is not None else []
     inputs = cost_inputs(figures, prices)
     span = (saw.band_speed_min_m_min, saw.band_speed_max_m_min)
 
     def time_at(v: float) -> float:
-        r = evaluate(mat, sec, saw, result.pitch_label, dry=dry, band_speed_m_min=v,
+        r = evaluate(mat, sec, saw, pitch, dry=dry, band_speed_m_min=v,
                      blade_material=result.blade_material,
                      calibration=result.calibration_factor)  # fmt: skip
         return r.cut_time_min
 
+    times = speed_time_of(time_at, span, _time_source(result))
+    recommended = result.band_speed_m_min
+    life = life_for_cut(part, fit, mat.group, result.blade_material, recommended)
+    econ = cut_economics(result.area_mm2, recommended, times, life, inputs, span)
+    return econ, times, fit
+
+
+def _time_source(result: Any) -> str:
     source = "cutting model"
     if result.calibration_factor != 1.0:
         source += f" × shop calibration {result.calibration_factor:.2f}"
-    times = speed_time_of(time_at, span, source)
-    econ = cut_economics(result.area_mm2, result.band_speed_m_min, times, life, inputs, span)
+    return source
+
+
+def economics_of_cut(result: Any, mat: Any, sec: Any, saw: Any, log: Any,
+                     figures: ShopFigures, *, dry: bool) -> tuple[Any, Any]:  # fmt: skip
+    """The cut's economics at three speeds (life from all the group's blades), and its times."""
+    rows = log.speed_rows()
+    part = rows.only(material_group=mat.group) if rows is not None else None
+    econ, times, fit = _economics(
+        result, mat, sec, saw, part, figures, dry=dry, pitch=result.pitch_label
+    )
     return econ, (times, fit)
+
+
+def blade_choice_for_cut(result: Any, mat: Any, sec: Any, saw: Any, log: Any,
+                         figures: ShopFigures, *, dry: bool) -> Any:  # fmt: skip
+    """Each blade type the log knows for the group, at its own cheapest speed (None: < 2 types)."""
+    from sawplan.cutting.blade_choice import BladeOption, choose_blade
+    from sawplan.errors import SawplanError
+
+    rows = log.speed_rows()
+    if rows is None:
+        return None
+    group = rows.only(material_group=mat.group)
+    types = sorted(set(group.blade_types))
+    if len(types) < 2:
+        return None
+    options, not_costed = [], []
+    for blade_type in types:
+        part = group.only(blade_type=blade_type)
+        pitch = part.pitches[0]
+        try:
+            econ, _times, fit = _economics(result, mat, sec, saw, part, figures, dry=dry,
+                                           pitch=pitch)  # fmt: skip
+        except SawplanError as err:
+            not_costed.append(f"{blade_type}: {err}")
+            continue
+        options.append(BladeOption(blade_type, pitch, fit.blades, fit.failures, econ))
+    return choose_blade(mat.group, options, not_costed)
 
 
 @dataclass(frozen=True)

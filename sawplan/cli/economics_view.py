@@ -104,3 +104,30 @@ def render_run_quote(quote: Any, units: UnitSystem, *, currency: str | None = No
         "(rates and prices as sourced in `sawplan cut … --economics`)"
     )
     return "\n".join(lines)
+
+
+def render_blade_choice(choice: Any, units: UnitSystem, *, currency: str | None = None) -> str:
+    """Blade types for the group, cheapest per cut first, and which to buy next and why."""
+    d = Display(units)
+    cur = f" ({currency})" if currency else ""
+    per_area = "m²" if units is UnitSystem.METRIC else "ft²"
+    to_area = 1.0 if units is UnitSystem.METRIC else 0.09290304  # 1 ft² = 0.09290304 m² (exact)
+    lines = [f"Blade types the log knows for {choice.material_group}, each at its cheapest speed"]
+    for o in choice.options:
+        basis = "fitted" if o.fitted else "published n"
+        lines.append(
+            f"  {o.blade_type}: {money(o.cost_per_cut)}{cur} per cut, "
+            f"{money(o.cost_per_m2 * to_area)} per {per_area}, at "
+            f"{d.fmt('speed', o.best.band_speed_m_min, 3)} ({o.blades} blades, {basis})"
+        )
+    for text in choice.not_costed:
+        lines.append(f"  not costed: {text}")
+    if choice.buy and choice.runner_up:
+        why = (
+            f"Buy next: {choice.buy} — {money(choice.saving_per_cut)}{cur} less per cut "
+            f"({choice.saving_share:.0%}) than {choice.runner_up} at each one's cheapest speed"
+        )
+        if not choice.on_fits:
+            why += "; the ranking rests on a published exponent: log speeds to confirm it"
+        lines.append(why)
+    return "\n".join(lines)

@@ -14,6 +14,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
+from sawplan.store.fields import pitch_label
 from sawplan.store.stats import blade_type_of
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -29,6 +30,8 @@ class SpeedLifeRows:
 
     tags: tuple[str, ...]
     blade_types: tuple[str, ...]
+    pitches: tuple[str, ...]  # e.g. "3/4"
+    blade_materials: tuple[str, ...]  # bi-metal, carbon, carbide
     material_groups: tuple[str | None, ...]
     failed: tuple[bool, ...]
     prices: tuple[float | None, ...]
@@ -64,6 +67,8 @@ class SpeedLifeRows:
         return SpeedLifeRows(
             tags=tuple(self.tags[i] for i in keep),
             blade_types=tuple(self.blade_types[i] for i in keep),
+            pitches=tuple(self.pitches[i] for i in keep),
+            blade_materials=tuple(self.blade_materials[i] for i in keep),
             material_groups=tuple(self.material_groups[i] for i in keep),
             failed=tuple(self.failed[i] for i in keep),
             prices=tuple(self.prices[i] for i in keep),
@@ -102,6 +107,7 @@ def speed_life_rows(db: Database) -> SpeedLifeRows:
         blade_id, weights=np.where(logged, area * np.nan_to_num(speed), 0.0), minlength=top
     )
     tags, types, groups, failed, prices, left_out = [], [], [], [], [], []
+    pitches, materials = [], []
     index = np.full(top, -1, dtype=np.int64)
     for row in db.query(
         "SELECT id, tag, blade_material, grade, width_mm, thickness_mm, tpi_coarse, tpi_fine, "
@@ -116,6 +122,8 @@ def speed_life_rows(db: Database) -> SpeedLifeRows:
         index[bid] = len(tags)
         tags.append(row["tag"])
         types.append(blade_type_of(row))
+        pitches.append(pitch_label(row["tpi_coarse"], row["tpi_fine"]))
+        materials.append(row["blade_material"])
         groups.append(dominant[bid][0])
         failed.append(row["status"] == "retired")
         prices.append(row["price"])
@@ -125,6 +133,8 @@ def speed_life_rows(db: Database) -> SpeedLifeRows:
     return SpeedLifeRows(
         tags=tuple(tags),
         blade_types=tuple(types),
+        pitches=tuple(pitches),
+        blade_materials=tuple(materials),
         material_groups=tuple(groups),
         failed=tuple(failed),
         prices=tuple(prices),
