@@ -88,7 +88,7 @@ def life_for_cut(part: Any, fit: Any, material_group: str, blade_material: str,
     from sawplan.store.reports import default_life
 
     weibull = None
-    if part is not None and part.tags:
+    if part is not None and part.tags and not (fit is not None and fit.fitted):
         lives = [float(x) for x in _per_blade(part.blade, part.area_cm2, len(part.tags))]
         weibull = fit_weibull(lives, part.failed)
     if weibull is not None and weibull.fitted:
@@ -153,7 +153,7 @@ def _time_source(result: Any) -> str:
 def economics_of_cut(result: Any, mat: Any, sec: Any, saw: Any, log: Any,
                      figures: ShopFigures, *, dry: bool) -> tuple[Any, Any]:  # fmt: skip
     """The cut's economics at three speeds (life from all the group's blades), and its times."""
-    rows = log.speed_rows()
+    rows = log.speed_rows(mat.group)
     part = rows.only(material_group=mat.group) if rows is not None else None
     econ, times, fit = _economics(
         result, mat, sec, saw, part, figures, dry=dry, pitch=result.pitch_label
@@ -167,7 +167,7 @@ def blade_choice_for_cut(result: Any, mat: Any, sec: Any, saw: Any, log: Any,
     from sawplan.cutting.blade_choice import BladeOption, choose_blade
     from sawplan.errors import SawplanError
 
-    rows = log.speed_rows()
+    rows = log.speed_rows(mat.group)
     if rows is None:
         return None
     group = rows.only(material_group=mat.group)

@@ -81,13 +81,23 @@ class SpeedLifeRows:
         )
 
 
-def speed_life_rows(db: Database) -> SpeedLifeRows:
-    """Every blade that has cut something at a logged band speed, with its cuts in order."""
+def speed_life_rows(db: Database, material_group: str | None = None) -> SpeedLifeRows:
+    """Every blade that has cut something at a logged band speed, with its cuts in order.
+
+    With ``material_group``, only blades that cut that group at all are read
+    (their other cuts too: a blade's life is all it cut); ``only`` then keeps
+    those whose group it is.
+    """
     import numpy as np
 
+    where, params = "area_mm2 > 0", []
+    if material_group is not None:
+        where += " AND blade_id IN (SELECT blade_id FROM cuts WHERE material_group = ?)"
+        params.append(material_group)
     rows = db.execute(
         "SELECT blade_id, area_mm2, time_min, band_speed_m_min FROM cuts "
-        "WHERE area_mm2 > 0 ORDER BY blade_id, cut_on, id"
+        f"WHERE {where} ORDER BY blade_id, cut_on, id",
+        params,
     ).fetchall()
     cols = np.array(rows, dtype=float).reshape(-1, 4)  # None → NaN
     blade_id = cols[:, 0].astype(np.int64)
@@ -96,8 +106,9 @@ def speed_life_rows(db: Database) -> SpeedLifeRows:
     logged = np.isfinite(speed) & (speed > 0)
     dominant: dict[int, tuple[str | None, float]] = {}
     for bid, group, total in db.execute(
-        "SELECT blade_id, material_group, SUM(area_mm2) FROM cuts WHERE area_mm2 > 0 "
-        "GROUP BY blade_id, material_group"
+        f"SELECT blade_id, material_group, SUM(area_mm2) FROM cuts WHERE {where} "
+        "GROUP BY blade_id, material_group",
+        params,
     ):
         if bid not in dominant or total > dominant[bid][1]:
             dominant[bid] = (group, total)
