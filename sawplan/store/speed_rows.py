@@ -21,6 +21,23 @@ if TYPE_CHECKING:  # pragma: no cover
     from sqlite_utils import Database
 
 
+# the two filters, and the two queries for each (no value is ever spliced in: bound parameters)
+_ALL = "area_mm2 > 0"
+_GROUP = "area_mm2 > 0 AND blade_id IN (SELECT blade_id FROM cuts WHERE material_group = ?)"
+_CUTS_SQL = {
+    w: "SELECT blade_id, area_mm2, time_min, band_speed_m_min FROM cuts WHERE "
+    + w
+    + " ORDER BY blade_id, cut_on, id"
+    for w in (_ALL, _GROUP)
+}
+_GROUPS_SQL = {
+    w: "SELECT blade_id, material_group, SUM(area_mm2) FROM cuts WHERE "
+    + w
+    + " GROUP BY blade_id, material_group"
+    for w in (_ALL, _GROUP)
+}
+
+
 @dataclass(frozen=True)
 class SpeedLifeRows:
     """Blades (one entry each) and their stretches at one speed (one entry per cut entry).
@@ -90,26 +107,15 @@ def speed_life_rows(db: Database, material_group: str | None = None) -> SpeedLif
     """
     import numpy as np
 
-    where, params = "area_mm2 > 0", []
-    if material_group is not None:
-        where += " AND blade_id IN (SELECT blade_id FROM cuts WHERE material_group = ?)"
-        params.append(material_group)
-    rows = db.execute(
-        "SELECT blade_id, area_mm2, time_min, band_speed_m_min FROM cuts "
-        f"WHERE {where} ORDER BY blade_id, cut_on, id",
-        params,
-    ).fetchall()
+    where, params = (_ALL, []) if material_group is None else (_GROUP, [material_group])
+    rows = db.execute(_CUTS_SQL[where], params).fetchall()
     cols = np.array(rows, dtype=float).reshape(-1, 4)  # None → NaN
     blade_id = cols[:, 0].astype(np.int64)
     area = cols[:, 1] / 100.0
     speed = cols[:, 3]
     logged = np.isfinite(speed) & (speed > 0)
     dominant: dict[int, tuple[str | None, float]] = {}
-    for bid, group, total in db.execute(
-        f"SELECT blade_id, material_group, SUM(area_mm2) FROM cuts WHERE {where} "
-        "GROUP BY blade_id, material_group",
-        params,
-    ):
+    for bid, group, total in db.execute(_GROUPS_SQL[where], params):
         if bid not in dominant or total > dominant[bid][1]:
             dominant[bid] = (group, total)
     top = int(blade_id.max()) + 1 if len(blade_id) else 1
