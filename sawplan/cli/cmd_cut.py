@@ -116,7 +116,7 @@ def cut_command(
         comparison = compare(mat, sec, the_saw, blade_tpi, **kw)
         result, summary = comparison.chosen, comparison.summary
     econ = times = choice = None
-    if economics:
+    if economics and not result.stalled:  # a cut that does not progress has no cost per cut
         from sawplan.cli.cut_economics import (
             ShopFigures,
             blade_choice_for_cut,
@@ -131,7 +131,9 @@ def cut_command(
         )
         econ, (times, _fit) = economics_of_cut(result, mat, sec, the_saw, log, figures, dry=dry)
         choice = blade_choice_for_cut(result, mat, sec, the_saw, log, figures, dry=dry)
-    elif any(v is not None for v in (shop_rate, handling_time, change_time, blade_price)):
+    elif not economics and any(
+        v is not None for v in (shop_rate, handling_time, change_time, blade_price)
+    ):
         raise UsageError(
             "the shop's rates and prices are for the cost per cut",
             field="economics",
@@ -153,6 +155,9 @@ def cut_command(
         print()
     label = sec.label(units.value)
     print(render_cut(result, units, section_label=label, calibration_cuts=calibration_n))
+    if economics and result.stalled:
+        print()
+        print("No cost per cut: the cut does not progress.")
     if econ is not None:
         from sawplan.cli.economics_view import render_economics
 

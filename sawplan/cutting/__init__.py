@@ -20,7 +20,7 @@ from sawplan.cutting.mechanics import (
 )
 from sawplan.cutting.pitch import Pitch, catalogue, parse_pitch
 from sawplan.cutting.plan import check_fits, material_bite_mm
-from sawplan.cutting.recommend import compare, evaluate, recommend
+from sawplan.cutting.recommend import compare, cut_time_min, evaluate, recommend
 from sawplan.cutting.result import (
     BundleVerdict,
     Comparison,
@@ -46,6 +46,7 @@ __all__ = [
     "catalogue",
     "check_fits",
     "compare",
+    "cut_time_min",
     "evaluate",
     "flex_cycles_per_min",
     "gauge_elongation_mm",

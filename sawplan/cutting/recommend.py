@@ -326,6 +326,38 @@ def evaluate(
     return _full(material, section, saw, setup, pitch, extras=extras)
 
 
+def cut_time_min(
+    material: MaterialLike,
+    section: SectionLike,
+    saw: Saw,
+    pitch: Pitch | str,
+    *,
+    dry: bool = False,
+    band_speed_m_min: float | None = None,
+    blade_material: str = "bi-metal",
+    calibration: float = 1.0,
+) -> float | None:
+    """Only the time of one cut with one pitch (calibrated), None when it will not cut.
+
+    What ``evaluate(...).cut_time_min`` gives, without the explanation, the
+    other pitches and the comparisons: for callers that time a cut at many
+    band speeds (the cost-per-cut curve).
+    """
+    if isinstance(pitch, str):
+        pitch = parse_pitch(pitch)
+    plan = make_plan(
+        material,
+        section,
+        saw,
+        dry=dry,
+        blade_material=blade_material,
+        band_speed_m_min=band_speed_m_min,
+        calibration=calibration,
+    )
+    cand = score(plan, pitch, set_feed=False)
+    return None if cand.stalled else cand.time * plan.calibration
+
+
 def _describe(r: CutResult, *, speed: bool, feed: bool) -> str:
     text = r.pitch_label
     if speed:
