@@ -83,13 +83,14 @@ def _rubbing(plan: Plan, cand: Candidate, cands: list[Candidate], given: bool) -
     better = [
         c
         for c in cands
-        if not c.too_few
-        and not c.stalled
+        if c.allowed  # keeps 3 teeth (and, on a solid, at most about 24)
         and c.run.rubbing_share < run.rubbing_share - 0.1
         and c.time <= cand.time * 1.5
     ]
     if better:
-        fix = min(better, key=lambda c: (c.run.rubbing_share, c.time))
+        fix = min(
+            better, key=lambda c: (c.run.rubbing_share > 0, c.pitch.kind != "variable", c.time)
+        )
         keeps = "" if single_solid(plan.section) else " and still keeps 3 teeth in the walls"
         out = [f"{head}; a coarser pitch such as {fix.pitch.label} bites deeper{keeps}"]
     elif cand.too_few:
