@@ -86,6 +86,7 @@ def cut_command(
     from sawplan.charts import cut_chart
     from sawplan.cli.cut_view import render_cut
     from sawplan.cutting import compare, recommend
+    from sawplan.display import Display
     from sawplan.errors import UsageError
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
@@ -123,11 +124,11 @@ def cut_command(
         payload = {**jsonable(result), "comparison": summary, "calibration_cuts": calibration_n}
         print(to_json(payload, kind="cut"))
         return
+    d = Display(units)
     if summary:
-        print(summary)
+        print(d.text(summary))
         print()
-    label = sec.label(units.value)
-    print(render_cut(result, units, section_label=label, calibration_cuts=calibration_n))
+    print(render_cut(result, d, section_label=d.section(sec), calibration_cuts=calibration_n))
     if chart:
         print()
         print(cut_chart(result, units))

@@ -1,0 +1,98 @@
+"""Every command in both unit systems: no stray metric unit under ``--units us``,
+no stray US unit under ``--units metric``, and no scientific notation anywhere.
+
+The commands run against the demo shop's log (``demo/make_history.py``); write
+commands run on a copy of it.  The patterns look for a number followed by a unit
+of the other system (``184 mm``, ``250mm``, ``12 in``, ``7"``).
+"""
+
+from __future__ import annotations
+
+import re
+import shutil
+
+import pytest
+
+# A number, then a unit of the metric system (squares, cubes and per-time forms too).
+METRIC_UNIT = re.compile(
+    r"\d\s?(?:mm|cm|km|m|kg|g|kN|N|GPa|MPa|kW|W|µm|J)(?:²|³|2|3)?"
+    r"(?:/(?:min|m|mm³|cm³|m³|h))?(?![A-Za-z0-9·])"
+)
+US_UNIT = re.compile(
+    r"\d\s?(?:in|ft|lb|lbs|lbf|hp|ksi|psi)(?:²|³)?(?:/(?:min|ft|in³))?(?![A-Za-z0-9])|\d[\"″]"
+)
+SCIENTIFIC = re.compile(r"\d[eE][+-]?\d")
+
+# Commands that only read (the demo log is shared by all of them).
+READ = [
+    pytest.param("cut 4140 round 7-1/4in", id="cut-round"),
+    pytest.param("cut 304 round 250mm --saw column-bay --db {db}", id="cut-calibrated"),
+    pytest.param("cut 304 round 250mm --saw column-bay --blade-tpi 4/6 --db {db}", id="cut-given"),
+    pytest.param("cut A36 ibeam 8in 5.25in 0.23in 0.4in", id="cut-ibeam"),
+    pytest.param("cut 6061-T6 tube 3in 0.12in --bundle 2x3", id="cut-tube-bundle"),
+    pytest.param("cut 1018 flat 4in 0.5in --saw small-horizontal --chart", id="cut-chart"),
+    pytest.param("cut 304 tube 2in 0.065in --blade-tpi 3/4", id="cut-thin-wall"),
+    pytest.param("weigh 304 round 250mm --length 110mm", id="weigh-slice"),
+    pytest.param("weigh A36 flat 4in 1in --length 20ft --count 6", id="weigh-long-flat"),
+    pytest.param("weigh A36 ibeam 8in 5.25in 0.23in 0.4in --length 10ft", id="weigh-ibeam"),
+    pytest.param("weigh 6061-T6 tube 3in 0.12in --length 6m", id="weigh-tube"),
+    pytest.param("materials", id="materials"),
+    pytest.param("materials 304", id="materials-one"),
+    pytest.param("saw list --db {db}", id="saw-list"),
+    pytest.param("blade list --db {db}", id="blade-list"),
+    pytest.param("blade show C-003 --db {db}", id="blade-show"),
+    pytest.param("log list --db {db}", id="log-list"),
+    pytest.param("life --db {db}", id="life"),
+    pytest.param("life --group-by blade-type --db {db}", id="life-by-type"),
+    pytest.param("forecast --area 2m2 --material 304 --db {db}", id="forecast"),
+    pytest.param("chart weibull --height 12 --db {db}", id="chart-weibull"),
+    pytest.param("chart wear C-003 --db {db}", id="chart-wear"),
+    pytest.param("chart cost --db {db}", id="chart-cost"),
+    pytest.param("chart modes --db {db}", id="chart-modes"),
+    pytest.param("plan {jobs}/billet-slices.toml --db {db}", id="plan-billet"),
+    pytest.param("plan {jobs}/pump-blanks.toml --db {db}", id="plan-blanks"),
+]
+
+# Commands that write: each runs on its own copy of the log.
+WRITE = [
+    pytest.param(
+        "blade add X-1 --pitch 4/6 --width 27mm --thickness 0.9mm --length 3660mm --db {db}",
+        id="blade-add",
+    ),
+    pytest.param("saw add bay-9 --like mid-production --wheel 450mm --db {db}", id="saw-add"),
+    pytest.param(
+        "log cut 4140 round 40mm --blade A-016 --cuts 5 --time 6min --db {db}", id="log-cut"
+    ),
+    pytest.param("blade retire A-016 --cause dull --db {db}", id="blade-retire"),
+]
+
+
+def _run(cli, template: str, root, units: str):
+    db = root / "demo" / "out" / "demo-log.sqlite"
+    args = template.format(db=db, jobs=root / "demo" / "jobs").split()
+    result = cli(*args, "--units", units)
+    assert result.code == 0, result.err
+    return result.out
+
+
+def _check(out: str, units: str) -> None:
+    wrong = METRIC_UNIT if units == "us" else US_UNIT
+    stray = sorted({m.group(0) for m in wrong.finditer(out)})
+    lines = [line for line in out.splitlines() if wrong.search(line)]
+    assert not stray, f"{units} output shows {stray}:\n" + "\n".join(lines[:8])
+    assert not SCIENTIFIC.search(out), SCIENTIFIC.search(out).group(0)
+
+
+@pytest.mark.parametrize("units", ["us", "metric"])
+@pytest.mark.parametrize("template", READ)
+def test_read_commands_speak_one_unit_system(template, units, demo_tree, cli):
+    _check(_run(cli, template, demo_tree, units), units)
+
+
+@pytest.mark.parametrize("units", ["us", "metric"])
+@pytest.mark.parametrize("template", WRITE)
+def test_write_commands_speak_one_unit_system(template, units, demo_tree, cli, tmp_path):
+    root = tmp_path / "copy"
+    (root / "demo" / "out").mkdir(parents=True)
+    shutil.copy2(demo_tree / "demo" / "out" / "demo-log.sqlite", root / "demo" / "out")
+    _check(_run(cli, template, root, units), units)
