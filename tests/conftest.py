@@ -63,7 +63,9 @@ def demo_tree(tmp_path_factory):
     root = tmp_path_factory.mktemp("demo-tree")
     shutil.copytree(repo / "demo" / "jobs", root / "demo" / "jobs")
     shutil.copy2(repo / "demo" / "saws.toml", root / "demo" / "saws.toml")
-    spec = importlib.util.spec_from_file_location("demo_make_history", repo / "demo" / "make_history.py")
+    spec = importlib.util.spec_from_file_location(
+        "demo_make_history", repo / "demo" / "make_history.py"
+    )
     module = importlib.util.module_from_spec(spec)
     sys.modules[spec.name] = module  # dataclasses look their module up here
     spec.loader.exec_module(module)

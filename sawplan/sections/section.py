@@ -9,9 +9,9 @@ bundles give several).
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 from functools import cached_property
-from collections.abc import Callable
 from typing import Any
 
 from sawplan.errors import BadDataError, UsageError
