@@ -21,6 +21,7 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from enum import StrEnum
+from typing import Any
 
 
 class UnitSystem(StrEnum):
@@ -171,7 +172,14 @@ class Display:
     def quantity(self, q: Q) -> str:
         if q.kind == "bar_length":
             return self.bar_length(q.value)
+        if q.kind == "section":
+            return self.section(q.value)
         return self.fmt(q.kind, q.value, q.digits)
+
+
+def as_display(units: UnitSystem | Display | str) -> Display:
+    """A renderer's ``units`` argument as a Display (a bare system: decimal inches)."""
+    return units if isinstance(units, Display) else Display(UnitSystem(units))
 
 
 def _strip(text: str) -> str:
@@ -237,10 +245,11 @@ def fmt_percent(share: float, *, signed: bool = False) -> str:
 
 @dataclass(frozen=True)
 class Q:
-    """A quantity inside core text: a ``DISPLAY`` kind (or ``bar_length``) and a core value."""
+    """A quantity inside core text: a ``DISPLAY`` kind and a core value; or ``bar_length``
+    (mm, feet and inches from 6 ft), or ``section`` with a ``Section`` as its value."""
 
     kind: str
-    value: float
+    value: Any
     digits: int | None = None  # None: the kind's own rule (3 digits; lengths to resolution)
 
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import Any
 
-from sawplan.display import Display, UnitSystem, fmt_percent
+from sawplan.display import Display, UnitSystem, as_display, fmt_percent
 
 
 def render_cut(
@@ -17,7 +17,7 @@ def render_cut(
     """The operator's card: blade, speed, feed, time, why, warnings, break-in."""
     from sawplan.cutting.explain import LIMIT_WORDS
 
-    d = units if isinstance(units, Display) else Display(units)
+    d = as_display(units)
     lines = [f"{r.material} · {section_label or r.section} · saw {r.saw} ({r.feed_type} feed)"]
     blade = f"{r.pitch_label} TPI, {r.tooth_form} teeth, {r.tooth_set} set ({r.blade_material})"
     lines.append(f"Blade       {blade}")
