@@ -93,6 +93,10 @@ class Display:
     def value(self, kind: str, core_value: float) -> float:
         return core_value * DISPLAY[kind][self.system][1]
 
+    def per(self, kind: str, amount_per_core: float) -> float:
+        """An amount per core unit of ``kind`` (e.g. money per mm²) per display unit."""
+        return amount_per_core / DISPLAY[kind][self.system][1]
+
     def num(self, kind: str, core_value: float | None, digits: int | None = None) -> str:
         """The number alone (for a column whose header names the unit)."""
         if core_value is None or not math.isfinite(core_value):
@@ -174,7 +178,21 @@ class Display:
             return self.bar_length(q.value)
         if q.kind == "section":
             return self.section(q.value)
+        if q.kind == "size":  # a length whose unit the context gives (a blade's 27×0.9)
+            return self.size(q.value)
         return self.fmt(q.kind, q.value, q.digits)
+
+
+def section_text(d: Display, text: str) -> str:
+    """A section as a user typed it (``flat 50mm 12mm``), shown again in ``d``'s units;
+    text that no longer reads as a section is shown as it is."""
+    from sawplan.errors import SawplanError
+    from sawplan.sections import parse_section
+
+    try:
+        return d.section(parse_section(str(text).split()))
+    except SawplanError:
+        return str(text)
 
 
 def as_display(units: UnitSystem | Display | str) -> Display:
@@ -195,6 +213,11 @@ def fmt_number(v: float, digits: int = 3) -> str:
     mag = math.floor(math.log10(abs(v)))
     decimals = max(0, digits - 1 - mag)
     return f"{v:,.{decimals}f}"
+
+
+def fmt_plain(v: float, digits: int = 3) -> str:
+    """:func:`fmt_number` without trailing zeros, for axis ticks: 20, 0.75, 1,000."""
+    return _strip(fmt_number(v, digits))
 
 
 def fmt_fraction(inches: float, denominator: int = FRACTION_DENOMINATOR) -> str:
@@ -246,7 +269,8 @@ def fmt_percent(share: float, *, signed: bool = False) -> str:
 @dataclass(frozen=True)
 class Q:
     """A quantity inside core text: a ``DISPLAY`` kind and a core value; or ``bar_length``
-    (mm, feet and inches from 6 ft), or ``section`` with a ``Section`` as its value."""
+    (mm, feet and inches from 6 ft), ``size`` (a length without its unit), or
+    ``section`` with a ``Section`` as its value."""
 
     kind: str
     value: Any

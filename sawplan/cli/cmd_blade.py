@@ -6,8 +6,9 @@ from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.cmd_saw import DateOpt, SawsFileOpt, fmt_q, plain
+from sawplan.cli.cmd_saw import DateOpt, SawsFileOpt
 from sawplan.cli.options import CsvOpt, DbOpt, JsonOpt, UnitsOpt
+from sawplan.display import Display, fmt_number, section_text
 from sawplan.units import UnitSystem
 
 BLADE_MATERIALS = {
@@ -206,12 +207,11 @@ def blade_add_command(
 
 def describe(blade: Any, units: UnitSystem) -> str:
     """``bi-metal M42, 27 × 0.9 mm, 3/4 TPI, 3,505 mm long``."""
-    from sawplan.units import Display
 
     d = Display(units)
     size = (
-        f"{plain(d.value('length', blade.width_mm))} × "
-        f"{plain(d.value('length', blade.thickness_mm))} {d.label('length')}"
+        f"{d.num('length', blade.width_mm)} × {d.num('length', blade.thickness_mm)} "
+        f"{d.label('length')}"
     )
     parts = [
         " ".join(p for p in (blade.blade_material, blade.grade) if p),
@@ -219,7 +219,7 @@ def describe(blade: Any, units: UnitSystem) -> str:
         f"{blade.pitch} TPI",
     ]
     if blade.length_mm:
-        parts.append(f"{fmt_q(d, 'length', blade.length_mm, 4)} long")
+        parts.append(f"{d.bar_length(blade.length_mm)} long")
     return ", ".join(parts)
 
 
@@ -314,13 +314,12 @@ def blade_retire_command(
     from sawplan.store import connect
     from sawplan.store.dates import parse_day
     from sawplan.store.records import retire_blade
-    from sawplan.units import Display
 
     on = parse_day(date)
     with connect(db) as database:
         blade = retire_blade(database, tag, cause, on=on, location=location, note=note)
     mode = failure_mode(blade.retire_cause or cause)
-    area = Display(units).fmt("area", blade.area_mm2, 3)
+    area = Display(units).fmt("area", blade.area_mm2)
     cuts = "1 cut" if blade.cuts == 1 else f"{blade.cuts:,} cuts"
     print(f"retired blade {blade.tag} ({on}) after {area} in {cuts}: {mode.name}")
     print("usual causes (common practice): " + "; ".join(mode.causes))
@@ -341,7 +340,6 @@ def blade_list_command(
     from sawplan.render import table, to_csv, to_json
     from sawplan.store import connect
     from sawplan.store.records import list_blades
-    from sawplan.units import Display
 
     with connect(db, create=False) as database:
         blades = list_blades(database, status=status)
@@ -366,7 +364,7 @@ def blade_list_command(
             b.status,
             b.saw or "",
             b.cuts,
-            plain(d.value("area", b.area_mm2)),
+            d.num("area", b.area_mm2),
             "" if b.price is None else f"{b.price:g}",
             " ".join(x for x in (b.retired_on, b.retire_cause) if x),
         ]
@@ -436,6 +434,7 @@ def wear_chart_text(history: Any, units: UnitSystem, width: int, height: int) ->
         return (
             f"blade {history.blade.tag}: no timed cuts yet, so no wear curve (log cuts with --time)"
         )
+    off_saw = history.blade.status in ("retired", "removed")
     text = wear_chart(
         history.wear,
         title=f"blade {history.blade.tag}: cutting rate against area cut",
@@ -444,14 +443,13 @@ def wear_chart_text(history: Any, units: UnitSystem, width: int, height: int) ->
         height=height,
         colorless=not sys.stdout.isatty(),
         # a retired or removed blade's verdict is its life, not "still breaking in"
-        verdict=history.wear_summary if history.blade.status in ("retired", "removed") else None,
+        verdict=Display(units).text(history.wear_summary) if off_saw else None,
     )
     return "\n".join([text, *history.wear_notes])
 
 
 def render_history(h: Any, units: UnitSystem) -> str:
     from sawplan.render import key_values, table
-    from sawplan.units import Display
 
     d = Display(units)
     b = h.blade
@@ -468,17 +466,18 @@ def render_history(h: Any, units: UnitSystem) -> str:
     if b.price is not None:
         pairs.append(("price", f"{b.price:g}"))
     pairs.append(
-        ("cut", f"{d.fmt('area', b.area_mm2, 3)} in {b.cuts:,} cut{'' if b.cuts == 1 else 's'}")
+        ("cut", f"{d.fmt('area', b.area_mm2)} in {b.cuts:,} cut{'' if b.cuts == 1 else 's'}")
     )
     if h.cost_per_m2 is not None:
-        pairs.append(("cost so far", f"{plain(h.cost_per_m2)} per m² cut"))
+        per_unit = fmt_number(d.per("large_area", h.cost_per_m2 / 1e6))
+        pairs.append(("cost so far", f"{per_unit} per {d.label('large_area')} cut"))
     if b.notes:
         pairs.append(("notes", b.notes))
     out = [key_values(pairs)]
     if h.fittings:
         rows = [
             [f["saw"], f["fitted_on"], f["removed_on"] or "(on the saw)",
-             "" if f["tension_mpa"] is None else fmt_q(d, "stress", f["tension_mpa"]),
+             d.fmt("stress", f["tension_mpa"]) if f["tension_mpa"] is not None else "",
              {None: "", 1: "yes", 0: "no"}[f["break_in"]] + (f" ({f['break_in_how']})" if f["break_in_how"] else "")]
             for f in h.fittings
         ]  # fmt: skip
@@ -492,9 +491,10 @@ def render_history(h: Any, units: UnitSystem) -> str:
         )
     if h.cuts:
         rows = [
-            [c["cut_on"], c["material"], c["section"], c["count"], plain(d.value("area", c["area_mm2"])),
-             "" if c["time_min"] is None else plain(c["time_min"]),
-             "" if c["predicted_time_min"] is None else plain(c["predicted_time_min"]),
+            [c["cut_on"], c["material"], section_text(d, c["section"]), c["count"],
+             d.num("area", c["area_mm2"]),
+             "" if c["time_min"] is None else fmt_number(c["time_min"]),
+             "" if c["predicted_time_min"] is None else fmt_number(c["predicted_time_min"]),
              c["saw"] or "", c["job"] or ""]
             for c in h.cuts[-h.shown_cuts:]
         ]  # fmt: skip
@@ -526,7 +526,7 @@ def render_history(h: Any, units: UnitSystem) -> str:
                 title="\nevents",
             )
         )
-    out.append("\nwear: " + h.wear_summary)
+    out.append("\nwear: " + d.text(h.wear_summary))
     out.extend(h.wear_notes)
     if h.wear is not None:
         out.append(h.wear.caution)

@@ -8,8 +8,8 @@ from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.cmd_saw import plain
 from sawplan.cli.options import CsvOpt, DbOpt, JsonOpt, MaterialsFileOpt, UnitsOpt
+from sawplan.display import fmt_number
 from sawplan.units import UnitSystem
 
 ConfidenceOpt = Annotated[
@@ -111,7 +111,7 @@ def life_command(
 
 
 def _area(d: Any, cm2: float | None) -> str:
-    return "—" if cm2 is None else f"{plain(d.value('area', cm2 * 100.0))} {d.label('area')}"
+    return d.fmt("area", None if cm2 is None else cm2 * 100.0)
 
 
 def render_life(r: Any, units: UnitSystem) -> str:
@@ -149,7 +149,7 @@ def render_life(r: Any, units: UnitSystem) -> str:
         headers = [r.group_by, "blades", "retired", "β", f"η {d.label('area')}",
                    f"median {d.label('area')}", f"B10 {d.label('area')}"]  # fmt: skip
         rows = [
-            [g.key, g.blades, g.failed,
+            [d.text(g.key), g.blades, g.failed,
              "—" if g.weibull_shape is None else f"{g.weibull_shape:.2f}",
              _num(d, g.weibull_scale_cm2), _num(d, g.median_life_cm2), _num(d, g.b10_life_cm2)]
             for g in r.groups
@@ -157,8 +157,9 @@ def render_life(r: Any, units: UnitSystem) -> str:
         lines.append(table(headers, rows, align="lrrrrrr", title=f"\nby {r.group_by}"))
         unfitted = [g for g in r.groups if not g.fitted]
         if unfitted:
-            lines.append("  — no fit: " + "; ".join(f"{g.key}: {g.reason}" for g in unfitted))
-    lines += _warning_lines(r)
+            no_fit = "; ".join(f"{d.text(g.key)}: {g.reason}" for g in unfitted)
+            lines.append("  — no fit: " + no_fit)
+    lines += _warning_lines(r, d)
     modes = r.failure_modes
     if modes.modes:
         rows = [[m.code, m.name, m.count, f"{m.share:.0%}"] for m in modes.modes]
@@ -172,13 +173,14 @@ def render_life(r: Any, units: UnitSystem) -> str:
         if modes.unrecorded:
             lines.append(f"  {modes.unrecorded} retired blade(s) without a recorded mode")
     if r.costs:
-        per = "m²"
-        rows = [[c.blade_type, f"{c.price:g}", _num(d, c.life_cm2), c.life_method, plain(c.cost_per_m2)]
+        per = d.label("large_area")
+        rows = [[d.text(c.blade_type), f"{c.price:g}", _num(d, c.life_cm2), c.life_method,
+                 fmt_number(d.per("large_area", c.cost_per_m2 / 1e6))]
                 for c in r.costs]  # fmt: skip
         lines.append(table(["blade type", "price", f"life {d.label('area')}", "life from", f"cost per {per}"],
                            rows, align="lrrlr", title="\ncost per area cut, cheapest first"))  # fmt: skip
     if r.costs_missing:
-        lines.append("  no cost yet for " + "; ".join(r.costs_missing))
+        lines.append("  no cost yet for " + "; ".join(d.text(m) for m in r.costs_missing))
     if r.calibration:
         rows = [[c.saw or "(no saw)", c.material_group or "—", c.cuts,
                  "—" if c.factor is None else f"{c.factor:.2f}",
@@ -189,7 +191,7 @@ def render_life(r: Any, units: UnitSystem) -> str:
                            align="llrrll", title="\ncut-time calibration (median of actual ÷ model time)"))  # fmt: skip
     if r.left_out:
         lines.append(f"\nleft out (retired before cutting anything): {', '.join(r.left_out)}")
-    lines += [f"\nnote: {n}" for n in r.notes]
+    lines += [f"\nnote: {d.text(n)}" for n in r.notes]
     return "\n".join(lines)
 
 
@@ -199,14 +201,14 @@ def _warned_modes(r: Any) -> set[str]:
     return {w.mode for w in found if w is not None and w.mode is not None}
 
 
-def _warning_lines(r: Any) -> list[str]:
+def _warning_lines(r: Any, d: Any) -> list[str]:
     """The early-failure warnings (β < 1) of all blades and of each group, as JSON has them.
 
     Each warning names its most frequent early failure mode and that mode's usual
     causes; the set-up checks and the caution, the same for all, follow once.
     """
     warnings = [
-        (f" for {r.group_by} {g.key}", g.early_failure)
+        (f" for {r.group_by} {d.text(g.key)}", g.early_failure)
         for g in r.groups
         if g.early_failure is not None
     ]
@@ -214,14 +216,14 @@ def _warning_lines(r: Any) -> list[str]:
         warnings.insert(0, (" for all blades" if warnings else "", r.early_failure))
     lines: list[str] = []
     for who, w in warnings:
-        lines += ["", f"WARNING{who}: {w.message}"]
+        lines += ["", f"WARNING{who}: {d.text(w.message)}"]
         if w.causes:
             lines.append(
                 f"  usual causes of {w.mode_name} (common practice): " + "; ".join(w.causes)
             )
     if warnings:
         w = warnings[0][1]
-        lines.append("  check: " + "; ".join(w.setup_checks))
+        lines.append("  check: " + "; ".join(d.text(c) for c in w.setup_checks))
         lines.append("  " + w.caution)
     return lines
 
@@ -231,7 +233,7 @@ def _n(n: int, word: str) -> str:
 
 
 def _num(d: Any, cm2: float | None) -> str:
-    return "—" if cm2 is None else plain(d.value("area", cm2 * 100.0))
+    return d.num("area", None if cm2 is None else cm2 * 100.0)
 
 
 def _weibull_text(report: Any, units: UnitSystem, width: int, height: int) -> str:

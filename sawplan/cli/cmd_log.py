@@ -8,7 +8,7 @@ from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.cmd_saw import DateOpt, SawsFileOpt, plain
+from sawplan.cli.cmd_saw import DateOpt, SawsFileOpt
 from sawplan.cli.options import (
     BundleOpt,
     CsvOpt,
@@ -19,6 +19,7 @@ from sawplan.cli.options import (
     OrientOpt,
     UnitsOpt,
 )
+from sawplan.display import fmt_number, section_text
 from sawplan.units import UnitSystem
 
 MAX_BATCH = 100_000  # identical cuts in one entry; more is a typing mistake
@@ -216,8 +217,8 @@ def batch_cut_area(section_area_mm2: float, area_mm2: float | None) -> float:
         raise BadDataError(f"must be above 0, got {area_mm2:g} mm²", field="area")
     if area_mm2 > section_area_mm2 * (1 + 1e-9):
         raise BadDataError(
-            f"{plain(area_mm2 / 100)} cm² is more than the section allows "
-            f"({plain(section_area_mm2 / 100)} cm² per cut)",
+            f"{fmt_number(area_mm2 / 100)} cm² is more than the section allows "
+            f"({fmt_number(section_area_mm2 / 100)} cm² per cut)",
             field="area",
             hint="give the area of one cut, at most the section's; --cuts N counts the cuts",
         )
@@ -319,16 +320,14 @@ def render_logged(entry, sec, mat, blade, units: UnitSystem, notes: list[str]) -
     d = Display(units)
     what = _cuts(entry.count)
     lines = [
-        f"logged {what} of {mat.key} {sec.label(units.value)} on blade {blade.tag}"
+        f"logged {what} of {mat.key} {d.section(sec)} on blade {blade.tag}"
         + (f" ({blade.saw})" if blade.saw else ""),
-        f"  area {d.fmt('area', entry.area_mm2, 4)}; blade total {d.fmt('area', blade.area_mm2, 4)} "
+        f"  area {d.fmt('area', entry.area_mm2)}; blade total {d.fmt('area', blade.area_mm2)} "
         f"in {_cuts(blade.cuts)}",
     ]
     if entry.time_min is not None or entry.predicted_time_min is not None:
-        measured = "—" if entry.time_min is None else f"{plain(entry.time_min)} min"
-        model = (
-            "—" if entry.predicted_time_min is None else f"{plain(entry.predicted_time_min)} min"
-        )
+        measured = d.fmt("time", entry.time_min)
+        model = d.fmt("time", entry.predicted_time_min)
         lines.append(f"  time measured {measured}, model {model}")
     lines += [f"  note: {n}" for n in notes]
     return "\n".join(lines)
@@ -411,9 +410,11 @@ def log_list_command(
     headers = ["id", "date", "blade", "saw", "material", "section", "cuts", f"area {d.label('area')}",
                "min", "model min", "job", "heat"]  # fmt: skip
     body = [
-        [r["id"], r["cut_on"], r["blade"], r["saw"] or "", r["material"], r["section"], r["count"],
-         plain(d.value("area", r["area_mm2"])), "" if r["time_min"] is None else plain(r["time_min"]),
-         "" if r["predicted_time_min"] is None else plain(r["predicted_time_min"]), r["job"] or "", r["heat"] or ""]
+        [r["id"], r["cut_on"], r["blade"], r["saw"] or "", r["material"],
+         section_text(d, r["section"]), r["count"], d.num("area", r["area_mm2"]),
+         "" if r["time_min"] is None else fmt_number(r["time_min"]),
+         "" if r["predicted_time_min"] is None else fmt_number(r["predicted_time_min"]),
+         r["job"] or "", r["heat"] or ""]
         for r in rows
     ]  # fmt: skip
     if csv_out:

@@ -92,6 +92,11 @@ def list_rows(mats, units: UnitSystem):
     return headers, rows
 
 
+# The widths of cut the catalogue's speeds and rates are stated for (data/materials.csv).
+BAND_SPEED_CUT_MM = 101.6  # 4 in
+CUTTING_RATE_CUT_MM = 100.0
+
+
 def render_one(m, units: UnitSystem) -> str:
     from sawplan.render import key_values
     from sawplan.units import Display
@@ -106,13 +111,16 @@ def render_one(m, units: UnitSystem) -> str:
         ("density", f"{d.fmt('density', m.density_kg_m3, 4)}   [{m.density_source}]"),
         ("hardness", f"{m.hardness_hb:.0f} HB   [{m.hardness_source}]"),
         (
-            "band speed (bi-metal, coolant, 4 in cut)",
-            f"{d.fmt('speed', m.band_speed_m_min, 3)}   [{m.band_speed_source}]",
+            f"band speed (bi-metal, coolant, {d.length(BAND_SPEED_CUT_MM)} cut)",
+            f"{d.fmt('speed', m.band_speed_m_min)}   [{m.band_speed_source}]",
         ),
-        ("unit cutting energy", f"{m.unit_energy_j_mm3:g} J/mm³   [{m.unit_energy_source}]"),
         (
-            "typical cutting rate (100 mm cut)",
-            f"{d.fmt('rate', m.cutting_rate_cm2_min * 100, 3)}   [{m.cutting_rate_source}]",
+            "unit cutting energy",
+            f"{d.fmt('energy_density', m.unit_energy_j_mm3)}   [{m.unit_energy_source}]",
+        ),
+        (
+            f"typical cutting rate ({d.length(CUTTING_RATE_CUT_MM)} cut)",
+            f"{d.fmt('rate', m.cutting_rate_cm2_min * 100)}   [{m.cutting_rate_source}]",
         ),
         ("work-hardens", "yes" if m.work_hardens else "no"),
     ]

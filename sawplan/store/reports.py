@@ -22,6 +22,7 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any, NamedTuple
 
+from sawplan.display import say
 from sawplan.errors import BadDataError, UsageError
 from sawplan.store.stats import BladeLife, blade_lives, timed_cuts, unused_retired
 
@@ -256,7 +257,7 @@ def _costs(lives: Sequence[BladeLife], confidence: float) -> tuple[tuple, tuple[
         failed = [b.area_cm2 for b in blades if b.failed]
         if not prices or not failed:
             why = "no price recorded" if not prices else "no retired blade yet"
-            missing.append(f"{blade_type}: {why}")
+            missing.append(say("{}: {}", blade_type, why))
             continue
         price = _median(prices)
         fit = fit_weibull([b.area_cm2 for b in blades], [b.failed for b in blades], confidence)

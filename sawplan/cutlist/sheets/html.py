@@ -81,7 +81,7 @@ def render_html(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> str:
         _remnants(plan, d),
         "<h2>Blades and quote</h2>",
         _quote(plan, d),
-        _cautions(plan),
+        _cautions(plan, d),
         f"<footer>sawplan {e(__version__)} · {e(plan.file)} · estimates only</footer>",
     ]
     return (
@@ -320,7 +320,7 @@ def _quote(plan, d: Display) -> str:
             "Blades to have on hand",
             f"{plan.blades_needed} ({forecast_text(plan)})",
         ),
-        ("Blade life", plan.blade_life_source),
+        ("Blade life", d.text(plan.blade_life_source)),
         ("Material", money(plan.material_cost, c)),
         (f"Saw time {d.fmt('time', plan.total_time_min)}{rate}", money(plan.saw_cost, c)),
         ("Blade wear", money(plan.blade_cost, c)),
@@ -330,9 +330,9 @@ def _quote(plan, d: Display) -> str:
     return f"<table>{body}</table>"
 
 
-def _cautions(plan) -> str:
-    notes = "".join(f"<li>{escape(n)}</li>" for n in plan.notes)
-    cautions = "".join(f"<li>{escape(c)}</li>" for c in plan.cautions)
+def _cautions(plan, d: Display) -> str:
+    notes = "".join(f"<li>{escape(d.text(n))}</li>" for n in plan.notes)
+    cautions = "".join(f"<li>{escape(d.text(c))}</li>" for c in plan.cautions)
     out = ""
     if notes:
         out += f'<h2>Notes</h2><ul class="notes">{notes}</ul>'

@@ -181,7 +181,7 @@ def render_plan(
         _remnants(plan, d),
         _blades(plan, d),
         _quote(plan, d),
-        _notes(plan),
+        _notes(plan, d),
     ]
     return "\n\n".join(b for b in blocks if b)
 
@@ -339,7 +339,7 @@ def _blades(plan, d: Display) -> str:
         ("area cut", d.fmt("area", plan.cut_area_cm2 * 100, 4)),
         ("blades worn", f"{fmt_number(plan.blades_consumed, 2)}"),
         ("have on hand", f"{plan.blades_needed} ({forecast_text(plan)})"),
-        ("blade life", plan.blade_life_source),
+        ("blade life", d.text(plan.blade_life_source)),
     ]
     return key_values(pairs, title="BLADES")
 
@@ -379,14 +379,14 @@ def _quote(plan, d: Display) -> str:
     return key_values(pairs, title="QUOTE")
 
 
-def _notes(plan) -> str:
+def _notes(plan, d: Display) -> str:
     lines = []
     if plan.notes:
         lines.append("NOTES")
-        lines += [f"- {n}" for n in plan.notes]
+        lines += [f"- {d.text(n)}" for n in plan.notes]
         lines.append("")
     lines.append("CAUTIONS")
-    lines += [f"- {c}" for c in plan.cautions]
+    lines += [f"- {d.text(c)}" for c in plan.cautions]
     return "\n".join(lines)
 
 
@@ -439,8 +439,8 @@ def render_markdown(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> st
         out += ["", f"Bar weight {d.fmt('mass', b.weight_kg)}: **{b.handling}**.", ""]
     out += ["## Blades and quote", "", "```", _blades(plan, d), "", _quote(plan, d), "```", ""]
     out += ["## Notes and cautions", ""]
-    out += [f"- {_md(n)}" for n in plan.notes]
-    out += [f"- **{_md(c)}**" for c in plan.cautions]
+    out += [f"- {_md(d.text(n))}" for n in plan.notes]
+    out += [f"- **{_md(d.text(c))}**" for c in plan.cautions]
     return "\n".join(out) + "\n"
 
 
