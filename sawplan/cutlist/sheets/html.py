@@ -14,6 +14,7 @@ from __future__ import annotations
 
 from html import escape
 
+from sawplan.cutlist.sheets.palette import piece_tints
 from sawplan.cutlist.sheets.text import (
     breakin_text,
     forecast_text,
@@ -31,7 +32,6 @@ CHAR_W = 0.62  # width of a bold sans-serif character, in ems (estimate for fitt
 BAR_Y, BAR_H = 30.0, 38.0
 LABEL_GAP = 64.0  # least distance between two position labels
 MAX_SINGLE_MARKS = 8  # longer runs of one part are marked once, "A ×56"
-_PALETTE = ("#cfe2f3", "#d9ead3", "#fff2cc", "#f4cccc", "#d9d2e9", "#fce5cd", "#d0e0e3", "#ead1dc")
 
 CSS = """
 @page { size: auto; margin: 12mm }
@@ -230,8 +230,9 @@ def bar_svg(b, d: Display) -> str:
     if b.trim_mm > 0:
         out.append(rect(0.0, b.trim_mm, "#555", "trim"))
     marks = sorted({p.mark for p in b.pieces})
+    tints = piece_tints()
     for i, p in enumerate(b.pieces):
-        colour = _PALETTE[marks.index(p.mark) % len(_PALETTE)]
+        colour = tints[marks.index(p.mark) % len(tints)]
         out.append(rect(p.start_mm, p.end_mm, colour, "piece"))
         nxt = b.pieces[i + 1].start_mm if i + 1 < len(b.pieces) else None
         if nxt is not None and nxt > p.end_mm:
