@@ -180,6 +180,8 @@ class Display:
             return self.section(q.value)
         if q.kind == "size":  # a length whose unit the context gives (a blade's 27×0.9)
             return self.size(q.value)
+        if q.bare:
+            return self.num(q.kind, q.value, q.digits)
         return self.fmt(q.kind, q.value, q.digits)
 
 
@@ -275,6 +277,7 @@ class Q:
     kind: str
     value: Any
     digits: int | None = None  # None: the kind's own rule (3 digits; lengths to resolution)
+    bare: bool = False  # the number alone, its unit said next to it ("300 of 650 cm²")
 
 
 _METRIC = Display()

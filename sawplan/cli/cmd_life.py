@@ -362,7 +362,7 @@ def render_forecast(f: Any, units: UnitSystem) -> str:
         )
     else:
         lines.append(f"  area ÷ life per blade {_area(d, f.life_cm2)}, rounded up")
-    lines.append(f"  {f.note}")
+    lines.append(f"  {d.text(f.note)}")
     return "\n".join(lines)
 
 
@@ -388,7 +388,7 @@ def render_job_forecast(j: Any, units: UnitSystem) -> str:
             f"  one blade cuts every group: areas put on the {j.combined_on} scale by mean life, "
             "as `sawplan plan` does"
         )
-    out += [f"  {g.material_group}: {g.note}" for g in j.groups]
+    out += [f"  {g.material_group}: {d.text(g.note)}" for g in j.groups]
     return "\n".join(out)
 
 

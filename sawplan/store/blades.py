@@ -86,7 +86,7 @@ def wear_summary(
     if wear.status == "break-in" and wear.total_area_cm2 < wear.break_in_cm2:
         return say(
             "breaking in: {} of {} cut (reduced feed, common practice)",
-            _area(wear.total_area_cm2),
+            Q("area", wear.total_area_cm2 * 100.0, bare=True),
             _area(wear.break_in_cm2),
         )
     if wear.status in ("break-in", "too-few-cuts"):

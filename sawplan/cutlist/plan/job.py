@@ -105,7 +105,7 @@ def plan_job(
         if material.group not in lives:
             lives[material.group], log_note = blade_life(material.group, life_for)
             if log_note:
-                notes.append(f"{material.group}: {log_note}")
+                notes.append(say("{}: {}", material.group, log_note))
         section_plan, group_bars = plan_section(
             job, group, material, section, cut, factor, n_cal, kerf_mm, kerf_source,
             lives[material.group], marks, first_bar=len(bars) + 1, time_limit_s=time_limit_s,
