@@ -151,6 +151,11 @@ class Display:
         dash = " – " if self.us and self.fractions else "–"
         return f"{self.pos(start_mm)}{dash}{self.pos(end_mm)}"
 
+    def span_of(self, kind: str, low: float, high: float, *, unit: bool = True) -> str:
+        """A range of an estimate: ``20-100 m/min`` (3 digits, no trailing zeros)."""
+        text = f"{fmt_plain(self.value(kind, low))}-{fmt_plain(self.value(kind, high))}"
+        return f"{text} {self.label(kind)}" if unit else text
+
     def bar_length(self, mm: float) -> str:
         """A bar or stock length: mm; inches, or feet and inches from 6 ft (``12 ft 0.094 in``)."""
         if not self.us or mm / _IN < LONG_BAR_IN:

@@ -360,7 +360,7 @@ def blade_list_command(
     rows = [
         [
             b.tag,
-            b.blade_type,
+            d.text(b.blade_type),
             b.status,
             b.saw or "",
             b.cuts,

@@ -309,8 +309,7 @@ def render_saw(saw, units: UnitSystem) -> str:
 
 
 def _speed_range(saw, d) -> str:
-    lo = d.num("speed", saw.band_speed_min_m_min)
-    return f"{lo}-{d.fmt('speed', saw.band_speed_max_m_min)}"
+    return f"{d.span_of('speed', saw.band_speed_min_m_min, saw.band_speed_max_m_min)}"
 
 
 def saw_list_command(
@@ -350,7 +349,7 @@ def saw_list_command(
             s.name,
             s.kind,
             d.num("length", s.wheel_diameter_mm),
-            f"{d.num('speed', s.band_speed_min_m_min)}-{d.num('speed', s.band_speed_max_m_min)}",
+            d.span_of("speed", s.band_speed_min_m_min, s.band_speed_max_m_min, unit=False),
             d.num("power", s.motor_power_w),
             d.num("length", s.capacity_round_mm),
             s.feed_type,

@@ -292,7 +292,7 @@ def _drawings(plan, d: Display, width: int) -> str:
     lines = [f"BARS TO SCALE ({width} columns = one bar; # trim, [A] piece, =R= keep, ... scrap)"]
     num = max((len(str(b.bar)) for b in plan.bars), default=1)
     for b in plan.bars:
-        tail = f"{d.length(b.length_mm)}"
+        tail = d.bar_length(b.length_mm)
         if b.remnant_kept:
             tail += f", R {d.length(b.remnant_mm)}" + (f" heat {b.heat}" if b.heat else "")
         lines.append(f"{str(b.bar).rjust(num)} |{draw_bar(b, width)}| {tail}")
