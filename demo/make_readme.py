@@ -54,7 +54,7 @@ def tour(trial_blade: str) -> list[tuple[str, str]]:
         (
             "On the twin-column saw a 250 mm billet of 304 stainless waits, and the 4/6 "
             "blade from the bar work is still on the saw. What it would do, and why:",
-            f"sawplan cut 304 round 250mm --saw column-bay --blade-tpi 4/6 --db {DB}",
+            f"sawplan cut 304 round 250mm --saw column-bay --pitch 4/6 --db {DB}",
         ),
         (
             "A 6 m channel from the rack: its weight and how to move it (revised NIOSH "
@@ -72,7 +72,7 @@ def tour(trial_blade: str) -> list[tuple[str, str]]:
             "the head end, remnants to mark with their heat number, weights and lifting, "
             "blade and time per section, blades to have on hand and the quote. "
             "`--sheet job.html` writes the printable sheet with every bar drawn to scale; "
-            "`--csv DIR` and `--json` give the same plan as data:",
+            "`--csv-dir DIR` and `--json` give the same plan as data:",
             f"sawplan plan demo/jobs/frame-kit.toml --db {DB}",
         ),
         (

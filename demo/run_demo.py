@@ -59,7 +59,7 @@ def steps(out: Path, trial_blade: str | None = None) -> list[tuple[str, list[str
         ),
         (
             "A billet cut on the column saw with the 4/6 blade from the bar work left on it",
-            f"cut 304 round 250mm --saw column-bay --blade-tpi 4/6 --db {db}",
+            f"cut 304 round 250mm --saw column-bay --pitch 4/6 --db {db}",
         ),
         (
             "A 6 m channel from the rack: its weight and how to lift it",
