@@ -16,7 +16,7 @@ import math
 from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any
 
-from sawplan.display import Display, UnitSystem, fmt_plain
+from sawplan.display import Display, UnitSystem, as_display, fmt_plain
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.life import BladeCost, ModeRanking, WearCurve, WeibullPlot
@@ -92,7 +92,7 @@ def wear_chart(
     curve: WearCurve,
     *,
     title: str = "wear curve",
-    units: UnitSystem = UnitSystem.METRIC,
+    units: UnitSystem | Display = UnitSystem.METRIC,
     width: int = WIDTH,
     height: int = HEIGHT,
     colorless: bool = True,
@@ -106,7 +106,7 @@ def wear_chart(
     """
     if not curve.points:
         return f"{title}: no timed cuts to draw"
-    d = Display(units)
+    d = as_display(units)
     area = 100.0  # cm² → core mm²
     xs = [d.value("area", p.cumulative_area_cm2 * area) for p in curve.points]
     rates = [d.value("rate", p.rate_cm2_min * area) for p in curve.points]
@@ -190,7 +190,7 @@ def weibull_chart(
     plot: WeibullPlot,
     *,
     title: str = "Weibull probability plot",
-    units: UnitSystem = UnitSystem.METRIC,
+    units: UnitSystem | Display = UnitSystem.METRIC,
     width: int = WIDTH,
     height: int = HEIGHT,
     colorless: bool = True,
@@ -198,7 +198,7 @@ def weibull_chart(
     """Failures at their median ranks on Weibull axes; a Weibull sample lies on a line."""
     if not plot.points:
         return f"{title}: no failures to plot"
-    d = Display(units)
+    d = as_display(units)
     to_display = d.value("area", 100.0)  # one cm² in display units
     xs = [p.x for p in plot.points]
     ys = [p.y for p in plot.points]
@@ -356,7 +356,7 @@ def cost_chart(
     costs: Sequence[BladeCost],
     *,
     title: str = "blade cost per area cut",
-    units: UnitSystem = UnitSystem.METRIC,
+    units: UnitSystem | Display = UnitSystem.METRIC,
     width: int = WIDTH,
     height: int | None = None,
     colorless: bool = True,
@@ -364,7 +364,7 @@ def cost_chart(
     """Price ÷ life per blade type, cheapest on top (currency as the prices were logged)."""
     if not costs:
         return f"{title}: no blade type has both a price and a retired blade yet"
-    d = Display(units)
+    d = as_display(units)
     labels = [d.text(c.blade_type) for c in costs]
     values = [d.per("large_area", c.cost_per_m2 / 1e6) for c in costs]
     per = d.label("large_area")
@@ -400,11 +400,11 @@ def _hbars(
 # --- one cut: width of cut and feed against depth -----------------------------------------
 
 
-def cut_chart(r: Any, units: UnitSystem, *, width: int = 72, height: int = 18) -> str:
+def cut_chart(r: Any, units: UnitSystem | Display, *, width: int = 72, height: int = 18) -> str:
     """Chord W(y) and the predicted feed through the cut, against depth."""
     from sawplan.cutting.explain import LIMIT_WORDS
 
-    d = Display(units)
+    d = as_display(units)
     ys = [d.value("length", p.y_mm) for p in r.profile]
     chords = [d.value("length", p.chord_mm) for p in r.profile]
     feeds = [d.value("feed", p.feed_mm_min) for p in r.profile]

@@ -73,6 +73,7 @@ DISPLAY: dict[str, dict[UnitSystem, tuple[str, float]]] = {
 LONG_TIME_MIN = 90.0  # above this a time reads better as hours and minutes
 LONG_BAR_IN = 72.0  # from 6 ft a bar's length reads in feet and inches
 FRACTION_DENOMINATOR = 32  # --fractions: the nearest 1/32 in, a tape's resolution
+FRACTION_TOLERANCE_IN = 0.0015  # a size this close to a 1/32 is that fraction
 _PSI_BELOW_KSI = 1.0  # stresses under 1 ksi read in psi
 
 
@@ -125,19 +126,31 @@ class Display:
     # --- lengths: measurements, shown to a resolution -------------------------------
 
     def size(self, mm: float) -> str:
-        """A size or length without its unit: 65, 136.6, 2.15 (mm); 28.346 or 28-11/32 (in)."""
+        """A size without its unit: 65, 136.6, 2.15 (mm); 7.25, or 7-1/4 with ``fractions``.
+
+        A size is exact: with ``fractions`` it reads as a fraction only when it is
+        one (within 0.0015 in of a 1/32), so a 0.170 in wall stays 0.17, not 5/32.
+        """
         if not math.isfinite(mm):
             return "—"
         if self.us:
             inches = mm / _IN
-            if self.fractions:
+            nearest = round(inches * FRACTION_DENOMINATOR) / FRACTION_DENOMINATOR
+            if self.fractions and abs(inches - nearest) <= FRACTION_TOLERANCE_IN:
                 return fmt_fraction(inches)
             return _strip(f"{inches:,.3f}")
         return _strip(f"{mm:,.2f}" if abs(mm) < 10 else f"{mm:,.1f}")
 
     def length(self, mm: float) -> str:
-        """A size or length with its unit: ``65 mm``, ``7.25 in``, ``7-1/4 in``."""
+        """A size with its unit: ``65 mm``, ``7.25 in``, ``7-1/4 in``."""
         return f"{self.size(mm)} {self.label('length')}"
+
+    def tape(self, mm: float) -> str:
+        """A length to measure along a bar, with its unit: with ``fractions`` always the
+        nearest 1/32 in, as a tape reads (``43-5/16 in``)."""
+        if self.us and self.fractions:
+            return f"{fmt_fraction(mm / _IN)} in"
+        return self.length(mm)
 
     def pos(self, mm: float) -> str:
         """A position along a bar for a table column: fixed decimals so columns line up."""
@@ -159,9 +172,9 @@ class Display:
     def bar_length(self, mm: float) -> str:
         """A bar or stock length: mm; inches, or feet and inches from 6 ft (``12 ft 0.094 in``)."""
         if not self.us or mm / _IN < LONG_BAR_IN:
-            return self.length(mm)
+            return self.tape(mm)
         feet, rest_mm = divmod(mm, _FT)
-        rest = self.size(rest_mm)
+        rest = fmt_fraction(rest_mm / _IN) if self.fractions else self.size(rest_mm)
         if rest in ("0", "0.000"):
             return f"{feet:,.0f} ft"
         if rest == str(12):  # rounded up to a whole foot

@@ -92,6 +92,9 @@ _TABLE: tuple[Field, ...] = (
     Field("units", "units", "--units", "-u", "us|metric",
           "Units to show: us (in, lb, ft/min) or metric (mm, kg, m/min).",
           choices=("us", "metric")),
+    Field("fractions", "inch fractions", "--fractions",
+          help="With --units us, lengths in inches to the nearest 1/32 (7-1/4) instead of "
+               "decimals."),
     Field("json", "JSON output", "--json", help="Print JSON (keys carry their unit)."),
     Field("csv", "CSV output", "--csv", help="Print CSV instead of a table."),
     Field("db", "blade log", "--db", placeholder="PATH|URL",

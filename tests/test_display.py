@@ -75,20 +75,27 @@ def test_inch_fractions_to_the_nearest_32nd(inches, text):
 
 
 @pytest.mark.parametrize(
-    ("mm", "metric", "us", "us_fractions"),
+    ("mm", "metric", "us", "us_fractions", "tape"),
     [
         # 184.15 mm = 7.25 in exactly (7.25 × 25.4)
-        pytest.param(184.15, "184.2 mm", "7.25 in", "7-1/4 in", id="7-1/4in"),
-        # a kerf: 2.1 mm = 0.08268 in
-        pytest.param(2.1, "2.1 mm", "0.083 in", "3/32 in", id="kerf"),
-        pytest.param(1.65, "1.65 mm", "0.065 in", "1/16 in", id="thin wall under 10 mm"),
-        pytest.param(3048.0, "3,048 mm", "120 in", "120 in", id="10 ft"),
+        pytest.param(184.15, "184.2 mm", "7.25 in", "7-1/4 in", "7-1/4 in", id="7-1/4in"),
+        # a kerf: 2.1 mm = 0.08268 in, 0.011 in from 3/32: no fraction, the size is exact
+        pytest.param(2.1, "2.1 mm", "0.083 in", "0.083 in", "3/32 in", id="kerf"),
+        # 16 ga wall 1.65 mm = 0.06496 in, 0.0025 in from 1/16: stays decimal
+        pytest.param(1.65, "1.65 mm", "0.065 in", "0.065 in", "1/16 in", id="thin wall"),
+        # 4.7625 mm = 3/16 in exactly
+        pytest.param(4.7625, "4.76 mm", "0.188 in", "3/16 in", "3/16 in", id="3/16 wall"),
+        pytest.param(3048.0, "3,048 mm", "120 in", "120 in", "120 in", id="10 ft"),
+        # 1100 mm = 43.307 in: a size stays decimal, a tape reads 43-5/16 (43.3125)
+        pytest.param(1100.0, "1,100 mm", "43.307 in", "43.307 in", "43-5/16 in", id="1100 mm"),
     ],
 )
-def test_lengths_keep_their_resolution(mm, metric, us, us_fractions):
+def test_lengths_keep_their_resolution(mm, metric, us, us_fractions, tape):
     assert METRIC.fmt("length", mm) == metric
     assert US.fmt("length", mm) == us
     assert US_FRACTIONS.fmt("length", mm) == us_fractions
+    assert US_FRACTIONS.tape(mm) == tape
+    assert US.tape(mm) == us and METRIC.tape(mm) == metric
     assert REF.Quantity(mm, "mm").to("inch").magnitude == pytest.approx(
         float(us.split()[0]), abs=0.0005
     )

@@ -117,6 +117,25 @@ def test_plan(cli, tmp_path):
         assert metric not in out, metric
 
 
+def test_plan_in_fractions(cli, tmp_path):
+    # the same job as test_plan, read off a tape to the nearest 1/32 in (by hand):
+    # 0.2 × 32 = 6.4 → 6/32 = 3/16; 10.2 → 10-3/16; 50.4 → 1612.8/32 → 50-13/32;
+    # 10.05 × 32 = 321.6 → 10-1/16; 50.45 × 32 = 1614.4 → 50-7/16; 93.55 × 32 = 2993.6 → 93-9/16
+    job = tmp_path / "job.toml"
+    job.write_text(
+        '[job]\nname = "us blanks"\nsaw = "mid-production"\ntrim = "0.2in"\nkerf = "0.05in"\n'
+        'grip = "0in"\nmin_remnant = "12in"\n'
+        '[[stock]]\nmaterial = "1018"\nsection = "round 1in"\nlength = "12ft"\ncount = 1\n'
+        '[[part]]\nname = "blank"\nmaterial = "1018"\nsection = "round 1in"\nlength = "10in"\n'
+        "count = 5\n",
+        encoding="utf-8",
+    )
+    text = "\n".join(lines(cli("plan", str(job), "--units", "us", "--fractions").out))
+    assert "trim 0 – 3/16 squaring cut" in text
+    assert "1–5 3/16 – 50-13/32 A blank (10 in) ×5, one every 10-1/16 in" in text
+    assert "end 50-7/16 – 144 keep 93-9/16 in remnant" in text
+
+
 def test_materials(cli):
     # 1018 in data/materials.csv: 7,870 kg/m³, 88.4 m/min, 5.2 J/mm³
     out = cli("materials", "1018", "--units", "us").out
@@ -141,8 +160,8 @@ def test_saw_list(cli):
 
 def test_blade_log_commands(cli, tmp_path):
     db = str(tmp_path / "log.sqlite")
-    assert cli("blade", "add", "B-1", "--pitch", "4/6", "--width", "27mm", "--thickness",
-               "0.9mm", "--length", "3660mm", "--db", db).code == 0  # fmt: skip
+    assert cli("blade", "add", "B-1", "--pitch", "4/6", "--blade-width", "27mm", "--blade-thickness",
+               "0.9mm", "--blade-length", "3660mm", "--db", db).code == 0  # fmt: skip
     assert cli("blade", "fit", "B-1", "--saw", "mid-production", "--db", db).code == 0
     logged = cli("log", "cut", "4140", "round", "2in", "--blade", "B-1", "--cuts", "10",
                  "--time", "12min", "--db", db, "--units", "us").out  # fmt: skip

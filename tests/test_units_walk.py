@@ -58,12 +58,12 @@ READ = [
 
 # Commands that write, in order, on a copy of the log: a new blade's life so far.
 WRITE = (
-    "blade add X-1 --pitch 4/6 --width 27mm --thickness 0.9mm --length 3660mm --db {db}",
+    "blade add X-1 --pitch 4/6 --blade-width 27mm --blade-thickness 0.9mm --blade-length 3660mm --db {db}",
     "blade fit X-1 --saw auto-bay --db {db}",
     "log cut 4140 round 40mm --blade X-1 --cuts 5 --time 6min --db {db}",
     "saw add bay-9 --like mid-production --wheel 450mm --db {db}",
     "blade show X-1 --db {db}",
-    "blade retire X-1 --cause dull --db {db}",
+    "blade retire X-1 --failure dull --db {db}",
 )
 
 

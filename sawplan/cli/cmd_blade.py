@@ -12,6 +12,7 @@ from sawplan.cli.options import (
     CsvOpt,
     DateOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     NoteOpt,
     SawsFileOpt,
@@ -20,7 +21,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
-from sawplan.display import Display, fmt_number, section_text
+from sawplan.display import Display, as_display, fmt_number, section_text
 from sawplan.units import UnitSystem
 
 BLADE_MATERIALS = {
@@ -143,6 +144,7 @@ def blade_add_command(
     welded: Annotated[str, opt("welded", show_default=True)] = "bought",
     notes: NoteOpt = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     db: DbOpt = None,
 ) -> None:
@@ -182,13 +184,13 @@ def blade_add_command(
     if json_out:
         print(to_json(blade, kind="blade"))
         return
-    print(f"added blade {blade.tag}: {describe(blade, units)}")
+    print(f"added blade {blade.tag}: {describe(blade, Display(units, fractions))}")
 
 
-def describe(blade: Any, units: UnitSystem) -> str:
+def describe(blade: Any, units: UnitSystem | Display) -> str:
     """``bi-metal M42, 27 × 0.9 mm, 3/4 TPI, 3,505 mm long``."""
 
-    d = Display(units)
+    d = as_display(units)
     size = (
         f"{d.num('length', blade.width_mm)} × {d.num('length', blade.thickness_mm)} "
         f"{d.label('length')}"
@@ -264,6 +266,7 @@ def blade_retire_command(
     location: Annotated[str | None, opt("location")] = None,
     note: NoteOpt = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     db: DbOpt = None,
 ) -> None:
     from sawplan.life.failure_modes import failure_mode
@@ -275,7 +278,7 @@ def blade_retire_command(
     with connect(db) as database:
         blade = retire_blade(database, tag, cause, on=on, location=location, note=note)
     mode = failure_mode(blade.retire_cause or cause)
-    area = Display(units).fmt("area", blade.area_mm2)
+    area = Display(units, fractions).fmt("area", blade.area_mm2)
     cuts = "1 cut" if blade.cuts == 1 else f"{blade.cuts:,} cuts"
     print(f"retired blade {blade.tag} ({on}) after {area} in {cuts}: {mode.name}")
     print("usual causes (common practice): " + "; ".join(mode.causes))
@@ -284,6 +287,7 @@ def blade_retire_command(
 def blade_list_command(
     status: Annotated[str | None, opt("status")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -297,7 +301,7 @@ def blade_list_command(
     if json_out:
         print(to_json(blades, kind="blades"))
         return
-    d = Display(units)
+    d = Display(units, fractions)
     headers = [
         "tag",
         "type",
@@ -338,6 +342,7 @@ def blade_show_command(
     width: ChartWidthOpt = 72,
     height: ChartHeightOpt = 20,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -360,9 +365,9 @@ def blade_show_command(
             print(to_csv(*wear_rows(history.wear)), end="")
         return
     if chart:
-        print(wear_chart_text(history, units, width, height))
+        print(wear_chart_text(history, Display(units, fractions), width, height))
         return
-    print(render_history(history, units))
+    print(render_history(history, Display(units, fractions)))
 
 
 def wear_rows_empty() -> tuple[list[str], list[list[Any]]]:
@@ -373,7 +378,7 @@ def wear_rows_empty() -> tuple[list[str], list[list[Any]]]:
     return headers, []
 
 
-def wear_chart_text(history: Any, units: UnitSystem, width: int, height: int) -> str:
+def wear_chart_text(history: Any, units: UnitSystem | Display, width: int, height: int) -> str:
     import sys
 
     from sawplan.charts import wear_chart
@@ -391,15 +396,15 @@ def wear_chart_text(history: Any, units: UnitSystem, width: int, height: int) ->
         height=height,
         colorless=not sys.stdout.isatty(),
         # a retired or removed blade's verdict is its life, not "still breaking in"
-        verdict=Display(units).text(history.wear_summary) if off_saw else None,
+        verdict=as_display(units).text(history.wear_summary) if off_saw else None,
     )
     return "\n".join([text, *history.wear_notes])
 
 
-def render_history(h: Any, units: UnitSystem) -> str:
+def render_history(h: Any, units: UnitSystem | Display) -> str:
     from sawplan.render import key_values, table
 
-    d = Display(units)
+    d = as_display(units)
     b = h.blade
     pairs = [
         ("blade", f"{b.tag}: {describe(b, units)}"),

@@ -9,6 +9,7 @@ import typer
 from sawplan.cli.options import (
     BundleOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialArg,
     MaterialsFileOpt,
@@ -20,6 +21,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display
 from sawplan.units import UnitSystem
 
 HELP = """Choose the blade, band speed and feed for one cut, and time it.
@@ -63,6 +65,7 @@ def cut_command(
         bool, opt("chart", help="Chart width of cut and feed through the cut.")
     ] = False,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     db: DbOpt = None,
     saws_file: SawsFileOpt = None,
@@ -71,7 +74,6 @@ def cut_command(
     from sawplan.charts import cut_chart
     from sawplan.cli.cut_view import render_cut
     from sawplan.cutting import compare, recommend
-    from sawplan.display import Display
     from sawplan.errors import UsageError
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
@@ -109,14 +111,14 @@ def cut_command(
         payload = {**jsonable(result), "comparison": summary, "calibration_cuts": calibration_n}
         print(to_json(payload, kind="cut"))
         return
-    d = Display(units)
+    d = Display(units, fractions)
     if summary:
         print(d.text(summary))
         print()
     print(render_cut(result, d, section_label=d.section(sec), calibration_cuts=calibration_n))
     if chart:
         print()
-        print(cut_chart(result, units))
+        print(cut_chart(result, d))
 
 
 def register(app: typer.Typer) -> None:

@@ -14,6 +14,7 @@ from sawplan.cli.options import (
     ConfidenceOpt,
     CsvOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialsFileOpt,
     TagArg,
@@ -21,7 +22,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
-from sawplan.display import fmt_number
+from sawplan.display import Display, as_display, fmt_number
 from sawplan.units import UnitSystem
 
 LIFE_HELP = """Blade life from the log: Weibull fit, failure modes, cost per area, calibration.
@@ -79,6 +80,7 @@ def life_command(
     ] = False,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     db: DbOpt = None,
 ) -> None:
@@ -91,12 +93,12 @@ def life_command(
     if json_out:
         print(to_json(report, kind="life"))
         return
-    print(render_life(report, units))
+    print(render_life(report, Display(units, fractions)))
     if chart:
         from sawplan.charts import modes_chart
 
         print()
-        print(_weibull_text(report, units, 72, 20))
+        print(_weibull_text(report, Display(units, fractions), 72, 20))
         print()
         print(modes_chart(report.failure_modes, colorless=_colorless()))
 
@@ -105,11 +107,10 @@ def _area(d: Any, cm2: float | None) -> str:
     return d.fmt("area", None if cm2 is None else cm2 * 100.0)
 
 
-def render_life(r: Any, units: UnitSystem) -> str:
+def render_life(r: Any, units: UnitSystem | Display) -> str:
     from sawplan.render import table
-    from sawplan.units import Display
 
-    d = Display(units)
+    d = as_display(units)
     o = r.overall
     pct = f"{r.confidence:.0%}"
     lines = [
@@ -227,7 +228,7 @@ def _num(d: Any, cm2: float | None) -> str:
     return d.num("area", None if cm2 is None else cm2 * 100.0)
 
 
-def _weibull_text(report: Any, units: UnitSystem, width: int, height: int) -> str:
+def _weibull_text(report: Any, units: UnitSystem | Display, width: int, height: int) -> str:
     from sawplan.charts import weibull_chart
 
     plot = _weibull_plot_of(report)
@@ -260,6 +261,7 @@ def forecast_command(
     life: Annotated[str | None, opt("life")] = None,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
     db: DbOpt = None,
@@ -286,7 +288,7 @@ def forecast_command(
         if json_out:
             print(to_json(result, kind="forecast-job"))
             return
-        print(render_job_forecast(result, units))
+        print(render_job_forecast(result, Display(units, fractions)))
         return
     area_cm2 = parse("area", area) / 100.0
     life_cm2 = None if life is None else parse("life", life) / 100.0
@@ -304,7 +306,7 @@ def forecast_command(
     if json_out:
         print(to_json(result, kind="forecast"))
         return
-    print(render_forecast(result, units))
+    print(render_forecast(result, Display(units, fractions)))
 
 
 def job_cut_areas(path: Path, catalogue: Any) -> dict[str, float]:
@@ -328,10 +330,9 @@ def job_cut_areas(path: Path, catalogue: Any) -> dict[str, float]:
     return areas
 
 
-def render_forecast(f: Any, units: UnitSystem) -> str:
-    from sawplan.units import Display
+def render_forecast(f: Any, units: UnitSystem | Display) -> str:
 
-    d = Display(units)
+    d = as_display(units)
     what = f" of {f.material} ({f.material_group})" if f.material else ""
     lines = [f"blades needed to cut {_area(d, f.area_cm2)}{what}: {f.blades_needed}"]
     if f.method == "weibull-simulation":
@@ -345,11 +346,10 @@ def render_forecast(f: Any, units: UnitSystem) -> str:
     return "\n".join(lines)
 
 
-def render_job_forecast(j: Any, units: UnitSystem) -> str:
+def render_job_forecast(j: Any, units: UnitSystem | Display) -> str:
     from sawplan.render import table
-    from sawplan.units import Display
 
-    d = Display(units)
+    d = as_display(units)
     rows = [
         [g.material_group, _num(d, g.area_cm2), g.blades_needed, g.life_source] for g in j.groups
     ]
@@ -393,6 +393,7 @@ def chart_wear_command(
     width: ChartWidthOpt = 72,
     height: ChartHeightOpt = 20,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -407,7 +408,7 @@ def chart_wear_command(
     headers, rows = wear_rows(history.wear) if history.wear is not None else wear_rows_empty()
     if _emit_rows(headers, rows, "wear-curve", json_out, csv_out):
         return
-    print(wear_chart_text(history, units, width, height))
+    print(wear_chart_text(history, Display(units, fractions), width, height))
 
 
 def chart_weibull_command(
@@ -415,6 +416,7 @@ def chart_weibull_command(
     height: ChartHeightOpt = 20,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -432,7 +434,7 @@ def chart_weibull_command(
         headers, rows = weibull_rows(plot)
     if _emit_rows(headers, rows, "weibull-plot", json_out, csv_out):
         return
-    print(_weibull_text(report, units, width, height))
+    print(_weibull_text(report, Display(units, fractions), width, height))
 
 
 def weibull_rows_empty() -> tuple[list[str], list[list[Any]]]:
@@ -466,6 +468,7 @@ def chart_cost_command(
     width: ChartWidthOpt = 72,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -478,7 +481,11 @@ def chart_cost_command(
         report = life_report(database, confidence=confidence)
     if _emit_rows(*cost_rows(report.costs), "blade-costs", json_out, csv_out):
         return
-    print(cost_chart(report.costs, units=units, width=width, colorless=_colorless()))
+    print(
+        cost_chart(
+            report.costs, units=Display(units, fractions), width=width, colorless=_colorless()
+        )
+    )
     if report.costs_missing:
         print("no cost yet for " + "; ".join(report.costs_missing))
 

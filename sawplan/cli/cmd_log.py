@@ -13,6 +13,7 @@ from sawplan.cli.options import (
     CsvOpt,
     DateOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialArg,
     MaterialsFileOpt,
@@ -27,7 +28,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
-from sawplan.display import fmt_number, section_text
+from sawplan.display import Display, as_display, fmt_number, section_text
 from sawplan.units import UnitSystem
 
 HELP = """Log what the blades cut (cuts) and what happened to them (events).
@@ -99,6 +100,7 @@ def log_cut_command(
     heat: Annotated[str | None, opt("heat")] = None,
     note: NoteOpt = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
     saws_file: SawsFileOpt = None,
@@ -168,7 +170,7 @@ def log_cut_command(
         result = LoggedCut(entry_id, after.tag, after.saw, after.area_mm2, tuple(notes), entry)
         print(to_json(result, kind="logged-cut"))
         return
-    print(render_logged(entry, sec, mat, after, units, notes))
+    print(render_logged(entry, sec, mat, after, Display(units, fractions), notes))
 
 
 def batch_cut_area(section_area_mm2: float, area_mm2: float | None) -> float:
@@ -273,10 +275,9 @@ class LoggedCut:
         return body
 
 
-def render_logged(entry, sec, mat, blade, units: UnitSystem, notes: list[str]) -> str:
-    from sawplan.units import Display
+def render_logged(entry, sec, mat, blade, units: UnitSystem | Display, notes: list[str]) -> str:
 
-    d = Display(units)
+    d = as_display(units)
     what = _cuts(entry.count)
     lines = [
         f"logged {what} of {mat.key} {d.section(sec)} on blade {blade.tag}"
@@ -333,6 +334,7 @@ def log_list_command(
     job: Annotated[str | None, opt("job", help="Only this job.")] = None,
     limit: Annotated[int, opt("limit", show_default=True)] = 30,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -340,14 +342,13 @@ def log_list_command(
     from sawplan.render import table, to_csv, to_json
     from sawplan.store import connect
     from sawplan.store.records import list_cuts
-    from sawplan.units import Display
 
     with connect(db, create=False) as database:
         rows = list_cuts(database, blade=blade, saw=saw, job=job, limit=limit)
     if json_out:
         print(to_json(rows, kind="cuts"))
         return
-    d = Display(units)
+    d = Display(units, fractions)
     headers = ["id", "date", "blade", "saw", "material", "section", "cuts", f"area {d.label('area')}",
                "min", "model min", "job", "heat"]  # fmt: skip
     body = [

@@ -6,7 +6,17 @@ from typing import Annotated
 
 import typer
 
-from sawplan.cli.options import CsvOpt, JsonOpt, MaterialsFileOpt, UnitsOpt, arg, command, opt
+from sawplan.cli.options import (
+    CsvOpt,
+    FractionsOpt,
+    JsonOpt,
+    MaterialsFileOpt,
+    UnitsOpt,
+    arg,
+    command,
+    opt,
+)
+from sawplan.display import Display, as_display
 from sawplan.units import UnitSystem
 
 HELP = """List the materials sawplan knows, or show one with its sources.
@@ -24,6 +34,7 @@ def materials_command(
     key: Annotated[str | None, arg("material", help="Show this one material in full.")] = None,
     group: Annotated[str | None, opt("group")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     materials_file: MaterialsFileOpt = None,
@@ -35,7 +46,11 @@ def materials_command(
     cat = load_catalogue(materials_file)
     if key is not None:
         mat = cat.get(key)
-        print(to_json(mat, kind="material") if json_out else render_one(mat, units))
+        print(
+            to_json(mat, kind="material")
+            if json_out
+            else render_one(mat, Display(units, fractions))
+        )
         return
     if group is not None:
         if group not in cat.groups():
@@ -47,7 +62,7 @@ def materials_command(
         mats = cat.in_group(group)
     else:
         mats = list(cat)
-    headers, rows = list_rows(mats, units)
+    headers, rows = list_rows(mats, Display(units, fractions))
     if json_out:
         print(to_json(mats, kind="materials"))
     elif csv_out:
@@ -59,10 +74,10 @@ def materials_command(
         print("\n`sawplan materials KEY` shows one material with the source of each value.")
 
 
-def list_rows(mats, units: UnitSystem):
-    from sawplan.units import Display, fmt_number
+def list_rows(mats, units: UnitSystem | Display):
+    from sawplan.display import fmt_number
 
-    d = Display(units)
+    d = as_display(units)
     headers = [
         "key",
         "designation",
@@ -92,11 +107,10 @@ BAND_SPEED_CUT_MM = 101.6  # 4 in
 CUTTING_RATE_CUT_MM = 100.0
 
 
-def render_one(m, units: UnitSystem) -> str:
+def render_one(m, units: UnitSystem | Display) -> str:
     from sawplan.render import key_values
-    from sawplan.units import Display
 
-    d = Display(units)
+    d = as_display(units)
     pairs = [
         ("key", m.key),
         ("designation", m.designation),

@@ -9,6 +9,7 @@ import typer
 
 from sawplan.cli.options import (
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialsFileOpt,
     SawsFileOpt,
@@ -17,6 +18,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display
 from sawplan.units import UnitSystem
 
 HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote.
@@ -56,6 +58,7 @@ def plan_command(
     ] = None,
     sheet: Annotated[Path | None, opt("sheet")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     db: DbOpt = None,
     saw_name: Annotated[
         str | None, opt("saw", help="Saw to plan for (overrides saw in [job]).")
@@ -96,13 +99,13 @@ def plan_command(
         log_label=log.label,
         time_limit_s=time_limit,
     )
-    outputs = render_outputs(plan, units, csv_dir, sheet)
+    outputs = render_outputs(plan, Display(units, fractions), csv_dir, sheet)
     if json_out:
         print(to_json(plan, kind="plan"))
     else:
         from sawplan.cutlist.sheets.text import render_plan
 
-        print(render_plan(plan, units))
+        print(render_plan(plan, Display(units, fractions)))
     written = write_all(outputs)
     for path in written:
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
@@ -145,7 +148,7 @@ def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
 
 
 def render_outputs(
-    plan, units: UnitSystem, csv_dir: Path | None, sheet: Path | None
+    plan, units: UnitSystem | Display, csv_dir: Path | None, sheet: Path | None
 ) -> dict[Path, str]:
     """Every file to write, as text, before anything touches the disk."""
     outputs: dict[Path, str] = {}

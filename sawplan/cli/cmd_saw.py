@@ -10,6 +10,7 @@ import typer
 from sawplan.cli.options import (
     CsvOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     NoteOpt,
     SawsFileOpt,
@@ -18,6 +19,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display, as_display
 from sawplan.units import UnitSystem
 
 HELP = """Saw profiles: add your own saws to the blade log and list every saw known.
@@ -109,6 +111,7 @@ def saw_add_command(
     notes: NoteOpt = None,
     replace: Annotated[bool, opt("replace")] = False,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     saws_file: SawsFileOpt = None,
     db: DbOpt = None,
@@ -173,7 +176,7 @@ def saw_add_command(
     if json_out:
         print(to_json(saw, kind="saw"))
         return
-    print(render_saw(saw, units))
+    print(render_saw(saw, Display(units, fractions)))
     print(
         f"\nSaved in the blade log; use it with `sawplan blade fit TAG --saw {_quote(saw.name)}`."
     )
@@ -200,11 +203,10 @@ def _quote(name: str) -> str:
     return f'"{name}"' if " " in name else name
 
 
-def render_saw(saw, units: UnitSystem) -> str:
+def render_saw(saw, units: UnitSystem | Display) -> str:
     from sawplan.render import key_values
-    from sawplan.units import Display
 
-    d = Display(units)
+    d = as_display(units)
     length = d.label("length")
     pairs = [
         ("saw", saw.name),
@@ -243,6 +245,7 @@ def _speed_range(saw, d) -> str:
 
 def saw_list_command(
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     saws_file: SawsFileOpt = None,
@@ -252,7 +255,6 @@ def saw_list_command(
     from sawplan.saws import load_saws
     from sawplan.store import connect
     from sawplan.store.records import fitted_on_saws, logged_saws
-    from sawplan.units import Display
 
     with connect(db, create=False) as database:
         logged = logged_saws(database)
@@ -261,7 +263,7 @@ def saw_list_command(
     if json_out:
         print(to_json([_saw_json(s, fitted) for s in saws], kind="saws"))
         return
-    d = Display(units)
+    d = Display(units, fractions)
     headers = [
         "saw",
         "kind",

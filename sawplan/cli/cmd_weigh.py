@@ -7,6 +7,7 @@ from typing import Annotated
 import typer
 
 from sawplan.cli.options import (
+    FractionsOpt,
     JsonOpt,
     MaterialArg,
     MaterialsFileOpt,
@@ -47,6 +48,7 @@ def weigh_command(
     travel: Annotated[str | None, opt("travel")] = None,
     lifts_per_min: Annotated[float, opt("lifts_per_min", show_default=True)] = 0.2,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
 ) -> None:
@@ -73,7 +75,7 @@ def weigh_command(
     if json_out:
         print(to_json(result, kind="weigh"))
         return
-    print(render_weigh(result, Display(units)))
+    print(render_weigh(result, Display(units, fractions)))
 
 
 def render_weigh(r, d: Display) -> str:

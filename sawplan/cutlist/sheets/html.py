@@ -171,11 +171,11 @@ def _bar_block(plan, b, d: Display) -> str:
     if b.length_mm - b.remnant_start_mm > 1e-9:
         if b.remnant_kept:
             what = (
-                f'<span class="keep">keep remnant {e(d.length(b.remnant_mm))}, '
+                f'<span class="keep">keep remnant {e(d.tape(b.remnant_mm))}, '
                 f"mark heat {e(b.heat or '—')}</span>"
             )
         else:
-            what = f"scrap {e(d.length(b.remnant_mm))}"
+            what = f"scrap {e(d.tape(b.remnant_mm))}"
         weight = e(d.fmt("mass", b.remnant_weight_kg)) if b.remnant_mm > 0 else ""
         rows.append(
             f"<tr><td class=step>end</td>"
@@ -200,14 +200,14 @@ def bar_svg(b, d: Display) -> str:
     height = BAR_Y + BAR_H + TICK_FONT + 12
     out = [
         f'<svg xmlns="http://www.w3.org/2000/svg" viewBox="-4 0 {VIEW_W + 8:g} {height:g}" '
-        f'role="img" aria-label="bar {b.bar}, {e(d.length(b.length_mm))}" '
+        f'role="img" aria-label="bar {b.bar}, {e(d.tape(b.length_mm))}" '
         f'font-family="sans-serif" font-size="{FONT:g}">',
         f'<defs><pattern id="keep-{b.bar}" width="8" height="8" patternUnits="userSpaceOnUse" '
         'patternTransform="rotate(45)"><rect width="8" height="8" fill="#fff"/>'
         '<line x1="0" y1="0" x2="0" y2="8" stroke="#2a7" stroke-width="3"/></pattern></defs>',
         f'<text x="0" y="{FONT:g}">head</text><text x="{VIEW_W:g}" y="{FONT:g}" '
         'text-anchor="end">'
-        f"{e(d.length(b.length_mm))}</text>",
+        f"{e(d.tape(b.length_mm))}</text>",
     ]
 
     def rect(x0: float, x1: float, fill: str, cls: str) -> str:
@@ -263,7 +263,7 @@ def bar_svg(b, d: Display) -> str:
         if b.remnant_mm > 0:
             if b.remnant_kept:
                 out.append(rect(b.remnant_start_mm, b.length_mm, f"url(#keep-{b.bar})", "remnant"))
-                text = f"R {d.length(b.remnant_mm)}" + (f" {b.heat}" if b.heat else "")
+                text = f"R {d.tape(b.remnant_mm)}" + (f" {b.heat}" if b.heat else "")
                 out.append(
                     label(b.remnant_start_mm, b.length_mm, text, bold=True)
                     or label(b.remnant_start_mm, b.length_mm, "R", bold=True)
@@ -300,7 +300,7 @@ def _remnants(plan, d: Display) -> str:
         return ""
     rows = "".join(
         f"<tr><td class=n>{r.bar}</td><td>{escape(d.text(r.group))}</td>"
-        f"<td class=n>{escape(d.length(r.length_mm))}</td><td>{escape(r.heat or '—')}</td>"
+        f"<td class=n>{escape(d.tape(r.length_mm))}</td><td>{escape(r.heat or '—')}</td>"
         f"<td>{escape(r.location or '—')}</td><td class=n>{escape(d.fmt('mass', r.weight_kg))}</td></tr>"
         for r in plan.remnants
     )

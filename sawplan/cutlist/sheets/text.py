@@ -33,10 +33,10 @@ class PieceRow:
 
     def what(self, d: Display) -> str:
         p = self.first
-        text = f"{p.mark} {p.part} ({d.length(p.length_mm)})"
+        text = f"{p.mark} {p.part} ({d.tape(p.length_mm)})"
         if self.count > 1:
             pitch = (self.last.start_mm - p.start_mm) / (self.count - 1)
-            text += f" ×{self.count}, one every {d.length(pitch)}"
+            text += f" ×{self.count}, one every {d.tape(pitch)}"
         return text
 
     def weight(self, d: Display) -> str:
@@ -274,9 +274,9 @@ def _cut_table(plan, d: Display) -> str:
             lead = blank
         if b.remnant_mm > 0 or b.length_mm - b.remnant_start_mm > 1e-9:
             what = (
-                f"keep {d.length(b.remnant_mm)} remnant, mark heat {b.heat or '—'}"
+                f"keep {d.tape(b.remnant_mm)} remnant, mark heat {b.heat or '—'}"
                 if b.remnant_kept
-                else f"scrap {d.length(b.remnant_mm)}"
+                else f"scrap {d.tape(b.remnant_mm)}"
             )
             weight = d.fmt("mass", b.remnant_weight_kg) if b.remnant_mm > 0 else ""
             span = d.span(b.remnant_start_mm, b.length_mm)
@@ -294,12 +294,12 @@ def _drawings(plan, d: Display, width: int) -> str:
     for b in plan.bars:
         tail = d.bar_length(b.length_mm)
         if b.remnant_kept:
-            tail += f", R {d.length(b.remnant_mm)}" + (f" heat {b.heat}" if b.heat else "")
+            tail += f", R {d.tape(b.remnant_mm)}" + (f" heat {b.heat}" if b.heat else "")
         lines.append(f"{str(b.bar).rjust(num)} |{draw_bar(b, width)}| {tail}")
     seen: dict[str, str] = {}
     for b in plan.bars:
         for p in b.pieces:
-            seen.setdefault(p.mark, f"{p.part} {d.length(p.length_mm)}")
+            seen.setdefault(p.mark, f"{p.part} {d.tape(p.length_mm)}")
     counts: dict[str, int] = {}
     for b in plan.bars:
         for p in b.pieces:
@@ -317,7 +317,7 @@ def _remnants(plan, d: Display) -> str:
         [
             r.bar,
             d.text(r.group),
-            d.length(r.length_mm),
+            d.tape(r.length_mm),
             r.heat or "—",
             r.location or "—",
             d.fmt("mass", r.weight_kg),
@@ -431,9 +431,9 @@ def render_markdown(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> st
             )
         if b.length_mm - b.remnant_start_mm > 1e-9:
             what = (
-                f"keep remnant {d.length(b.remnant_mm)}, mark heat {_md(b.heat or '—')}"
+                f"keep remnant {d.tape(b.remnant_mm)}, mark heat {_md(b.heat or '—')}"
                 if b.remnant_kept
-                else f"scrap {d.length(b.remnant_mm)}"
+                else f"scrap {d.tape(b.remnant_mm)}"
             )
             out.append(f"| end | {d.span(b.remnant_start_mm, b.length_mm)} | {what} | | |")
         out += ["", f"Bar weight {d.fmt('mass', b.weight_kg)}: **{b.handling}**.", ""]
