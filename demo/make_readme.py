@@ -63,9 +63,9 @@ def tour(trial_blade: str) -> list[tuple[str, str]]:
             "sawplan weigh A36 channel 150mm 75mm 5.5mm 9mm --length 6m",
         ),
         (
-            "The same in US units, fractions of an inch included (every command takes "
-            "`--units us`):",
-            "sawplan weigh 6061-T6 tube 48.3mm 3.2mm --length 1100mm --units us",
+            "A handrail post of aluminium pipe in US units, inches to the nearest 1/32 "
+            "(every command takes `--units us`, and `--fractions` for a tape measure):",
+            "sawplan weigh 6061-T6 tube 48.3mm 3.2mm --length 1100mm --units us --fractions",
         ),
         (
             "The whole frame, `demo/jobs/frame-kit.toml`: the bars to fetch, every cut from "

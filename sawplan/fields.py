@@ -131,7 +131,7 @@ _TABLE: tuple[Field, ...] = (
           high=60, why="catalogue keys are short",
           names=("stock.material", "part.material", "cuts.material")),
     Field("section", "section", placeholder="SECTION...",
-          help="Shape and sizes with units, e.g. round 7in.", dimension="text", high=200,
+          help="Shape and sizes with units, e.g. tube 2in 0.12in.", dimension="text", high=200,
           why="a shape word and a few sizes",
           names=("stock.section", "part.section", "cuts.section")),
     Field("size", "section size", dimension="length", low=0.1, high=5000, above=False,

@@ -32,11 +32,11 @@ goes wrong) beside the recommendation.
 
 \b
 Examples:
-  sawplan cut 4140 round 7in
+  sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm
   sawplan cut 304 round 250mm --saw large-column --chart
-  sawplan cut 304 round 250mm --pitch 4/6
-  sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm --units us
-  sawplan cut 1018 tube 60mm 3mm --bundle 3x4 --json
+  sawplan cut 1045 square 80mm --pitch 4/6
+  sawplan cut 4140 round 5-1/2in --units us --fractions
+  sawplan cut 6061-T6 tube 60mm 3mm --bundle 3x4 --json
 
 Estimates only: the saw maker's manual and the blade maker's data govern.
 """

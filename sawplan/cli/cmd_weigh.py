@@ -26,8 +26,8 @@ is a shape word and its sizes with units.
 
 \b
 Examples:
-  sawplan weigh 4140 round 60mm --length 1m
-  sawplan weigh 304 flat 4in 1in --length 12ft --count 6 --units us
+  sawplan weigh A36 channel 150mm 75mm 5.5mm 9mm --length 6m
+  sawplan weigh 1018 flat 4in 1in --length 12ft --count 6 --units us --fractions
   sawplan weigh D2 round 10in --length 300mm --reach 45cm --json
 
 The handling class uses the revised NIOSH lifting equation (23 kg load
