@@ -88,7 +88,7 @@ def tour(trial_blade: str) -> list[tuple[str, str]]:
         ),
         (
             "The Weibull plot of every blade in the log (median ranks, censored blades counted):",
-            f"sawplan chart weibull --height 16 --db {DB}",
+            f"sawplan chart weibull --chart-height 16 --db {DB}",
         ),
         (
             "Blades to have on the shelf for 2 m² of 304, at 90 % confidence, from the "
