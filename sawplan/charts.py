@@ -16,7 +16,7 @@ import math
 from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any
 
-from sawplan.display import Display, UnitSystem, as_display, fmt_plain
+from sawplan.display import Display, UnitSystem, as_display, fmt_percent, fmt_plain
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.life import BladeCost, ModeRanking, WearCurve, WeibullPlot
@@ -122,7 +122,7 @@ def wear_chart(
         fig.line(steady / (1.0 + curve.rise_threshold), 0)
         key.append(
             f"── steady rate {fmt_plain(steady)}, and end-of-life signs "
-            f"(time per area +{curve.rise_threshold:.0%})"
+            f"(time per area +{fmt_percent(curve.rise_threshold)})"
         )
     if len(xs) > 1:
         fig.draw(fig.signal(xs, trend).lines(True))

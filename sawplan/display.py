@@ -240,6 +240,12 @@ def fmt_plain(v: float, digits: int = 3) -> str:
     return _strip(fmt_number(v, digits))
 
 
+def fmt_money(amount: float, currency: str = "") -> str:
+    """Money to the cent with thousands separators: ``1,302.62 EUR``."""
+    text = f"{amount:,.2f}"
+    return f"{text} {currency}" if currency else text
+
+
 def fmt_fraction(inches: float, denominator: int = FRACTION_DENOMINATOR) -> str:
     """Inches as a shop writes them, to the nearest 1/32: ``7-1/4``, ``3/32``, ``12``."""
     if not math.isfinite(inches):

@@ -160,6 +160,10 @@ _TABLE: tuple[Field, ...] = (
     Field("travel", "lift travel", "--travel", placeholder="LENGTH",
           help="Vertical travel of the lift (default 25cm).", dimension="length", low=0, high=1750,
           why=f"over 175 cm gives no safe load; {_NIOSH}"),
+    Field("twist", "twist", "--twist", placeholder="DEGREES",
+          help="How far the body turns away from straight ahead during the lift, in degrees "
+               "(default 0): swinging a long bar from the rack to the saw.",
+          low=0, high=135, why=f"over 135° gives no safe load; {_NIOSH}"),
     Field("lifts_per_min", "lifts per minute", "--lifts-per-min", placeholder="RATE",
           help="How often the lift is repeated, per minute.", low=0, high=15,
           why=f"over 15 lifts a minute gives no safe load; {_NIOSH}"),

@@ -240,7 +240,7 @@ def to_core(
         from sawplan.errors import BadDataError
 
         raise BadDataError(
-            f"{str(text).strip()!r} is out of range (at most {MAX_CORE_MAGNITUDE:.0e} "
+            f"{str(text).strip()!r} is out of range (at most {MAX_CORE_MAGNITUDE:,.0f} "
             f"{core_unit.replace(' ** ', '^').replace(' ', '')})",
             field=field,
         )

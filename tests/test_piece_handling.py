@@ -113,3 +113,19 @@ def test_a_long_piece_is_never_a_one_person_lift(mass, length, width, shape):
     if lift.handling == "two-person":
         assert mass <= team_limit_kg(lift.rwl_kg) + 1e-9
     assert not math.isnan(lift.lifting_index)
+
+
+def test_a_long_bar_from_low_with_a_twist_by_hand(cli):
+    # 6061-T6 pipe 48.3 × 3.2 mm × 6 m lifted from 20 cm, turning 45° (Pub. 94-110 §1.3):
+    # V = 20 < 25 cm, so H = 25 + 4.83/2 = 27.415 cm; HM = 25/27.415, VM = 1 − 0.003·55,
+    # DM = 1 (25 cm travel), AM = 1 − 0.0032·45, FM = CM = 1 → RWL = 23·HM·VM·AM
+    by_hand = 23 * (25 / 27.415) * (1 - 0.003 * 55) * (1 - 0.0032 * 45)
+    result = cli("weigh", "6061-T6", "tube", "48.3mm", "3.2mm", "--length", "6m",
+                 "--lift-from", "20cm", "--twist", "45", "--json")  # fmt: skip
+    assert result.code == 0, result.err
+    data = __import__("json").loads(result.out)
+    assert data["reach_cm"] == pytest.approx(27.415)
+    assert data["recommended_limit_kg"] == pytest.approx(by_hand, rel=1e-9)
+    assert data["handling"] == "two-person"  # 7.3 kg, but 6 m long
+    refused = cli("weigh", "6061-T6", "round", "20mm", "--length", "1m", "--twist", "200")
+    assert refused.code != 0 and "twist" in refused.err

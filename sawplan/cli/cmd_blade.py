@@ -21,7 +21,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
-from sawplan.display import Display, as_display, fmt_number, section_text
+from sawplan.display import Display, as_display, fmt_money, fmt_number, section_text
 from sawplan.units import UnitSystem
 
 BLADE_MATERIALS = {
@@ -320,7 +320,7 @@ def blade_list_command(
             b.saw or "",
             b.cuts,
             d.num("area", b.area_mm2),
-            "" if b.price is None else f"{b.price:g}",
+            "" if b.price is None else fmt_money(b.price),
             " ".join(x for x in (b.retired_on, b.retire_cause) if x),
         ]
         for b in blades
@@ -417,7 +417,7 @@ def render_history(h: Any, units: UnitSystem | Display) -> str:
     if made:
         pairs.append(("from", ", ".join(made)))
     if b.price is not None:
-        pairs.append(("price", f"{b.price:g}"))
+        pairs.append(("price", fmt_money(b.price)))
     pairs.append(
         ("cut", f"{d.fmt('area', b.area_mm2)} in {b.cuts:,} cut{'' if b.cuts == 1 else 's'}")
     )

@@ -22,7 +22,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
-from sawplan.display import Display, as_display, fmt_number
+from sawplan.display import Display, as_display, fmt_money, fmt_number, fmt_percent
 from sawplan.units import UnitSystem
 
 LIFE_HELP = """Blade life from the log: Weibull fit, failure modes, cost per area, calibration.
@@ -112,7 +112,7 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
 
     d = as_display(units)
     o = r.overall
-    pct = f"{r.confidence:.0%}"
+    pct = fmt_percent(r.confidence)
     lines = [
         f"blade life (area cut): {_n(o.blades, 'blade')}, {o.failed} retired (failures), "
         f"{o.censored} still running or removed unworn (censored)"
@@ -154,7 +154,7 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
     lines += _warning_lines(r, d)
     modes = r.failure_modes
     if modes.modes:
-        rows = [[m.code, m.name, m.count, f"{m.share:.0%}"] for m in modes.modes]
+        rows = [[m.code, m.name, m.count, fmt_percent(m.share)] for m in modes.modes]
         lines.append(table(["failure mode", "", "blades", "share"], rows,
                            align="llrr", title="\nfailure modes, most frequent first"))  # fmt: skip
         top = modes.modes[0]
@@ -166,7 +166,7 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
             lines.append(f"  {modes.unrecorded} retired blade(s) without a recorded mode")
     if r.costs:
         per = d.label("large_area")
-        rows = [[d.text(c.blade_type), f"{c.price:g}", _num(d, c.life_cm2), c.life_method,
+        rows = [[d.text(c.blade_type), fmt_money(c.price), _num(d, c.life_cm2), c.life_method,
                  fmt_number(d.per("large_area", c.cost_per_m2 / 1e6))]
                 for c in r.costs]  # fmt: skip
         lines.append(table(["blade type", "price", f"life {d.label('area')}", "life from", f"cost per {per}"],
@@ -337,7 +337,7 @@ def render_forecast(f: Any, units: UnitSystem | Display) -> str:
     lines = [f"blades needed to cut {_area(d, f.area_cm2)}{what}: {f.blades_needed}"]
     if f.method == "weibull-simulation":
         lines.append(
-            f"  {f.confidence:.0%} sure from the blade log's Weibull fit (β {f.weibull_shape:.2f}, "
+            f"  {fmt_percent(f.confidence)} sure from the blade log's Weibull fit (β {f.weibull_shape:.2f}, "
             f"η {_area(d, f.weibull_scale_cm2)}); expected {f.expected_blades:.1f} blades"
         )
     else:
@@ -359,7 +359,7 @@ def render_job_forecast(j: Any, units: UnitSystem | Display) -> str:
             rows,
             align="lrrl",
         ),
-        f"blades needed: {j.blades_needed} ({j.confidence:.0%} confidence; one cut per part, "
+        f"blades needed: {j.blades_needed} ({fmt_percent(j.confidence)} confidence; one cut per part, "
         "bar-end trim cuts not counted)",
     ]
     if j.combined_on:

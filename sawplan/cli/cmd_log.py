@@ -28,7 +28,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
-from sawplan.display import Display, as_display, fmt_number, section_text
+from sawplan.display import Display, as_display, fmt_number, fmt_plain, section_text
 from sawplan.units import UnitSystem
 
 HELP = """Log what the blades cut (cuts) and what happened to them (events).
@@ -180,7 +180,7 @@ def batch_cut_area(section_area_mm2: float, area_mm2: float | None) -> float:
     if area_mm2 is None:
         return section_area_mm2
     if not area_mm2 > 0:
-        raise BadDataError(f"must be above 0, got {area_mm2:g} mm²", field="area")
+        raise BadDataError(f"must be above 0, got {fmt_plain(area_mm2)} mm²", field="area")
     if area_mm2 > section_area_mm2 * (1 + 1e-9):
         raise BadDataError(
             f"{fmt_number(area_mm2 / 100)} cm² is more than the section allows "

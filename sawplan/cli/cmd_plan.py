@@ -18,7 +18,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
-from sawplan.display import Display
+from sawplan.display import Display, fmt_plain
 from sawplan.units import UnitSystem
 
 HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote.
@@ -84,7 +84,9 @@ def plan_command(
             "expected a saw name, got nothing", field="saw", hint="see `sawplan saw list`"
         )
     if not 0 < time_limit <= 600:
-        raise UsageError(f"must be between 0 and 600 s, got {time_limit:g}", field="time-limit")
+        raise UsageError(
+            f"must be between 0 and 600 s, got {fmt_plain(time_limit)}", field="time-limit"
+        )
     catalogue = load_catalogue(materials_file)
     job = load_job(jobfile, catalogue, allow_outside=allow)
     from sawplan.store.lookup import BladeLog

@@ -29,6 +29,7 @@ Examples:
   sawplan weigh A36 channel 150mm 75mm 5.5mm 9mm --length 6m
   sawplan weigh 1018 flat 4in 1in --length 12ft --count 6 --units us --fractions
   sawplan weigh D2 round 10in --length 300mm --reach 45cm --json
+  sawplan weigh 6061-T6 tube 48.3mm 3.2mm --length 6m --lift-from 20cm --twist 45
 
 The handling class uses the revised NIOSH lifting equation (23 kg load
 constant), with the reach worked out from the piece's size unless --reach
@@ -46,6 +47,7 @@ def weigh_command(
     reach: Annotated[str | None, opt("reach")] = None,
     lift_from: Annotated[str | None, opt("lift_from")] = None,
     travel: Annotated[str | None, opt("travel")] = None,
+    twist: Annotated[float, opt("twist", show_default=True)] = 0.0,
     lifts_per_min: Annotated[float, opt("lifts_per_min", show_default=True)] = 0.2,
     units: UnitsOpt = UnitSystem.METRIC,
     fractions: FractionsOpt = False,
@@ -69,6 +71,7 @@ def weigh_command(
         if lift_from is None
         else parse("lift_from", lift_from) / 10,
         travel_cm=defaults.travel_cm if travel is None else parse("travel", travel) / 10,
+        asymmetry_deg=twist,
         frequency_per_min=lifts_per_min,
     )
     result = weigh(mat, sec, length_mm, count, conditions, reach_given=reach is not None)

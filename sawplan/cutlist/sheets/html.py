@@ -18,10 +18,9 @@ from sawplan.cutlist.sheets.palette import piece_tints
 from sawplan.cutlist.sheets.text import (
     breakin_text,
     forecast_text,
-    money,
     piece_rows,
 )
-from sawplan.display import Display, UnitSystem, as_display, fmt_number
+from sawplan.display import Display, UnitSystem, as_display, fmt_money, fmt_number
 
 VIEW_W = 1000.0  # drawing width in viewBox units
 # The drawing is about 690 px wide on an A4 page (186 mm between the margins), so
@@ -313,7 +312,7 @@ def _remnants(plan, d: Display) -> str:
 
 def _quote(plan, d: Display) -> str:
     c = plan.currency
-    rate = f" at {money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
+    rate = f" at {fmt_money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
     rows = [
         ("Area cut", d.fmt("area", plan.cut_area_cm2 * 100, 4)),
         ("Blades worn by this job", f"{fmt_number(plan.blades_consumed, 2)}"),
@@ -322,10 +321,10 @@ def _quote(plan, d: Display) -> str:
             f"{plan.blades_needed} ({forecast_text(plan)})",
         ),
         ("Blade life", d.text(plan.blade_life_source)),
-        ("Material", money(plan.material_cost, c)),
-        (f"Saw time {d.fmt('time', plan.total_time_min)}{rate}", money(plan.saw_cost, c)),
-        ("Blade wear", money(plan.blade_cost, c)),
-        ("Quoted total", money(plan.total_cost, c)),
+        ("Material", fmt_money(plan.material_cost, c)),
+        (f"Saw time {d.fmt('time', plan.total_time_min)}{rate}", fmt_money(plan.saw_cost, c)),
+        ("Blade wear", fmt_money(plan.blade_cost, c)),
+        ("Quoted total", fmt_money(plan.total_cost, c)),
     ]
     body = "".join(f"<tr><th>{escape(k)}</th><td>{escape(v)}</td></tr>" for k, v in rows)
     return f"<table>{body}</table>"

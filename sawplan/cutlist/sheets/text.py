@@ -12,7 +12,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-from sawplan.display import Display, UnitSystem, as_display, fmt_number
+from sawplan.display import Display, UnitSystem, as_display, fmt_money, fmt_number, fmt_percent
 
 DRAW_WIDTH = 72
 
@@ -58,11 +58,6 @@ def piece_rows(bar, run: int = 3) -> list[PieceRow]:
         else:
             rows += [PieceRow(p, p, 1) for p in g]
     return rows
-
-
-def money(amount: float, currency: str) -> str:
-    text = f"{amount:,.2f}"
-    return f"{text} {currency}" if currency else text
 
 
 # --- drawings -----------------------------------------------------------------------------
@@ -216,7 +211,7 @@ def _header(plan, d: Display) -> str:
             "blades on hand",
             f"{plan.blades_needed} ({fmt_number(plan.blades_consumed, 2)} worn by this job)",
         ),
-        ("quoted total", money(plan.total_cost, plan.currency)),
+        ("quoted total", fmt_money(plan.total_cost, plan.currency)),
     ]
     return key_values(pairs, title="JOB")
 
@@ -356,7 +351,7 @@ def breakin_text(s, d: Display) -> str:
 def forecast_text(plan) -> str:
     """How the blades-on-hand figure was reached, in words."""
     if plan.blade_forecast_method == "weibull-simulation":
-        return f"Weibull forecast, {plan.blade_confidence:.0%} confidence"
+        return f"Weibull forecast, {fmt_percent(plan.blade_confidence)} confidence"
     if plan.blade_forecast_method == "deterministic":
         return "area cut ÷ blade life, rounded up"
     return plan.blade_forecast_method
@@ -366,15 +361,15 @@ def _quote(plan, d: Display) -> str:
     from sawplan.render import key_values
 
     c = plan.currency
-    rate = f" at {money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
+    rate = f" at {fmt_money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
     share = ""
     if plan.blade_price is not None:
-        share = f" ({fmt_number(plan.blades_consumed, 2)} × {money(plan.blade_price, c)})"
+        share = f" ({fmt_number(plan.blades_consumed, 2)} × {fmt_money(plan.blade_price, c)})"
     pairs = [
-        ("material", money(plan.material_cost, c)),
-        (f"saw time {d.fmt('time', plan.total_time_min)}{rate}", money(plan.saw_cost, c)),
-        (f"blade wear{share}", money(plan.blade_cost, c)),
-        ("total", money(plan.total_cost, c)),
+        ("material", fmt_money(plan.material_cost, c)),
+        (f"saw time {d.fmt('time', plan.total_time_min)}{rate}", fmt_money(plan.saw_cost, c)),
+        (f"blade wear{share}", fmt_money(plan.blade_cost, c)),
+        ("total", fmt_money(plan.total_cost, c)),
     ]
     return key_values(pairs, title="QUOTE")
 
