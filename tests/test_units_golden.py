@@ -83,15 +83,9 @@ def test_cut(cli):
         assert metric not in us, metric
 
 
-def test_plan(cli, tmp_path):
-    # 1018 round 1 in × 12 ft, trim 0.2 in, kerf 0.05 in, five 10 in blanks (by hand):
-    # pieces at 0.200–10.200, 10.250–20.250, … 40.400–50.400 (each 10 in + one kerf);
-    # the last cut takes one more kerf: remnant from 50.450 to 144 = 93.55 in.
-    # 7,870 kg/m³ = 0.28432 lb/in³; π/4 in² × 10 in = 7.854 in³ → 2.233 lb a blank;
-    # the bar 144 in → 32.16 lb; the remnant 93.55 in → 20.89 lb.
-    rho = to(7870, "kg/m**3", "lb/inch**3")
-    area = math.pi / 4
-    job = tmp_path / "job.toml"
+def blanks_job(folder):
+    """1018 round 1 in × 12 ft, trim 0.2 in, kerf 0.05 in, five 10 in blanks."""
+    job = folder / "job.toml"
     job.write_text(
         '[job]\nname = "us blanks"\nsaw = "mid-production"\ntrim = "0.2in"\nkerf = "0.05in"\n'
         'grip = "0in"\nmin_remnant = "12in"\n'
@@ -100,6 +94,18 @@ def test_plan(cli, tmp_path):
         "count = 5\n",
         encoding="utf-8",
     )
+    return job
+
+
+def test_plan(cli, tmp_path):
+    # 1018 round 1 in × 12 ft, trim 0.2 in, kerf 0.05 in, five 10 in blanks (by hand):
+    # pieces at 0.200–10.200, 10.250–20.250, … 40.400–50.400 (each 10 in + one kerf);
+    # the last cut takes one more kerf: remnant from 50.450 to 144 = 93.55 in.
+    # 7,870 kg/m³ = 0.28432 lb/in³; π/4 in² × 10 in = 7.854 in³ → 2.233 lb a blank;
+    # the bar 144 in → 32.16 lb; the remnant 93.55 in → 20.89 lb.
+    rho = to(7870, "kg/m**3", "lb/inch**3")
+    area = math.pi / 4
+    job = blanks_job(tmp_path)
     out = cli("plan", str(job), "--units", "us").out
     got = lines(out)
     row = next(line for line in got if line.startswith("1 1018 round Ø1 in × 12 ft"))
@@ -121,15 +127,7 @@ def test_plan_in_fractions(cli, tmp_path):
     # the same job as test_plan, read off a tape to the nearest 1/32 in (by hand):
     # 0.2 × 32 = 6.4 → 6/32 = 3/16; 10.2 → 10-3/16; 50.4 → 1612.8/32 → 50-13/32;
     # 10.05 × 32 = 321.6 → 10-1/16; 50.45 × 32 = 1614.4 → 50-7/16; 93.55 × 32 = 2993.6 → 93-9/16
-    job = tmp_path / "job.toml"
-    job.write_text(
-        '[job]\nname = "us blanks"\nsaw = "mid-production"\ntrim = "0.2in"\nkerf = "0.05in"\n'
-        'grip = "0in"\nmin_remnant = "12in"\n'
-        '[[stock]]\nmaterial = "1018"\nsection = "round 1in"\nlength = "12ft"\ncount = 1\n'
-        '[[part]]\nname = "blank"\nmaterial = "1018"\nsection = "round 1in"\nlength = "10in"\n'
-        "count = 5\n",
-        encoding="utf-8",
-    )
+    job = blanks_job(tmp_path)
     text = "\n".join(lines(cli("plan", str(job), "--units", "us", "--fractions").out))
     assert "trim 0 – 3/16 squaring cut" in text
     assert "1–5 3/16 – 50-13/32 A blank (10 in) ×5, one every 10-1/16 in" in text
