@@ -261,9 +261,12 @@ def fmt_fraction(inches: float, denominator: int = FRACTION_DENOMINATOR) -> str:
 
 
 def fmt_duration(minutes: float | None, digits: int = 3) -> str:
-    """A time for people: '42.5 min' up to 90 min, then '3 h 20 min' (whole minutes)."""
+    """A time for people: '8.40 s' under a minute, '42.5 min' up to 90 min, then
+    '3 h 20 min' (whole minutes)."""
     if minutes is None or not math.isfinite(minutes):
         return "—"
+    if 0 < minutes < 1:
+        return f"{fmt_number(minutes * 60, digits)} s"
     if minutes <= LONG_TIME_MIN:
         return f"{fmt_number(minutes, digits)} min"
     whole = round(minutes)

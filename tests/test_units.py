@@ -171,6 +171,7 @@ def test_fast_path_and_pint_path_agree(text):
 @pytest.mark.parametrize(
     ("minutes", "text"),
     [
+        pytest.param(0.14, "8.40 s", id="under-a-minute-in-seconds"),  # 0.14 × 60 = 8.4
         pytest.param(42.5, "42.5 min", id="short-stays-minutes"),
         pytest.param(200.0, "3 h 20 min", id="200-min-is-3h20"),  # 3 × 60 + 20 = 200
         pytest.param(180.0, "3 h", id="whole-hours"),
