@@ -104,3 +104,15 @@ def test_write_commands_speak_one_unit_system(units, demo_tree, cli, tmp_path):
             assert cli(*template.format(db=db).split()).code == 0
             continue
         _check(_run(cli, template, root, units), units)
+
+
+@pytest.mark.parametrize("units", ["us", "metric"])
+@pytest.mark.parametrize("suffix", [".html", ".md"])
+def test_printable_sheets_speak_one_unit_system(suffix, units, demo_tree, cli, tmp_path):
+    db = demo_tree / "demo" / "out" / "demo-log.sqlite"
+    sheet = tmp_path / f"sheet{suffix}"
+    job = demo_tree / "demo" / "jobs" / "rail-posts.toml"
+    result = cli("plan", str(job), "--db", str(db), "--sheet", str(sheet), "--units", units)
+    assert result.code == 0, result.err
+    text = re.sub(r"<style>.*?</style>", "", sheet.read_text(encoding="utf-8"), flags=re.S)
+    _check(re.sub(r"<[^>]+>", " ", text), units)  # the page's words, not its CSS or markup
