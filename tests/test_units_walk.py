@@ -20,7 +20,7 @@ METRIC_UNIT = re.compile(
 )
 US_UNIT = re.compile(
     r"\d\s?(?:in|ft|lb|lbs|lbf|hp|ksi|psi)(?:²|³)?(?:/(?:min|ft|in³))?(?![A-Za-z0-9])"
-    r"(?!\s(?:the|a|an)\b)"  # "24 in the wall" is a pitch, not inches
+    r"(?!\s(?:the|a|an)\b|\s[A-Z])"  # "24 in the wall", "0.2 in Kalpakjian" are no inches
     r"|\d[\"″]"
 )
 SCIENTIFIC = re.compile(r"\d[eE][+-]?\d")
@@ -34,6 +34,10 @@ READ = [
     pytest.param("cut 6061-T6 tube 3in 0.12in --bundle 2x3", id="cut-tube-bundle"),
     pytest.param("cut 1018 flat 4in 0.5in --saw small-horizontal --chart", id="cut-chart"),
     pytest.param("cut 304 tube 2in 0.065in --blade-tpi 3/4", id="cut-thin-wall"),
+    pytest.param(
+        "cut 304 round 250mm --saw column-bay --economics --shop-rate 75 --chart --db {db}",
+        id="cut-economics",
+    ),
     pytest.param("weigh 304 round 250mm --length 110mm", id="weigh-slice"),
     pytest.param("weigh A36 flat 4in 1in --length 20ft --count 6", id="weigh-long-flat"),
     pytest.param("weigh A36 ibeam 8in 5.25in 0.23in 0.4in --length 10ft", id="weigh-ibeam"),
@@ -54,6 +58,7 @@ READ = [
     pytest.param("plan {jobs}/pump-blanks.toml --db {db}", id="plan-blanks"),
     pytest.param("plan {jobs}/frame-kit.toml --db {db}", id="plan-frame"),
     pytest.param("plan {jobs}/rail-posts.toml --db {db}", id="plan-rails"),
+    pytest.param("plan {jobs}/billet-slices.toml --run cost --db {db}", id="plan-run-cost"),
 ]
 
 # Commands that write, in order, on a copy of the log: a new blade's life so far.

@@ -77,12 +77,16 @@ def render_economics(econ: Any, units: UnitSystem | Display, *, currency: str | 
     n_text = f"n = {life.n:.3f}"
     if life.n_ci:
         n_text += f" ({life.n_ci[0]:.3f}–{life.n_ci[1]:.3f})"
+    # C is the speed for a life of one unit of area: for 1 in² instead of 1 cm² it is
+    # C·(cm² per in²)^n, since V = C·L^(−n)
+    unit_cm2 = 1.0 / d.value("area", 100.0)  # one display area unit in cm²
     lines.append(
         f"  blade life V·Lⁿ = C (Taylor), life as area cut: {n_text}, "
-        f"C = {d.fmt('speed', life.c_m_min, 3)} for 1 cm² — {life.source}"
+        f"C = {d.fmt('speed', life.c_m_min * unit_cm2**-life.n, 3)} for 1 {d.label('area')}"
+        f" — {d.text(life.source)}"
     )
     if life.note:
-        lines.append(f"  ! {life.note}")
+        lines.append(f"  ! {d.text(life.note)}")
     lines.append(
         f"  speeds: Gilbert's optimum blade lives, in minutes of cutting: cheapest "
         f"{fmt_duration(econ.run('cost').optimum_life_min)}, fastest "
@@ -105,9 +109,9 @@ def render_run_quote(
                 f"{RUN_TITLES[r.run]} {d.fmt('speed', r.band_speed_m_min, 3)}: "
                 f"{fmt_money(r.cost.total)}, {fmt_duration(r.cost.time_per_cut_min)}"
             )
-        lines.append(f"  {s.section} ({s.cuts} cuts): " + " · ".join(cells))
+        lines.append(f"  {d.text(s.section)} ({s.cuts} cuts): " + " · ".join(cells))
         if s.economics.life.note:
-            lines.append(f"    ! {s.economics.life.note}")
+            lines.append(f"    ! {d.text(s.economics.life.note)}")
     lines.append(
         f"Quote at the {RUN_TITLES[quote.run]} speeds: saw, operator and blades "
         f"{fmt_money(quote.saw_and_blades)}{cur}, {fmt_duration(quote.time_min)} at the saw "
