@@ -1,6 +1,6 @@
 """One bar of a plan: where each piece lies from the head, the cuts, the remnant, the weights.
 
-Length bookkeeping (reference §9, and the optimiser's): the first piece starts
+Length bookkeeping (the optimiser's, docs/cut-lists.md): the first piece starts
 at ``trim`` (the squaring cut's kerf lies inside the trim); each piece costs its
 length plus one kerf; the tail after the last piece loses one more kerf when
 the last cut is made, and what is left is the remnant.  A bar filled exactly
@@ -19,7 +19,7 @@ from sawplan.display import Q, say
 def bar_layout(
     length_mm: float, piece_lengths_mm: list[float], kerf_mm: float, trim_mm: float
 ) -> tuple[list[tuple[float, float]], float | None, float | None, float, float]:
-    """Positions on one bar from the head (reference §9 bookkeeping).
+    """Positions on one bar from the head (the bookkeeping of docs/cut-lists.md).
 
     Returns (piece (start, end) list, squaring-cut position or None, last-cut
     position or None, remnant start, remnant length).  The squaring cut parts

@@ -340,7 +340,7 @@ def _blades(plan, d: Display) -> str:
 
 
 def breakin_text(s, d: Display) -> str:
-    """How to run in a new blade on this section (common practice, reference §6)."""
+    """How to run in a new blade on this section (common practice)."""
     return (
         f"new blade: start at {s.breakin_start_percent:.0f} % of the feed and raise it step by "
         f"step over the first {d.fmt('area', s.breakin_area_cm2 * 100, 3)} "
