@@ -42,7 +42,11 @@ def test_constant_pitch_has_equal_numbers(cli):
 def test_fine_pitch_on_big_solid_is_compared_and_warned(cli):
     result = cli("cut", "4140", "round", "10in", "--pitch", "6/10")
     assert result.code == 0, result.err
-    assert "× the time of" in result.out
+    # 80 teeth in the chord, over three times the ~24 a solid takes (common practice): the
+    # gullets pack and the bounded ploughing model keeps the cut several times slower
+    times = re.search(r"takes (over ten times|([\d.]+)×) the time of", result.out)
+    assert times is not None, result.out
+    assert times.group(2) is None or float(times.group(2)) >= 3
     assert "!" in result.out  # at least one warning line
 
 

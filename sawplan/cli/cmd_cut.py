@@ -9,6 +9,7 @@ import typer
 from sawplan.cli.options import (
     BundleOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialArg,
     MaterialsFileOpt,
@@ -20,6 +21,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display
 from sawplan.units import UnitSystem
 
 HELP = """Choose the blade, band speed and feed for one cut, and time it.
@@ -33,11 +35,11 @@ saves time or blade.
 
 \b
 Examples:
-  sawplan cut 4140 round 7in
+  sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm
   sawplan cut 304 round 250mm --saw large-column --chart
-  sawplan cut 304 round 250mm --pitch 4/6
-  sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm --units us
-  sawplan cut 1018 tube 60mm 3mm --bundle 3x4 --json
+  sawplan cut 1045 square 80mm --pitch 4/6
+  sawplan cut 4140 round 5-1/2in --units us --fractions
+  sawplan cut 6061-T6 tube 60mm 3mm --bundle 3x4 --json
   sawplan cut 4140 round 7in --pitch 2/3 --band-speed 300ft/min
   sawplan cut 4140 round 150mm --economics --shop-rate 75 --chart
 
@@ -78,6 +80,7 @@ def cut_command(
         float | None, opt("blade_price", help="Blade price, for the cost per cut.")
     ] = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     db: DbOpt = None,
     saws_file: SawsFileOpt = None,
@@ -150,11 +153,11 @@ def cut_command(
                 payload["cost_curve"] = _curve_rows(econ, times, the_saw)
         print(to_json(payload, kind="cut"))
         return
+    d = Display(units, fractions)
     if summary:
-        print(summary)
+        print(d.text(summary))
         print()
-    label = sec.label(units.value)
-    print(render_cut(result, units, section_label=label, calibration_cuts=calibration_n))
+    print(render_cut(result, d, section_label=d.section(sec), calibration_cuts=calibration_n))
     if economics and result.stalled:
         print()
         print("No cost per cut: the cut does not progress.")
@@ -162,22 +165,20 @@ def cut_command(
         from sawplan.cli.economics_view import render_economics
 
         print()
-        print(render_economics(econ, units))
+        print(render_economics(econ, d))
         if choice is not None:
             from sawplan.cli.economics_view import render_blade_choice
 
             print()
-            print(render_blade_choice(choice, units))
+            print(render_blade_choice(choice, d))
     if chart:
         print()
-        print(
-            cut_chart(result, units) if result.profile else "No chart: the cut does not progress."
-        )
+        print(cut_chart(result, d) if result.profile else "No chart: the cut does not progress.")
         if econ is not None:
             from sawplan.charts import speed_cost_chart
 
             print()
-            print(speed_cost_chart(_curve(econ, times, the_saw), econ.runs, units=units))
+            print(speed_cost_chart(_curve(econ, times, the_saw), econ.runs, units=d))
 
 
 def _minutes(text: str | None, key: str) -> float | None:

@@ -4,44 +4,55 @@ from __future__ import annotations
 
 from typing import Any
 
-from sawplan.units import Display, UnitSystem, fmt_duration, fmt_number
+from sawplan.display import Display, UnitSystem, as_display, fmt_percent
 
 
 def _time_line(r: Any, d: Display) -> str:
     from sawplan.cutting.explain import LIMIT_WORDS
 
     if r.cut_time_min is None:
-        return f"Time        {r.stall_reason}"
+        return f"Time        {d.text(r.stall_reason)}"
     share = dict(r.limit_shares).get(r.governing_limit, 1.0)
-    time = f"Time {fmt_duration(r.cut_time_min)} per cut"
+    time = f"Time {d.fmt('time', r.cut_time_min)} per cut"
     if r.pieces > 1:
-        time += f" ({fmt_duration(r.time_per_piece_min)} per piece)"
+        time += f" ({d.fmt('time', r.time_per_piece_min)} per piece)"
     return (
-        f"Rate        {d.fmt('rate', r.cutting_rate_mm2_min, 3)}   {time}   "
-        f"Limit {LIMIT_WORDS[r.governing_limit]} ({share:.0%} of the cut)"
+        f"Rate        {d.fmt('rate', r.cutting_rate_mm2_min)}   {time}   "
+        f"Limit {LIMIT_WORDS[r.governing_limit]} ({fmt_percent(share)} of the cut)"
     )
 
 
 def _feed_line(r: Any, d: Display) -> str:
+    """The card's one down-feed: the setting, or a force-fed head's average and slowest."""
     if r.cut_time_min is None:
         return "Down-feed   —"
+    if r.feed_given:
+        text = f"Down-feed   set {d.fmt('feed', r.feed_set_mm_min)}"
+        if r.feed_type != "constant" and r.feed_mm_min < r.feed_set_mm_min * 0.99:
+            text += f", {d.fmt('feed', r.feed_mm_min)} average where the head's force holds it back"
+        return text
     if r.feed_type == "constant":
-        return f"Down-feed   set {d.fmt('feed', r.feed_set_mm_min, 3)}"
+        return f"Down-feed   set {d.fmt('feed', r.feed_set_mm_min)}"
     return (
-        f"Down-feed   {d.fmt('feed', r.feed_mm_min, 3)} average, "
-        f"{d.fmt('feed', r.feed_set_mm_min, 3)} at the slowest depth"
+        f"Down-feed   {d.fmt('feed', r.feed_mm_min)} average, "
+        f"{d.fmt('feed', r.feed_set_mm_min)} at the slowest depth"
     )
 
 
 def render_cut(
-    r: Any, units: UnitSystem, *, section_label: str | None = None, calibration_cuts: int = 0
+    r: Any,
+    units: UnitSystem | Display,
+    *,
+    section_label: str | None = None,
+    calibration_cuts: int = 0,
 ) -> str:
-    """The operator's card: blade, speed, feed, time, why, warnings, bundle, break-in."""
-    d = Display(units)
+    """The operator's card: blade, speed, feed, time, why, bundle, orientation, warnings,
+    break-in."""
+    d = as_display(units)
     lines = [f"{r.material} · {section_label or r.section} · saw {r.saw} ({r.feed_type} feed)"]
     blade = f"{r.pitch_label} TPI, {r.tooth_form} teeth, {r.tooth_set} set ({r.blade_material})"
     lines.append(f"Blade       {blade}")
-    speed = d.fmt("speed", r.band_speed_m_min, 3)
+    speed = d.fmt("speed", r.band_speed_m_min)
     if r.band_speed_clipped:
         speed += f"  (held at the saw's {r.band_speed_clipped})"
     if r.dry:
@@ -50,30 +61,29 @@ def render_cut(
     lines.append(_feed_line(r, d))
     lines.append(_time_line(r, d))
     for i, text in enumerate(r.explanation):
-        lines.append(("Why         " if i == 0 else "            ") + text)
+        lines.append(("Why         " if i == 0 else "            ") + d.text(text))
     if calibration_cuts:
         lines.append(
-            f"            (calibration from {calibration_cuts} logged cuts on this saw and material group)"
+            f"            (calibration from {calibration_cuts:,} logged cuts on this saw and "
+            "material group)"
         )
     if r.bundle is not None:
-        lines.append(f"Bundle      {r.bundle.why}")
+        lines.append(f"Bundle      {d.text(r.bundle.why)}")
     if r.better_orientation:
-        lines.append(f"Orient      {r.better_orientation}")
+        lines.append(f"Orient      {d.text(r.better_orientation)}")
     warnings = [w for w in r.warnings if w != r.stall_reason]
     for i, text in enumerate(warnings):
-        lines.append(("Warnings    ! " if i == 0 else "            ! ") + text)
+        lines.append(("Warnings    ! " if i == 0 else "            ! ") + d.text(text))
     if r.breakin:
-        steps = []
-        for s in r.breakin:
-            steps.append(
-                f"{fmt_number(d.value('area', s.area_from_mm2), 3)}–"
-                f"{fmt_number(d.value('area', s.area_to_mm2), 3)} {d.label('area')} "
-                f"at {s.feed_percent:.0f} %"
-            )
+        steps = [
+            f"{d.num('area', s.area_from_mm2)}–{d.fmt('area', s.area_to_mm2)} "
+            f"at {s.feed_percent:.0f} %"
+            for s in r.breakin
+        ]
         lines.append("Break-in    new blade: " + " · ".join(steps) + ", then full feed")
     lines.append(
-        f"Blade care  kerf {d.fmt('length', r.kerf_mm, 2)}, bending "
-        f"{d.fmt('stress', r.bending_stress_mpa, 3)} at the wheels, "
+        f"Blade care  kerf {d.fmt('length', r.kerf_mm)}, bending "
+        f"{d.fmt('stress', r.bending_stress_mpa)} at the wheels, "
         f"{r.flex_cycles_per_min:.0f} flex cycles/min"
     )
     lines.append(f"Caution     {r.caution}")

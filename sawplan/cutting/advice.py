@@ -16,12 +16,21 @@ from sawplan.cutting import tool_life as tl
 from sawplan.cutting.explain import LIMIT_WORDS
 from sawplan.cutting.plan import Candidate, Plan
 from sawplan.cutting.result import BundleVerdict, OrientationOption
+from sawplan.cutting.words import (
+    Phrase,
+    fmt_number,
+    fmt_ratio,
+    power,
+    rate,
+    say,
+    share,
+    speed,
+    time,
+)
 from sawplan.cutting.words import bite as um
 from sawplan.cutting.words import feed as feed_text
 from sawplan.cutting.words import force as newton
 from sawplan.cutting.words import length as mm
-from sawplan.cutting.words import power, rate, share, speed
-from sawplan.units import fmt_duration, fmt_number, fmt_ratio
 
 
 def wear_text(ratio: float) -> str:
@@ -54,7 +63,7 @@ class OffSetting:
     """Blade wear of a given speed and feed against the recommendation, and the warnings."""
 
     wear_ratio: float | None
-    lines: tuple[str, ...]
+    lines: tuple[Phrase, ...]
     feed_factor: float = 1.0  # (set bite ÷ model bite)^(y/n): the feed's part of the wear
 
 
@@ -71,7 +80,7 @@ def off_recommendation(
     ``with_set_feed`` the pitch at the given speed with the operator's feed.
     """
     exp = tl.exponent_for(plan.blade_material)
-    lines: list[str] = []
+    lines: list[Phrase] = []
     wear = 1.0
     feed_factor = 1.0
     known = False
@@ -84,21 +93,35 @@ def off_recommendation(
         wear *= speed_wear
         side = s.outside_band()
         band = K.number("speed", "recommended_band_percent")
-        rec = f"{speed(s.recommended_m_min)} recommended for this cut"
+        rec = say("{} recommended for this cut", speed(s.recommended_m_min))
         given = speed(s.band_speed_m_min)
         if side == "above":
             life = tl.life_ratio(s.off_ratio, exp.n)
             lines.append(
-                f"band speed {given} is {fmt_ratio(s.off_ratio)} the {rec} (more than {band:g} % "
-                f"over): the teeth last {_life_text(life)} in minutes of cutting, "
-                f"{wear_text(speed_wear)} ({taylor_note(exp)}); expect dull teeth, heat and "
-                "discoloured chips"
+                say(
+                    "band speed {} is {} the {} (more than {} % over): the teeth last {} in "
+                    "minutes of cutting, {} ({}); expect dull teeth, heat and discoloured chips",
+                    given,
+                    fmt_ratio(s.off_ratio),
+                    rec,
+                    f"{band:g}",
+                    _life_text(life),
+                    wear_text(speed_wear),
+                    taylor_note(exp),
+                )  # fmt: skip
             )
         elif side == "below":
             lines.append(
-                f"band speed {given} is under the {rec} (more than {band:g} % under): the cut takes "
-                f"{fmt_ratio(time_ratio)} as long; {wear_text(speed_wear)} "
-                f"({taylor_note(exp)})"
+                say(
+                    "band speed {} is under the {} (more than {} % under): the cut takes {} as "
+                    "long; {} ({})",
+                    given,
+                    rec,
+                    f"{band:g}",
+                    fmt_ratio(time_ratio),
+                    wear_text(speed_wear),
+                    taylor_note(exp),
+                )  # fmt: skip
             )
     if with_set_feed is not None and not with_set_feed.stalled and not at_given.stalled:
         known = True
@@ -114,42 +137,73 @@ def off_recommendation(
 
 def _feed_lines(
     plan: Plan, fed: Candidate, model: Candidate, feed_wear: float, exp: tl.TaylorExponent
-) -> list[str]:
+) -> list[Phrase]:
     run = fed.run
     out = []
     over = run.overload
     slowest = "" if not plan.saw.force_limited else " at the slowest depth"
-    allowed = f"{feed_text(model.run.feed_set_mm_min)}{slowest}"
-    head = (
-        f"down-feed {feed_text(plan.set_feed_mm_min or 0.0)} is over the {allowed} the model allows"
-    )
+    head = say(
+        "down-feed {} is over the {}{} the model allows",
+        feed_text(plan.set_feed_mm_min or 0.0), feed_text(model.run.feed_set_mm_min), slowest,
+    )  # fmt: skip
     if over is not None:
         x = fmt_ratio(over.ratio)
         where = f"across {share(over.share)} of the cut"
         if over.limit == "material":
             out.append(
-                f"{head}: the bite reaches {x} what {plan.material.key} takes {where}: "
-                f"{wear_text(feed_wear)} (extended Taylor relation V·Tⁿ·fʸ = C, y = "
-                f"{tl.FEED_EXPONENT:g}, n = {exp.n:g})"
+                say(
+                    "{}: the bite reaches {} what {} takes {}: {} (extended Taylor relation "
+                    "V·Tⁿ·fʸ = C, y = {}, n = {})",
+                    head,
+                    x,
+                    plan.material.key,
+                    where,
+                    wear_text(feed_wear),
+                    f"{tl.FEED_EXPONENT:g}",
+                    f"{exp.n:g}",
+                )  # fmt: skip
             )
         elif over.limit == "gullet":
             out.append(
-                f"{head}: chips overfill the gullets ({x} their capacity) {where}: they pack "
-                "and strip teeth; expect a crooked cut or a broken blade"
+                say(
+                    "{}: chips overfill the gullets ({} their capacity) {}: they pack and strip "
+                    "teeth; expect a crooked cut or a broken blade",
+                    head,
+                    x,
+                    where,
+                )  # fmt: skip
             )
         elif over.limit == "tooth":
-            out.append(f"{head}: the bite is {x} what the teeth stand {where}: teeth can break off")
+            out.append(
+                say(
+                    "{}: the bite is {} what the teeth stand {}: teeth can break off",
+                    head,
+                    x,
+                    where,
+                )
+            )
         elif over.limit == "power":
             out.append(
-                f"{head}: {x} the motor's power {where}: the band slows or stalls in the cut"
+                say(
+                    "{}: {} the motor's power {}: the band slows or stalls in the cut",
+                    head,
+                    x,
+                    where,
+                )
             )
         else:
-            out.append(f"{head}: {LIMIT_WORDS.get(over.limit, over.limit)} is exceeded {where}")
+            out.append(
+                say("{}: {} is exceeded {}", head, LIMIT_WORDS.get(over.limit, over.limit), where)
+            )
     forced = dict(run.limit_shares).get("force", 0.0)
     if forced > 0.05:
         out.append(
-            f"the head's force cannot push the set down-feed for {share(forced)} of the cut "
-            f"time: there the feed falls to what {newton(plan.saw.head_force_n or 0.0)} allows"
+            say(
+                "the head's force cannot push the set down-feed for {} of the cut time: there "
+                "the feed falls to what {} allows",
+                share(forced),
+                newton(plan.saw.head_force_n or 0.0),
+            )  # fmt: skip
         )
     return out
 
@@ -169,7 +223,7 @@ def bundle_verdict(
             pieces, None if cand_b.stalled else cand_b.time / pieces,
             None if cand_s.stalled else cand_s.time, label_s, None,
             "single" if cand_b.stalled and not cand_s.stalled else "neither",
-            f"{which} will not cut on {plan_b.saw.name}: the head cannot load the teeth",
+            say("{} will not cut on {}: the head cannot load the teeth", which, plan_b.saw.name),
         )  # fmt: skip
     per = cand_b.time / pieces
     ratio = per / cand_s.time
@@ -179,9 +233,8 @@ def bundle_verdict(
         if cand_b.pitch.same_teeth(cand_s.pitch)
         else f" ({cand_b.pitch.label} for the bundle, {label_s} for one piece)"
     )
-    numbers = (
-        f"{fmt_duration(per)} per piece bundled against {fmt_duration(cand_s.time)} one at a "
-        f"time{pitches}"
+    numbers = say(
+        "{} per piece bundled against {} one at a time{}", time(per), time(cand_s.time), pitches
     )
     stacked = (
         f"; the {rows} rows are cut one after another, so stacking saves handling, not saw time"
@@ -192,18 +245,21 @@ def bundle_verdict(
         why = _why_bundle_faster(plan_b, cand_b, plan_s, cand_s, cols)
         return BundleVerdict(
             pieces, per, cand_s.time, label_s, ratio, "bundle",
-            f"bundling {rows}×{cols} saves time: {numbers}: {why}{stacked}",
+            say("bundling {}×{} saves time: {}: {}{}", rows, cols, numbers, why, stacked),
         )  # fmt: skip
     if ratio > notable:
         why = _why_bundle_slower(plan_b, cand_b, plan_s, cand_s, cols)
         return BundleVerdict(
             pieces, per, cand_s.time, label_s, ratio, "single",
-            f"one at a time is faster than bundling {rows}×{cols}: {numbers}: {why}",
+            say("one at a time is faster than bundling {}×{}: {}: {}", rows, cols, numbers, why),
         )  # fmt: skip
     return BundleVerdict(
         pieces, per, cand_s.time, label_s, ratio, "same",
-        f"bundling {rows}×{cols} takes about the same saw time per piece ({numbers}); "
-        "it saves handling and clamping only",
+        say(
+            "bundling {}×{} takes about the same saw time per piece, {}; it saves handling and "
+            "clamping only",
+            rows, cols, numbers,
+        ),
     )  # fmt: skip
 
 
@@ -214,16 +270,22 @@ def _touching(plan_b: Plan, plan_s: Plan) -> bool:
     return longest_b > longest_s * 1.01
 
 
-def _rate(plan: Plan, cand: Candidate) -> str:
+def _rate(plan: Plan, cand: Candidate) -> Phrase:
     return rate(plan.section.area_mm2 / cand.time)
+
+
+def _rates(plan: Plan, cand: Candidate, plan_s: Plan, cand_s: Candidate) -> Phrase:
+    return say(
+        "the saw removes {} against {} on one piece", _rate(plan, cand), _rate(plan_s, cand_s)
+    )
 
 
 def _why_bundle_faster(
     plan: Plan, cand: Candidate, plan_s: Plan, cand_s: Candidate, cols: int
-) -> str:
+) -> Phrase:
     limit = cand.run.governing_limit
     side = f"the {cols} pieces side by side share each pass of the head; " if cols > 1 else ""
-    rates = f"the saw removes {_rate(plan, cand)} against {_rate(plan_s, cand_s)} on one piece"
+    rates = _rates(plan, cand, plan_s, cand_s)
     if limit == "gullet" and _touching(plan, plan_s):
         held = "the gullets fill over the stretches where the pieces touch"
     elif limit == "gullet":
@@ -234,38 +296,43 @@ def _why_bundle_faster(
         held = f"{LIMIT_WORDS[limit]} sets the feed of both"
     else:
         held = f"{LIMIT_WORDS[limit]} now sets the feed, where one piece leaves it unused"
-    return f"{side}{rates}; {held}"
+    return say("{}{}; {}", side, rates, held)
 
 
 def _why_bundle_slower(
     plan_b: Plan, cand_b: Candidate, plan_s: Plan, cand_s: Candidate, cols: int
-) -> str:
+) -> Phrase:
     shares_b = dict(cand_b.run.limit_shares)
     saw = plan_b.saw
-    rates = f"the saw removes {_rate(plan_b, cand_b)} against {_rate(plan_s, cand_s)} on one piece"
+    rates = _rates(plan_b, cand_b, plan_s, cand_s)
     if shares_b.get("force", 0) > 0.3:
-        return (
-            f"{rates}: the head force ({newton(saw.head_force_n or 0.0)}) is shared by the teeth across "
-            f"the whole {mm(plan_b.section.max_chord_mm)} chord, so each tooth bites less"
-        )
+        return say(
+            "{}: the head force ({}) is shared by the teeth across the whole {} chord, so each "
+            "tooth bites less",
+            rates, newton(saw.head_force_n or 0.0), mm(plan_b.section.max_chord_mm),
+        )  # fmt: skip
     if shares_b.get("power", 0) > 0.3:
-        return (
-            f"{rates}: the motor's {power(saw.cutting_power_w)} at the blade is spread over "
-            f"{mm(plan_b.section.max_chord_mm)} of metal in the chord instead of "
-            f"{mm(plan_s.section.max_chord_mm)}"
-        )
+        return say(
+            "{}: the motor's {} at the blade is spread over {} of metal in the chord instead "
+            "of {}",
+            rates, power(saw.cutting_power_w), mm(plan_b.section.max_chord_mm),
+            mm(plan_s.section.max_chord_mm),
+        )  # fmt: skip
     if cand_b.run.rubbing_share > cand_s.run.rubbing_share + 0.1 and _touching(plan_b, plan_s):
-        return (
-            f"{rates}: the pieces touch, so chips fill the gullets over longer stretches of "
-            f"metal and the bite falls under the {um(plan_b.base.rubbing_floor_mm)} rubbing "
-            f"floor across {share(cand_b.run.rubbing_share)} of the metal"
-        )
+        return say(
+            "{}: the pieces touch, so chips fill the gullets over longer stretches of metal "
+            "and the bite falls under the {} rubbing floor across {} of the metal",
+            rates, um(plan_b.base.rubbing_floor_mm), share(cand_b.run.rubbing_share),
+        )  # fmt: skip
     if not saw.force_limited:
-        return (
-            f"{rates}: the down-feed is set for the bundle's widest chord "
-            f"({mm(plan_b.section.max_chord_mm)}), slower than one piece needs"
-        )
-    return f"{rates}: {LIMIT_WORDS[cand_b.run.governing_limit]} holds the bundle's feed down"
+        return say(
+            "{}: the down-feed is set for the bundle's widest chord ({}), slower than one "
+            "piece needs",
+            rates, mm(plan_b.section.max_chord_mm),
+        )  # fmt: skip
+    return say(
+        "{}: {} holds the bundle's feed down", rates, LIMIT_WORDS[cand_b.run.governing_limit]
+    )
 
 
 # --- orientation -----------------------------------------------------------------------------
@@ -297,7 +364,7 @@ def orientation_option(
     )
 
 
-def better_orientation_line(options: tuple[OrientationOption, ...]) -> str | None:
+def better_orientation_line(options: tuple[OrientationOption, ...]) -> Phrase | None:
     """Name the best other orientation when it saves time or blade by a notable margin."""
     notable = K.number("choice", "notable_time_ratio")
     useful = [
@@ -313,8 +380,8 @@ def better_orientation_line(options: tuple[OrientationOption, ...]) -> str | Non
     best = min(useful, key=lambda o: (o.time_ratio or 0.0, o.wear_ratio or 0.0))
     assert best.time_ratio is not None and best.wear_ratio is not None
     vee = " in a vee block" if best.orientation == "corner" else ""
-    return (
-        f"laid {best.words}{vee} (--orient {best.orientation}) with {best.pitch_label}: "
-        f"{fmt_ratio(best.time_ratio)} the time and {fmt_ratio(best.wear_ratio)} the blade "
-        f"wear per cut ({fmt_duration(best.cut_time_min)})"
-    )
+    return say(
+        "laid {}{} (--orient {}) with {}: {} the time and {} the blade wear per cut ({})",
+        best.words, vee, best.orientation, best.pitch_label, fmt_ratio(best.time_ratio),
+        fmt_ratio(best.wear_ratio), time(best.cut_time_min),
+    )  # fmt: skip

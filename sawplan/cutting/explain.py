@@ -10,9 +10,19 @@ from __future__ import annotations
 from sawplan.cutting import constants as K
 from sawplan.cutting.choice import Choice, beyond_window, pool
 from sawplan.cutting.plan import Candidate, Plan, SectionLike, single_solid
-from sawplan.cutting.words import feed, share, speed
+from sawplan.cutting.words import (
+    Phrase,
+    change,
+    feed,
+    fmt_ratio,
+    join,
+    say,
+    share,
+    speed,
+    time,
+    width,
+)
 from sawplan.cutting.words import length as mm
-from sawplan.units import fmt_ratio
 
 LIMIT_WORDS = {
     "material": "the material's bite",
@@ -32,11 +42,11 @@ SHORT_WHY = {
 }
 
 
-def thinnest_text(section: SectionLike) -> str:
+def thinnest_text(section: SectionLike) -> Phrase:
     """Where the three-tooth rule is read, in words."""
     if single_solid(section):
-        return f"the {mm(section.max_chord_mm)} widest chord"
-    return f"the {mm(section.thinnest_chord_mm)} of metal at the thinnest depth"
+        return say("the {} widest chord", mm(section.max_chord_mm))
+    return say("the {} of metal at the thinnest depth", mm(section.thinnest_chord_mm))
 
 
 def ratio_text(ratio: float) -> str:
@@ -48,11 +58,11 @@ def ratio_text(ratio: float) -> str:
     return f"{fmt_ratio(1 / ratio)} faster"
 
 
-def teeth_text(cand: Candidate, section: SectionLike) -> str:
+def teeth_text(cand: Candidate, section: SectionLike) -> Phrase:
     if single_solid(section):
         teeth = f"{cand.teeth_thinnest:.1f}" if cand.too_few else f"{cand.teeth_widest:.0f}"
-        return f"{teeth} teeth in the {mm(section.max_chord_mm)} widest chord"
-    return f"{cand.teeth_thinnest:.1f} teeth over {thinnest_text(section)}"
+        return say("{} teeth in the {} widest chord", teeth, mm(section.max_chord_mm))
+    return say("{} teeth over {}", f"{cand.teeth_thinnest:.1f}", thinnest_text(section))
 
 
 def limit_text(cand: Candidate) -> str:
@@ -61,70 +71,76 @@ def limit_text(cand: Candidate) -> str:
     return f"{LIMIT_WORDS[run.governing_limit]} sets the feed for {share(part)} of the cut"
 
 
-def why_chosen(choice: Choice, plan: Plan) -> str:
+def why_chosen(choice: Choice, plan: Plan) -> Phrase:
     """The first 'Why' line of a recommendation."""
     cand, section = choice.chosen, plan.section
     label, teeth = cand.pitch.label, teeth_text(cand, section)
     if cand.stalled:
-        return f"{label}: the coarsest pitch, and the head still cannot load its teeth"
+        return say("{}: the coarsest pitch, and the head still cannot load its teeth", label)
     limit = limit_text(cand)
     chart = choice.chart
-    width = f"the {mm(choice.width_of_cut_mm or 0.0)} average width of cut"
+    avg = say("the {} average width of cut", width(choice.width_of_cut_mm or 0.0))
     if choice.how == "fastest":
         if cand.allowed:
-            return f"{label} cuts fastest within the tooth-count rules ({teeth}); {limit}"
+            return say("{} cuts fastest within the tooth-count rules ({}); {}", label, teeth, limit)
         if cand.too_few:
-            return f"{label}: the finest pitch, still only {teeth}; {limit}"
-        return f"{label}: the coarsest pitch, {teeth}; {limit}"
+            return say("{}: the finest pitch, still only {}; {}", label, teeth, limit)
+        return say("{}: the coarsest pitch, {}; {}", label, teeth, limit)
     assert chart is not None
     if choice.how == "chart":
-        return (
-            f"{label}: the pitch for {width} (metal area ÷ blade travel, as the trade reads "
-            f"tube, sections and bundles), {teeth}; {limit}"
-        )
+        return say(
+            "{}: the pitch for {} (metal area ÷ blade travel, as the trade reads tube, sections "
+            "and bundles), {}; {}",
+            label, avg, teeth, limit,
+        )  # fmt: skip
     if choice.how == "near-chart":
         side = "finer" if cand.pitch.tpi_mean > chart.pitch.tpi_mean else "coarser"
-        return (
-            f"{label}: one step {side} than the {chart.pitch.label} read off {width} (metal "
-            f"area ÷ blade travel), and faster here; {teeth}; {limit}"
-        )
+        return say(
+            "{}: one step {} than the {} read off {} (metal area ÷ blade travel), and faster "
+            "here; {}; {}",
+            label, side, chart.pitch.label, avg, teeth, limit,
+        )  # fmt: skip
     if choice.how == "finer-for-teeth":
-        return (
-            f"{label}: {chart.pitch.label} reads off {width} but leaves "
-            f"{chart.teeth_thinnest:.1f} teeth over {thinnest_text(section)}; {label} keeps "
-            f"{cand.teeth_thinnest:.1f}; {limit}"
-        )
+        return say(
+            "{}: {} reads off {} but leaves {} teeth over {}; {} keeps {}; {}",
+            label, chart.pitch.label, avg, f"{chart.teeth_thinnest:.1f}", thinnest_text(section),
+            label, f"{cand.teeth_thinnest:.1f}", limit,
+        )  # fmt: skip
     if choice.how == "coarser-for-rubbing":
-        return (
-            f"{label}: coarser than the {chart.pitch.label} read off {width}, whose bite sits "
-            f"under the rubbing floor across {share(chart.run.rubbing_share)} of the metal; "
-            f"{teeth}; {limit}"
-        )
+        return say(
+            "{}: coarser than the {} read off {}, whose bite sits under the rubbing floor "
+            "across {} of the metal; {}; {}",
+            label, chart.pitch.label, avg, share(chart.run.rubbing_share), teeth, limit,
+        )  # fmt: skip
     if choice.how == "thin-walls":
-        return (
-            f"{label}: the finest pitch made for this blade; no pitch keeps 3 teeth over "
-            f"{thinnest_text(section)} ({cand.teeth_thinnest:.1f} here); {limit}"
-        )
-    return (
-        f"{label}: the pitch nearest the {chart.pitch.label} read off {width} that keeps "
-        f"3 teeth and bites above the rubbing floor, {teeth}; {limit}"
-    )
+        return say(
+            "{}: the finest pitch made for this blade; no pitch keeps 3 teeth over {} ({} "
+            "here); {}",
+            label, thinnest_text(section), f"{cand.teeth_thinnest:.1f}", limit,
+        )  # fmt: skip
+    return say(
+        "{}: the pitch nearest the {} read off {} that keeps 3 teeth and bites above the "
+        "rubbing floor, {}; {}",
+        label, chart.pitch.label, avg, teeth, limit,
+    )  # fmt: skip
 
 
 def neighbour_line(
     side: str, cand: Candidate, chosen: Candidate, section: SectionLike, far: str = ""
-) -> str:
+) -> Phrase | str:
     label = f"{side} {cand.pitch.label}"
     if cand.stalled:
         return f"{label}: will not cut (the head cannot load its teeth)"
     if cand.too_few:
-        return f"{label}: only {cand.teeth_thinnest:.1f} teeth over {thinnest_text(section)}"
+        return say(
+            "{}: only {} teeth over {}", label, f"{cand.teeth_thinnest:.1f}", thinnest_text(section)
+        )
     if cand.too_many:
         most = K.number("bite", "max_teeth_widest_chord")
-        return (
-            f"{label}: {cand.teeth_widest:.0f} teeth in the {mm(section.max_chord_mm)} widest "
-            f"chord (over about {most:.0f})"
-        )
+        return say(
+            "{}: {} teeth in the {} widest chord (over about {})",
+            label, f"{cand.teeth_widest:.0f}", mm(section.max_chord_mm), f"{most:.0f}",
+        )  # fmt: skip
     why = SHORT_WHY[cand.run.governing_limit]
     if cand.run.governing_limit == "material" and side == "coarser":
         why += ", wider tooth spacing"
@@ -138,7 +154,7 @@ def neighbour_line(
     return f"{label}: {why}, {ratio_text(ratio)}{far if ratio < 1 else ''}"
 
 
-def neighbours(choice: Choice, cands: list[Candidate], section: SectionLike) -> str | None:
+def neighbours(choice: Choice, cands: list[Candidate], section: SectionLike) -> Phrase | None:
     """What the next finer and next coarser pitch of the same family would do."""
     chosen = choice.chosen
     solid = single_solid(section)
@@ -156,43 +172,62 @@ def neighbours(choice: Choice, cands: list[Candidate], section: SectionLike) -> 
         if choice.chart is not None and beyond_window(choice, cand, cands):
             far = f", but more than a step from the {choice.chart.pitch.label} the trade reads here"
         parts.append(neighbour_line(side, cand, chosen, section, far))
-    return "; ".join(parts) if parts else None
+    return join("; ", parts) if parts else None
 
 
-def speed_line(plan: Plan) -> str:
+def speed_line(plan: Plan) -> Phrase:
     s = plan.speed
     if s.given:
-        return (
-            f"band speed {speed(s.band_speed_m_min)} as given "
-            f"(recommended {speed(s.recommended_m_min)})"
+        return say(
+            "band speed {} as given (recommended {})",
+            speed(s.band_speed_m_min),
+            speed(s.recommended_m_min),
         )
-    parts = [f"{s.base_m_min:.0f} m/min for {plan.material.key}"]  # chart speeds: whole m/min
+    parts: list[Phrase | str] = [say("{} for {}", speed(s.base_m_min), plan.material.key)]
     if abs(s.width_factor - 1) > 0.005:
-        parts.append(f"{s.width_factor - 1:+.0%} for a {mm(s.width_of_cut_mm)} mean width of cut")
+        parts.append(
+            say(
+                "{} for a {} mean width of cut",
+                change(s.width_factor - 1),
+                width(s.width_of_cut_mm),
+            )
+        )
     if s.blade_factor != 1:
-        parts.append(f"{s.blade_factor - 1:+.0%} {plan.blade_material} blade")
+        parts.append(f"{change(s.blade_factor - 1)} {plan.blade_material} blade")
     if s.coolant_factor != 1:
-        parts.append(f"{s.coolant_factor - 1:+.0%} dry")
+        parts.append(f"{change(s.coolant_factor - 1)} dry")
     if s.clipped:
         parts.append(f"held to the saw's {'highest' if s.clipped == 'max' else 'lowest'} speed")
-    return f"band speed {s.band_speed_m_min:.0f} m/min: " + ", ".join(parts)
+    return say("band speed {}: {}", speed(s.band_speed_m_min), join(", ", parts))
 
 
-def feed_line(plan: Plan, cand: Candidate) -> str:
-    run = cand.run
+def feed_line(plan: Plan, cand: Candidate) -> Phrase | str:
+    """Why the down-feed on the card is what it is; the card's Down-feed line alone
+    carries the setting (and a gravity head's average), so this line repeats neither."""
     if cand.stalled:
         return f"{plan.saw.feed_type} feed: the head cannot load the teeth, so it does not advance"
     if plan.set_feed_mm_min is not None:
         if plan.saw.force_limited:
             return (
-                f"down-feed set to {feed(plan.set_feed_mm_min)}; the "
-                f"{plan.saw.feed_type} head holds it where its force allows, "
-                f"{feed(run.feed_mean_mm_min)} on average"
+                f"down-feed as given; the {plan.saw.feed_type} head holds it where its force "
+                "allows and slows where it does not"
             )
-        return f"down-feed set to {feed(plan.set_feed_mm_min)} as given"
+        return "down-feed as given"
     if plan.saw.force_limited:
         return (
-            f"{plan.saw.feed_type} feed follows the chord: {feed(run.feed_mean_mm_min)} "
-            f"on average, {feed(run.feed_set_mm_min)} at the slowest depth"
+            f"{plan.saw.feed_type} feed follows the chord: the head slows where the chord is "
+            "widest and speeds up where it narrows"
         )
-    return "the down-feed is what the slowest depth allows, so it is safe at the widest chord"
+    return "the down-feed above is what the slowest depth allows, so it is safe at the widest chord"
+
+
+def calibration_line(plan: Plan, cand: Candidate) -> Phrase:
+    """The shop's time factor, with the model's own time and down-feed before it."""
+    own = plan.saw.force_limited or plan.set_feed_mm_min is not None  # no model feed to name
+    model_feed = "" if own else say(", {} down-feed", feed(cand.run.feed_set_mm_min))
+    return say(
+        "time × {} shop calibration (model {}{})",
+        f"{plan.calibration:.2f}",
+        time(cand.time),
+        model_feed,
+    )

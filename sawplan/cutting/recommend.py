@@ -13,7 +13,7 @@ import dataclasses
 from dataclasses import dataclass, replace
 from typing import Any
 
-from sawplan.cutting import advice, explain, warn, words
+from sawplan.cutting import advice, explain, warn
 from sawplan.cutting import tool_life as tl
 from sawplan.cutting.breakin import BREAKIN_CAUTION, breakin_schedule
 from sawplan.cutting.choice import Choice, choose
@@ -30,9 +30,9 @@ from sawplan.cutting.plan import (
     score,
 )
 from sawplan.cutting.result import CAUTION, Comparison, CutResult, ProfilePoint
+from sawplan.cutting.words import Phrase, feed, fmt_ratio, say, speed, time
 from sawplan.errors import BadDataError
 from sawplan.saws import Saw
-from sawplan.units import fmt_duration, fmt_ratio
 
 PROFILE_POINTS = 41
 
@@ -114,15 +114,21 @@ def _explanation(planned: Planned, given: bool) -> tuple[str, ...]:
         line = explain.neighbours(planned.choice, planned.cands, plan.section)
         if line:
             lines.append(line)
-    lines.append(f"{cand.teeth.form_why}; {cand.teeth.set_why}")
+    lines.append(say("{}; {}", cand.teeth.form_why, cand.teeth.set_why))
     lines.append(explain.speed_line(plan))
     lines.append(explain.feed_line(plan, cand))
     if plan.calibration != 1.0 and not cand.stalled:
-        lines.append(
-            f"time × {plan.calibration:.2f} shop calibration (model {fmt_duration(cand.time)})"
-        )
+        lines.append(explain.calibration_line(plan, cand))
     lines.extend(plan.notes)
     return tuple(lines)
+
+
+def _setting(plan: Plan, model_mm_min: float) -> float:
+    """The down-feed to set: the operator's own when given, else the model's slowed by
+    the shop's calibration (it slows every feed alike)."""
+    if plan.set_feed_mm_min is not None:
+        return plan.set_feed_mm_min
+    return model_mm_min / plan.calibration
 
 
 def _result(
@@ -152,7 +158,7 @@ def _result(
         band_speed_clipped=plan.speed.clipped,
         feed_mm_min=None if time is None else section.height_mm / time,
         # the shop's calibration slows every feed alike, the setting included
-        feed_set_mm_min=None if stalled else run.feed_set_mm_min / plan.calibration,
+        feed_set_mm_min=None if stalled else _setting(plan, run.feed_set_mm_min),
         cut_time_min=time,
         cut_time_model_min=None if stalled else run.cut_time_min,
         calibration_factor=plan.calibration,
@@ -358,12 +364,12 @@ def cut_time_min(
     return None if cand.stalled else cand.time * plan.calibration
 
 
-def _describe(r: CutResult, *, speed: bool, feed: bool) -> str:
-    text = r.pitch_label
-    if speed:
-        text += f" at {words.speed(r.band_speed_m_min)}"
-    if feed and r.feed_given and r.feed_set_mm_min is not None:
-        text += f" with {words.feed(r.feed_set_mm_min)} down-feed"
+def _describe(r: CutResult, *, at_speed: bool, with_feed: bool) -> Phrase:
+    text = say("{}", r.pitch_label)
+    if at_speed:
+        text = say("{} at {}", text, speed(r.band_speed_m_min))
+    if with_feed and r.feed_given and r.feed_set_mm_min is not None:
+        text = say("{} with {} down-feed", text, feed(r.feed_set_mm_min))
     return text
 
 
@@ -388,47 +394,52 @@ def compare(
     return Comparison(chosen, recommended, *_summary(chosen, recommended))
 
 
-def _summary(chosen: CutResult, rec: CutResult) -> tuple[float | None, str, float | None]:
-    speed = abs(chosen.band_speed_m_min - rec.band_speed_m_min) > 1e-9
-    feed = chosen.feed_given
-    c_text = _describe(chosen, speed=speed, feed=feed)
-    r_text = _describe(rec, speed=speed, feed=False)
+def _summary(chosen: CutResult, rec: CutResult) -> tuple[float | None, Phrase, float | None]:
+    at_speed = abs(chosen.band_speed_m_min - rec.band_speed_m_min) > 1e-9
+    with_feed = chosen.feed_given
+    c_text = _describe(chosen, at_speed=at_speed, with_feed=with_feed)
+    r_text = _describe(rec, at_speed=at_speed, with_feed=False)
     if chosen.cut_time_min is None:
         if rec.cut_time_min is None:
-            return None, f"{c_text} will not cut on {chosen.saw}, nor will any pitch", None
+            return None, say("{} will not cut on {}, nor will any pitch", c_text, chosen.saw), None
         return (
             None,
-            f"{c_text} will not cut on {chosen.saw}: the head force cannot load its teeth; "
-            f"{r_text} takes {fmt_duration(rec.cut_time_min)}",
+            say(
+                "{} will not cut on {}: the head force cannot load its teeth; {} takes {}",
+                c_text,
+                chosen.saw,
+                r_text,
+                time(rec.cut_time_min),
+            ),  # fmt: skip
             None,
         )
     if rec.cut_time_min is None:
-        return None, f"{r_text} will not cut on {chosen.saw}; {c_text} does", None
+        return None, say("{} will not cut on {}; {} does", r_text, chosen.saw, c_text), None
     ratio = chosen.cut_time_min / rec.cut_time_min
     wear = None
-    if speed or feed:
+    if at_speed or with_feed:
         exp = tl.exponent_for(chosen.blade_material)
         speed_ratio = chosen.band_speed_m_min / rec.band_speed_m_min
         wear = tl.wear_per_cut_ratio(speed_ratio, ratio, exp.n) * chosen.feed_wear_factor
     same_pitch = chosen.pitch_label == rec.pitch_label
-    if same_pitch and abs(ratio - 1) < 0.005 and not (speed or feed):
-        return ratio, f"{chosen.pitch_label} is the recommended pitch for this cut", wear
-    times = (
-        f"{c_text} takes {fmt_ratio(ratio)} the time of {r_text} "
-        f"({fmt_duration(chosen.cut_time_min)} against {fmt_duration(rec.cut_time_min)})"
-    )
+    if same_pitch and abs(ratio - 1) < 0.005 and not (at_speed or with_feed):
+        return ratio, say("{} is the recommended pitch for this cut", chosen.pitch_label), wear
+    times = say(
+        "{} takes {} the time of {} ({} against {})",
+        c_text, fmt_ratio(ratio), r_text, time(chosen.cut_time_min), time(rec.cut_time_min),
+    )  # fmt: skip
     if ratio < 0.995 and wear is not None and wear > 1.05:
         exp = tl.exponent_for(chosen.blade_material)
-        note = advice.taylor_note(exp, feed=feed)
-        return ratio, f"{times}: faster, but {advice.wear_text(wear)} ({note})", wear
+        note = advice.taylor_note(exp, feed=with_feed)
+        return ratio, say("{}: faster, but {} ({})", times, advice.wear_text(wear), note), wear
     if ratio < 0.995:
         why = chosen.warnings[0] if chosen.warnings else "both are within the rules"
-        return ratio, f"{times}: faster, but {why}", wear
-    if feed and chosen.governing_limit == "set" and not chosen.warnings:
+        return ratio, say("{}: faster, but {}", times, why), wear
+    if with_feed and chosen.governing_limit == "set" and not chosen.warnings:
         model = rec.feed_set_mm_min or 0.0
-        problem = f"slower: the down-feed is set under what the model allows ({words.feed(model)})"
+        problem = say("slower: the down-feed is set under what the model allows ({})", feed(model))
     else:
         problem = (
             chosen.warnings[0] if chosen.warnings else explain.SHORT_WHY[chosen.governing_limit]
         )
-    return ratio, f"{times}: {problem}", wear
+    return ratio, say("{}: {}", times, problem), wear

@@ -71,7 +71,9 @@ class CutResult:
     band_speed_m_min: float
     band_speed_clipped: str | None  # "max" | "min" when the saw's range held the speed
     feed_mm_min: float | None  # mean down-feed: height / time (None: will not cut)
-    feed_set_mm_min: float | None  # constant feed: the setting; force-fed: the slowest depth
+    feed_set_mm_min: (
+        float | None
+    )  # the setting (as given, or constant feed); force-fed: the slowest depth
     cut_time_min: float | None  # after the shop calibration factor; None: will not cut
     cut_time_model_min: float | None  # before it
     calibration_factor: float

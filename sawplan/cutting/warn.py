@@ -14,29 +14,30 @@ from sawplan.cutting.explain import thinnest_text
 from sawplan.cutting.mechanics import wheel_ratio_warning
 from sawplan.cutting.plan import Candidate, Plan, single_solid
 from sawplan.cutting.ploughing import teeth_in_chord, teeth_the_head_can_load
+from sawplan.cutting.words import Phrase, bite_pair, power, say, share, speed
 from sawplan.cutting.words import bite as um
 from sawplan.cutting.words import force as newton
 from sawplan.cutting.words import length as mm
-from sawplan.cutting.words import power, share, speed
 
 CLIP_NOTICE = 1.03  # a speed held back by under 3 % is not worth a warning
 
 
-def stall_reason(plan: Plan, cand: Candidate) -> str:
+def stall_reason(plan: Plan, cand: Candidate) -> Phrase:
     """'will not cut: …' — the one line a stalled cut gets."""
     chord = cand.run.stall_chord_mm
     teeth = teeth_in_chord(cand.pitch, chord)
     force = plan.saw.head_force_n or 0.0
     edge = plan.base.plough_force_n
     most = teeth_the_head_can_load(force, edge)
-    return (
-        f"will not cut: the head force ({newton(force)}) cannot load the {teeth:.0f} teeth of "
-        f"{cand.pitch.label} in the {mm(chord)} chord (each needs about {newton(edge)} before it "
-        f"bites, so at most {most:.0f} teeth); fit a coarser pitch or add feed force"
-    )
+    return say(
+        "will not cut: the head force ({}) cannot load the {} teeth of {} in the {} chord (each "
+        "needs about {} before it bites, so at most {} teeth); fit a coarser pitch or add feed "
+        "force",
+        newton(force), f"{teeth:.0f}", cand.pitch.label, mm(chord), newton(edge), f"{most:.0f}",
+    )  # fmt: skip
 
 
-def _tooth_count(plan: Plan, cand: Candidate, cands: list[Candidate]) -> list[str]:
+def _tooth_count(plan: Plan, cand: Candidate, cands: list[Candidate]) -> list[Phrase]:
     need = K.number("bite", "min_teeth")
     out = []
     if cand.too_few:
@@ -44,39 +45,55 @@ def _tooth_count(plan: Plan, cand: Candidate, cands: list[Candidate]) -> list[st
         finer = [c for c in cands if not c.too_few and not c.stalled]
         if not finer:
             out.append(
-                f"walls too thin for {need:.0f} teeth of any pitch: {cand.teeth_thinnest:.1f} "
-                f"teeth of {cand.pitch.label} over {where}; wavy set, light feed, support the "
-                "work close to the cut"
+                say(
+                    "walls too thin for {} teeth of any pitch: {} teeth of {} over {}; wavy set, "
+                    "light feed, support the work close to the cut",
+                    f"{need:.0f}",
+                    f"{cand.teeth_thinnest:.1f}",
+                    cand.pitch.label,
+                    where,
+                )  # fmt: skip
             )
         else:
             fix = min(finer, key=lambda c: (c.pitch.tpi_mean, c.time))
             out.append(
-                f"only {cand.teeth_thinnest:.1f} teeth of {cand.pitch.label} over {where} "
-                f"(fewer than {need:.0f}): teeth can snag and strip; a finer pitch such as "
-                f"{fix.pitch.label} keeps {fix.teeth_thinnest:.1f}"
+                say(
+                    "only {} teeth of {} over {} (fewer than {}): teeth can snag and strip; a "
+                    "finer pitch such as {} keeps {}",
+                    f"{cand.teeth_thinnest:.1f}",
+                    cand.pitch.label,
+                    where,
+                    f"{need:.0f}",
+                    fix.pitch.label,
+                    f"{fix.teeth_thinnest:.1f}",
+                )  # fmt: skip
             )
     if cand.too_many:
         most = K.number("bite", "max_teeth_widest_chord")
         out.append(
-            f"{cand.teeth_widest:.0f} teeth in the {mm(plan.section.max_chord_mm)} widest chord "
-            f"(over about {most:.0f}): gullets pack; a coarser pitch cuts faster"
+            say(
+                "{} teeth in the {} widest chord (over about {}): gullets pack; a coarser pitch "
+                "cuts faster",
+                f"{cand.teeth_widest:.0f}",
+                mm(plan.section.max_chord_mm),
+                f"{most:.0f}",
+            )  # fmt: skip
         )
     return out
 
 
-def _rubbing(plan: Plan, cand: Candidate, cands: list[Candidate], given: bool) -> list[str]:
+def _rubbing(plan: Plan, cand: Candidate, cands: list[Candidate], given: bool) -> list[Phrase]:
     run = cand.run
     if run.rubbing_share <= 0.02:
         return []
-    floor = plan.base.rubbing_floor_mm
-    digits = 2 if um(run.min_bite_mm) != um(floor) else 3
-    head = (
-        f"tooth bite falls to {um(run.min_bite_mm, digits)}, under the {um(floor, digits)} "
-        f"rubbing floor, across {share(run.rubbing_share)} of the metal cut: teeth rub instead "
-        "of cutting"
-    )
+    low, floor = bite_pair(run.min_bite_mm, plan.base.rubbing_floor_mm)
+    head = say(
+        "tooth bite falls to {}, under the {} rubbing floor, across {} of the metal cut: teeth "
+        "rub instead of cutting",
+        low, floor, share(run.rubbing_share),
+    )  # fmt: skip
     if not given and not cand.rubs_most:  # the choice weighed it: say where, not what else
-        out = [f"{head} there; keep the feed steady"]
+        out = [say("{} there; keep the feed steady", head)]
         if plan.material.work_hardens:
             out.append(_work_hardens(plan))
         return out
@@ -92,29 +109,37 @@ def _rubbing(plan: Plan, cand: Candidate, cands: list[Candidate], given: bool) -
             better, key=lambda c: (c.run.rubbing_share > 0, c.pitch.kind != "variable", c.time)
         )
         keeps = "" if single_solid(plan.section) else " and still keeps 3 teeth in the walls"
-        out = [f"{head}; a coarser pitch such as {fix.pitch.label} bites deeper{keeps}"]
+        out = [say("{}; a coarser pitch such as {} bites deeper{}", head, fix.pitch.label, keeps)]
     elif cand.too_few:
-        out = [f"{head}; a coarser pitch would bite deeper but leave even fewer teeth in the walls"]
+        out = [
+            say(
+                "{}; a coarser pitch would bite deeper but leave even fewer teeth in the walls",
+                head,
+            )
+        ]
     elif cand.run.governing_limit == "gullet" or dict(run.limit_shares).get("gullet", 0) > 0.2:
         out = [
-            f"{head} where chips fill the gullets over long stretches of metal; no pitch that "
-            "keeps 3 teeth bites deeper here, so keep the feed steady"
+            say(
+                "{} where chips fill the gullets over long stretches of metal; no pitch that "
+                "keeps 3 teeth bites deeper here, so keep the feed steady",
+                head,
+            )
         ]
     else:
-        out = [f"{head}; no pitch that keeps 3 teeth bites deeper here"]
+        out = [say("{}; no pitch that keeps 3 teeth bites deeper here", head)]
     if plan.material.work_hardens:
         out.append(_work_hardens(plan))
     return out
 
 
-def _work_hardens(plan: Plan) -> str:
-    return (
-        f"rubbing work-hardens {plan.material.key}: keep the feed up and never let the "
-        "blade dwell in the cut"
+def _work_hardens(plan: Plan) -> Phrase:
+    return say(
+        "rubbing work-hardens {}: keep the feed up and never let the blade dwell in the cut",
+        plan.material.key,
     )
 
 
-def _limits(plan: Plan, cand: Candidate) -> list[str]:
+def _limits(plan: Plan, cand: Candidate) -> list[Phrase]:
     run, saw = cand.run, plan.saw
     shares = dict(run.limit_shares)
     out = []
@@ -126,24 +151,36 @@ def _limits(plan: Plan, cand: Candidate) -> list[str]:
         and not rubbing_told
     ):
         out.append(
-            f"gullets overloaded: chips fill them at a {um(run.bite_mean_mm)} bite, under half "
-            f"the {um(material_mm)} the material takes"
+            say(
+                "gullets overloaded: chips fill them at a {} bite, under half the {} the "
+                "material takes",
+                um(run.bite_mean_mm),
+                um(material_mm),
+            )  # fmt: skip
         )
     if shares.get("power", 0.0) > 0.2:
         out.append(
-            f"power-limited for {share(shares['power'])} of the cut: "
-            f"{power(saw.cutting_power_w)} at the blade "
-            f"({power(saw.motor_power_w)} motor × {saw.drive_efficiency:g})"
+            say(
+                "power-limited for {} of the cut: {} at the blade ({} motor × {})",
+                share(shares["power"]),
+                power(saw.cutting_power_w),
+                power(saw.motor_power_w),
+                f"{saw.drive_efficiency:g}",
+            )  # fmt: skip
         )
     if shares.get("force", 0.0) > 0.2:
         out.append(
-            f"head force {newton(saw.head_force_n or 0.0)} is shared by up to {cand.teeth_widest:.0f} "
-            f"teeth: it sets the feed for {share(shares['force'])} of the cut"
+            say(
+                "head force {} is shared by up to {} teeth: it sets the feed for {} of the cut",
+                newton(saw.head_force_n or 0.0),
+                f"{cand.teeth_widest:.0f}",
+                share(shares["force"]),
+            )  # fmt: skip
         )
     return out
 
 
-def _clipped_speed(plan: Plan) -> list[str]:
+def _clipped_speed(plan: Plan) -> list[Phrase]:
     s = plan.speed
     if not s.clipped:
         return []
@@ -152,17 +189,24 @@ def _clipped_speed(plan: Plan) -> list[str]:
     if max(wanted, held) / min(wanted, held) < CLIP_NOTICE:
         return []
     which = "highest" if s.clipped == "max" else "lowest"
-    return [f"band speed held at the saw's {which} {speed(held)} (the cut wants {speed(wanted)})"]
+    return [
+        say(
+            "band speed held at the saw's {} {} (the cut wants {})",
+            which,
+            speed(held),
+            speed(wanted),
+        )
+    ]
 
 
 def warnings(
     plan: Plan,
     cand: Candidate,
     cands: list[Candidate],
-    extra: tuple[str, ...] = (),
+    extra: tuple[Phrase, ...] = (),
     *,
     given: bool = False,
-) -> list[str]:
+) -> list[Phrase]:
     """Every warning of one cut; ``extra`` carries the speed and feed consequences (advice)."""
     if cand.stalled:
         return [stall_reason(plan, cand), *extra]
@@ -170,8 +214,13 @@ def warnings(
     width = plan.saw.blade_width_mm
     if cand.pitch.source != "given" and not cand.pitch.fits_blade(width):
         out.append(
-            f"{cand.pitch.label} is not usually made in a {width:g} mm wide blade "
-            f"(made {cand.pitch.min_blade_width_mm:g}-{cand.pitch.max_blade_width_mm:g} mm, memory)"
+            say(
+                "{} is not usually made in a {} wide blade (made {} to {}, memory)",
+                cand.pitch.label,
+                mm(width),
+                mm(cand.pitch.min_blade_width_mm),
+                mm(cand.pitch.max_blade_width_mm),
+            )  # fmt: skip
         )
     out += _rubbing(plan, cand, cands, given)
     out += _limits(plan, cand)
@@ -179,5 +228,5 @@ def warnings(
     out += extra
     wheel = wheel_ratio_warning(plan.saw.blade_thickness_mm, plan.saw.wheel_diameter_mm)
     if wheel:
-        out.append(wheel)
+        out.append(say("{}", wheel))
     return out
