@@ -147,6 +147,9 @@ def baselines(shop: dict[str, Path]) -> dict[tuple[str, ...], dict[str, object]]
         ("chart", "weibull"): {},
         ("chart", "modes"): {},
         ("chart", "cost"): {},
+        ("config", "show"): {},
+        ("config", "set"): {"key": "units", "value": "us"},
+        ("config", "unset"): {"key": "units"},
     }
 
 

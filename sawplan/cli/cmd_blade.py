@@ -142,7 +142,7 @@ def blade_add_command(
     bought: Annotated[str | None, opt("bought")] = None,
     welded: Annotated[str, opt("welded", show_default=True)] = "bought",
     notes: NoteOpt = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     json_out: JsonOpt = False,
     db: DbOpt = None,
 ) -> None:
@@ -264,7 +264,7 @@ def blade_retire_command(
     date: DateOpt = None,
     location: Annotated[str | None, opt("location")] = None,
     note: NoteOpt = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     db: DbOpt = None,
 ) -> None:
     from sawplan.life.failure_modes import failure_mode
@@ -285,7 +285,7 @@ def blade_retire_command(
 
 def blade_list_command(
     status: Annotated[str | None, opt("status")] = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -340,7 +340,7 @@ def blade_show_command(
     chart: Annotated[bool, opt("chart", help="Draw the wear curve.")] = False,
     width: ChartWidthOpt = 72,
     height: ChartHeightOpt = 20,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,

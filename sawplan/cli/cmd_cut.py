@@ -19,8 +19,8 @@ from sawplan.cli.options import (
     UnitsOpt,
     command,
     opt,
+    saw_opt,
 )
-from sawplan.units import UnitSystem
 
 HELP = """Choose the blade, band speed and feed for one cut, and time it.
 
@@ -46,8 +46,12 @@ def cut_command(
     material: MaterialArg,
     section: SectionArg,
     saw: Annotated[
-        str, opt("saw", help="Saw profile (see `sawplan saw list`).", show_default=True)
-    ] = DEFAULT_SAW,
+        str,
+        saw_opt(
+            f"Saw profile (see `sawplan saw list`); default: config saw, else {DEFAULT_SAW}.",
+            DEFAULT_SAW,
+        ),
+    ] = None,
     blade_tpi: Annotated[
         str | None, opt("pitch", help="Evaluate this pitch, e.g. 3/4 or 6.")
     ] = None,
@@ -62,7 +66,7 @@ def cut_command(
     chart: Annotated[
         bool, opt("chart", help="Chart width of cut and feed through the cut.")
     ] = False,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     json_out: JsonOpt = False,
     db: DbOpt = None,
     saws_file: SawsFileOpt = None,

@@ -27,6 +27,7 @@ from sawplan.cli.options import (
     arg,
     command,
     opt,
+    saw_opt,
 )
 from sawplan.units import UnitSystem
 
@@ -85,7 +86,9 @@ def log_cut_command(
     bundle: BundleOpt = None,
     nest: NestOpt = False,
     blade: Annotated[str | None, opt("blade")] = None,
-    saw: Annotated[str | None, opt("saw", help="The saw (picks its fitted blade).")] = None,
+    saw: Annotated[
+        str | None, saw_opt("The saw (picks its fitted blade).", use_config=False)
+    ] = None,
     cuts: Annotated[int, opt("cuts", show_default=True)] = 1,
     area: Annotated[
         str | None, opt("area", help="Area of one cut when less than the section, e.g. 20cm2.")
@@ -98,12 +101,13 @@ def log_cut_command(
     job: Annotated[str | None, opt("job")] = None,
     heat: Annotated[str | None, opt("heat")] = None,
     note: NoteOpt = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
     saws_file: SawsFileOpt = None,
     db: DbOpt = None,
 ) -> None:
+    from sawplan import config
     from sawplan.fields import parse
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
@@ -132,7 +136,9 @@ def log_cut_command(
     on = parse_day(date)
     notes: list[str] = []
     with connect(db) as database:
-        target, saw_id, saw_obj = resolve_target(database, blade, saw, saws_file, on)
+        shop_saw = config.get("saw") if blade is None and saw is None else None
+        target, saw_id, saw_obj = resolve_target(database, blade, shop_saw or saw, saws_file, on,
+                                                 only_if_several=shop_saw is not None)  # fmt: skip
         predicted = None
         if area is None and saw_obj is not None:
             predicted, why = predict_minutes(
@@ -207,12 +213,34 @@ def parse_feed(text: str | None) -> tuple[float | None, str | None]:
     return None, text.strip()
 
 
-def resolve_target(database: Any, tag: str | None, saw: str | None, saws_file: Any, on: str):
-    """The blade the cut was made with, the saw's row id, and the saw's profile."""
+def resolve_target(
+    database: Any,
+    tag: str | None,
+    saw: str | None,
+    saws_file: Any,
+    on: str,
+    *,
+    only_if_several: bool = False,
+):
+    """The blade the cut was made with, the saw's row id, and the saw's profile.
+
+    ``only_if_several``: ``saw`` is the shop's configured saw, used only to choose
+    between several saws that carry blades.
+    """
     from sawplan.errors import ConflictError
     from sawplan.saws import load_saws
-    from sawplan.store.records import ensure_saw, find_saw, fitted_blade, get_blade
+    from sawplan.store.records import (
+        ensure_saw,
+        find_saw,
+        fitted_blade,
+        fitted_on_saws,
+        get_blade,
+    )
 
+    if only_if_several and saw is not None:
+        fitted = fitted_on_saws(database)
+        if len(fitted) < 2 or saw.strip().lower() not in fitted:
+            saw = None
     if tag is None:
         target, saw_name = fitted_blade(database, saw)
     else:
@@ -334,7 +362,7 @@ def log_list_command(
     saw: Annotated[str | None, opt("saw", help="Only this saw.")] = None,
     job: Annotated[str | None, opt("job", help="Only this job.")] = None,
     limit: Annotated[int, opt("limit", show_default=True)] = 30,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,

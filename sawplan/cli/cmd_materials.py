@@ -23,7 +23,7 @@ Examples:
 def materials_command(
     key: Annotated[str | None, arg("material", help="Show this one material in full.")] = None,
     group: Annotated[str | None, opt("group")] = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     materials_file: MaterialsFileOpt = None,

@@ -55,7 +55,7 @@ def plan_command(
         Path | None, opt("csv_dir", help="Write cuts.csv, bars.csv and summary.csv into DIR.")
     ] = None,
     sheet: Annotated[Path | None, opt("sheet")] = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     db: DbOpt = None,
     saw_name: Annotated[
         str | None, opt("saw", help="Saw to plan for (overrides saw in [job]).")
@@ -84,6 +84,7 @@ def plan_command(
         raise UsageError(f"must be between 0 and 600 s, got {time_limit:g}", field="time-limit")
     catalogue = load_catalogue(materials_file)
     job = load_job(jobfile, catalogue, allow_outside=allow)
+    job = with_shop_currency(job)
     from sawplan.store.lookup import BladeLog
 
     log = BladeLog(db)
@@ -108,8 +109,22 @@ def plan_command(
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
 
 
+def with_shop_currency(job):
+    """The job, priced in the configured currency when its [job] table names none."""
+    import dataclasses
+
+    from sawplan import config
+
+    currency = config.get("currency")
+    if job.header.currency or not currency:
+        return job
+    return dataclasses.replace(job, header=dataclasses.replace(job.header, currency=currency))
+
+
 def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
-    """``--saw``, else ``saw`` in [job], else the smallest saw that takes every section."""
+    """``--saw``, else ``saw`` in [job], else the configured saw when it takes every section,
+    else the smallest saw that does."""
+    from sawplan import config
     from sawplan.cutlist.jobfile.load import Where, located
     from sawplan.errors import BadDataError, SawplanError
     from sawplan.saws import check_capacity, get_saw, load_saws
@@ -127,6 +142,9 @@ def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
         load_saws(saws_file, extra).values(),
         key=lambda s: (s.capacity_round_mm, s.capacity_rect_w_mm, s.name),
     )
+    shop_saw = config.get("saw")  # the shop's usual saw, when it takes the job
+    if shop_saw:
+        saws = [get_saw(shop_saw, saws_file, extra)] + saws
     for saw in saws:
         try:
             for section in sections:

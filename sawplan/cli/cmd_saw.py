@@ -108,7 +108,7 @@ def saw_add_command(
     wheels: Annotated[int | None, opt("wheels")] = None,
     notes: NoteOpt = None,
     replace: Annotated[bool, opt("replace")] = False,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     json_out: JsonOpt = False,
     saws_file: SawsFileOpt = None,
     db: DbOpt = None,
@@ -243,7 +243,7 @@ def _speed_range(saw, d) -> str:
 
 
 def saw_list_command(
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     saws_file: SawsFileOpt = None,

@@ -42,7 +42,7 @@ def weigh_command(
     lift_from: Annotated[str | None, opt("lift_from")] = None,
     travel: Annotated[str | None, opt("travel")] = None,
     lifts_per_min: Annotated[float, opt("lifts_per_min", show_default=True)] = 0.2,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
 ) -> None:

@@ -97,20 +97,59 @@ def arg(key: str, *, help: str | None = None, **extra) -> Any:
 # --- options shared by many commands --------------------------------------------------------
 
 
+def _configured(key: str, convert: Callable[[str], Any] = str) -> Callable[[Any], Any]:
+    """A callback giving an option left out its default: environment, config file, built-in."""
+
+    def resolve(value: Any) -> Any:
+        if value is not None:
+            return value
+        from sawplan import config
+
+        found = config.get(key)
+        return None if found is None else convert(found)
+
+    return resolve
+
+
 def _db(value: str | None) -> str | None:
+    """The blade log named, else the configured one; a log made by a failing command goes."""
+    from sawplan.cli.boundary import forget_new_log_on_failure
+
     if value is not None and not value.strip():
         from sawplan.errors import UsageError
 
         raise UsageError("expected a file name or database URL, got nothing", field="blade log")
-    return value
+    resolved = _configured("db")(value)
+    forget_new_log_on_failure(resolved)
+    return resolved
 
 
-UnitsOpt = Annotated[UnitSystem, opt("units")]
+def saw_opt(help: str, fallback: str | None = None, *, use_config: bool = True) -> Any:
+    """``--saw NAME``, defaulting to the configured saw (``use_config``), else ``fallback``."""
+    configured = _configured("saw") if use_config else (lambda value: value)
+
+    def resolve(value: str | None) -> str | None:
+        if value is not None and not value.strip():
+            from sawplan.errors import UsageError
+
+            raise UsageError("expected a saw name, got nothing", field="saw",
+                             hint="see `sawplan saw list`")  # fmt: skip
+        return configured(value) or fallback
+
+    return opt("saw", help=help, callback=resolve)
+
+
+UnitsOpt = Annotated[UnitSystem, opt("units", callback=_configured("units", UnitSystem))]
 JsonOpt = Annotated[bool, opt("json")]
 CsvOpt = Annotated[bool, opt("csv")]
 DbOpt = Annotated[str | None, opt("db", callback=_db)]
-MaterialsFileOpt = Annotated[Path | None, opt("materials_file", exists=True, dir_okay=False)]
-SawsFileOpt = Annotated[Path | None, opt("saws_file", exists=True, dir_okay=False)]
+MaterialsFileOpt = Annotated[
+    Path | None,
+    opt("materials_file", exists=True, dir_okay=False, callback=_configured("materials_file")),
+]
+SawsFileOpt = Annotated[
+    Path | None, opt("saws_file", exists=True, dir_okay=False, callback=_configured("saws_file"))
+]
 OrientOpt = Annotated[str | None, opt("orient")]
 BundleOpt = Annotated[str | None, opt("bundle")]
 NestOpt = Annotated[bool, opt("nest")]
