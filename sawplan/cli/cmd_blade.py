@@ -40,7 +40,7 @@ BLADE_CAUTION = (
     "data and shop rules govern."
 )
 
-HELP = """The blades in the blade log: add, fit, remove, retire, list, show.
+HELP = """The blades in the log: add, fit, remove, retire, list, show.
 
 A blade's life is the area it cut. A retired blade counts as a failure in
 `sawplan life`; a blade still fitted, or removed unworn, counts as "at least
@@ -53,7 +53,7 @@ Examples:
   sawplan blade show B-017 --chart
 """
 
-ADD_HELP = """Record a new blade with its tag, size, pitch and where it came from.
+ADD_HELP = """Record a new blade: its tag, size, pitch and where it came from.
 
 \b
 Examples:
@@ -66,7 +66,7 @@ FIT_HELP = """Fit a blade to a saw. Any blade already on that saw is taken off (
 \b
 Examples:
   sawplan blade fit B-017 --saw "bay 2"
-  sawplan blade fit B-017 --saw mid-production --tension 200MPa --break-in --break-in-how "half feed, 500 cm2"
+  sawplan blade fit B-009 --saw mid-production --tension 200MPa --break-in --break-in-how "half feed, 500 cm2"
 """
 
 REMOVE_HELP = """Take a blade off its saw, unworn (it may be fitted again later).

@@ -8,7 +8,7 @@ import typer
 
 from sawplan.cli.options import JsonOpt, arg, command
 
-HELP = """Defaults a shop sets once: units, saw, blade log, currency, log permissions.
+HELP = """Defaults a shop sets once: units, saw, blade log, currency.
 
 The command line beats the environment (SAWPLAN_UNITS, SAWPLAN_SAW, SAWPLAN_DB,
 SAWPLAN_CURRENCY, SAWPLAN_LOG_MODE, SAWPLAN_MATERIALS, SAWPLAN_SAWS), which
@@ -30,7 +30,7 @@ Examples:
   sawplan config show --json
 """
 
-SET_HELP = """Set a default in the config file, checked as the option it stands for.
+SET_HELP = """Set a default in the config file (checked as its option is).
 
 KEY is one of units, saw, db, currency, log_mode, materials_file, saws_file.
 
@@ -41,7 +41,7 @@ Examples:
   sawplan config set log_mode group
 """
 
-UNSET_HELP = """Remove a default from the config file (sawplan's own default applies).
+UNSET_HELP = """Remove a default from the config file; the built-in one applies.
 
 \b
 Examples:

@@ -78,7 +78,7 @@ def cut_command(
     from sawplan.errors import UsageError
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
-    from sawplan.saws import check_capacity, get_saw
+    from sawplan.saws import check_capacity, get_saw, load_saws
     from sawplan.sections import parse_section
     from sawplan.store.lookup import BladeLog
     from sawplan.units import to_core
@@ -95,7 +95,7 @@ def cut_command(
     sec = parse_section(section, orientation=orient, bundle=bundle, nest=nest)
     log = BladeLog(db)
     the_saw = get_saw(saw, saws_file, extra=log.saws())
-    check_capacity(the_saw, sec)
+    check_capacity(the_saw, sec, load_saws(saws_file, log.saws()).values())
     calibration, calibration_n = log.calibration(the_saw.name, mat.group) or (1.0, 0)
     kw = {"dry": dry, "blade_material": blade_material, "calibration": calibration}
     summary = None

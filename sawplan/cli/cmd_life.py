@@ -24,7 +24,9 @@ from sawplan.cli.options import (
 )
 from sawplan.units import UnitSystem
 
-LIFE_HELP = """Blade life from the log: Weibull fit, failure modes, cost per area, calibration.
+LIFE_HELP = """Blade life from the log: Weibull fit, failure modes, costs.
+
+Also the cost per area cut and the cut-time calibration per saw.
 
 Life is the area a blade cut. Retired blades are failures; blades still on a
 saw or removed unworn count as "at least this long" (censored), so the fit
@@ -52,7 +54,7 @@ Examples:
   sawplan forecast --job-file job.toml --json
 """
 
-CHART_HELP = """Charts of the log in the terminal; every chart also as --json or --csv data.
+CHART_HELP = """Charts of the log, each also as --json or --csv data.
 
 \b
 Examples:
@@ -488,7 +490,7 @@ def register(app: typer.Typer) -> None:
         help=CHART_HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
     )
     command(group, "wear", _sub("Wear curve of one blade: cutting rate against area cut.", "chart wear B-017", "chart wear B-017 --csv"))(chart_wear_command)  # fmt: skip
-    command(group, "weibull", _sub("Weibull probability plot of blade lives (median ranks, censored blades counted).", "chart weibull", "chart weibull --json"))(chart_weibull_command)  # fmt: skip
+    command(group, "weibull", _sub("Weibull plot of blade lives, running blades counted.", "chart weibull", "chart weibull --json"))(chart_weibull_command)  # fmt: skip
     command(group, "modes", _sub("Retired blades by failure mode.", "chart modes", "chart modes --csv"))(chart_modes_command)  # fmt: skip
     command(group, "cost", _sub("Cost per area cut by blade type.", "chart cost", "chart cost --units us --json"))(chart_cost_command)  # fmt: skip
     app.add_typer(group, name="chart", help=CHART_HELP)

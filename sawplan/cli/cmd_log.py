@@ -31,7 +31,7 @@ from sawplan.cli.options import (
 )
 from sawplan.units import UnitSystem
 
-HELP = """Log what the blades cut (cuts) and what happened to them (events).
+HELP = """Log what the blades cut and what happened to them.
 
 \b
 Examples:

@@ -31,8 +31,8 @@ with the same profile is reused.
 
 \b
 Examples:
-  sawplan import log-csv
-  sawplan import log-csv --db new-log.sqlite
+  sawplan import old-shop-csv
+  sawplan import old-shop-csv --db new-log.sqlite
 """
 
 BACKUP_HELP = """Copy the blade log into FILE, safely while others use it.

@@ -16,12 +16,16 @@ Examples:
   sawplan materials
   sawplan materials --group austenitic-stainless
   sawplan materials 17-4PH
+  sawplan materials 1.4301
   sawplan materials --materials-file shop-materials.csv --csv
 """
 
 
 def materials_command(
-    key: Annotated[str | None, arg("material", help="Show this one material in full.")] = None,
+    key: Annotated[
+        list[str] | None,
+        arg("material", help="Show this one material in full: a key, UNS, EN or trade name."),
+    ] = None,
     group: Annotated[str | None, opt("group")] = None,
     units: UnitsOpt = None,
     json_out: JsonOpt = False,
@@ -33,9 +37,17 @@ def materials_command(
     from sawplan.render import to_csv, to_json
 
     cat = load_catalogue(materials_file)
-    if key is not None:
-        mat = cat.get(key)
-        print(to_json(mat, kind="material") if json_out else render_one(mat, units))
+    if key:
+        mat, alias = cat.resolve(" ".join(key))
+        if json_out:
+            print(to_json(mat, kind="material"))
+            return
+        if alias is not None:
+            print(alias.note() + "\n")
+        print(render_one(mat, units))
+        also = [a.alias for a in cat.aliases_of(mat.key)]
+        if also:
+            print("\nalso written: " + ", ".join(also))
         return
     if group is not None:
         if group not in cat.groups():

@@ -19,7 +19,7 @@ from sawplan.cli.options import (
 )
 from sawplan.units import UnitSystem
 
-HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote.
+HELP = """Plan a job: cut lists from stock on hand, time, blades, quote.
 
 JOBFILE is a TOML file with a [job] table (name, kerf, trim, grip,
 min_remnant, saw, shop_rate, handling_time, blade_price, currency, customer,

@@ -20,27 +20,28 @@ from sawplan.cli.options import (
 )
 from sawplan.units import UnitSystem
 
-HELP = """Saw profiles: add your own saws to the blade log and list every saw known.
+HELP = """Saw profiles: add your own saws and list every saw known.
 
 \b
 Examples:
-  sawplan saw add "bay 2" --like mid-production --wheel 450mm --power 2.2kW
+  sawplan saw add "bay 3" --like mid-production --wheel 450mm --power 2.2kW
   sawplan saw list
 """
 
-ADD_HELP = """Keep a saw's profile in the blade log, so `sawplan blade fit` and
-`sawplan cut --saw NAME` can use it.
+ADD_HELP = """Keep a saw's profile in the blade log.
+
+`sawplan blade fit` and `sawplan cut --saw NAME` can then use it.
 
 Start from a known profile with --like and change what differs, or give every
 field. Sizes take units (mm, in); the speed range is LOW-HIGH with a unit.
 
 \b
 Examples:
-  sawplan saw add "bay 2" --like mid-production --wheel 450mm --power 1.5kW --speed-range 20-90m/min
+  sawplan saw add "bay 3" --like mid-production --wheel 450mm --power 1.5kW --speed-range 20-90m/min
   sawplan saw add hyd-330 --kind horizontal --wheel 400mm --blade-length 3660mm --blade-width 27mm --blade-thickness 0.9mm --speed-range 20-100m/min --power 1.5kW --efficiency 0.75 --capacity-round 260mm --capacity-rect 350x260mm --feed-type hydraulic --head-force 2500N
 """
 
-LIST_HELP = """List every saw known: packaged profiles, your saws file, and the blade log.
+LIST_HELP = """List every saw known: packaged, from your saws file and in the log.
 
 \b
 Examples:

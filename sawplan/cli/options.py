@@ -159,8 +159,36 @@ ForceOpt = Annotated[bool, opt("force")]
 ConfidenceOpt = Annotated[float, opt("confidence", show_default=True)]
 ChartWidthOpt = Annotated[int, opt("chart_width", show_default=True)]
 ChartHeightOpt = Annotated[int, opt("chart_height", show_default=True)]
+
+
+def _material_words(ctx: typer.Context, words: list[str]) -> list[str]:
+    """Give the material the words a shell split off it: ``17-4 PH round 60mm``, ``AISI 304 …``.
+
+    The material argument comes first; while the section's first word is not a
+    shape and the material with it names a known material, it belongs to the name.
+    """
+    material = ctx.params.get("material")
+    if not material or not words:
+        return words
+    from sawplan.materials import load_catalogue
+    from sawplan.sections import canonical_shape
+
+    user_file = ctx.params.get("materials_file") or _configured("materials_file")(None)
+    catalogue = load_catalogue(user_file)
+    taken = 0
+    for n in (1, 2):
+        head = words[:n]
+        if len(words) <= n or canonical_shape(head[-1]) is not None:
+            break
+        if " ".join([material, *head]) in catalogue:
+            taken = n
+    if taken:
+        ctx.params["material"] = " ".join([material, *words[:taken]])
+    return words[taken:]
+
+
 MaterialArg = Annotated[str, arg("material")]
-SectionArg = Annotated[list[str], arg("section")]
+SectionArg = Annotated[list[str], arg("section", callback=_material_words)]
 TagArg = Annotated[str, arg("tag")]
 
 
