@@ -22,6 +22,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.cli.progress import progress
 from sawplan.units import UnitSystem
 
 LIFE_HELP = """Blade life from the log: Weibull fit, failure modes, costs.
@@ -88,7 +89,7 @@ def life_command(
     from sawplan.store import connect
     from sawplan.store.reports import life_report
 
-    with connect(db, create=False) as database:
+    with connect(db, create=False) as database, progress("fitting blade lives", quiet=json_out):
         report = life_report(database, group_by=group_by, confidence=confidence)
     if json_out:
         print(to_json(report, kind="life"))
@@ -282,7 +283,8 @@ def forecast_command(
                 field="job file",
             )
         areas = job_cut_areas(job, load_catalogue(materials_file))
-        result = forecast_job(db, areas, confidence=confidence)
+        with progress("forecasting blades for the job", quiet=json_out):
+            result = forecast_job(db, areas, confidence=confidence)
         if json_out:
             print(to_json(result, kind="forecast-job"))
             return
@@ -292,7 +294,7 @@ def forecast_command(
     life_cm2 = None if life is None else parse("life", life) / 100.0
     catalogue = load_catalogue(materials_file)  # a bad --materials-file is reported, not skipped
     mat = catalogue.get(material) if material is not None else None
-    with connect(db, create=False) as database:
+    with connect(db, create=False) as database, progress("forecasting blades", quiet=json_out):
         result = forecast_area(
             database,
             area_cm2,
@@ -423,7 +425,10 @@ def chart_weibull_command(
     from sawplan.store import connect
     from sawplan.store.reports import life_report
 
-    with connect(db, create=False) as database:
+    with (
+        connect(db, create=False) as database,
+        progress("fitting blade lives", quiet=json_out or csv_out),
+    ):
         report = life_report(database, confidence=confidence)
     plot = _weibull_plot_of(report)
     if plot is None:
@@ -474,7 +479,10 @@ def chart_cost_command(
     from sawplan.store import connect
     from sawplan.store.reports import life_report
 
-    with connect(db, create=False) as database:
+    with (
+        connect(db, create=False) as database,
+        progress("fitting blade lives", quiet=json_out or csv_out),
+    ):
         report = life_report(database, confidence=confidence)
     if _emit_rows(*cost_rows(report.costs), "blade-costs", json_out, csv_out):
         return

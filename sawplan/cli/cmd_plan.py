@@ -70,6 +70,7 @@ def plan_command(
 ) -> None:
     import sys
 
+    from sawplan.cli.progress import progress
     from sawplan.cutlist.jobfile.load import load_job
     from sawplan.cutlist.plan.job import plan_job
     from sawplan.errors import UsageError
@@ -89,14 +90,17 @@ def plan_command(
 
     log = BladeLog(db)
     saw = choose_saw(job, saw_name, saws_file, log)
-    plan = plan_job(
-        job,
-        saw,
-        calibration_for=log.calibration,
-        life_for=log.life,
-        log_label=log.label,
-        time_limit_s=time_limit,
-    )
+    sections = len(job.groups())
+    what = f"planning {sections} section{'' if sections == 1 else 's'} on {saw.name}"
+    with progress(what, quiet=json_out):
+        plan = plan_job(
+            job,
+            saw,
+            calibration_for=log.calibration,
+            life_for=log.life,
+            log_label=log.label,
+            time_limit_s=time_limit,
+        )
     outputs = render_outputs(plan, units, csv_dir, sheet)
     if json_out:
         print(to_json(plan, kind="plan"))
