@@ -19,6 +19,7 @@ from sawplan.cli.options import (
     TagArg,
     UnitsOpt,
     command,
+    group,
     opt,
 )
 from sawplan.units import UnitSystem
@@ -483,13 +484,10 @@ def render_history(h: Any, units: UnitSystem) -> str:
 
 
 def register(app: typer.Typer) -> None:
-    group = typer.Typer(
-        help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
-    )
-    command(group, "add", ADD_HELP)(blade_add_command)
-    command(group, "fit", FIT_HELP)(blade_fit_command)
-    command(group, "remove", REMOVE_HELP)(blade_remove_command)
-    command(group, "retire", RETIRE_HELP)(blade_retire_command)
-    command(group, "list", LIST_HELP)(blade_list_command)
-    command(group, "show", SHOW_HELP)(blade_show_command)
-    app.add_typer(group, name="blade", help=HELP)
+    sub = group(app, "blade", HELP)
+    command(sub, "add", ADD_HELP)(blade_add_command)
+    command(sub, "fit", FIT_HELP)(blade_fit_command)
+    command(sub, "remove", REMOVE_HELP)(blade_remove_command)
+    command(sub, "retire", RETIRE_HELP)(blade_retire_command)
+    command(sub, "list", LIST_HELP)(blade_list_command)
+    command(sub, "show", SHOW_HELP)(blade_show_command)

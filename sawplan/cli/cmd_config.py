@@ -6,7 +6,7 @@ from typing import Annotated
 
 import typer
 
-from sawplan.cli.options import JsonOpt, arg, command
+from sawplan.cli.options import JsonOpt, arg, command, group
 
 HELP = """Defaults a shop sets once: units, saw, blade log, currency.
 
@@ -87,10 +87,7 @@ def config_unset_command(key: KeyArg) -> None:
 
 
 def register(app: typer.Typer) -> None:
-    group = typer.Typer(
-        help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
-    )
-    command(group, "show", SHOW_HELP)(config_show_command)
-    command(group, "set", SET_HELP)(config_set_command)
-    command(group, "unset", UNSET_HELP)(config_unset_command)
-    app.add_typer(group, name="config", help=HELP)
+    sub = group(app, "config", HELP)
+    command(sub, "show", SHOW_HELP)(config_show_command)
+    command(sub, "set", SET_HELP)(config_set_command)
+    command(sub, "unset", UNSET_HELP)(config_unset_command)

@@ -20,6 +20,7 @@ from sawplan.cli.options import (
     TagArg,
     UnitsOpt,
     command,
+    group,
     opt,
 )
 from sawplan.cli.progress import progress
@@ -494,14 +495,11 @@ def chart_cost_command(
 def register(app: typer.Typer) -> None:
     command(app, "life", LIFE_HELP)(life_command)
     command(app, "forecast", FORECAST_HELP)(forecast_command)
-    group = typer.Typer(
-        help=CHART_HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
-    )
-    command(group, "wear", _sub("Wear curve of one blade: cutting rate against area cut.", "chart wear B-017", "chart wear B-017 --csv"))(chart_wear_command)  # fmt: skip
-    command(group, "weibull", _sub("Weibull plot of blade lives, running blades counted.", "chart weibull", "chart weibull --json"))(chart_weibull_command)  # fmt: skip
-    command(group, "modes", _sub("Retired blades by failure mode.", "chart modes", "chart modes --csv"))(chart_modes_command)  # fmt: skip
-    command(group, "cost", _sub("Cost per area cut by blade type.", "chart cost", "chart cost --units us --json"))(chart_cost_command)  # fmt: skip
-    app.add_typer(group, name="chart", help=CHART_HELP)
+    sub = group(app, "chart", CHART_HELP)
+    command(sub, "wear", _sub("Wear curve of one blade: cutting rate against area cut.", "chart wear B-017", "chart wear B-017 --csv"))(chart_wear_command)  # fmt: skip
+    command(sub, "weibull", _sub("Weibull plot of blade lives, running blades counted.", "chart weibull", "chart weibull --json"))(chart_weibull_command)  # fmt: skip
+    command(sub, "modes", _sub("Retired blades by failure mode.", "chart modes", "chart modes --csv"))(chart_modes_command)  # fmt: skip
+    command(sub, "cost", _sub("Cost per area cut by blade type.", "chart cost", "chart cost --units us --json"))(chart_cost_command)  # fmt: skip
 
 
 def _sub(text: str, *examples: str) -> str:

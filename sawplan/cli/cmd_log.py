@@ -26,6 +26,7 @@ from sawplan.cli.options import (
     UnitsOpt,
     arg,
     command,
+    group,
     opt,
     saw_opt,
 )
@@ -395,10 +396,7 @@ def log_list_command(
 
 
 def register(app: typer.Typer) -> None:
-    group = typer.Typer(
-        help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
-    )
-    command(group, "cut", CUT_HELP)(log_cut_command)
-    command(group, "event", EVENT_HELP)(log_event_command)
-    command(group, "list", LIST_HELP)(log_list_command)
-    app.add_typer(group, name="log", help=HELP)
+    sub = group(app, "log", HELP)
+    command(sub, "cut", CUT_HELP)(log_cut_command)
+    command(sub, "event", EVENT_HELP)(log_event_command)
+    command(sub, "list", LIST_HELP)(log_list_command)

@@ -16,6 +16,7 @@ from sawplan.cli.options import (
     UnitsOpt,
     arg,
     command,
+    group,
     opt,
 )
 from sawplan.units import UnitSystem
@@ -328,9 +329,6 @@ def _saw_json(saw, fitted: dict[str, str]) -> dict[str, Any]:
 
 
 def register(app: typer.Typer) -> None:
-    group = typer.Typer(
-        help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
-    )
-    command(group, "add", ADD_HELP)(saw_add_command)
-    command(group, "list", LIST_HELP)(saw_list_command)
-    app.add_typer(group, name="saw", help=HELP)
+    sub = group(app, "saw", HELP)
+    command(sub, "add", ADD_HELP)(saw_add_command)
+    command(sub, "list", LIST_HELP)(saw_list_command)

@@ -289,3 +289,10 @@ def _arg_name(param: Any) -> str:
 def command(app: typer.Typer, name: str, help: str) -> Callable:
     """``app.command`` with sawplan's help layout."""
     return app.command(name, help=help, cls=Command)
+
+
+def group(app: typer.Typer, name: str, help: str) -> typer.Typer:
+    """A group of commands (``sawplan blade ...``); typed alone it prints its help."""
+    sub = typer.Typer(help=help, no_args_is_help=True, rich_markup_mode=None, add_completion=False)
+    app.add_typer(sub, name=name, help=help)
+    return sub
