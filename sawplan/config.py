@@ -230,6 +230,12 @@ _HEADER = """\
 """
 
 
+def money_suffix() -> str:
+    """`` EUR`` after a price when the shop set its currency, else nothing."""
+    currency = get("currency")
+    return f" {currency}" if currency else ""
+
+
 def log_file_mode() -> int:
     """Permission bits for the blade log's files (``log_mode``; private: 0600)."""
     mode = get("log_mode") or "private"

@@ -137,3 +137,12 @@ def test_no_config_file_is_made_by_reading(cli):
     weight_unit(cli)
     cli("config", "show")
     assert not os.path.exists(config.config_path())
+
+
+def test_configured_currency_labels_blade_prices(cli):
+    cli("blade", "add", "B-1", "--pitch", "3/4", "--blade-width", "27mm",
+        "--blade-thickness", "0.9mm", "--price", "60")  # fmt: skip
+    assert "price EUR" not in cli("blade", "list").out
+    cli("config", "set", "currency", "EUR")
+    assert "price EUR" in cli("blade", "list").out
+    assert "60 EUR" in cli("blade", "show", "B-1").out

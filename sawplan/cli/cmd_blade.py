@@ -291,6 +291,7 @@ def blade_list_command(
     csv_out: CsvOpt = False,
     db: DbOpt = None,
 ) -> None:
+    from sawplan.config import money_suffix
     from sawplan.render import table, to_csv, to_json
     from sawplan.store import connect
     from sawplan.store.records import list_blades
@@ -309,7 +310,7 @@ def blade_list_command(
         "saw",
         "cuts",
         f"area {d.label('area')}",
-        "price",
+        f"price{money_suffix()}",
         "retired",
     ]
     rows = [
@@ -400,6 +401,7 @@ def wear_chart_text(history: Any, units: UnitSystem, width: int, height: int) ->
 
 
 def render_history(h: Any, units: UnitSystem) -> str:
+    from sawplan.config import money_suffix
     from sawplan.render import key_values, table
     from sawplan.units import Display
 
@@ -416,7 +418,7 @@ def render_history(h: Any, units: UnitSystem) -> str:
     if made:
         pairs.append(("from", ", ".join(made)))
     if b.price is not None:
-        pairs.append(("price", f"{b.price:g}"))
+        pairs.append(("price", f"{b.price:g}{money_suffix()}"))
     pairs.append(
         ("cut", f"{d.fmt('area', b.area_mm2, 3)} in {b.cuts:,} cut{'' if b.cuts == 1 else 's'}")
     )

@@ -110,6 +110,7 @@ def _area(d: Any, cm2: float | None) -> str:
 
 
 def render_life(r: Any, units: UnitSystem) -> str:
+    from sawplan.config import money_suffix
     from sawplan.render import table
     from sawplan.units import Display
 
@@ -170,7 +171,7 @@ def render_life(r: Any, units: UnitSystem) -> str:
         per = "m²"
         rows = [[c.blade_type, f"{c.price:g}", _num(d, c.life_cm2), c.life_method, plain(c.cost_per_m2)]
                 for c in r.costs]  # fmt: skip
-        lines.append(table(["blade type", "price", f"life {d.label('area')}", "life from", f"cost per {per}"],
+        lines.append(table(["blade type", f"price{money_suffix()}", f"life {d.label('area')}", "life from", f"cost per {per}"],
                            rows, align="lrrlr", title="\ncost per area cut, cheapest first"))  # fmt: skip
     if r.costs_missing:
         lines.append("  no cost yet for " + "; ".join(r.costs_missing))
