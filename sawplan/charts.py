@@ -449,3 +449,77 @@ def _depth_axes(fig: Any, xs: list[float], ys: list[float]) -> None:
     x_ticks = _nice_ticks(0, x_hi)
     fig.ruler("x").lim(0, x_hi)
     fig.ruler("x").ticks(x_ticks, labels=[_plain(t) for t in x_ticks])
+
+
+# --- one cut: cost per cut against band speed ---------------------------------------------
+
+RUN_MARKS = {"recommended": "R", "cost": "C", "production": "P"}
+
+
+def speed_cost_rows(curve: Sequence[Any]) -> tuple[list[str], list[list[Any]]]:
+    """``cutting.cut_cost.cost_curve`` points as rows (money in the shop's currency)."""
+    headers = [
+        "band_speed_m_min",
+        "cut_time_min",
+        "blade_life_cm2",
+        "machine",
+        "blade",
+        "change",
+        "total",
+        "time_per_cut_min",
+    ]
+    rows = [
+        [p.band_speed_m_min, p.cut_time_min, p.blade_life_cm2, p.machine, p.blade, p.change,
+         p.total, p.time_per_cut_min]
+        for p in curve
+    ]  # fmt: skip
+    return headers, rows
+
+
+def speed_cost_chart(
+    curve: Sequence[Any],
+    runs: Sequence[Any] = (),
+    *,
+    title: str = "cost per cut against band speed",
+    units: UnitSystem = UnitSystem.METRIC,
+    width: int = WIDTH,
+    height: int = HEIGHT,
+    colorless: bool = True,
+) -> str:
+    """The three cost terms stacked at each band speed; the speeds of ``runs`` marked.
+
+    ``curve`` is ``cost_curve`` of one cut (as many points as the plot has columns
+    reads best); ``runs`` are ``RunSpeed`` results (recommended, cheapest, fastest).
+    """
+    if not curve:
+        return f"{title}: no speeds to draw"
+    d = Display(units)
+    xs = [d.value("speed", p.band_speed_m_min) for p in curve]
+    fig = _figure(width, height)
+    fig.title(title)
+    fig.label(f"band speed ({d.label('speed')})", "x")
+    fig.label("cost per cut", "y")
+    top = _covering_ticks(max(p.total for p in curve) * 1.1)
+    # drawn as totals from the top term down, so the last drawn owns each shared text cell
+    layers = (
+        ([p.total for p in curve], "░"),
+        ([p.machine + p.blade for p in curve], "▒"),
+        ([p.machine for p in curve], "█"),
+    )
+    for values, marker in layers:
+        fig.draw(fig.bar(xs, values, marker=marker, width=1.0, lines=False))
+    key = ["█ machine and operator", "▒ blade", "░ blade change"]
+    marks = []
+    for r in runs:
+        x = d.value("speed", r.band_speed_m_min)
+        mark = RUN_MARKS.get(r.run, "?")
+        fig.line(x, "v", style="dotted")
+        fig.draw(fig.text(x, top[-1] * 0.97, mark))
+        marks.append(f"{mark} {r.run} {_plain(x)} {d.label('speed')}")
+    lo, hi = min(xs), max(xs)
+    fig.ruler("x").lim(lo, hi if hi > lo else lo + 1.0)
+    x_ticks = _nice_ticks(lo, hi, 6)
+    fig.ruler("x").ticks(x_ticks, labels=[_plain(t) for t in x_ticks])
+    fig.ruler("y").lim(0, top[-1])
+    fig.ruler("y").ticks(top, labels=[_plain(t) for t in top])
+    return _text(fig, "   ".join(key) + ("\n" + " · ".join(marks) if marks else ""), colorless)

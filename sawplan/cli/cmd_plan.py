@@ -42,6 +42,7 @@ Examples:
   sawplan plan job.toml --sheet job.md --units us
   sawplan plan job.toml --csv-dir out --saw large-column
   sawplan plan job.toml --json --db shop-log.sqlite
+  sawplan plan job.toml --run cost
 
 Estimates only: the saw maker's manual, the blade maker's data, shop rules and
 local regulations govern.
@@ -67,6 +68,7 @@ def plan_command(
         opt("time_limit", help="Seconds the optimiser may spend per section.", show_default=True),
     ] = 5.0,
     allow: Annotated[bool, opt("allow")] = False,
+    run: Annotated[str | None, opt("run")] = None,
 ) -> None:
     import sys
 
@@ -101,13 +103,29 @@ def plan_command(
             log_label=log.label,
             time_limit_s=time_limit,
         )
+    quote = None
+    if run is not None:
+        from sawplan import fields
+        from sawplan.cli.cut_economics import plan_economics
+
+        quote = plan_economics(plan, job, saw, log, fields.check_choice("run", run))
     outputs = render_outputs(plan, units, csv_dir, sheet)
     if json_out:
-        print(to_json(plan, kind="plan"))
+        if quote is None:
+            print(to_json(plan, kind="plan"))
+        else:
+            from sawplan.render import jsonable
+
+            print(to_json({**jsonable(plan), "run_quote": jsonable(quote)}, kind="plan"))
     else:
         from sawplan.cutlist.sheets.text import render_plan
 
         print(render_plan(plan, units))
+        if quote is not None:
+            from sawplan.cli.economics_view import render_run_quote
+
+            print()
+            print(render_run_quote(quote, units, currency=plan.currency))
     written = write_all(outputs)
     for path in written:
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
