@@ -2,11 +2,13 @@
 
 from __future__ import annotations
 
+import dataclasses
+from dataclasses import dataclass, field
 from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.log_view import LoggedCut, cut_table, render_logged
+from sawplan.cli.cmd_saw import plain
 from sawplan.cli.options import (
     BundleOpt,
     CsvOpt,
@@ -28,7 +30,7 @@ from sawplan.cli.options import (
     opt,
     saw_opt,
 )
-from sawplan.cli.view import plain
+from sawplan.units import UnitSystem
 
 HELP = """Log what the blades cut and what happened to them.
 
@@ -282,6 +284,49 @@ def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float |
     return result.cut_time_model_min, None
 
 
+@dataclass(frozen=True)
+class LoggedCut:
+    """The entry as written, for ``--json``."""
+
+    id: int
+    blade: str
+    saw: str | None
+    blade_area_mm2: float
+    notes: tuple[str, ...]
+    entry: Any = field(metadata={"json": False})
+
+    def json_extra(self) -> dict[str, Any]:
+        body = dataclasses.asdict(self.entry)
+        body.pop("blade_id")
+        body.pop("saw_id")
+        return body
+
+
+def render_logged(entry, sec, mat, blade, units: UnitSystem, notes: list[str]) -> str:
+    from sawplan.units import Display
+
+    d = Display(units)
+    what = _cuts(entry.count)
+    lines = [
+        f"logged {what} of {mat.key} {sec.label(units.value)} on blade {blade.tag}"
+        + (f" ({blade.saw})" if blade.saw else ""),
+        f"  area {d.fmt('area', entry.area_mm2, 4)}; blade total {d.fmt('area', blade.area_mm2, 4)} "
+        f"in {_cuts(blade.cuts)}",
+    ]
+    if entry.time_min is not None or entry.predicted_time_min is not None:
+        measured = "—" if entry.time_min is None else f"{plain(entry.time_min)} min"
+        model = (
+            "—" if entry.predicted_time_min is None else f"{plain(entry.predicted_time_min)} min"
+        )
+        lines.append(f"  time measured {measured}, model {model}")
+    lines += [f"  note: {n}" for n in notes]
+    return "\n".join(lines)
+
+
+def _cuts(n: int) -> str:
+    return "1 cut" if n == 1 else f"{n:,} cuts"
+
+
 def log_event_command(
     tag: TagArg,
     kind: Annotated[str, arg("event_kind", help="teeth-lost, crooked, stall or failure.")],
@@ -326,13 +371,22 @@ def log_list_command(
     from sawplan.render import table, to_csv, to_json
     from sawplan.store import connect
     from sawplan.store.records import list_cuts
+    from sawplan.units import Display
 
     with connect(db, create=False) as database:
-        entries = list_cuts(database, blade=blade, saw=saw, job=job, limit=limit)
+        rows = list_cuts(database, blade=blade, saw=saw, job=job, limit=limit)
     if json_out:
-        print(to_json(entries, kind="cuts"))
+        print(to_json(rows, kind="cuts"))
         return
-    headers, body = cut_table(entries, units)
+    d = Display(units)
+    headers = ["id", "date", "blade", "saw", "material", "section", "cuts", f"area {d.label('area')}",
+               "min", "model min", "job", "heat"]  # fmt: skip
+    body = [
+        [r["id"], r["cut_on"], r["blade"], r["saw"] or "", r["material"], r["section"], r["count"],
+         plain(d.value("area", r["area_mm2"])), "" if r["time_min"] is None else plain(r["time_min"]),
+         "" if r["predicted_time_min"] is None else plain(r["predicted_time_min"]), r["job"] or "", r["heat"] or ""]
+        for r in rows
+    ]  # fmt: skip
     if csv_out:
         print(to_csv(headers, body), end="")
     elif not body:

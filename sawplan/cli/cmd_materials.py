@@ -6,8 +6,8 @@ from typing import Annotated
 
 import typer
 
-from sawplan.cli.materials_view import list_rows, render_one
 from sawplan.cli.options import CsvOpt, JsonOpt, MaterialsFileOpt, UnitsOpt, arg, command, opt
+from sawplan.units import UnitSystem
 
 HELP = """List the materials sawplan knows, or show one with its sources.
 
@@ -69,6 +69,63 @@ def materials_command(
 
         print(table(headers, rows))
         print("\n`sawplan materials KEY` shows one material with the source of each value.")
+
+
+def list_rows(mats, units: UnitSystem):
+    from sawplan.units import Display, fmt_number
+
+    d = Display(units)
+    headers = [
+        "key",
+        "designation",
+        "UNS",
+        "group",
+        f"density {d.label('density')}",
+        "HB",
+        f"band speed {d.label('speed')}",
+    ]
+    rows = [
+        [
+            m.key,
+            m.designation,
+            m.uns,
+            m.group,
+            fmt_number(d.value("density", m.density_kg_m3), 3),
+            f"{m.hardness_hb:.0f}",
+            fmt_number(d.value("speed", m.band_speed_m_min), 2),
+        ]
+        for m in mats
+    ]
+    return headers, rows
+
+
+def render_one(m, units: UnitSystem) -> str:
+    from sawplan.render import key_values
+    from sawplan.units import Display
+
+    d = Display(units)
+    pairs = [
+        ("key", m.key),
+        ("designation", m.designation),
+        ("UNS", m.uns),
+        ("standard", m.standard),
+        ("group", m.group),
+        ("density", f"{d.fmt('density', m.density_kg_m3, 4)}   [{m.density_source}]"),
+        ("hardness", f"{m.hardness_hb:.0f} HB   [{m.hardness_source}]"),
+        (
+            "band speed (bi-metal, coolant, 4 in cut)",
+            f"{d.fmt('speed', m.band_speed_m_min, 3)}   [{m.band_speed_source}]",
+        ),
+        ("unit cutting energy", f"{m.unit_energy_j_mm3:g} J/mm³   [{m.unit_energy_source}]"),
+        (
+            "typical cutting rate (100 mm cut)",
+            f"{d.fmt('rate', m.cutting_rate_cm2_min * 100, 3)}   [{m.cutting_rate_source}]",
+        ),
+        ("work-hardens", "yes" if m.work_hardens else "no"),
+    ]
+    if getattr(m, "notes", ""):
+        pairs.append(("notes", m.notes))
+    return key_values(pairs)
 
 
 def register(app: typer.Typer) -> None:

@@ -19,7 +19,7 @@ from sawplan.cli.options import (
     group,
     opt,
 )
-from sawplan.cli.saw_view import render_saw, saw_json, saw_table
+from sawplan.units import UnitSystem
 
 HELP = """Saw profiles: add your own saws and list every saw known.
 
@@ -202,6 +202,48 @@ def _quote(name: str) -> str:
     return f'"{name}"' if " " in name else name
 
 
+def render_saw(saw, units: UnitSystem) -> str:
+    from sawplan.render import key_values
+    from sawplan.units import Display
+
+    d = Display(units)
+    length = d.label("length")
+    pairs = [
+        ("saw", saw.name),
+        ("kind", saw.kind),
+        ("wheels", f"{saw.wheel_count} × {fmt_q(d, 'length', saw.wheel_diameter_mm)}"),
+        (
+            "blade",
+            f"{fmt_q(d, 'length', saw.blade_length_mm, 4)} long, "
+            f"{_n(d.value('length', saw.blade_width_mm))} × "
+            f"{_n(d.value('length', saw.blade_thickness_mm))} {length}",
+        ),
+        ("band speed", f"{_speed_range(saw, d)}"),
+        ("motor", f"{fmt_q(d, 'power', saw.motor_power_w)} (efficiency {saw.drive_efficiency:g})"),
+        (
+            "capacity",
+            f"round {fmt_q(d, 'length', saw.capacity_round_mm)}, rectangle "
+            f"{_n(d.value('length', saw.capacity_rect_w_mm))} × "
+            f"{_n(d.value('length', saw.capacity_rect_h_mm))} {length}",
+        ),
+        (
+            "feed",
+            saw.feed_type
+            + (f", head force {fmt_q(d, 'force', saw.head_force_n)}" if saw.head_force_n else ""),
+        ),
+        ("coolant", "yes" if saw.coolant else "no"),
+        ("source", saw.source),
+    ]
+    if saw.notes:
+        pairs.append(("notes", saw.notes))
+    return key_values(pairs)
+
+
+def _speed_range(saw, d) -> str:
+    lo = _n(d.value("speed", saw.band_speed_min_m_min))
+    return f"{lo}-{fmt_q(d, 'speed', saw.band_speed_max_m_min)}"
+
+
 def saw_list_command(
     units: UnitsOpt = None,
     json_out: JsonOpt = False,
@@ -213,19 +255,77 @@ def saw_list_command(
     from sawplan.saws import load_saws
     from sawplan.store import connect
     from sawplan.store.records import fitted_on_saws, logged_saws
+    from sawplan.units import Display
 
     with connect(db, create=False) as database:
         logged = logged_saws(database)
         fitted = fitted_on_saws(database)
     saws = list(load_saws(saws_file, logged).values())
     if json_out:
-        print(to_json([saw_json(s, fitted) for s in saws], kind="saws"))
+        print(to_json([_saw_json(s, fitted) for s in saws], kind="saws"))
         return
-    headers, rows = saw_table(saws, fitted, units)
+    d = Display(units)
+    headers = [
+        "saw",
+        "kind",
+        f"wheel {d.label('length')}",
+        f"band speed {d.label('speed')}",
+        f"power {d.label('power')}",
+        f"round {d.label('length')}",
+        "feed",
+        "blade fitted",
+        "source",
+    ]
+    rows = [
+        [
+            s.name,
+            s.kind,
+            _n(d.value("length", s.wheel_diameter_mm)),
+            f"{_n(d.value('speed', s.band_speed_min_m_min))}-{_n(d.value('speed', s.band_speed_max_m_min))}",
+            _n(d.value("power", s.motor_power_w)),
+            _n(d.value("length", s.capacity_round_mm)),
+            s.feed_type,
+            fitted.get(s.name.lower(), ""),
+            s.source,
+        ]
+        for s in saws
+    ]
     if csv_out:
         print(to_csv(headers, rows), end="")
     else:
         print(table(headers, rows, align="llrrrrlll"))
+
+
+def _n(v: float) -> str:
+    return plain(v)
+
+
+def plain(v: float | None, digits: int = 3) -> str:
+    """``digits`` significant figures without trailing zeros: 20.0 → 20, 0.750 → 0.75."""
+    import math
+
+    if v is None or not math.isfinite(v):
+        return "—"
+    if v == 0:
+        return "0"
+    r = float(f"{v:.{digits}g}")
+    if r.is_integer():
+        return f"{int(r):,}"
+    decimals = max(0, digits - 1 - math.floor(math.log10(abs(r))))
+    return f"{r:,.{decimals}f}".rstrip("0").rstrip(".")
+
+
+def fmt_q(d, kind: str, value: float | None, digits: int = 3) -> str:
+    """A display value with its unit label, e.g. ``27 mm``; ``—`` when missing."""
+    if value is None:
+        return "—"
+    return f"{plain(d.value(kind, value), digits)} {d.label(kind)}"
+
+
+def _saw_json(saw, fitted: dict[str, str]) -> dict[str, Any]:
+    from sawplan.render import jsonable
+
+    return {**jsonable(saw), "blade_fitted": fitted.get(saw.name.lower())}
 
 
 def register(app: typer.Typer) -> None:
