@@ -145,4 +145,4 @@ def test_configured_currency_labels_blade_prices(cli):
     assert "price EUR" not in cli("blade", "list").out
     cli("config", "set", "currency", "EUR")
     assert "price EUR" in cli("blade", "list").out
-    assert "60 EUR" in cli("blade", "show", "B-1").out
+    assert "60.00 EUR" in cli("blade", "show", "B-1").out

@@ -9,6 +9,7 @@ import typer
 from sawplan.cli.options import (
     BundleOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialArg,
     MaterialsFileOpt,
@@ -21,6 +22,7 @@ from sawplan.cli.options import (
     opt,
     saw_opt,
 )
+from sawplan.display import Display
 
 HELP = """Choose the blade, band speed and feed for one cut, and time it.
 
@@ -30,11 +32,11 @@ goes wrong) beside the recommendation.
 
 \b
 Examples:
-  sawplan cut 4140 round 7in
+  sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm
   sawplan cut 304 round 250mm --saw large-column --chart
-  sawplan cut 304 round 250mm --pitch 4/6
-  sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm --units us
-  sawplan cut 1018 tube 60mm 3mm --bundle 3x4 --json
+  sawplan cut 1045 square 80mm --pitch 4/6
+  sawplan cut 4140 round 5-1/2in --units us --fractions
+  sawplan cut 6061-T6 tube 60mm 3mm --bundle 3x4 --json
   sawplan cut 4140 round 150mm --economics --shop-rate 75 --chart
 
 Estimates only: the saw maker's manual and the blade maker's data govern.
@@ -75,6 +77,7 @@ def cut_command(
         float | None, opt("blade_price", help="Blade price, for the cost per cut.")
     ] = None,
     units: UnitsOpt = None,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     db: DbOpt = None,
     saws_file: SawsFileOpt = None,
@@ -147,29 +150,29 @@ def cut_command(
                 payload["cost_curve"] = _curve_rows(econ, times, the_saw)
         print(to_json(payload, kind="cut"))
         return
+    d = Display(units, fractions)
     if summary:
-        print(summary)
+        print(d.text(summary))
         print()
-    label = sec.label(units.value)
-    print(render_cut(result, units, section_label=label, calibration_cuts=calibration_n))
+    print(render_cut(result, d, section_label=d.section(sec), calibration_cuts=calibration_n))
     if econ is not None:
         from sawplan.cli.economics_view import render_economics
 
         print()
-        print(render_economics(econ, units))
+        print(render_economics(econ, d))
         if choice is not None:
             from sawplan.cli.economics_view import render_blade_choice
 
             print()
-            print(render_blade_choice(choice, units))
+            print(render_blade_choice(choice, d))
     if chart:
         print()
-        print(cut_chart(result, units))
+        print(cut_chart(result, d))
         if econ is not None:
             from sawplan.charts import speed_cost_chart
 
             print()
-            print(speed_cost_chart(_curve(econ, times, the_saw), econ.runs, units=units))
+            print(speed_cost_chart(_curve(econ, times, the_saw), econ.runs, units=d))
 
 
 def _minutes(text: str | None, key: str) -> float | None:

@@ -9,6 +9,7 @@ import typer
 
 from sawplan.cli.options import (
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialsFileOpt,
     SawsFileOpt,
@@ -17,6 +18,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display, fmt_plain
 from sawplan.units import UnitSystem
 
 HELP = """Plan a job: cut lists from stock on hand, time, blades, quote.
@@ -57,6 +59,7 @@ def plan_command(
     ] = None,
     sheet: Annotated[Path | None, opt("sheet")] = None,
     units: UnitsOpt = None,
+    fractions: FractionsOpt = False,
     db: DbOpt = None,
     saw_name: Annotated[
         str | None, opt("saw", help="Saw to plan for (overrides saw in [job]).")
@@ -84,7 +87,9 @@ def plan_command(
             "expected a saw name, got nothing", field="saw", hint="see `sawplan saw list`"
         )
     if not 0 < time_limit <= 600:
-        raise UsageError(f"must be between 0 and 600 s, got {time_limit:g}", field="time-limit")
+        raise UsageError(
+            f"must be between 0 and 600 s, got {fmt_plain(time_limit)}", field="time-limit"
+        )
     catalogue = load_catalogue(materials_file)
     job = load_job(jobfile, catalogue, allow_outside=allow)
     job = with_shop_currency(job)
@@ -109,7 +114,8 @@ def plan_command(
         from sawplan.cli.cut_economics import plan_economics
 
         quote = plan_economics(plan, job, saw, log, fields.check_choice("run", run))
-    outputs = render_outputs(plan, units, csv_dir, sheet)
+    d = Display(units, fractions)
+    outputs = render_outputs(plan, d, csv_dir, sheet)
     if json_out:
         if quote is None:
             print(to_json(plan, kind="plan"))
@@ -120,12 +126,12 @@ def plan_command(
     else:
         from sawplan.cutlist.sheets.text import render_plan
 
-        print(render_plan(plan, units))
+        print(render_plan(plan, d))
         if quote is not None:
             from sawplan.cli.economics_view import render_run_quote
 
             print()
-            print(render_run_quote(quote, units, currency=plan.currency))
+            print(render_run_quote(quote, d, currency=plan.currency))
     written = write_all(outputs)
     for path in written:
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
@@ -185,7 +191,7 @@ def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
 
 
 def render_outputs(
-    plan, units: UnitSystem, csv_dir: Path | None, sheet: Path | None
+    plan, units: UnitSystem | Display, csv_dir: Path | None, sheet: Path | None
 ) -> dict[Path, str]:
     """Every file to write, as text, before anything touches the disk."""
     outputs: dict[Path, str] = {}

@@ -140,6 +140,7 @@ def saw_opt(help: str, fallback: str | None = None, *, use_config: bool = True) 
 
 
 UnitsOpt = Annotated[UnitSystem, opt("units", callback=_configured("units", UnitSystem))]
+FractionsOpt = Annotated[bool, opt("fractions")]
 JsonOpt = Annotated[bool, opt("json")]
 CsvOpt = Annotated[bool, opt("csv")]
 DbOpt = Annotated[str | None, opt("db", callback=_db)]
