@@ -2,12 +2,11 @@
 
 from __future__ import annotations
 
-import dataclasses
-from dataclasses import dataclass, field
 from typing import Annotated, Any
 
 import typer
 
+from sawplan.cli.log_view import LoggedCut, cut_table, render_logged
 from sawplan.cli.options import (
     BundleOpt,
     CsvOpt,
@@ -30,8 +29,7 @@ from sawplan.cli.options import (
     opt,
     saw_opt,
 )
-from sawplan.display import Display, as_display, fmt_number, fmt_plain, section_text
-from sawplan.units import UnitSystem
+from sawplan.display import Display, fmt_number, fmt_plain
 
 HELP = """Log what the blades cut and what happened to them.
 
@@ -286,46 +284,6 @@ def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float |
     return result.cut_time_model_min, None
 
 
-@dataclass(frozen=True)
-class LoggedCut:
-    """The entry as written, for ``--json``."""
-
-    id: int
-    blade: str
-    saw: str | None
-    blade_area_mm2: float
-    notes: tuple[str, ...]
-    entry: Any = field(metadata={"json": False})
-
-    def json_extra(self) -> dict[str, Any]:
-        body = dataclasses.asdict(self.entry)
-        body.pop("blade_id")
-        body.pop("saw_id")
-        return body
-
-
-def render_logged(entry, sec, mat, blade, units: UnitSystem | Display, notes: list[str]) -> str:
-
-    d = as_display(units)
-    what = _cuts(entry.count)
-    lines = [
-        f"logged {what} of {mat.key} {d.section(sec)} on blade {blade.tag}"
-        + (f" ({blade.saw})" if blade.saw else ""),
-        f"  area {d.fmt('area', entry.area_mm2)}; blade total {d.fmt('area', blade.area_mm2)} "
-        f"in {_cuts(blade.cuts)}",
-    ]
-    if entry.time_min is not None or entry.predicted_time_min is not None:
-        measured = d.fmt("time", entry.time_min)
-        model = d.fmt("time", entry.predicted_time_min)
-        lines.append(f"  time measured {measured}, model {model}")
-    lines += [f"  note: {n}" for n in notes]
-    return "\n".join(lines)
-
-
-def _cuts(n: int) -> str:
-    return "1 cut" if n == 1 else f"{n:,} cuts"
-
-
 def log_event_command(
     tag: TagArg,
     kind: Annotated[str, arg("event_kind", help="teeth-lost, crooked, stall or failure.")],
@@ -373,21 +331,11 @@ def log_list_command(
     from sawplan.store.records import list_cuts
 
     with connect(db, create=False) as database:
-        rows = list_cuts(database, blade=blade, saw=saw, job=job, limit=limit)
+        entries = list_cuts(database, blade=blade, saw=saw, job=job, limit=limit)
     if json_out:
-        print(to_json(rows, kind="cuts"))
+        print(to_json(entries, kind="cuts"))
         return
-    d = Display(units, fractions)
-    headers = ["id", "date", "blade", "saw", "material", "section", "cuts", f"area {d.label('area')}",
-               "min", "model min", "job", "heat"]  # fmt: skip
-    body = [
-        [r["id"], r["cut_on"], r["blade"], r["saw"] or "", r["material"],
-         section_text(d, r["section"]), r["count"], d.num("area", r["area_mm2"]),
-         "" if r["time_min"] is None else fmt_number(r["time_min"]),
-         "" if r["predicted_time_min"] is None else fmt_number(r["predicted_time_min"]),
-         r["job"] or "", r["heat"] or ""]
-        for r in rows
-    ]  # fmt: skip
+    headers, body = cut_table(entries, Display(units, fractions))
     if csv_out:
         print(to_csv(headers, body), end="")
     elif not body:
