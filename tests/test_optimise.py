@@ -567,11 +567,12 @@ def _triplets(count: int, seed: int) -> list[Demand]:
 
 def test_arc_flow_packs_triplets_exactly() -> None:
     from sawplan.cutlist.optimise.arcflow import solve_arc_flow
+    from sawplan.cutlist.optimise.budget import Clock
     from sawplan.cutlist.optimise.build import make_instance
 
     demand = _triplets(8, seed=3)
     problem = make_instance([StockType("bar", 1000, None, 1.0)], demand, Allowances()).problem
-    result = solve_arc_flow(problem, deadline=time.perf_counter() + 30)
+    result = solve_arc_flow(problem, clock=Clock(time.perf_counter() + 30), max_nodes=10_000)
     assert result is not None and result.proven_optimal
     assert len(result.bars) == 8  # total length = 8 bars exactly (by construction)
     cut = Counter()

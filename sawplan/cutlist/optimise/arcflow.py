@@ -7,16 +7,19 @@ path longest first, which removes most symmetric paths.  The integer program
 ordered, stock rows <= bars on hand) is solved by HiGHS through
 ``scipy.optimize.milp``; the flow splits into one path per bar.  Used only when
 rounding did not reach the bound and the graph is small (instances where
-rounding fails, such as bars filled exactly by three pieces, have small graphs).
+rounding fails, such as bars filled exactly by three pieces, have small graphs),
+and on a few bars at a time by the closing step (``repair``).  HiGHS gets a
+node limit, so the answer does not depend on the machine's speed; its time
+limit is only the search's safety stop.
 """
 
 from __future__ import annotations
 
-import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 from math import gcd
 
+from sawplan.cutlist.optimise.budget import Clock
 from sawplan.cutlist.optimise.problem import Bar, Problem, downsize
 
 
@@ -30,10 +33,11 @@ class ArcFlowResult:
 def solve_arc_flow(
     problem: Problem,
     *,
-    deadline: float,
+    clock: Clock,
     demand: Sequence[int] | None = None,
     limits: Sequence[int | None] | None = None,
     max_arcs: int = 15_000,
+    max_nodes: int = 200,
     cost_cap: float | None = None,
 ) -> ArcFlowResult | None:
     """Optimal plan for ``demand`` (default: the order) from the stock ``limits`` left.
@@ -110,18 +114,20 @@ def solve_arc_flow(
     ]
     if cost_cap is not None:
         constraints.append(LinearConstraint(cost.reshape(1, -1), -np.inf, cost_cap))
-    remaining = deadline - time.perf_counter()
-    if remaining <= 0.1:
+    remaining = clock.left()
+    if remaining <= 0.05:
+        clock.expired()
         return None
     # HiGHS checks its time limit only now and then (seen 1 s late): leave a margin.
-    remaining *= 0.5
     res = milp(
         cost,
         constraints=constraints,
         integrality=np.ones(n_arcs),
         bounds=Bounds(np.zeros(n_arcs), ub),
-        options={"time_limit": remaining},
+        options={"time_limit": 0.5 * remaining, "node_limit": max_nodes},
     )
+    if res.status == 1 and clock.left() <= 0.5 * remaining + 1e-3:
+        clock.fired = True  # HiGHS stopped on its time limit, not on its node limit
     if res.status == 2:  # infeasible: no plan costs at most the cap
         return ArcFlowResult((), proven_optimal=True, none_under_cap=True)
     if res.x is None:

@@ -16,12 +16,12 @@ stops as soon as rounding it up can no longer change.
 
 from __future__ import annotations
 
-import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 from math import ceil
 from typing import Any
 
+from sawplan.cutlist.optimise.budget import Clock
 from sawplan.cutlist.optimise.knapsack import solve_bounded_knapsack
 from sawplan.cutlist.optimise.problem import Problem
 
@@ -99,9 +99,9 @@ def solve_master_lp(
     limits: Sequence[int | None],
     costs: Sequence[float],
     *,
-    deadline: float,
+    clock: Clock,
     bar_cost: float | None = None,
-    max_iterations: int = 5000,
+    max_iterations: int = 400,
     extra_columns: int = 4,
     smoothing: float = 0.8,
     near: float | None = None,
@@ -110,7 +110,8 @@ def solve_master_lp(
 
     ``bar_cost``: when every usable bar costs the same, stop once the bound and
     the master value round up to the same number of bars.  ``near``: stop once
-    the master value is within this much of the bound.  Pricing uses duals
+    the master value is within this much of the bound.  Work is bounded by
+    ``max_iterations``; the clock only stops it in an emergency.  Pricing uses duals
     smoothed towards those of the best bound so far (Wentges 1997), which cuts
     the number of master solves; a smoothed pricing that finds nothing is
     repeated with the master's own duals, so the result is exact.
@@ -128,7 +129,7 @@ def solve_master_lp(
     master = _Master(pool, rows, demand, limits, usable, costs)
     active = [i for i, s in enumerate(pool.stock) if s in usable_set]
     wanted = np.array([max(d, 0) for d in demand], dtype=float)
-    tol = 1e-9 * max(costs)
+    tol = 1e-9 * max(max(costs), 1e-9)
     best_bound = 0.0
     centre: _Duals | None = None
     iterations = 0
@@ -142,7 +143,7 @@ def solve_master_lp(
         tries = [duals] if centre is None else [_blend(centre, duals, smoothing), duals]
         for prices in tries:
             fillings, bound = _price(
-                problem, prices, demand, limits, usable, costs, wanted, extra_columns
+                problem, prices, demand, limits, usable, costs, wanted, extra_columns, z
             )
             if bound > best_bound:
                 best_bound, centre = bound, prices
@@ -156,7 +157,7 @@ def solve_master_lp(
             if new:
                 break
         converged = not new
-        done = converged or time.perf_counter() > deadline or iterations >= max_iterations
+        done = converged or iterations >= max_iterations or clock.expired()
         if bar_cost is not None and _rounds_up_alike(best_bound, z, bar_cost):
             done = True  # the bound already rounds up to the master's bar count
         if near is not None and z - best_bound <= near:
@@ -203,27 +204,51 @@ def _price(
     costs: Sequence[float],
     wanted: Any,
     extra_columns: int,
+    upper: float,
 ) -> tuple[list[tuple[int, tuple[int, ...]]], float]:
-    """Best fillings per stock under ``prices`` and the Farley bound these prices prove."""
+    """Best fillings per stock under ``prices`` and the lower bound these prices prove.
+
+    With every cost positive, Farley's bound; otherwise (free rack remnants
+    in a priced job) the Lagrangian bound of the item prices alone:
+    sum(d_j pi_j) + sum over limited stock of L_s min(0, c_s - K_s) + ``upper``
+    (the master value, above the LP optimum) times min(0, (c_s - K_s) / c_s) over
+    unlimited priced stock, K_s being the best filling's value.  Unlimited free
+    stock gives no bound but 0.
+    """
     capacities = problem.capacities
     bounds = [d if d > 0 else 0 for d in demand]
     top = max(capacities[s] for s in usable)
     table = solve_bounded_knapsack(problem.weights, list(prices.items), bounds, top)
     ratio = 0.0
+    lagrange = float(wanted @ prices.items)
+    worst_unlimited = 0.0
+    free_unlimited = False
     fillings: list[tuple[int, tuple[int, ...]]] = []
     for s in usable:
         stock_price = prices.stock.get(s, 0.0)
-        priced = table.value(capacities[s]) - stock_price
-        ratio = max(ratio, priced / costs[s])
+        value = table.value(capacities[s])
+        priced = value - stock_price
+        if costs[s] > 0:
+            ratio = max(ratio, priced / costs[s])
+        if limits[s] is not None:
+            lagrange += limits[s] * min(0.0, costs[s] - value)
+        elif costs[s] > 0:
+            worst_unlimited = min(worst_unlimited, (costs[s] - value) / costs[s])
+        elif value > 0:
+            free_unlimited = True
         if priced > costs[s]:
             fillings.append((s, table.filling(capacities[s])))
             above = costs[s] + stock_price
             for counts in table.good_fillings(capacities[s], above, extra_columns):
                 fillings.append((s, counts))
-    dual_value = float(wanted @ prices.items) - sum(
-        (limits[s] or 0) * v for s, v in prices.stock.items()
-    )
-    return fillings, dual_value / max(ratio, 1.0)
+    if all(costs[s] > 0 for s in usable):
+        dual_value = float(wanted @ prices.items) - sum(
+            (limits[s] or 0) * v for s, v in prices.stock.items()
+        )
+        return fillings, dual_value / max(ratio, 1.0)
+    if free_unlimited or upper == float("inf"):
+        return fillings, 0.0
+    return fillings, max(lagrange + upper * worst_unlimited, 0.0)
 
 
 class _Master:
@@ -246,7 +271,7 @@ class _Master:
         self.limits = limits
         self.costs = costs
         self.d_rows = np.array([demand[j] for j in rows], dtype=float)
-        self.big = 1e3 * max(max(costs), 1e-9)
+        self.big = 1e3 * max(max(costs), 1e-6)
         self.n_items = len(demand)
         self.keep = max(2 * len(rows), 100)
 

@@ -29,6 +29,7 @@ class Problem:
     trim: int
     grip: int
     min_remnant: int
+    remnants: tuple[bool, ...] = ()  # per stock type: a rack remnant on hand (else new stock)
     _sizes: dict[tuple[int, ...], tuple[int, int]] = field(
         default_factory=dict, init=False, repr=False, compare=False, hash=False
     )
