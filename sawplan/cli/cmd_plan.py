@@ -8,7 +8,7 @@ from typing import Annotated, Any
 import typer
 
 from sawplan.cli.options import DbOpt, JsonOpt, MaterialsFileOpt, UnitsOpt
-from sawplan.units import UnitSystem
+from sawplan.units import Display, UnitSystem
 
 HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote.
 
@@ -26,6 +26,13 @@ prints the bars to fetch, every cut from the head end, remnants to keep
 and settings per section, time, blades to have on hand and the quote.
 Nothing is written when the job has an error.
 
+When the stock on hand cannot finish the job, the plan shows what can be
+cut now under a SHORT banner, lists the bars to order (a [[stock]] line
+with count = 0 names a length to buy) and exits with status 8; --order
+prints the order list alone. --time-limit bounds the whole plan; the same
+job always gives the same plan unless the limit stops the optimiser, which
+the plan then says.
+
 \b
 Examples:
   sawplan plan job.toml
@@ -33,6 +40,7 @@ Examples:
   sawplan plan job.toml --sheet job.md --units us
   sawplan plan job.toml --csv out/ --saw large-column
   sawplan plan job.toml --json --db shop-log.sqlite
+  sawplan plan job.toml --order
 
 Estimates only: the saw maker's manual, the blade maker's data, shop rules and
 local regulations govern.
@@ -86,9 +94,20 @@ def plan_command(
     time_limit: Annotated[
         float,
         typer.Option(
-            "--time-limit", help="Seconds the optimiser may spend per section.", metavar="SECONDS"
+            "--time-limit",
+            help="Seconds the whole plan may take (a safety stop: the best layout so far "
+            "is shown with its bound).",
+            metavar="SECONDS",
         ),
-    ] = 5.0,
+    ] = 10.0,
+    order: Annotated[
+        bool,
+        typer.Option(
+            "--order",
+            help="Print only the list of bars to order for a short job (--json for JSON; "
+            "--csv DIR writes order.csv).",
+        ),
+    ] = False,
     allow: Annotated[
         bool,
         typer.Option(
@@ -96,12 +115,14 @@ def plan_command(
             help="Let the job file name files outside its own folder (stock_file).",
         ),
     ] = False,
-) -> None:
+) -> int:
     import sys
+    import time
 
+    started = time.perf_counter()
     from sawplan.cutlist.jobfile.load import load_job
     from sawplan.cutlist.plan.job import plan_job
-    from sawplan.errors import UsageError
+    from sawplan.errors import ExitCode, UsageError
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
 
@@ -109,8 +130,11 @@ def plan_command(
         raise UsageError(
             "expected a saw name, got nothing", field="saw", hint="see `sawplan saw list`"
         )
-    if not 0 < time_limit <= 600:
-        raise UsageError(f"must be between 0 and 600 s, got {time_limit:g}", field="time-limit")
+    if not MIN_TIME_LIMIT_S <= time_limit <= 600:
+        raise UsageError(
+            f"must be between {MIN_TIME_LIMIT_S:g} and 600 s, got {time_limit:g}",
+            field="time-limit",
+        )
     catalogue = load_catalogue(materials_file)
     job = load_job(jobfile, catalogue, allow_outside=allow)
     from sawplan.store.lookup import BladeLog
@@ -123,10 +147,12 @@ def plan_command(
         calibration_for=log.calibration,
         life_for=log.life,
         log_label=log.label,
-        time_limit_s=time_limit,
+        deadline=started + time_limit,
     )
     outputs = render_outputs(plan, units, csv_dir, sheet)
-    if json_out:
+    if order:
+        print(order_text(plan, units, json_out))
+    elif json_out:
         print(to_json(plan, kind="plan"))
     else:
         from sawplan.cutlist.sheets.text import render_plan
@@ -135,6 +161,42 @@ def plan_command(
     written = write_all(outputs)
     for path in written:
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
+    return 0 if plan.complete else int(ExitCode.PLAN_INCOMPLETE)
+
+
+MIN_TIME_LIMIT_S = 0.5  # below this the safety stop would fire before any exact step
+
+
+def order_text(plan, units: UnitSystem, json_out: bool) -> str:
+    """The order list alone: text (or 'nothing to order'), or JSON."""
+    if json_out:
+        from sawplan.render import to_json
+
+        return to_json(
+            {"complete": plan.complete, "order": order_rows(plan)}, kind="plan-order"
+        )
+    if plan.complete:
+        return "nothing to order: the stock on hand finishes the job"
+    from sawplan.cutlist.sheets.text import order_list
+
+    return order_list(plan, Display(units))
+
+
+def order_rows(plan) -> list[dict]:
+    """One row per stock length to buy (metric, units in the keys)."""
+    return [
+        {
+            "group": o.group,
+            "stock_entry": o.stock_entry,
+            "bars": o.count,
+            "length_mm": o.length_mm,
+            "price_each": o.price_each,
+            "cost": o.price_each * o.count,
+            "pieces_not_planned": "; ".join(f"{name} x{n}" for name, n in f.pieces),
+        }
+        for f in plan.shortfalls
+        for o in f.order
+    ]
 
 
 def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
@@ -264,7 +326,9 @@ def plan_csv(plan) -> dict[str, str]:
          "blades_consumed", "waste_pct", "material_cost"],
         rows,
     )  # fmt: skip
-    return {"cuts.csv": cuts, "bars.csv": bars, "summary.csv": summary}
+    keys = ["group", "stock_entry", "bars", "length_mm", "price_each", "cost", "pieces_not_planned"]
+    order = to_csv(keys, [[row[k] for k in keys] for row in order_rows(plan)])
+    return {"cuts.csv": cuts, "bars.csv": bars, "summary.csv": summary, "order.csv": order}
 
 
 def _r(value: float, digits: int = 1) -> float:

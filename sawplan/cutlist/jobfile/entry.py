@@ -10,7 +10,7 @@ import difflib
 import math
 
 from sawplan.cutlist.jobfile.lines import TomlLines, Where, located
-from sawplan.cutlist.jobfile.types import MAX_LENGTH_MM
+from sawplan.cutlist.jobfile.types import MAX_LENGTH_MM, MAX_MONEY
 from sawplan.errors import BadDataError, SawplanError, UsageError
 
 
@@ -116,6 +116,9 @@ class JobEntry:
             raise self.fail(err, key)
         if value < 0:
             raise self.fail(BadDataError(f"must not be negative, got {value:g}", field=key), key)
+        if value > MAX_MONEY:
+            err = BadDataError(f"must be at most {MAX_MONEY:,.0f}, got {value:g}", field=key)
+            raise self.fail(err, key)
         return float(value)
 
     def flag(self, key: str) -> bool:

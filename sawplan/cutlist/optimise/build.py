@@ -38,15 +38,21 @@ def make_instance(
     demand: Sequence[Demand],
     allow: Allowances,
     length_text: LengthText = str,
+    *,
+    allow_short: bool = False,
 ) -> Instance:
-    """Validate and build; raises BadDataError naming the field at fault."""
+    """Validate and build; raises BadDataError naming the field at fault.
+
+    ``allow_short``: a piece longer than any stock is left for the plan to
+    report as not placed instead of being refused.
+    """
     _check_allowances(allow)
     _check_stock(stock)
     _check_demand(demand)
     usable = {s.key: s.length - allow.trim - allow.grip for s in stock}
     longest = max(stock, key=lambda s: usable[s.key])
     for d in demand:
-        if d.length > usable[longest.key]:
+        if d.length > usable[longest.key] and not allow_short:
             raise BadDataError(
                 f"is {length_text(d.length)} long; the longest usable length of stock is "
                 f"{length_text(max(usable[longest.key], 0))} ({longest.key}: "

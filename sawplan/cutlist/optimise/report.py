@@ -101,9 +101,7 @@ def build_plan(
     else:
         value = sum(report_costs(problem)[s] for s, _ in bars)
         bound = min(bounds.cost, value)
-    short = tuple(
-        (key, n) for j, left in enumerate(unplaced) for key, n in _take(queues[j], left)
-    )
+    short = tuple((key, n) for j, left in enumerate(unplaced) for key, n in _take(queues[j], left))
     return CutPlan(
         bars=tuple(patterns),
         lp_bound_bars=bounds.bars,

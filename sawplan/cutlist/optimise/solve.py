@@ -79,7 +79,7 @@ def optimise(
     started = time.perf_counter()
     if deadline is None:
         deadline = started + max(time_limit_s, 0.0)
-    instance = make_instance(stock, demand, allow, length_text)
+    instance = make_instance(stock, demand, allow, length_text, allow_short=allow_short)
     if not instance.problem.lengths:
         return build_plan(
             instance,
@@ -88,6 +88,16 @@ def optimise(
             method="none",
             started=started,
             proven_optimal=True,
+        )
+    if not instance.problem.stock_lengths:  # no bar holds any piece (only with allow_short)
+        return build_plan(
+            instance,
+            [],
+            Bounds(0.0, 0.0, 0.0),
+            method="none",
+            started=started,
+            proven_optimal=False,
+            unplaced=instance.problem.demand,
         )
     outcome = search_plan(instance, clock=Clock(deadline), effort=effort or Effort())
     if any(outcome.unplaced) and not allow_short:

@@ -23,6 +23,7 @@ from sawplan.cutlist.sheets.text import (
     money,
     piece_rows,
     pos,
+    short_banner,
     stock_text,
 )
 from sawplan.units import Display, UnitSystem, fmt_number
@@ -78,6 +79,9 @@ def render_html(plan, units: UnitSystem = UnitSystem.METRIC) -> str:
     e = escape
     body = [
         f"<h1>Cut sheet: {e(plan.job)}</h1>",
+        f'<p class="warn"><strong>{e(short_banner(plan, d))}</strong></p>'
+        if not plan.complete
+        else "",
         _facts(plan, d),
         "<h2>Blade and settings per section</h2>",
         _sections_table(plan, d),
@@ -108,7 +112,14 @@ def _facts(plan, d: Display) -> str:
     rows += [
         ("Material", materials),
         ("Saw", plan.saw),
-        ("Bars", f"{plan.bars_used} (LP bound {plan.lp_bound_bars}, gap {plan.gap_bars})"),
+        (
+            "Bars",
+            f"{plan.bars_used}"
+            + (" (proven optimal)" if plan.proven_optimal and plan.complete else ""),
+        ),
+        ("Bars to fetch", mass(d, plan.bars_weight_kg)),
+        ("Pieces to ship", mass(d, plan.pieces_weight_kg)),
+        ("Remnants to rack", mass(d, plan.remnants_weight_kg)),
         ("Pieces / cuts", f"{plan.pieces} / {plan.cuts}"),
         ("Waste", f"{plan.waste_pct:.1f} % of {length(d, plan.stock_length_mm)}"),
         ("Time", f"{minutes(plan.total_time_min)} ({minutes(plan.total_cut_time_min)} cutting)"),
@@ -315,7 +326,6 @@ def _remnants(plan, d: Display) -> str:
 
 def _quote(plan, d: Display) -> str:
     c = plan.currency
-    rate = f" at {money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
     rows = [
         ("Area cut", d.fmt("area", plan.cut_area_cm2 * 100, 4)),
         ("Blades worn by this job", f"{fmt_number(plan.blades_consumed, 2)}"),
@@ -324,10 +334,7 @@ def _quote(plan, d: Display) -> str:
             f"{plan.blades_needed} ({forecast_text(plan)})",
         ),
         ("Blade life", plan.blade_life_source),
-        ("Material", money(plan.material_cost, c)),
-        (f"Saw time {minutes(plan.total_time_min)}{rate}", money(plan.saw_cost, c)),
-        ("Blade wear", money(plan.blade_cost, c)),
-        ("Quoted total", money(plan.total_cost, c)),
+        *((f"{q.item.capitalize()} ({q.basis})", money(q.amount, c)) for q in plan.quote),
     ]
     body = "".join(f"<tr><th>{escape(k)}</th><td>{escape(v)}</td></tr>" for k, v in rows)
     return f"<table>{body}</table>"

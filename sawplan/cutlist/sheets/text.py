@@ -202,16 +202,78 @@ def render_plan(plan, units: UnitSystem = UnitSystem.METRIC, width: int = DRAW_W
     """The terminal report: summary, sections, cut sheet, drawings, blades, quote, cautions."""
     d = Display(units)
     blocks = [
+        short_banner(plan, d),
         _header(plan, d),
         _sections(plan, d),
         _cut_table(plan, d),
         _drawings(plan, d, width),
         _remnants(plan, d),
+        order_list(plan, d),
         _blades(plan, d),
         _quote(plan),
         _notes(plan),
     ]
     return "\n\n".join(b for b in blocks if b)
+
+
+def short_banner(plan, d: Display) -> str:
+    """The first thing on a short plan's sheet: it is not the whole job."""
+    if plan.complete:
+        return ""
+    missing = sum(n for f in plan.shortfalls for _, n in f.pieces)
+    bars = sum(o.count for f in plan.shortfalls for o in f.order)
+    return (
+        f"SHORT: stock on hand does not finish the job. {missing} piece(s) are not planned; "
+        f"order {bars} bar(s) (ORDER LIST below, or `sawplan plan JOBFILE --order`)."
+    )
+
+
+def order_list(plan, d: Display) -> str:
+    """What to buy to finish a short job, and the pieces that wait for it."""
+    from sawplan.render import table
+
+    if plan.complete:
+        return ""
+    rows = []
+    for f in plan.shortfalls:
+        waiting = ", ".join(f"{name} ×{n}" for name, n in f.pieces)
+        for i, o in enumerate(f.order):
+            rows.append([
+                f.group if i == 0 else "", o.count, length(d, o.length_mm),
+                money(o.price_each * o.count, plan.currency), waiting if i == 0 else "",
+            ])  # fmt: skip
+    text = table(
+        ["material and section", "bars", "length", "cost", "pieces not planned"],
+        rows,
+        align="lrrrl",
+        title="ORDER LIST (bars to buy to finish the job)",
+    )
+    notes = [f"  {f.group}: {f.note}" for f in plan.shortfalls]
+    return text + "\n" + "\n".join(notes)
+
+
+def bound_text(s, d: Display, currency: str) -> str:
+    """A section's plan against its bound, in the objective's own terms."""
+    if s.objective == "bars":
+        text = f"{s.bars_used} bars, ⌈LP⌉ {s.lp_bound_bars}"
+    elif s.objective == "cost":
+        text = (
+            f"material {money(s.objective_value, currency)}, LP bound "
+            f"{money(s.objective_bound, currency)} (rack remnants in the LP)"
+        )
+    else:
+        text = (
+            f"new stock {length(d, s.objective_value)}, LP bound "
+            f"{length(d, s.objective_bound)} (rack remnants in the LP)"
+        )
+    if s.proven_optimal and s.objective_value > s.objective_bound + 1e-9:
+        return text + ": proven optimal (the exact integer program; no whole-bar plan is cheaper)"
+    if s.proven_optimal:
+        return text + ": proven optimal"
+    if s.objective == "bars":
+        return text + f": {s.gap_bars} bar(s) above the bound"
+    share = 100.0 * s.gap / s.objective_value if s.objective_value else 0.0
+    return text + f": gap {share:.2f} %"
 
 
 def _header(plan, d: Display) -> str:
@@ -226,15 +288,17 @@ def _header(plan, d: Display) -> str:
         ("saw", plan.saw),
         (
             "bars",
-            f"{plan.bars_used} (LP bound {plan.lp_bound_bars}, gap {plan.gap_bars}); "
-            f"{plan.pieces} pieces, {plan.cuts} cuts",
+            f"{plan.bars_used}; {plan.pieces} pieces, {plan.cuts} cuts"
+            + ("; proven optimal" if plan.proven_optimal and plan.complete else ""),
         ),
         (
             "waste",
             f"{plan.waste_pct:.1f} % ({length(d, plan.waste_mm)} of "
             f"{length(d, plan.stock_length_mm)})",
         ),
-        ("weight", mass(d, plan.total_weight_kg)),
+        ("bars to fetch", mass(d, plan.bars_weight_kg)),
+        ("pieces to ship", mass(d, plan.pieces_weight_kg)),
+        ("remnants to rack", mass(d, plan.remnants_weight_kg)),
         (
             "time",
             f"{minutes(plan.total_time_min)}: {minutes(plan.total_cut_time_min)} cutting + "
@@ -274,6 +338,7 @@ def _sections(plan, d: Display) -> str:
             f"  {s.group}: {s.designation}; kerf from the {s.kerf_source}; "
             f"{s.tooth_set} set; limited by {s.governing_limit}; optimiser {s.method}"
         )
+        extra.append(f"  {s.group}: {bound_text(s, d, plan.currency)}")
         if s.breakin_cuts:
             extra.append(f"  {s.group}: {breakin_text(s, d)}")
         extra += [f"  {s.group}: warning: {w}" for w in s.warnings]
@@ -392,17 +457,7 @@ def forecast_text(plan) -> str:
 def _quote(plan) -> str:
     from sawplan.render import key_values
 
-    c = plan.currency
-    rate = f" at {money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
-    share = ""
-    if plan.blade_price is not None:
-        share = f" ({fmt_number(plan.blades_consumed, 2)} × {money(plan.blade_price, c)})"
-    pairs = [
-        ("material", money(plan.material_cost, c)),
-        (f"saw time {minutes(plan.total_time_min)}{rate}", money(plan.saw_cost, c)),
-        (f"blade wear{share}", money(plan.blade_cost, c)),
-        ("total", money(plan.total_cost, c)),
-    ]
+    pairs = [(f"{q.item} ({q.basis})", money(q.amount, plan.currency)) for q in plan.quote]
     return key_values(pairs, title="QUOTE")
 
 
@@ -424,6 +479,8 @@ def render_markdown(plan, units: UnitSystem = UnitSystem.METRIC) -> str:
     """A Markdown cut sheet: the same content as the HTML sheet, drawings as text."""
     d = Display(units)
     out = [f"# Cut sheet: {_md(plan.job)}", ""]
+    if not plan.complete:
+        out += [f"**{_md(short_banner(plan, d))}**", ""]
     head = [("file", plan.file), ("saw", plan.saw)]
     if plan.customer:
         head.insert(0, ("customer", plan.customer))
@@ -464,6 +521,8 @@ def render_markdown(plan, units: UnitSystem = UnitSystem.METRIC) -> str:
             )
             out.append(f"| end | {pos(d, b.remnant_start_mm)}–{pos(d, b.length_mm)} | {what} | | |")
         out += ["", f"Bar weight {mass(d, b.weight_kg)}: **{b.handling}**.", ""]
+    if not plan.complete:
+        out += ["## Order list", "", "```", order_list(plan, d), "```", ""]
     out += ["## Blades and quote", "", "```", _blades(plan, d), "", _quote(plan), "```", ""]
     out += ["## Notes and cautions", ""]
     out += [f"- {_md(n)}" for n in plan.notes]
