@@ -137,7 +137,12 @@ def test_csv_files_and_formula_neutralisation(cli, tmp_path):
     out = tmp_path / "out"
     r = cli("plan", str(job), "--csv", str(out))
     assert r.code == 0, r.err
-    assert sorted(p.name for p in out.iterdir()) == ["bars.csv", "cuts.csv", "summary.csv"]
+    assert sorted(p.name for p in out.iterdir()) == [
+        "bars.csv",
+        "cuts.csv",
+        "order.csv",
+        "summary.csv",
+    ]
     cuts = read_csv(out / "cuts.csv")
     assert len(cuts) == 14  # 8 + 6 pieces ordered
     formula = [row for row in cuts if "HYPERLINK" in row["part"]]

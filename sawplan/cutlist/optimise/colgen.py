@@ -67,7 +67,9 @@ class ColumnPool:
         return n
 
     def counts(self, column: int) -> tuple[int, ...]:
-        return tuple(int(round(v)) for v in self._matrix[:, column])
+        import numpy as np
+
+        return tuple(np.rint(self._matrix[:, column]).astype(np.int64).tolist())
 
     @property
     def matrix(self) -> Any:

@@ -80,8 +80,8 @@ def build_plan(
     for s, counts in ordered:
         pieces: list[str] = []
         for j, n in enumerate(counts):
-            for _ in range(n):
-                pieces.append(_next_key(queues[j]))
+            if n:
+                pieces.extend(_next_key(queues[j]) for _ in range(n))
         remnant = problem.remnant(s, counts)
         patterns.append(
             BarPattern(

@@ -250,7 +250,7 @@ def _cut(pool: ColumnPool, column: int, state: _State) -> bool:
     s = pool.stock[column]
     if limits[s] is not None and limits[s] <= 0:
         return False
-    counts = tuple(min(n, d) for n, d in zip(pool.counts(column), demand, strict=True))
+    counts = tuple(map(min, pool.counts(column), demand))
     if not any(counts):
         return False
     if limits[s] is not None:

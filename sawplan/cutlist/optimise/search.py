@@ -81,9 +81,9 @@ def search_plan(instance: Instance, *, clock: Clock, effort: Effort = Effort()) 
         if rounded.key(problem) < best.key(problem):
             best, method = rounded, "column-generation"
         proven = reaches_bound(problem, best, objective_bound, bar_cost)
-        if not proven and not stock_short:
+        if not proven and not stock_short and not clock.expired():
             best, method, proven = _close(problem, best, method, objective_bound, clock, effort)
-        if not stock_short:
+        if not stock_short and not clock.expired():
             bounds = _report_bound(problem, pool, bounds, clock, effort)
     except LpFailure:
         pass

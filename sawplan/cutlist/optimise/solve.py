@@ -99,7 +99,10 @@ def optimise(
             proven_optimal=False,
             unplaced=instance.problem.demand,
         )
-    outcome = search_plan(instance, clock=Clock(deadline), effort=effort or Effort())
+    # The search stops in time to leave the last sixth of the limit for the polish
+    # and for writing the plan out (neither is interrupted).
+    search_end = started + (deadline - started) * 0.85
+    outcome = search_plan(instance, clock=Clock(search_end), effort=effort or Effort())
     if any(outcome.unplaced) and not allow_short:
         raise shortage_error(instance, outcome.unplaced)
     return build_plan(
