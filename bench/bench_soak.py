@@ -75,7 +75,17 @@ def reader(path: str, start, deadline: float, results) -> None:
 def setup(path: Path) -> None:
     for args in (
         ["saw", "add", "bay 2", "--like", "mid-production"],
-        ["blade", "add", "B-1", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm"],
+        [
+            "blade",
+            "add",
+            "B-1",
+            "--pitch",
+            "3/4",
+            "--blade-width",
+            "27mm",
+            "--blade-thickness",
+            "0.9mm",
+        ],
         ["blade", "fit", "B-1", "--saw", "bay 2"],
     ):
         code, _out, err = invoke([*args, "--db", str(path)])

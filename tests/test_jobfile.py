@@ -237,5 +237,3 @@ def test_a_job_without_parts_is_refused(catalogue):
     assert error_of(text, catalogue).one_line() == (
         "job.toml: has no [[part]] entries: nothing to cut"
     )
-
-

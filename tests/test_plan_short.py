@@ -127,7 +127,7 @@ def test_order_command_prints_the_list_alone_and_exits_8(cli, tmp_path):
     job = tmp_path / "job.toml"
     job.write_text(TWO_SHORT, encoding="utf-8")
     out = tmp_path / "csv"
-    r = cli("plan", str(job), "--saw", "mid-production", "--order", "--csv", str(out))
+    r = cli("plan", str(job), "--saw", "mid-production", "--order", "--csv-dir", str(out))
     assert r.code == 8
     assert r.out.startswith("ORDER LIST")
     assert "CUT SHEET" not in r.out
@@ -182,9 +182,7 @@ def test_quote_material_line_by_hand(catalogue, saw, policy: str, credit: float)
     # saw time: cuts × (time per cut + handling) at 60 per hour, by the plan's own minutes
     assert lines["saw time"].amount == pytest.approx(60.0 * plan.total_time_min / 60.0)
     assert lines["blade wear"].amount == pytest.approx(80.0 * plan.blades_consumed)
-    assert lines["total"].amount == pytest.approx(
-        50.0 - credit + plan.saw_cost + plan.blade_cost
-    )
+    assert lines["total"].amount == pytest.approx(50.0 - credit + plan.saw_cost + plan.blade_cost)
     assert all(q.basis for q in plan.quote)  # every line names its basis
     assert "396" not in lines["material: bars"].basis  # bars line is about bars
 

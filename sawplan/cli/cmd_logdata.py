@@ -7,9 +7,9 @@ from typing import Annotated
 
 import typer
 
-from sawplan.cli.options import DbOpt
+from sawplan.cli.options import DbOpt, ForceOpt, arg, command
 
-EXPORT_HELP = """Write the blade log as CSV files into CSVDIR.
+EXPORT_HELP = """Write the blade log as CSV files into the folder DIR.
 
 One file per table: saws.csv, blades.csv, fittings.csv, cuts.csv,
 events.csv. Blades and saws are named by tag and name, so the folder can be
@@ -43,16 +43,12 @@ FILE and renamed into place only when complete.
 \b
 Examples:
   sawplan backup blade-log-2024-06-30.sqlite
-  sawplan backup /mnt/usb/blade-log.sqlite --force
+  sawplan backup usb/blade-log.sqlite --force
 """
-
-ForceOpt = Annotated[bool, typer.Option("--force", help="Replace files that exist.")]
 
 
 def export_command(
-    csvdir: Annotated[
-        Path, typer.Argument(help="Folder to write the CSV files into.", show_default=False)
-    ],
+    csvdir: Annotated[Path, arg("folder", help="Folder to write the CSV files into.")],
     force: ForceOpt = False,
     db: DbOpt = None,
 ) -> None:
@@ -69,9 +65,7 @@ def export_command(
 
 
 def import_command(
-    csvdir: Annotated[
-        Path, typer.Argument(help="Folder holding the CSV files.", show_default=False)
-    ],
+    csvdir: Annotated[Path, arg("folder", help="Folder holding the CSV files.")],
     db: DbOpt = None,
 ) -> None:
     from sawplan.store import connect
@@ -84,7 +78,7 @@ def import_command(
 
 
 def backup_command(
-    file: Annotated[Path, typer.Argument(help="The backup file to write.", show_default=False)],
+    file: Annotated[Path, arg("file", help="The backup file to write.")],
     force: ForceOpt = False,
     db: DbOpt = None,
 ) -> None:
@@ -95,6 +89,6 @@ def backup_command(
 
 
 def register(app: typer.Typer) -> None:
-    app.command("export", help=EXPORT_HELP)(export_command)
-    app.command("import", help=IMPORT_HELP)(import_command)
-    app.command("backup", help=BACKUP_HELP)(backup_command)
+    command(app, "export", EXPORT_HELP)(export_command)
+    command(app, "import", IMPORT_HELP)(import_command)
+    command(app, "backup", BACKUP_HELP)(backup_command)

@@ -7,7 +7,16 @@ from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.options import DbOpt, JsonOpt, MaterialsFileOpt, UnitsOpt
+from sawplan.cli.options import (
+    DbOpt,
+    JsonOpt,
+    MaterialsFileOpt,
+    SawsFileOpt,
+    UnitsOpt,
+    arg,
+    command,
+    opt,
+)
 from sawplan.units import Display, UnitSystem
 
 HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote.
@@ -29,7 +38,7 @@ Nothing is written when the job has an error.
 When the stock on hand cannot finish the job, the plan shows what can be
 cut now under a SHORT banner, lists the bars to order (a [[stock]] line
 with count = 0 names a length to buy) and exits with status 8; --order
-prints the order list alone. --time-limit bounds the whole plan; the same
+prints the order list alone (--csv-dir DIR also writes it as order.csv). --time-limit bounds the whole plan; the same
 job always gives the same plan unless the limit stops the optimiser, which
 the plan then says.
 
@@ -38,7 +47,7 @@ Examples:
   sawplan plan job.toml
   sawplan plan job.toml --sheet job.html
   sawplan plan job.toml --sheet job.md --units us
-  sawplan plan job.toml --csv out/ --saw large-column
+  sawplan plan job.toml --csv-dir out --saw large-column
   sawplan plan job.toml --json --db shop-log.sqlite
   sawplan plan job.toml --order
 
@@ -48,73 +57,26 @@ local regulations govern.
 
 
 def plan_command(
-    jobfile: Annotated[
-        Path, typer.Argument(help="The job file (TOML).", show_default=False, metavar="JOBFILE")
-    ],
+    jobfile: Annotated[Path, arg("job_file", help="The job file (TOML).")],
     json_out: JsonOpt = False,
     csv_dir: Annotated[
         Path | None,
-        typer.Option(
-            "--csv",
-            help="Write cuts.csv, bars.csv and summary.csv into DIR.",
-            show_default=False,
-            metavar="DIR",
-        ),
+        opt("csv_dir", help="Write cuts.csv, bars.csv, summary.csv and order.csv into DIR."),
     ] = None,
-    sheet: Annotated[
-        Path | None,
-        typer.Option(
-            "--sheet",
-            help="Write a printable cut sheet: HTML, or Markdown when FILE ends in .md.",
-            show_default=False,
-            metavar="FILE",
-        ),
-    ] = None,
+    sheet: Annotated[Path | None, opt("sheet")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
     db: DbOpt = None,
     saw_name: Annotated[
-        str | None,
-        typer.Option(
-            "--saw",
-            help="Saw to plan for (overrides saw in [job]).",
-            show_default=False,
-            metavar="NAME",
-        ),
+        str | None, opt("saw", help="Saw to plan for (overrides saw in [job]).")
     ] = None,
-    saws_file: Annotated[
-        Path | None,
-        typer.Option(
-            "--saws",
-            help="Your own saws TOML file (env SAWPLAN_SAWS).",
-            show_default=False,
-            metavar="FILE",
-        ),
-    ] = None,
+    saws_file: SawsFileOpt = None,
     materials_file: MaterialsFileOpt = None,
     time_limit: Annotated[
         float,
-        typer.Option(
-            "--time-limit",
-            help="Seconds the whole plan may take (a safety stop: the best layout so far "
-            "is shown with its bound).",
-            metavar="SECONDS",
-        ),
+        opt("time_limit", show_default=True),
     ] = 10.0,
-    order: Annotated[
-        bool,
-        typer.Option(
-            "--order",
-            help="Print only the list of bars to order for a short job (--json for JSON; "
-            "--csv DIR writes order.csv).",
-        ),
-    ] = False,
-    allow: Annotated[
-        bool,
-        typer.Option(
-            "--allow",
-            help="Let the job file name files outside its own folder (stock_file).",
-        ),
-    ] = False,
+    order: Annotated[bool, opt("order")] = False,
+    allow: Annotated[bool, opt("allow")] = False,
 ) -> int:
     import sys
     import time
@@ -129,11 +91,6 @@ def plan_command(
     if saw_name is not None and not saw_name.strip():
         raise UsageError(
             "expected a saw name, got nothing", field="saw", hint="see `sawplan saw list`"
-        )
-    if not MIN_TIME_LIMIT_S <= time_limit <= 600:
-        raise UsageError(
-            f"must be between {MIN_TIME_LIMIT_S:g} and 600 s, got {time_limit:g}",
-            field="time-limit",
         )
     catalogue = load_catalogue(materials_file)
     job = load_job(jobfile, catalogue, allow_outside=allow)
@@ -164,17 +121,12 @@ def plan_command(
     return 0 if plan.complete else int(ExitCode.PLAN_INCOMPLETE)
 
 
-MIN_TIME_LIMIT_S = 0.5  # below this the safety stop would fire before any exact step
-
-
 def order_text(plan, units: UnitSystem, json_out: bool) -> str:
     """The order list alone: text (or 'nothing to order'), or JSON."""
     if json_out:
         from sawplan.render import to_json
 
-        return to_json(
-            {"complete": plan.complete, "order": order_rows(plan)}, kind="plan-order"
-        )
+        return to_json({"complete": plan.complete, "order": order_rows(plan)}, kind="plan-order")
     if plan.complete:
         return "nothing to order: the stock on hand finishes the job"
     from sawplan.cutlist.sheets.text import order_list
@@ -336,4 +288,4 @@ def _r(value: float, digits: int = 1) -> float:
 
 
 def register(app: typer.Typer) -> None:
-    app.command("plan", help=HELP)(plan_command)
+    command(app, "plan", HELP)(plan_command)
