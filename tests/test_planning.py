@@ -18,7 +18,6 @@ from hypothesis import strategies as st
 
 from sawplan.cutlist.jobfile.load import parse_job
 from sawplan.cutlist.plan.job import bar_layout, plan_job
-from sawplan.errors import BadDataError
 from sawplan.materials import load_catalogue
 from sawplan.saws import get_saw
 

@@ -9,8 +9,18 @@ the last cut is made, and what is left is the remnant.  A bar filled exactly
 
 from __future__ import annotations
 
+from functools import lru_cache
+
 from sawplan.cutlist.jobfile.types import PartLine, StockLine
 from sawplan.cutlist.plan.types import BarCut, PieceCut
+
+
+@lru_cache(maxsize=4096)
+def assess_lift(weight_kg: float):
+    """The handling class of a weight (pieces of one part weigh the same: asked once)."""
+    from sawplan.handling import assess_lift as assess
+
+    return assess(weight_kg)
 
 
 def bar_layout(
@@ -51,8 +61,6 @@ def bar_cut(
     min_remnant_mm: float,
 ) -> BarCut:
     """Bar ``number`` with its pieces placed, its cuts counted, weights, handling and cost."""
-    from sawplan.handling import assess_lift
-
     spans, trim_cut, last_cut, rem_start, remnant = bar_layout(
         s.length_mm, [p.length_mm for p in parts], kerf_mm, trim_mm
     )
