@@ -31,6 +31,8 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
+from bench_optimise import random_order  # noqa: E402
+
 from sawplan.cutlist.optimise.solve import (  # noqa: E402
     Allowances,
     Demand,
@@ -68,10 +70,8 @@ def _demand(lengths: list[int]) -> list[Demand]:
 
 
 def shop(pieces: int, kinds: int, rng: random.Random) -> list[Demand]:
-    lengths = rng.sample(range(150, 2501), kinds)
-    cuts = sorted(rng.sample(range(1, pieces), kinds - 1))
-    counts = [b - a for a, b in zip([0, *cuts], [*cuts, pieces], strict=True)]
-    return [Demand(f"P{i}", n, c) for i, (n, c) in enumerate(zip(lengths, counts, strict=True))]
+    """A shop order as bench_optimise draws it: lengths 150 to 2500 mm, counts split at random."""
+    return random_order(rng, pieces, kinds, 150, 2500)
 
 
 TEN_LENGTHS = [StockType(f"{m} m", m * 600, None, 6.0 * m + 1.0) for m in range(1, 11)]

@@ -80,24 +80,17 @@ def optimise(
     if deadline is None:
         deadline = started + max(time_limit_s, 0.0)
     instance = make_instance(stock, demand, allow, length_text, allow_short=allow_short)
-    if not instance.problem.lengths:
+    problem = instance.problem
+    if not problem.lengths or not problem.stock_lengths:
+        # nothing to cut, or (only with allow_short) no bar holds any piece
         return build_plan(
             instance,
             [],
             Bounds(0.0, 0.0, 0.0),
             method="none",
             started=started,
-            proven_optimal=True,
-        )
-    if not instance.problem.stock_lengths:  # no bar holds any piece (only with allow_short)
-        return build_plan(
-            instance,
-            [],
-            Bounds(0.0, 0.0, 0.0),
-            method="none",
-            started=started,
-            proven_optimal=False,
-            unplaced=instance.problem.demand,
+            proven_optimal=not problem.lengths,
+            unplaced=problem.demand if problem.lengths else (),
         )
     # The search stops in time to leave the last sixth of the limit for the polish
     # and for writing the plan out (neither is interrupted).
