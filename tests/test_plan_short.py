@@ -242,3 +242,48 @@ def test_bound_with_remnants_equals_the_lp_of_the_same_problem():
     assert plan.objective == "cost"
     assert plan.objective_bound == pytest.approx(reference.fun, rel=1e-6)
     assert plan.material_cost >= reference.fun - 1e-6
+
+
+def test_short_plan_json_says_complete_and_lists_shortfalls(cli, tmp_path):
+    import json
+
+    job = tmp_path / "job.toml"
+    job.write_text(TWO_SHORT, encoding="utf-8")
+    r = cli("plan", str(job), "--saw", "mid-production", "--json")
+    assert r.code == 8
+    data = json.loads(r.out)
+    assert data["complete"] is False
+    assert {f["group"] for f in data["shortfalls"]} == {"1018 round 30mm", "4140 round 50mm"}
+
+
+# --- bounded work: regressions ------------------------------------------------------------------
+
+
+def test_stock_price_1e308_in_a_job_file_is_a_one_line_error(cli, tmp_path):
+    job = tmp_path / "job.toml"
+    job.write_text(TWO_SHORT.replace("price = 40", "price = 1e308"), encoding="utf-8")
+    r = cli("plan", str(job), "--saw", "mid-production")
+    assert r.code == 3
+    assert r.err.count("\n") == 1 and "price: must be at most 1,000,000,000" in r.err
+
+
+def test_job_of_three_million_pieces_is_refused_before_planning(cli, tmp_path):
+    text = TWO_SHORT.replace("count = 10", "count = 1000000").replace(
+        "count = 3\n", "count = 1000000\n"
+    )
+    job = tmp_path / "job.toml"
+    job.write_text(text, encoding="utf-8")
+    r = cli("plan", str(job), "--saw", "mid-production")
+    assert r.code == 3
+    assert "asks for 2,000,000 pieces, at most 100,000 in one job" in r.err
+
+
+@pytest.mark.parametrize(
+    "limit", [pytest.param("0.1", id="too-short"), pytest.param("601", id="too-long")]
+)
+def test_time_limit_outside_its_range_is_refused(cli, tmp_path, limit: str):
+    job = tmp_path / "job.toml"
+    job.write_text(TWO_SHORT, encoding="utf-8")
+    r = cli("plan", str(job), "--time-limit", limit)
+    assert r.code == 3  # a value out of its range (the field table's rule)
+    assert r.err.startswith("error: time limit: must be from 0.5 to 600")

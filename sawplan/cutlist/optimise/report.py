@@ -54,8 +54,24 @@ def material_bounds(instance: Instance) -> Bounds:
         return Bounds(0.0, 0.0, 0.0)
     bars = need / max(capacities)
     objective = need * min(c / cap for c, cap in zip(problem.costs, capacities, strict=True))
-    cost = need * min(p / cap for p, cap in zip(problem.prices, capacities, strict=True))
-    return Bounds(bars, objective, cost)
+    costs = problem.prices if objective_of(problem) == "bars" else report_costs(problem)
+    return Bounds(bars, objective, _length_bound(problem, need, costs))
+
+
+def _length_bound(problem: Problem, need: int, costs: tuple[float, ...]) -> float:
+    """Cost of ``need`` capacity: the limited stock filled cheapest per length first."""
+    by_rate = sorted(
+        range(len(costs)), key=lambda s: (costs[s] / problem.capacity(s), problem.limits[s] is None)
+    )
+    total = 0.0
+    for s in by_rate:
+        cap = problem.capacity(s)
+        take = need if problem.limits[s] is None else min(need, cap * problem.limits[s])
+        total += take * costs[s] / cap
+        need -= take
+        if need <= 0:
+            break
+    return total
 
 
 def build_plan(

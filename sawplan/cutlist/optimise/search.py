@@ -59,6 +59,12 @@ def search_plan(instance: Instance, *, clock: Clock, effort: Effort = Effort()) 
     bounds = material_bounds(instance)
     bar_cost = same_bar_cost(problem)
     proven = False
+    if not any(best.unplaced) and _meets_report_bound(problem, best.bars, bounds):
+        # FFD already meets the length bound: nothing can be better, no LP needed
+        bars = tuple(
+            gather_remnants(problem, best.bars, clock=clock, max_donors=effort.polish_donors)
+        )
+        return SearchOutcome(bars, best.unplaced, bounds, method, True, clock.fired)
     try:
         pool = _seeded_pool(problem, first_bars)
         lp = solve_master_lp(
