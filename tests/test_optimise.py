@@ -590,14 +590,12 @@ def test_triplets_reach_the_optimum() -> None:
 
 
 def test_lp_failure_falls_back_to_first_fit_decreasing(monkeypatch: pytest.MonkeyPatch) -> None:
-    import types
+    from sawplan.cutlist.optimise import colgen
 
-    import scipy.optimize
+    def failing_lp(*args: object, **kwargs: object) -> None:
+        raise colgen.LpFailure("master LP not solved: numerical difficulties")
 
-    def failing_linprog(*args: object, **kwargs: object) -> types.SimpleNamespace:
-        return types.SimpleNamespace(status=4, x=None, message="numerical difficulties")
-
-    monkeypatch.setattr(scipy.optimize, "linprog", failing_linprog)
+    monkeypatch.setattr(colgen, "solve_lp", failing_lp)
     demand = [Demand("A", 49, 2), Demand("B", 26, 2), Demand("C", 25, 2)]
     stock = [StockType("bar", 100, None, 1.0)]
     plan = optimise(stock, demand)

@@ -19,11 +19,11 @@ class Effort:
     """Work limits of the whole search (none of them depends on the clock)."""
 
     lp_iterations: int = 400  # column-generation iterations per LP solve
-    branches: int = 3  # fillings tried at each dive step
+    branches: int = 5  # fillings tried at each dive step
     max_resolves: int = 400  # LP re-solves in all the dives
     stall_limit: int = 120  # re-solves without a better plan before the dives give up
     exact_pieces: int = 60  # arc-flow on the rest of a dive once it is this few pieces...
-    exact_arcs: int = 4_000  # ...and its graph this small
+    exact_arcs: int = 1_500  # ...and its graph this small
     exact_nodes: int = 200  # branch-and-bound nodes per arc-flow solve
     repair_rounds: int = 40  # closing step: bars re-packed exactly, one group per round
     repair_bars: int = 8  # bars taken apart per round

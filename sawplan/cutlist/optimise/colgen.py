@@ -28,6 +28,57 @@ from sawplan.cutlist.optimise.problem import Problem
 _ROUND_EPS = 1e-6  # slack when rounding LP values up to whole bars
 
 
+def solve_lp(c: Any, a_ub: Any, b_ub: Any) -> tuple[Any, float, Any]:
+    """min c·x s.t. a_ub·x <= b_ub, x >= 0 by HiGHS's dual simplex (no presolve: these
+    masters are small and dense); returns x, the optimum and the row duals (>= 0)."""
+    import numpy as np
+
+    from sawplan.cutlist.optimise.highs import new_highs, optimal
+
+    n_rows, n_cols = a_ub.shape
+    highs = new_highs()
+    highs.setOptionValue("presolve", "off")
+    highs.setOptionValue("simplex_strategy", 1)  # dual simplex
+    nz = a_ub != 0
+    counts = nz.sum(axis=0)
+    starts = np.concatenate([[0], np.cumsum(counts)[:-1]]).astype(np.int32)
+    rows_t, cols_t = np.nonzero(nz.T)  # column-major order of the nonzeros
+    index = cols_t.astype(np.int32)
+    value = a_ub.T[rows_t, cols_t]
+    highs.addRows(
+        n_rows,
+        np.full(n_rows, -np.inf),
+        b_ub.astype(float),
+        0,
+        np.zeros(0, np.int32),
+        np.zeros(0, np.int32),
+        np.zeros(0),
+    )
+    highs.addCols(
+        n_cols,
+        c.astype(float),
+        np.zeros(n_cols),
+        np.full(n_cols, np.inf),
+        len(index),
+        starts,
+        index,
+        value.astype(float),
+    )
+    highs.run()
+    if highs.getModelStatus() != optimal():
+        highs.setOptionValue("presolve", "on")
+        highs.clearSolver()
+        highs.run()
+    if highs.getModelStatus() != optimal():
+        raise LpFailure(
+            f"master LP not solved: {highs.modelStatusToString(highs.getModelStatus())}"
+        )
+    solution = highs.getSolution()
+    x = np.asarray(solution.col_value)
+    duals = -np.asarray(solution.row_dual)
+    return x, float(highs.getInfo().objective_function_value), duals
+
+
 class LpFailure(RuntimeError):
     """HiGHS did not return an optimal master (numerical trouble); fall back to FFD."""
 
@@ -279,7 +330,6 @@ class _Master:
 
     def solve(self, active: list[int]) -> tuple[Any, float, _Duals]:
         import numpy as np
-        from scipy.optimize import linprog
 
         pool, rows = self.pool, self.rows
         a = pool.matrix[np.ix_(rows, active)] if active else np.zeros((len(rows), 0))
@@ -294,21 +344,14 @@ class _Master:
             blocks.append(e)
             b_ub.append(np.array([self.limits[s] for s in self.limited], dtype=float))
         c = np.concatenate([[self.costs[pool.stock[i]] for i in active], np.full(n_art, self.big)])
+        # HiGHS takes the matrix column-wise: handing it over sparse saves most of the
+        # wrapper's work on masters of a few hundred columns.
         a_ub, b = np.vstack(blocks), np.concatenate(b_ub)
-        # Dual simplex without presolve is fastest on these small dense masters; the
-        # default HiGHS set-up is the second try.
-        res = linprog(
-            c, A_ub=a_ub, b_ub=b, bounds=(0, None), method="highs-ds", options={"presolve": False}
-        )
-        if res.status != 0 or res.x is None:
-            res = linprog(c, A_ub=a_ub, b_ub=b, bounds=(0, None), method="highs")
-        if res.status != 0 or res.x is None:
-            raise LpFailure(f"master LP not solved: {res.message}")
-        marginals = -np.asarray(res.ineqlin.marginals)
+        x, fun, marginals = solve_lp(c, a_ub, b)
         items = np.zeros(self.n_items)
         items[rows] = np.maximum(marginals[: len(rows)], 0.0)
         stock = {s: max(float(marginals[len(rows) + r]), 0.0) for r, s in enumerate(self.limited)}
-        return np.asarray(res.x), float(res.fun), _Duals(items, stock)
+        return x, fun, _Duals(items, stock)
 
     def prune(self, active: list[int], x: Any, duals: _Duals) -> list[int]:
         """Keep the working set small: columns in use and those of least reduced cost."""

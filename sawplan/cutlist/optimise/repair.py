@@ -41,8 +41,8 @@ def repair_plan(
         if good_enough(plan) or clock.expired() or failures > effort.repair_rounds // 4:
             break
         group = _group(problem, plan, round_no, effort.repair_bars)
-        if len(group) < 2:
-            break
+        if len(group) < 2 or (round_no > 0 and len(group) == len(plan) and failures):
+            break  # too few bars, or the whole plan again after it failed once
         chosen = [plan[b] for b in group]
         if len(problem.stock_lengths) == 1:
             better = _gather(problem, chosen, clock, effort)
@@ -141,6 +141,7 @@ def _cheaper(
         mine = sum(1 for t, _ in chosen if t == s)
         limits.append(None if limit is None else limit - used[s] + mine)
     cost = sum(problem.costs[s] for s, _ in chosen)
+    step = price_step(problem)
     result = solve_arc_flow(
         problem,
         clock=clock,
@@ -148,8 +149,19 @@ def _cheaper(
         limits=limits,
         max_arcs=effort.exact_arcs,
         max_nodes=effort.exact_nodes,
-        cost_cap=cost - 1e-6 * max(cost, 1.0),
+        cost_cap=cost - step + 1e-6 * step,
     )
     if result is None or result.none_under_cap or not result.bars:
         return None
     return list(result.bars)
+
+
+def price_step(problem: Problem) -> float:
+    """The smallest saving worth an exact search: one bar's price, or the difference
+    between two stock types' prices (tie-break tokens, such as a rack remnant used or
+    not, are left out)."""
+    costs = problem.costs
+    top = max(costs)
+    steps = [c for c in costs if c > 1e-2 * top]
+    steps += [abs(a - b) for a in costs for b in costs if abs(a - b) > 1e-2 * top]
+    return min(steps, default=top)

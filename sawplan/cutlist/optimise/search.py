@@ -27,7 +27,7 @@ from sawplan.cutlist.optimise.colgen import ColumnPool, LpFailure, solve_master_
 from sawplan.cutlist.optimise.ffd import pack_first_fit_decreasing
 from sawplan.cutlist.optimise.polish import gather_remnants
 from sawplan.cutlist.optimise.problem import Bar, Problem
-from sawplan.cutlist.optimise.repair import repair_plan
+from sawplan.cutlist.optimise.repair import price_step, repair_plan
 from sawplan.cutlist.optimise.report import Bounds, material_bounds, objective_of, report_costs
 from sawplan.cutlist.optimise.rounding import (
     Incumbent,
@@ -37,7 +37,7 @@ from sawplan.cutlist.optimise.rounding import (
 )
 
 _TINY = 1e-6
-_SMALL_ORDER_ARCS = 6_000  # the whole order goes to arc-flow when its graph is this small
+_SMALL_ORDER_ARCS = 1_500  # the whole order goes to arc-flow when its graph is this small
 
 
 @dataclass(frozen=True)
@@ -123,10 +123,14 @@ def _close(
         candidate = Incumbent(exact.bars, (0,) * len(problem.lengths))
         if candidate.key(problem) < best.key(problem):
             best, method = candidate, "arc-flow"
-    if exact is not None and exact.proven_optimal:
+    # Proof: an optimal plan under the cap is optimal outright; "none under the cap"
+    # proves it only when every bar costs the same (then the cap is one bar less).
+    if exact is not None and exact.proven_optimal and (exact.bars or bar_cost is not None):
         return best, method, True
     if reaches_bound(problem, best, bound, bar_cost):
         return best, method, True
+    if exact is not None and exact.none_under_cap:
+        return best, method, False  # the whole order was searched: no saving of a step
 
     def good_enough(bars: object) -> bool:
         return reaches_bound(problem, Incumbent(tuple(bars), best.unplaced), bound, bar_cost)
@@ -198,9 +202,11 @@ def _meets_report_bound(problem: Problem, bars: tuple[Bar, ...], bounds: Bounds)
 
 
 def _cap(problem: Problem, best: Incumbent) -> float | None:
-    """Most a plan may cost to beat ``best`` (one bar less when all bars cost the same)."""
+    """Most a plan may cost to beat ``best`` by a real step: the smallest difference
+    two bars' prices can make (one bar less when all bars cost the same).  Tie-break
+    tokens (a remnant instead of nothing) are not worth an exact search."""
     if any(best.unplaced):
         return None
     cost = sum(problem.costs[s] for s, _ in best.bars)
-    step = same_bar_cost(problem) or 1e-6 * max(cost, 1.0)
+    step = price_step(problem)
     return cost - step + 1e-6 * step
