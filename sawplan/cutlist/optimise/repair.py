@@ -157,11 +157,11 @@ def _cheaper(
 
 
 def price_step(problem: Problem) -> float:
-    """The smallest saving worth an exact search: one bar's price, or the difference
-    between two stock types' prices (tie-break tokens, such as a rack remnant used or
-    not, are left out)."""
-    costs = problem.costs
-    top = max(costs)
-    steps = [c for c in costs if c > 1e-2 * top]
-    steps += [abs(a - b) for a in costs for b in costs if abs(a - b) > 1e-2 * top]
-    return min(steps, default=top)
+    """The smallest saving worth an exact search: a whole bar when every bar costs the
+    same, else a hundredth of the cheapest bar's price (tie-break tokens, such as a
+    rack remnant used or not, are smaller and not worth it)."""
+    costs = set(problem.costs)
+    if len(costs) == 1:
+        return costs.pop()
+    positive = [c for c in costs if c > 1e-2 * max(costs)]
+    return 1e-2 * min(positive)
