@@ -287,3 +287,18 @@ def test_time_limit_outside_its_range_is_refused(cli, tmp_path, limit: str):
     r = cli("plan", str(job), "--time-limit", limit)
     assert r.code == 3  # a value out of its range (the field table's rule)
     assert r.err.startswith("error: time limit: must be from 0.5 to 600")
+
+
+def test_plan_json_stdout_is_pure_json_in_a_fresh_process(tmp_path):
+    # The solver library prints a banner the first time it starts in a process; stdout
+    # must still carry nothing but the JSON (json.loads is the outside check).
+    import json
+    import subprocess
+    import sys
+
+    job = tmp_path / "job.toml"
+    job.write_text(QUOTE_JOB.format(policy=""), encoding="utf-8")
+    argv = [sys.executable, "-m", "sawplan", "plan", str(job), "--saw", "mid-production"]
+    done = subprocess.run([*argv, "--json"], capture_output=True, text=True, timeout=120)
+    assert done.returncode == 0, done.stderr
+    assert json.loads(done.stdout)["kind"] == "plan"

@@ -2,7 +2,7 @@
 
 Master LP:  minimise sum(cost_p x_p)  subject to  sum(a_jp x_p) >= demand_j  for
 every length j,  sum(x_p over fillings of stock s) <= on hand_s  for limited
-stock,  x >= 0.  It is solved with HiGHS through ``scipy.optimize.linprog``;
+stock,  x >= 0.  It is solved with HiGHS (highspy, dual simplex: ``solve_lp``);
 the duals of the demand rows price one bounded knapsack per stock length
 (reduced cost = cost_s - sum(dual_j a_j) + dual of the stock row) and any
 filling of negative reduced cost joins the master.  One artificial column per
