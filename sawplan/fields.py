@@ -361,6 +361,10 @@ _TABLE: tuple[Field, ...] = (
     Field("price_per_kg", "price per kg", low=0, high=1_000_000,
           why="even precious alloys cost under a million per kg in any common currency",
           names=("stock.price_per_kg",)),
+    Field("remnant_credit", "rack credit", dimension="text", high=12,
+          choices=("bar-price", "none"),
+          why="remnants back on the rack are credited at their bar's price per length, or not",
+          names=("job.remnant_credit",)),
 )
 # fmt: on
 
