@@ -25,7 +25,7 @@ class Effort:
     exact_pieces: int = 60  # arc-flow on the rest of a dive once it is this few pieces...
     exact_arcs: int = 1_500  # ...and its graph this small
     exact_nodes: int = 200  # branch-and-bound nodes per arc-flow solve
-    repair_rounds: int = 40  # closing step: bars re-packed exactly, one group per round
+    repair_rounds: int = 16  # closing step: bars re-packed exactly, one group per round
     repair_bars: int = 8  # bars taken apart per round
     polish_donors: int = 200  # bars tried by the remnant polish
 

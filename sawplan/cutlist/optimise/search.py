@@ -37,7 +37,7 @@ from sawplan.cutlist.optimise.rounding import (
 )
 
 _TINY = 1e-6
-_SMALL_ORDER_ARCS = 1_500  # the whole order goes to arc-flow when its graph is this small
+_SMALL_ORDER_ARCS = 6_000  # the whole order goes to arc-flow when its graph is this small
 
 
 @dataclass(frozen=True)
