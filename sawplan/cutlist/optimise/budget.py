@@ -28,6 +28,7 @@ class Effort:
     repair_rounds: int = 16  # closing step: bars re-packed exactly, one group per round
     repair_bars: int = 8  # bars taken apart per round
     polish_donors: int = 200  # bars tried by the remnant polish
+    good_gap: float = 1e-4  # several stock types: stop within this share of the LP bound
 
 
 @dataclass

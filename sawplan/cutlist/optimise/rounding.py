@@ -80,6 +80,17 @@ def round_and_repair(
     return search.best
 
 
+def close_enough(
+    problem: Problem, plan: Incumbent, bound: float, bar_cost: float | None, effort: Effort
+) -> bool:
+    """Several stock types: the plan's cost within ``effort.good_gap`` of the LP bound,
+    where a whole-bar search would chase hundredths of a percent."""
+    if bar_cost is not None or any(plan.unplaced) or bound <= 0:
+        return False
+    cost = sum(problem.costs[s] for s, _ in plan.bars)
+    return cost - bound <= effort.good_gap * cost
+
+
 @dataclass
 class _State:
     fixed: list[Bar]
@@ -115,8 +126,10 @@ class _Search:
         self.stalled = 0  # LP re-solves since the best plan last improved
 
     def done(self) -> bool:
-        return self.clock.expired() or reaches_bound(
-            self.problem, self.best, self.bound, self.bar_cost
+        return (
+            self.clock.expired()
+            or reaches_bound(self.problem, self.best, self.bound, self.bar_cost)
+            or close_enough(self.problem, self.best, self.bound, self.bar_cost, self.effort)
         )
 
     def round_down(self, state: _State, lp: LpOutcome) -> bool:

@@ -31,6 +31,7 @@ from sawplan.cutlist.optimise.repair import price_step, repair_plan
 from sawplan.cutlist.optimise.report import Bounds, material_bounds, objective_of, report_costs
 from sawplan.cutlist.optimise.rounding import (
     Incumbent,
+    close_enough,
     reaches_bound,
     round_and_repair,
     same_bar_cost,
@@ -87,7 +88,8 @@ def search_plan(instance: Instance, *, clock: Clock, effort: Effort = Effort()) 
         if rounded.key(problem) < best.key(problem):
             best, method = rounded, "column-generation"
         proven = reaches_bound(problem, best, objective_bound, bar_cost)
-        if not proven and not stock_short and not clock.expired():
+        near = close_enough(problem, best, objective_bound, bar_cost, effort)
+        if not proven and not near and not stock_short and not clock.expired():
             best, method, proven = _close(problem, best, method, objective_bound, clock, effort)
         if not stock_short and not clock.expired():
             bounds = _report_bound(problem, pool, bounds, clock, effort)
