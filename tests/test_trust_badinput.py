@@ -52,7 +52,12 @@ NEW_NAMES = {("saw", "add", "name"), ("blade", "add", "tag")}
 FILTERS = {("log", "list", "saw"), ("log", "list", "job")}  # an unknown value matches nothing
 OUTPUT_PATHS = {"csv_dir", "sheet", ("export", "csvdir"), ("backup", "file")}
 # "0" is meaningful here: a free blade, an occasional lift, "all entries"
-ZERO_OK = {("blade", "add", "price"), ("weigh", "lifts_per_min"), ("log", "list", "limit")}
+ZERO_OK = {
+    ("blade", "add", "price"),
+    ("weigh", "lifts_per_min"),
+    ("weigh", "twist"),  # no twist: the standard lift
+    ("log", "list", "limit"),
+}
 
 
 def invoke(args: list[str]) -> tuple[int, str, str]:

@@ -9,6 +9,7 @@ import typer
 
 from sawplan.cli.options import (
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialsFileOpt,
     SawsFileOpt,
@@ -17,13 +18,14 @@ from sawplan.cli.options import (
     command,
     opt,
 )
-from sawplan.units import Display, UnitSystem
+from sawplan.display import Display
+from sawplan.units import UnitSystem
 
 HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote.
 
 JOBFILE is a TOML file with a [job] table (name, kerf, trim, grip,
 min_remnant, saw, shop_rate, handling_time, blade_price, currency, customer,
-due, stock_file), [[stock]] entries (material, section, length, count, price or
+due, stock_file, remnant_credit), [[stock]] entries (material, section, length, count, price or
 price_per_kg, heat, location, remnant) and [[part]] entries (name, material,
 section, length, count, tolerance, drawing). Lengths carry their unit.
 stock_file names a CSV with the [[stock]] columns, in the job file's folder;
@@ -38,9 +40,9 @@ Nothing is written when the job has an error.
 When the stock on hand cannot finish the job, the plan shows what can be
 cut now under a SHORT banner, lists the bars to order (a [[stock]] line
 with count = 0 names a length to buy) and exits with status 8; --order
-prints the order list alone (--csv-dir DIR also writes it as order.csv). --time-limit bounds the whole plan; the same
-job always gives the same plan unless the limit stops the optimiser, which
-the plan then says.
+prints the order list alone (--csv-dir DIR also writes it as order.csv).
+--time-limit bounds the whole plan; the same job always gives the same
+plan unless the limit stops the optimiser, which the plan then says.
 
 \b
 Examples:
@@ -49,6 +51,7 @@ Examples:
   sawplan plan job.toml --sheet job.md --units us
   sawplan plan job.toml --csv-dir out --saw large-column
   sawplan plan job.toml --json --db shop-log.sqlite
+  sawplan plan job.toml --run cost
   sawplan plan job.toml --order
 
 Estimates only: the saw maker's manual, the blade maker's data, shop rules and
@@ -65,6 +68,7 @@ def plan_command(
     ] = None,
     sheet: Annotated[Path | None, opt("sheet")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     db: DbOpt = None,
     saw_name: Annotated[
         str | None, opt("saw", help="Saw to plan for (overrides saw in [job]).")
@@ -77,11 +81,13 @@ def plan_command(
     ] = 10.0,
     order: Annotated[bool, opt("order")] = False,
     allow: Annotated[bool, opt("allow")] = False,
+    run: Annotated[str | None, opt("run")] = None,
 ) -> int:
     import sys
     import time
 
     started = time.perf_counter()
+
     from sawplan.cutlist.jobfile.load import load_job
     from sawplan.cutlist.plan.job import plan_job
     from sawplan.errors import ExitCode, UsageError
@@ -106,22 +112,39 @@ def plan_command(
         log_label=log.label,
         deadline=started + time_limit,
     )
-    outputs = render_outputs(plan, units, csv_dir, sheet)
+    quote = None
+    if run is not None:
+        from sawplan import fields
+        from sawplan.cli.cut_economics import plan_economics
+
+        quote = plan_economics(plan, job, saw, log, fields.check_choice("run", run))
+    d = Display(units, fractions)
+    outputs = render_outputs(plan, d, csv_dir, sheet)
     if order:
-        print(order_text(plan, units, json_out))
+        print(order_text(plan, d, json_out))
     elif json_out:
-        print(to_json(plan, kind="plan"))
+        if quote is None:
+            print(to_json(plan, kind="plan"))
+        else:
+            from sawplan.render import jsonable
+
+            print(to_json({**jsonable(plan), "run_quote": jsonable(quote)}, kind="plan"))
     else:
         from sawplan.cutlist.sheets.text import render_plan
 
-        print(render_plan(plan, units))
+        print(render_plan(plan, d))
+        if quote is not None:
+            from sawplan.cli.economics_view import render_run_quote
+
+            print()
+            print(render_run_quote(quote, d, currency=plan.currency))
     written = write_all(outputs)
     for path in written:
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
     return 0 if plan.complete else int(ExitCode.PLAN_INCOMPLETE)
 
 
-def order_text(plan, units: UnitSystem, json_out: bool) -> str:
+def order_text(plan, d: Display, json_out: bool) -> str:
     """The order list alone: text (or 'nothing to order'), or JSON."""
     if json_out:
         from sawplan.render import to_json
@@ -131,7 +154,7 @@ def order_text(plan, units: UnitSystem, json_out: bool) -> str:
         return "nothing to order: the stock on hand finishes the job"
     from sawplan.cutlist.sheets.text import order_list
 
-    return order_list(plan, Display(units))
+    return order_list(plan, d)
 
 
 def order_rows(plan) -> list[dict]:
@@ -188,7 +211,7 @@ def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
 
 
 def render_outputs(
-    plan, units: UnitSystem, csv_dir: Path | None, sheet: Path | None
+    plan, units: UnitSystem | Display, csv_dir: Path | None, sheet: Path | None
 ) -> dict[Path, str]:
     """Every file to write, as text, before anything touches the disk."""
     outputs: dict[Path, str] = {}
@@ -235,7 +258,8 @@ def write_all(outputs: dict[Path, str]) -> list[Path]:
 
 
 def plan_csv(plan) -> dict[str, str]:
-    """cuts.csv, bars.csv and summary.csv (metric, units in the headers, cells neutralised)."""
+    """cuts.csv, bars.csv, summary.csv and order.csv (metric, units in the headers, cells
+    neutralised)."""
     from sawplan.render import to_csv
 
     cuts = to_csv(

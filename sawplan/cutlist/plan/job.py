@@ -31,6 +31,7 @@ from sawplan.cutlist.plan.types import (
     Shortfall,
 )
 from sawplan.cutlist.sheets.bar_layout import bar_layout
+from sawplan.display import Q, join, say
 from sawplan.errors import SawplanError
 
 __all__ = [
@@ -56,13 +57,13 @@ CONFIDENCE = 0.90
 CAUTIONS = (
     "Know the weight before lifting: the handling class of every bar and piece is on the sheet; "
     "use a hoist or lift table for lift-aid loads.",
-    "Chock round stock so it cannot roll; support long bars on stands and catch falling off-cuts.",
+    "Support long bars on stands and catch falling off-cuts.",
     "Clamp the work before the blade enters; never hold work by hand; no gloves near a moving "
     "blade (gloves only to handle blades: coiled blades spring open).",
     "Keep the guards in place; wear eye and hearing protection; stop and isolate the saw before "
     "reaching into the cut or changing a blade.",
-    "Break in every new blade: normal band speed, about half the feed over the first few "
-    "hundred cm² (common practice).",
+    "Break in every new blade: normal band speed and a reduced feed, raised step by step "
+    "as each section's break-in line says (common practice).",
     "These are estimates: the saw maker's manual, the blade maker's data, shop rules and local "
     "regulations govern.",
 )
@@ -127,7 +128,7 @@ def plan_job(
         if material.group not in lives:
             lives[material.group], log_note = blade_life(material.group, life_for)
             if log_note:
-                notes.append(f"{material.group}: {log_note}")
+                notes.append(say("{}: {}", material.group, log_note))
         group_pieces = sum(p.count for p in job.parts if p.group == group)
         now = time.perf_counter()
         # a share by pieces, but at least an equal share of what is left (a
@@ -168,12 +169,18 @@ def plan_job(
         notes.append("no blade_price in [job]: blade wear is not in the quote")
     unpriced = sorted({b.stock for b in bars if b.cost == 0 and not b.from_rack_remnant})
     if unpriced:
-        notes.append("no price for " + "; ".join(unpriced) + ": material cost counted as 0")
+        notes.append(say("no price for {}: material cost counted as 0", join("; ", unpriced)))
     for s in sections:
         if s.calibration_n:
             notes.append(
-                f"{s.group}: cut time × {s.calibration_factor:.2f} from {s.calibration_n} "
-                f"logged cut(s) on {saw.name} ({log_label})"
+                say(
+                    "{}: cut time × {} from {} logged cut(s) on {} ({})",
+                    s.group,
+                    f"{s.calibration_factor:.2f}",
+                    s.calibration_n,
+                    saw.name,
+                    log_label,
+                )
             )
     notes.append(life_note)
     if any(s.stopped_by_time_limit for s in sections):
@@ -222,7 +229,7 @@ def plan_job(
         blades_needed=needed,
         blade_confidence=confidence,
         blade_forecast_method=method,
-        blade_life_source="; ".join(f"{g}: {src}" for g, (_l, src, _f) in lives.items()),
+        blade_life_source=join("; ", [say("{}: {}", g, src) for g, (_l, src, _f) in lives.items()]),
         material_cost=material_cost,
         bars_cost=bars_cost,
         remnant_credit=credit,
@@ -243,7 +250,7 @@ def plan_job(
         shop_rate_per_h=h.shop_rate_per_h,
         blade_price=h.blade_price,
         notes=tuple(notes),
-        cautions=_lift_cautions(bars) + CAUTIONS,
+        cautions=_lift_cautions(bars) + _shape_cautions(job) + CAUTIONS,
     )
 
 
@@ -259,24 +266,32 @@ def _quote(
     """The quote line by line, each naming its basis (amounts in the job's currency)."""
     minutes, blades = work
     saw_cost, blade_cost = costs
-    stock_m = sum(b.length_mm for b in bars) / 1000.0
+    stock_mm = sum(b.length_mm for b in bars)
     bars_cost = sum(b.cost for b in bars)
     lines = [
         QuoteLine(
             "material: bars",
-            f"{len(bars)} bar(s), {stock_m:.3f} m, each at its stock line's price "
-            "(rack remnants at the price given, none: already paid for)",
+            say(
+                "{} bar(s), {}, each at its stock line's price (rack remnants at the price "
+                "given, none: already paid for)",
+                len(bars),
+                Q("bar_length", stock_mm),
+            ),
             bars_cost,
         )
     ]
-    kept_m = sum(r.length_mm for r in remnants) / 1000.0
+    kept = Q("bar_length", sum(r.length_mm for r in remnants))
     if h.remnant_credit == "bar-price":
         credit = sum(b.cost * b.remnant_mm / b.length_mm for b in bars if b.remnant_kept)
         lines.append(
             QuoteLine(
                 "material: rack credit",
-                f"{len(remnants)} remnant(s), {kept_m:.3f} m back on the rack, credited at "
-                "their bar's price per length (the job pays for the length it uses)",
+                say(
+                    "{} remnant(s), {} back on the rack, credited at their bar's price per "
+                    "length (the job pays for the length it uses)",
+                    len(remnants),
+                    kept,
+                ),
                 -credit,
             )
         )
@@ -284,8 +299,12 @@ def _quote(
         lines.append(
             QuoteLine(
                 "material: rack credit",
-                f"{len(remnants)} remnant(s), {kept_m:.3f} m back on the rack, not credited "
-                '(remnant_credit = "none": whole bars charged)',
+                say(
+                    '{} remnant(s), {} back on the rack, not credited (remnant_credit = "none": '
+                    "whole bars charged)",
+                    len(remnants),
+                    kept,
+                ),
                 0.0,
             )
         )
@@ -293,8 +312,11 @@ def _quote(
     lines.append(
         QuoteLine(
             "saw time",
-            f"{minutes:.1f} min cutting and handling{rate}"
-            + ("" if h.shop_rate_per_h is not None else " (no shop_rate: not charged)"),
+            say(
+                "{} cutting and handling{}",
+                Q("time", minutes),
+                rate if h.shop_rate_per_h is not None else " (no shop_rate: not charged)",
+            ),
             saw_cost,
         )
     )
@@ -334,6 +356,20 @@ def _lift_cautions(bars: list[BarCut]) -> tuple[str, ...]:
     pieces = sorted({p.part for b in bars for p in b.pieces if p.handling != "one-person"})
     if pieces:
         out.append(f"Pieces too heavy for one person: {', '.join(pieces)}.")
+    return tuple(out)
+
+
+def _shape_cautions(job: Job) -> tuple[str, ...]:
+    """What the job's stock needs besides its weight: it rolls, it tips, its sawn ends cut."""
+    from sawplan.piece_handling import EDGE_CAUTION, ROLL_CAUTION, ROLLS, TIP_CAUTION, TIPS
+
+    shapes = {job.sections[group[1]].shape for group in job.groups()}
+    out = []
+    if shapes & ROLLS:
+        out.append(f"Rounds, tubes and hexagons: {ROLL_CAUTION}.")
+    if shapes & TIPS:
+        out.append(f"Angles, channels and I-beams: {TIP_CAUTION}.")
+    out.append(EDGE_CAUTION[0].upper() + EDGE_CAUTION[1:] + ".")
     return tuple(out)
 
 

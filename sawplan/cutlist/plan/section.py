@@ -20,6 +20,7 @@ from sawplan.cutlist.jobfile.lines import located
 from sawplan.cutlist.jobfile.types import Job
 from sawplan.cutlist.plan.types import BarCut, OrderLine, SectionPlan, Shortfall
 from sawplan.cutlist.sheets.bar_layout import bar_cost, bar_cut
+from sawplan.display import Q, say
 from sawplan.errors import SawplanError
 from sawplan.weights import mass_per_length_kg_m
 
@@ -62,8 +63,8 @@ def plan_section(
         grip=_up(h.grip_mm),
         min_remnant=_up(h.min_remnant_mm),
     )
-    # the section as the job file's first stock entry writes it: what is on the rack label
-    label = f"{material.key} {lines[0].section_text}"
+    # material and section, its sizes shown again in the display units (a Phrase)
+    label = say("{} {}", material.key, Q("section", section))
     length_text = _length_text
     try:
         result = (
@@ -92,7 +93,7 @@ def plan_section(
         pieces = [by_part[k] for k in pattern.pieces]
         bars.append(
             bar_cut(first_bar + i, label, s, pieces, marks, kerf_mm, h.trim_mm, kg_per_m,
-                 time_per_cut, h.min_remnant_mm)
+                 time_per_cut, h.min_remnant_mm, section)
         )  # fmt: skip
 
     cuts = sum(b.cuts for b in bars)
