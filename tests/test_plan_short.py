@@ -81,7 +81,7 @@ def test_two_short_sections_give_both_shortfalls_and_a_valid_partial_plan(catalo
     plan = plan_of(TWO_SHORT, catalogue, saw)
     assert not plan.complete
     short = {f.group: dict(f.pieces) for f in plan.shortfalls}
-    assert short == {"1018 round 30mm": {"pin": 4}, "4140 round 50mm": {"shaft": 1}}
+    assert short == {"1018 round Ø30 mm": {"pin": 4}, "4140 round Ø50 mm": {"shaft": 1}}
     cut = {}
     for b in plan.bars:
         for p in b.pieces:
@@ -89,16 +89,19 @@ def test_two_short_sections_give_both_shortfalls_and_a_valid_partial_plan(catalo
     assert cut == {"pin": 6, "shaft": 2}
     # cheapest order (by hand): 4 pins fit two 1000 mm bars (20) or one 3000 mm bar (28)
     order = {(o.group, o.length_mm): o.count for f in plan.shortfalls for o in f.order}
-    assert order == {("1018 round 30mm", 1000.0): 2, ("4140 round 50mm", 2000.0): 1}
+    assert order == {("1018 round Ø30 mm", 1000.0): 2, ("4140 round Ø50 mm", 2000.0): 1}
     assert plan.order_cost == pytest.approx(2 * 10 + 40)
 
 
 def test_the_order_list_added_as_stock_completes_the_job(catalogue, saw):
     plan = plan_of(TWO_SHORT, catalogue, saw)
+    job = parse_job(TWO_SHORT, catalogue, file="job.toml")
+    line_of = {s.index: s for s in job.stock}
     extra = []
     for f in plan.shortfalls:
         for o in f.order:
-            material, section = f.group.split(" ", 1)
+            ordered = line_of[o.stock_entry]  # the stock line whose length is ordered
+            material, section = ordered.material, ordered.section_text
             extra.append(
                 f'\n[[stock]]\nmaterial = "{material}"\nsection = "{section}"\n'
                 f'length = "{o.length_mm:g}mm"\ncount = {o.count}\nprice = {o.price_each}\n'
@@ -253,7 +256,7 @@ def test_short_plan_json_says_complete_and_lists_shortfalls(cli, tmp_path):
     assert r.code == 8
     data = json.loads(r.out)
     assert data["complete"] is False
-    assert {f["group"] for f in data["shortfalls"]} == {"1018 round 30mm", "4140 round 50mm"}
+    assert {f["group"] for f in data["shortfalls"]} == {"1018 round Ø30 mm", "4140 round Ø50 mm"}
 
 
 # --- bounded work: regressions ------------------------------------------------------------------
