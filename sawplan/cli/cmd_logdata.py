@@ -31,8 +31,8 @@ with the same profile is reused.
 
 \b
 Examples:
-  sawplan import log-csv
-  sawplan import log-csv --db new-log.sqlite
+  sawplan import old-shop-csv
+  sawplan import old-shop-csv --db new-log.sqlite
 """
 
 BACKUP_HELP = """Copy the blade log into FILE, safely while others use it.
@@ -52,13 +52,14 @@ def export_command(
     force: ForceOpt = False,
     db: DbOpt = None,
 ) -> None:
+    from sawplan.cli.progress import progress
     from sawplan.errors import NotFoundError
     from sawplan.store import connect, resolve_db_path
     from sawplan.store.exchange import export_csv
 
     if not resolve_db_path(db).is_file():
         raise NotFoundError(f"no blade log at {resolve_db_path(db)}", field="db", hint="give --db")
-    with connect(db, create=False) as database:
+    with connect(db, create=False) as database, progress(f"exporting the blade log to {csvdir}"):
         result = export_csv(database, csvdir, overwrite=force)
     counts = ", ".join(f"{n} {table}" for table, n in result.rows.items())
     print(f"exported to {result.folder}: {counts}")
@@ -68,10 +69,11 @@ def import_command(
     csvdir: Annotated[Path, arg("folder", help="Folder holding the CSV files.")],
     db: DbOpt = None,
 ) -> None:
+    from sawplan.cli.progress import progress
     from sawplan.store import connect
     from sawplan.store.exchange import import_csv
 
-    with connect(db) as database:
+    with connect(db) as database, progress(f"importing {csvdir}"):
         result = import_csv(database, csvdir)
     counts = ", ".join(f"{n} {table}" for table, n in result.rows.items())
     print(f"imported from {result.folder}: {counts}")
@@ -82,9 +84,11 @@ def backup_command(
     force: ForceOpt = False,
     db: DbOpt = None,
 ) -> None:
+    from sawplan.cli.progress import progress
     from sawplan.store.exchange import backup
 
-    result = backup(db, file, overwrite=force)
+    with progress(f"backing up the blade log to {file}"):
+        result = backup(db, file, overwrite=force)
     print(f"backed up {result.source} to {result.backup} ({result.bytes:,} bytes)")
 
 

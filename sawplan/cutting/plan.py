@@ -8,6 +8,7 @@ scored with plain arithmetic.  ``choice`` picks among the scored pitches.
 from __future__ import annotations
 
 import math
+from collections.abc import Iterable
 from dataclasses import dataclass, replace
 from typing import Protocol
 
@@ -109,8 +110,9 @@ def rubbing_floor_mm() -> float:
     )
 
 
-def check_fits(saw: Saw, section: SectionLike) -> None:
-    """BadDataError when the work does not fit the saw; a bundle names the largest that does."""
+def check_fits(saw: Saw, section: SectionLike, alternatives: Iterable[Saw] | None = None) -> None:
+    """BadDataError when the work does not fit the saw; a bundle names the largest that does,
+    one piece the saws that take it (``alternatives``, as for ``saws.check_capacity``)."""
     if section.pieces > 1:
         from sawplan.sections import largest_bundle
 
@@ -135,7 +137,7 @@ def check_fits(saw: Saw, section: SectionLike) -> None:
                 field="bundle",
                 hint=f"--bundle {largest[0]}x{largest[1]}" if largest else None,
             )
-    check_capacity(saw, section)
+    check_capacity(saw, section, alternatives)
 
 
 def make_plan(
