@@ -7,12 +7,15 @@ Tube, pipe, hollow sections, structurals and bundles: the trade reads the
 pitch off the solids chart at the *average width of cut* — metal area ÷ blade
 travel (common practice, printed in saw operators' manuals: a 4 in OD × 3 in
 ID tube has 5.5 in² over 4 in of travel, 1.38 in, so 4/6).  sawplan reads it
-the same way, with the same physics as for solids, then keeps at least three
-teeth over the whole chord where it is thinnest (both walls of a tube at its
-equator), and never takes a pitch whose bite sits under the rubbing floor for
-most of the cut when another one keeps the teeth and does not.  Walls too
-thin for three teeth of any pitch get the finest pitch: where the two rules
-pull apart, stripped teeth and a broken blade weigh more than rubbing wear.
+the same way, with the same physics as for solids, in variable pitches, then
+aims at three teeth over the whole chord where it is thinnest (both walls of
+a tube at its equator) without rubbing over most of the cut, from that chart
+pitch or a step either side.  Where none does, it takes the finest variable
+pitch within that step that keeps two teeth on average — what the trade's
+charts for tube and structurals accept in a thin wall or web (common
+practice, from memory) — rather than a far finer pitch that packs its
+gullets over the rest of the section.  Walls too thin for either get the
+finest pitch (docs/pitch.md).
 """
 
 from __future__ import annotations
@@ -30,8 +33,8 @@ class Choice:
     """The chosen candidate and how it was reached (for the explanation)."""
 
     chosen: Candidate
-    how: str  # fastest | chart | near-chart | finer-for-teeth | coarser-for-rubbing | thin-walls
-    # | stalled | given | other
+    how: str  # fastest | chart | near-chart | finer-for-teeth | coarser-for-rubbing | two-teeth
+    # | thin-walls | stalled | given | other
     chart: Candidate | None = None  # the pitch read at the average width of cut (walls)
     width_of_cut_mm: float | None = None
 
@@ -80,7 +83,8 @@ def pick_solid(cands: list[Candidate], *, work_hardens: bool) -> Candidate:
 
 
 def chart_pitch(plan: Plan, cands: list[Candidate]) -> Candidate:
-    """The pitch the solids' physics gives for a solid as wide as the average width of cut."""
+    """The variable pitch the solids' physics gives for a solid as wide as the average
+    width of cut."""
     w = plan.section.mean_chord_mm
     quad = Quadrature(
         height_mm=w,
@@ -91,9 +95,12 @@ def chart_pitch(plan: Plan, cands: list[Candidate]) -> Candidate:
         runs_mm=(w,),
         kink_runs_mm=(w,),
     )
+    # the trade's charts for tube, sections and bundles, like MH31's pairs, are in variable
+    # pitches: read them there (a thin average width otherwise lands on 24 TPI)
+    chart_cands = [c for c in cands if c.pitch.kind == "variable"] or cands
     solid = [
         score(plan, c.pitch, quad=quad, thinnest_mm=w, widest_mm=w, solid=True, set_feed=False)
-        for c in cands
+        for c in chart_cands
     ]
     return pick_solid(solid, work_hardens=plan.material.work_hardens)
 
@@ -121,6 +128,49 @@ def _fastest(group: list[Candidate], work_hardens: bool) -> Candidate:
     return min(near, key=lambda c: (c.pitch.tpi_mean, c.time))
 
 
+def _in(group: list[Candidate], among: list[Candidate]) -> list[Candidate]:
+    return [c for c in group if any(c is a for a in among)]
+
+
+def _finest(group: list[Candidate]) -> Candidate:
+    return max(group, key=lambda c: (c.pitch.tpi_mean, c.pitch.tpi_fine))
+
+
+def _nearest(group: list[Candidate], chart: Candidate) -> Candidate:
+    """The pitch of ``group`` closest to the chart pitch (variable pitches first)."""
+    group = [c for c in group if c.pitch.kind == "variable"] or group
+    return min(group, key=lambda c: (round(_steps(c, chart), 9), c.time))
+
+
+def _walls_pick(plan: Plan, cands: list[Candidate], chart: Candidate) -> Candidate | None:
+    """The rule of docs/pitch.md, in its order; None when no pitch keeps two teeth.
+
+    1. Three teeth over the thinnest chord without rubbing over most of the cut, from
+       the chart pitch or one step either side: the fastest of those.
+    2. Else, one step either side of the chart, the finest variable pitch that keeps at
+       least two teeth on average there (one that does not rub over most of the cut
+       first), unless all of those rub and a pitch further off keeps three without rubbing.
+    3. Else (no pitch within a step keeps two) the variable pitch nearest the chart that
+       does, or failing that the nearest that keeps three.
+    """
+    live = [c for c in cands if not c.stalled]
+    window = _in(live, _window(chart, cands))
+    clean3 = [c for c in live if not c.too_few and not c.rubs_most]
+    near = _in(clean3, window)
+    if near:
+        return _fastest(near, plan.material.work_hardens)
+    two = [c for c in window if c.keeps_two]
+    if two:
+        clean = [c for c in two if not c.rubs_most]
+        if clean or not clean3:
+            return _finest(clean or two)
+        return _nearest(clean3, chart)
+    for group in ([c for c in live if c.keeps_two], [c for c in live if not c.too_few]):
+        if group:
+            return _nearest([c for c in group if not c.rubs_most] or group, chart)
+    return None
+
+
 def pick_walls(plan: Plan, cands: list[Candidate]) -> Choice:
     """The chart pitch at the average width of cut, or the fastest pitch one step either side
     of it; moved further only as far as the tooth and rubbing rules need."""
@@ -130,20 +180,14 @@ def pick_walls(plan: Plan, cands: list[Candidate]) -> Choice:
     live = [c for c in cands if not c.stalled]
     if not live:
         return Choice(_coarsest(cands), "stalled", chart, width)
-    keeps_teeth = [c for c in live if not c.too_few]
-    if not keeps_teeth:  # the most teeth there are: stripped teeth cost more than rubbing
+    chosen = _walls_pick(plan, cands, chart)
+    if chosen is None:  # the most teeth there are: stripped teeth cost more than rubbing
         finest = max(live, key=lambda c: (c.pitch.tpi_coarse, c.pitch.tpi_fine))
         return Choice(finest, "thin-walls", chart, width)
-    # every pitch that keeps the teeth may rub (thin faces across the blade): then the
-    # rubbing rule has nothing to choose between
-    group = [c for c in keeps_teeth if not c.rubs_most] or keeps_teeth
-    near = [c for c in _window(chart, cands) if any(c is g for g in group)]
-    if near:
-        chosen = _fastest(near, plan.material.work_hardens)
-    else:
-        group = [c for c in group if c.pitch.kind == "variable"] or group
-        chosen = min(group, key=lambda c: (round(_steps(c, chart), 9), c.time))
-    if chosen.pitch.same_teeth(chart.pitch):
+    near = any(c is chosen for c in _window(chart, cands))
+    if chosen.too_few:
+        how = "two-teeth"
+    elif chosen.pitch.same_teeth(chart.pitch):
         how = "chart"
     elif near and not chart.too_few and not chart.rubs_most:
         how = "near-chart"
@@ -154,6 +198,34 @@ def pick_walls(plan: Plan, cands: list[Candidate]) -> Choice:
     else:
         how = "other"
     return Choice(chosen, how, chart, width)
+
+
+def three_teeth_aim(cands: list[Candidate]) -> Candidate | None:
+    """The coarsest pitch (variable first) that keeps three teeth over the thinnest chord:
+    what a ``two-teeth`` choice gave up, for its explanation."""
+    three = [c for c in cands if not c.too_few and not c.stalled]
+    three = [c for c in three if c.pitch.kind == "variable"] or three
+    return _coarsest(three) if three else None
+
+
+def two_teeth_floor(plan: Plan, recommended: Choice) -> bool:
+    """The tooth floor of this cut is two teeth on average, not three: walls whose pick
+    could not keep three within a step of the chart pitch (or at all) and keeps two."""
+    chosen = recommended.chosen
+    return not single_solid(plan.section) and chosen.too_few and chosen.keeps_two
+
+
+def meets_floor(cand: Candidate, recommended: Choice, cands: list[Candidate], two: bool) -> bool:
+    """Meets this cut's tooth rule: three teeth; where the floor is ``two``, also two on
+    average from a pitch no further from the chart pitch than the pick itself."""
+    if not cand.too_few:
+        return True
+    if not (two and cand.keeps_two):
+        return False
+    chart = recommended.chart
+    if chart is None or any(c is cand for c in _window(chart, cands)):
+        return True
+    return _steps(cand, chart) <= _steps(recommended.chosen, chart) + 1e-9
 
 
 def beyond_window(choice: Choice, cand: Candidate, cands: list[Candidate]) -> bool:

@@ -8,7 +8,13 @@ speeds and feeds in ``advice``.
 from __future__ import annotations
 
 from sawplan.cutting import constants as K
-from sawplan.cutting.choice import Choice, beyond_window, pool
+from sawplan.cutting.choice import (
+    Choice,
+    beyond_window,
+    pool,
+    three_teeth_aim,
+    two_teeth_floor,
+)
 from sawplan.cutting.plan import Candidate, Plan, SectionLike, single_solid
 from sawplan.cutting.words import (
     Phrase,
@@ -49,6 +55,15 @@ def thinnest_text(section: SectionLike) -> Phrase:
     return say("the {} of metal at the thinnest depth", mm(section.thinnest_chord_mm))
 
 
+def teeth_count(cand: Candidate) -> str:
+    """Teeth over the thinnest chord: '2.5 teeth (3.0 on average)' for a variable pitch
+    (the first where its teeth are widest apart, as the three-tooth rule counts them),
+    '2.0 teeth' for a constant one."""
+    if cand.pitch.kind == "constant":
+        return f"{cand.teeth_thinnest:.1f} teeth"
+    return f"{cand.teeth_thinnest:.1f} teeth ({cand.teeth_thinnest_mean:.1f} on average)"
+
+
 def ratio_text(ratio: float) -> str:
     """'1.4× slower', 'about as fast', 'over ten times faster'."""
     if ratio >= 1.05:
@@ -71,7 +86,31 @@ def limit_text(cand: Candidate) -> str:
     return f"{LIMIT_WORDS[run.governing_limit]} sets the feed for {share(part)} of the cut"
 
 
-def why_chosen(choice: Choice, plan: Plan) -> Phrase:
+def two_teeth_why(choice: Choice, plan: Plan, cands: list[Candidate]) -> Phrase:
+    """Why a wall cut keeps two teeth on average over its thinnest metal, not three."""
+    cand, chart, section = choice.chosen, choice.chart, plan.section
+    assert chart is not None
+    where = thinnest_text(section)
+    avg = say("the {} read off the {} average width of cut", chart.pitch.label,
+              width(choice.width_of_cut_mm or 0.0))  # fmt: skip
+    aim = three_teeth_aim(cands)
+    if aim is None:
+        gave_up = say("no pitch keeps 3 teeth over {}", where)
+    elif beyond_window(choice, aim, cands):
+        gave_up = say("3 teeth over {} would take {}, more than a step finer than {}",
+                      where, aim.pitch.label, avg)  # fmt: skip
+    else:
+        gave_up = say("3 teeth over {} would take {}, whose bite sits under the rubbing floor "
+                      "across {} of the metal", where, aim.pitch.label,
+                      share(aim.run.rubbing_share))  # fmt: skip
+    variable = " with a variable pitch" if cand.pitch.kind == "variable" else ""
+    return say(
+        "{}; {} keeps {} there, and trade charts for tube and structurals accept 2 on average{}",
+        gave_up, cand.pitch.label, teeth_count(cand), variable,
+    )  # fmt: skip
+
+
+def why_chosen(choice: Choice, plan: Plan, cands: list[Candidate]) -> Phrase:
     """The first 'Why' line of a recommendation."""
     cand, section = choice.chosen, plan.section
     label, teeth = cand.pitch.label, teeth_text(cand, section)
@@ -112,11 +151,13 @@ def why_chosen(choice: Choice, plan: Plan) -> Phrase:
             "across {} of the metal; {}; {}",
             label, chart.pitch.label, avg, share(chart.run.rubbing_share), teeth, limit,
         )  # fmt: skip
+    if choice.how == "two-teeth":
+        return say("{}: {}; {}", label, two_teeth_why(choice, plan, cands), limit)
     if choice.how == "thin-walls":
         return say(
             "{}: the finest pitch made for this blade; no pitch keeps 3 teeth over {} ({} "
-            "here); {}",
-            label, thinnest_text(section), f"{cand.teeth_thinnest:.1f}", limit,
+            "here), nor any variable pitch 2 on average; {}",
+            label, thinnest_text(section), teeth_count(cand), limit,
         )  # fmt: skip
     return say(
         "{}: the pitch nearest the {} read off {} that keeps 3 teeth and bites above the "
@@ -126,15 +167,22 @@ def why_chosen(choice: Choice, plan: Plan) -> Phrase:
 
 
 def neighbour_line(
-    side: str, cand: Candidate, chosen: Candidate, section: SectionLike, far: str = ""
+    side: str,
+    cand: Candidate,
+    chosen: Candidate,
+    section: SectionLike,
+    far: str = "",
+    short: bool | None = None,
 ) -> Phrase | str:
+    """One neighbour: why it is not the pick.  ``short`` says it misses the cut's tooth
+    floor (three teeth, or two on average on walls; ``too_few`` when None)."""
     label = f"{side} {cand.pitch.label}"
     if cand.stalled:
         return f"{label}: will not cut (the head cannot load its teeth)"
-    if cand.too_few:
-        return say(
-            "{}: only {} teeth over {}", label, f"{cand.teeth_thinnest:.1f}", thinnest_text(section)
-        )
+    if cand.too_few if short is None else short:
+        solid = single_solid(section)
+        teeth = f"{cand.teeth_thinnest:.1f} teeth" if solid else teeth_count(cand)
+        return say("{}: only {} over {}", label, teeth, thinnest_text(section))
     if cand.too_many:
         most = K.number("bite", "max_teeth_widest_chord")
         return say(
@@ -151,13 +199,17 @@ def neighbour_line(
     if chosen.stalled:
         return f"{label}: {why}"
     ratio = cand.time / chosen.time
-    return f"{label}: {why}, {ratio_text(ratio)}{far if ratio < 1 else ''}"
+    line = f"{label}: {why}, {ratio_text(ratio)}{far if ratio < 1 else ''}"
+    if side == "coarser" and cand.too_few and not single_solid(section):  # fewer teeth
+        return say("{}, with {} over {}", line, teeth_count(cand), thinnest_text(section))
+    return line
 
 
-def neighbours(choice: Choice, cands: list[Candidate], section: SectionLike) -> Phrase | None:
+def neighbours(choice: Choice, cands: list[Candidate], plan: Plan) -> Phrase | None:
     """What the next finer and next coarser pitch of the same family would do."""
-    chosen = choice.chosen
+    chosen, section = choice.chosen, plan.section
     solid = single_solid(section)
+    two = two_teeth_floor(plan, choice)  # the floor is two teeth on average (walls)
     family = [c for c in pool(cands, solid=solid) if c.pitch.kind == chosen.pitch.kind]
     if not any(c.pitch.same_teeth(chosen.pitch) for c in family):
         family = cands
@@ -171,7 +223,8 @@ def neighbours(choice: Choice, cands: list[Candidate], section: SectionLike) -> 
         far = ""
         if choice.chart is not None and beyond_window(choice, cand, cands):
             far = f", but more than a step from the {choice.chart.pitch.label} the trade reads here"
-        parts.append(neighbour_line(side, cand, chosen, section, far))
+        short = not cand.keeps_two if two else cand.too_few
+        parts.append(neighbour_line(side, cand, chosen, section, far, short))
     return join("; ", parts) if parts else None
 
 

@@ -76,6 +76,7 @@ class Candidate:
     teeth_widest: float  # mean-pitch teeth in the widest chord
     too_few: bool
     too_many: bool
+    teeth_thinnest_mean: float = 0.0  # mean-pitch teeth over the chord at its thinnest depth
 
     @property
     def stalled(self) -> bool:
@@ -84,6 +85,13 @@ class Candidate:
     @property
     def allowed(self) -> bool:
         return not (self.too_few or self.too_many or self.stalled)
+
+    @property
+    def keeps_two(self) -> bool:
+        """A variable pitch with at least two teeth on average over the thinnest chord: the
+        floor trade charts accept for a thin wall or web (docs/pitch.md)."""
+        floor = K.number("bite", "min_teeth_thin_wall")
+        return self.pitch.kind == "variable" and self.teeth_thinnest_mean >= floor - 1e-9
 
     @property
     def rubs_most(self) -> bool:
@@ -249,9 +257,10 @@ def score(
         constant_feed=not plan.saw.force_limited,
         set_feed_mm_min=plan.set_feed_mm_min if set_feed else None,
     )
-    too_few = thinnest < K.number("bite", "min_teeth")
+    too_few = thinnest < K.number("bite", "min_teeth") - 1e-9  # 3.0 by arithmetic is 3
     too_many = solid and widest > K.number("bite", "max_teeth_widest_chord")
-    return Candidate(pitch, teeth, run, thinnest, widest, too_few, too_many)
+    mean = pitch.teeth_in(thinnest_mm, coarse=False)
+    return Candidate(pitch, teeth, run, thinnest, widest, too_few, too_many, mean)
 
 
 def available(saw: Saw) -> list[Pitch]:

@@ -56,6 +56,7 @@ class Planned:
     cands: list[Candidate]
     choice: Choice
     shown: Candidate  # the chosen pitch, with the operator's down-feed if one was set
+    recommended: Choice  # the rules' own pick (the chosen one unless a pitch was given)
 
 
 def _plan(
@@ -72,15 +73,16 @@ def _plan(
         set_feed_mm_min=setup.feed_mm_min,
     )
     cands = [score(plan, p, set_feed=False) for p in available(saw)]
+    recommended = choose(plan, cands)
     if pitch is None:
-        choice = choose(plan, cands)
+        choice = recommended
     else:
         same = [c for c in cands if c.pitch.same_teeth(pitch)]
         choice = Choice(same[0] if same else score(plan, pitch, set_feed=False), "given")
     shown = choice.chosen
     if setup.feed_mm_min is not None:
         shown = score(plan, shown.pitch)
-    return Planned(plan, cands, choice, shown)
+    return Planned(plan, cands, choice, shown, recommended)
 
 
 def _profile(plan: Plan, cand: Candidate) -> tuple[ProfilePoint, ...]:
@@ -110,8 +112,8 @@ def _explanation(planned: Planned, given: bool) -> tuple[str, ...]:
     if given:
         lines = [f"{cand.pitch.label} as given"]
     else:
-        lines = [explain.why_chosen(planned.choice, plan)]
-        line = explain.neighbours(planned.choice, planned.cands, plan.section)
+        lines = [explain.why_chosen(planned.choice, plan, planned.cands)]
+        line = explain.neighbours(planned.choice, planned.cands, plan)
         if line:
             lines.append(line)
     lines.append(say("{}; {}", cand.teeth.form_why, cand.teeth.set_why))
@@ -169,6 +171,7 @@ def _result(
         min_wall_mm=section.min_wall_mm,
         thinnest_chord_mm=section.thinnest_chord_mm,
         teeth_in_thinnest=cand.teeth_thinnest,
+        teeth_in_thinnest_mean=cand.teeth_thinnest_mean,
         teeth_in_widest=cand.teeth_widest,
         governing_limit=run.governing_limit,
         limit_shares=run.limit_shares,
@@ -181,7 +184,14 @@ def _result(
             plan.speed.band_speed_m_min, saw.blade_length_mm, saw.wheel_count
         ),
         warnings=tuple(
-            warn.warnings(plan, cand, planned.cands, off.lines if off else (), given=given)
+            warn.warnings(
+                plan,
+                cand,
+                planned.cands,
+                off.lines if off else (),
+                given=given,
+                recommended=planned.recommended,
+            )
         ),
         explanation=_explanation(planned, given),
         profile=_profile(plan, cand),

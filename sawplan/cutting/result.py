@@ -84,6 +84,7 @@ class CutResult:
     min_wall_mm: float | None
     thinnest_chord_mm: float  # metal on the blade's line where it is least (solids: widest)
     teeth_in_thinnest: float  # coarse-pitch teeth over that chord (the three-tooth rule)
+    teeth_in_thinnest_mean: float  # mean-pitch teeth over it (walls: the two-teeth floor)
     teeth_in_widest: float  # mean-pitch teeth in the widest chord
     governing_limit: str  # material | gullet | tooth | power | force | set
     limit_shares: tuple[tuple[str, float], ...]  # share of cut time per limit, largest first

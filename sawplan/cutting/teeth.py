@@ -66,11 +66,18 @@ def choose_teeth(
             "regular teeth: the general-purpose form for this pitch and section",
         )
     min_teeth = K.number("bite", "min_teeth")
-    if thin_wall or fewest_teeth < min_teeth:
+    if fewest_teeth < min_teeth:
         where = "the widest chord" if is_solid else "the metal at the thinnest depth"
         tooth_set, set_why = (
             "wavy",
-            f"wavy set: with {fewest_teeth:.1f} teeth over {where}, groups of teeth share each bite",
+            f"wavy set: with fewer than {min_teeth:.0f} teeth over {where}, groups of teeth "
+            "share each bite",
+        )
+    elif thin_wall:
+        tooth_set, set_why = (
+            "wavy",
+            "wavy set: on walls this thin, groups of teeth share each bite and the blade "
+            "chatters less",
         )
     elif soft:
         tooth_set, set_why = "alternate", "alternate set: a free-cutting set for soft material"

@@ -2,7 +2,10 @@
 
 The rules that keep a screen from contradicting itself: a fix is only
 offered when a catalogued pitch really does better (a coarser pitch that
-still keeps three teeth, a finer one that reaches three); walls too thin for
+still keeps the cut's tooth floor, a finer one that reaches it), and the
+floor is the recommendation's own — three teeth, or two on average on walls
+where no pitch near the chart keeps three (docs/pitch.md); a wall cut with
+two teeth gets one warning that says what to do there; walls too thin for
 any pitch get one warning; a cut that will not progress says so once and
 nothing about its time.
 """
@@ -10,7 +13,8 @@ nothing about its time.
 from __future__ import annotations
 
 from sawplan.cutting import constants as K
-from sawplan.cutting.explain import thinnest_text
+from sawplan.cutting.choice import Choice, meets_floor, two_teeth_floor
+from sawplan.cutting.explain import teeth_count, thinnest_text
 from sawplan.cutting.mechanics import wheel_ratio_warning
 from sawplan.cutting.plan import Candidate, Plan, single_solid
 from sawplan.cutting.ploughing import teeth_in_chord, teeth_the_head_can_load
@@ -37,37 +41,52 @@ def stall_reason(plan: Plan, cand: Candidate) -> Phrase:
     )  # fmt: skip
 
 
-def _tooth_count(plan: Plan, cand: Candidate, cands: list[Candidate]) -> list[Phrase]:
-    need = K.number("bite", "min_teeth")
+def _two_teeth(plan: Plan, cand: Candidate) -> Phrase:
+    """The one warning of a wall cut with two teeth on average over its thinnest metal."""
+    damp = (
+        "the variable pitch damps the vibration there"
+        if cand.pitch.kind == "variable"
+        else "support the work close to the cut"
+    )
+    return say(
+        "{} of {} over {}, under 3: ease the feed while the blade crosses it; {}",
+        teeth_count(cand), cand.pitch.label, thinnest_text(plan.section), damp,
+    )  # fmt: skip
+
+
+def _too_few(
+    plan: Plan, cand: Candidate, cands: list[Candidate], two: bool, recommended: Choice
+) -> Phrase:
+    """Under the cut's tooth floor: walls too thin for any pitch, or a finer pitch to fit."""
+    where = thinnest_text(plan.section)
+    need = "2 on average" if two else f"{K.number('bite', 'min_teeth'):.0f}"
+    finer = [c for c in cands if meets_floor(c, recommended, cands, two) and not c.stalled]
+    if not finer:
+        return say(
+            "walls too thin for {} teeth of any pitch: {} of {} over {}; wavy set, "
+            "light feed, support the work close to the cut",
+            need, teeth_count(cand), cand.pitch.label, where,
+        )  # fmt: skip
+    fix = recommended.chosen
+    if fix.pitch.tpi_mean <= cand.pitch.tpi_mean or not any(c is fix for c in finer):
+        fix = min(finer, key=lambda c: (c.pitch.tpi_mean, c.time))
+    return say(
+        "only {} of {} over {} (fewer than {}): teeth can snag and strip; a finer "
+        "pitch such as {} keeps {}",
+        teeth_count(cand), cand.pitch.label, where, need, fix.pitch.label, teeth_count(fix),
+    )  # fmt: skip
+
+
+def _tooth_count(
+    plan: Plan, cand: Candidate, cands: list[Candidate], recommended: Choice
+) -> list[Phrase]:
     out = []
     if cand.too_few:
-        where = thinnest_text(plan.section)
-        finer = [c for c in cands if not c.too_few and not c.stalled]
-        if not finer:
-            out.append(
-                say(
-                    "walls too thin for {} teeth of any pitch: {} teeth of {} over {}; wavy set, "
-                    "light feed, support the work close to the cut",
-                    f"{need:.0f}",
-                    f"{cand.teeth_thinnest:.1f}",
-                    cand.pitch.label,
-                    where,
-                )  # fmt: skip
-            )
+        two = two_teeth_floor(plan, recommended)
+        if two and meets_floor(cand, recommended, cands, two):
+            out.append(_two_teeth(plan, cand))
         else:
-            fix = min(finer, key=lambda c: (c.pitch.tpi_mean, c.time))
-            out.append(
-                say(
-                    "only {} teeth of {} over {} (fewer than {}): teeth can snag and strip; a "
-                    "finer pitch such as {} keeps {}",
-                    f"{cand.teeth_thinnest:.1f}",
-                    cand.pitch.label,
-                    where,
-                    f"{need:.0f}",
-                    fix.pitch.label,
-                    f"{fix.teeth_thinnest:.1f}",
-                )  # fmt: skip
-            )
+            out.append(_too_few(plan, cand, cands, two, recommended))
     if cand.too_many:
         most = K.number("bite", "max_teeth_widest_chord")
         out.append(
@@ -82,7 +101,9 @@ def _tooth_count(plan: Plan, cand: Candidate, cands: list[Candidate]) -> list[Ph
     return out
 
 
-def _rubbing(plan: Plan, cand: Candidate, cands: list[Candidate], given: bool) -> list[Phrase]:
+def _rubbing(
+    plan: Plan, cand: Candidate, cands: list[Candidate], given: bool, recommended: Choice
+) -> list[Phrase]:
     run = cand.run
     if run.rubbing_share <= 0.02:
         return []
@@ -97,10 +118,15 @@ def _rubbing(plan: Plan, cand: Candidate, cands: list[Candidate], given: bool) -
         if plan.material.work_hardens:
             out.append(_work_hardens(plan))
         return out
+    two = two_teeth_floor(plan, recommended)
+    need = "2 teeth on average" if two else "3 teeth"
     better = [
         c
         for c in cands
-        if c.allowed  # keeps 3 teeth (and, on a solid, at most about 24)
+        # keeps the cut's tooth floor (and, on a solid, at most about 24 teeth)
+        if meets_floor(c, recommended, cands, two)
+        and not c.too_many
+        and not c.stalled
         and c.run.rubbing_share < run.rubbing_share - 0.1
         and c.time <= cand.time * 1.5
     ]
@@ -108,7 +134,7 @@ def _rubbing(plan: Plan, cand: Candidate, cands: list[Candidate], given: bool) -
         fix = min(
             better, key=lambda c: (c.run.rubbing_share > 0, c.pitch.kind != "variable", c.time)
         )
-        keeps = "" if single_solid(plan.section) else " and still keeps 3 teeth in the walls"
+        keeps = "" if single_solid(plan.section) else say(" and still keeps {} in the walls", need)
         out = [say("{}; a coarser pitch such as {} bites deeper{}", head, fix.pitch.label, keeps)]
     elif cand.too_few:
         out = [
@@ -121,12 +147,13 @@ def _rubbing(plan: Plan, cand: Candidate, cands: list[Candidate], given: bool) -
         out = [
             say(
                 "{} where chips fill the gullets over long stretches of metal; no pitch that "
-                "keeps 3 teeth bites deeper here, so keep the feed steady",
+                "keeps {} rubs over less of it here, so keep the feed steady",
                 head,
+                need,
             )
         ]
     else:
-        out = [say("{}; no pitch that keeps 3 teeth bites deeper here", head)]
+        out = [say("{}; no pitch that keeps {} rubs over less of it here", head, need)]
     if plan.material.work_hardens:
         out.append(_work_hardens(plan))
     return out
@@ -206,11 +233,18 @@ def warnings(
     extra: tuple[Phrase, ...] = (),
     *,
     given: bool = False,
+    recommended: Choice | None = None,
 ) -> list[Phrase]:
-    """Every warning of one cut; ``extra`` carries the speed and feed consequences (advice)."""
+    """Every warning of one cut; ``extra`` carries the speed and feed consequences (advice).
+
+    ``recommended`` is the rules' pick for this cut (``cand`` itself when None): its
+    tooth floor — three teeth, or two on average on walls — is the one a
+    given pitch is held to, so the screen never asks for more than the recommendation.
+    """
     if cand.stalled:
         return [stall_reason(plan, cand), *extra]
-    out = _tooth_count(plan, cand, cands)
+    recommended = Choice(cand, "given") if recommended is None else recommended
+    out = _tooth_count(plan, cand, cands, recommended)
     width = plan.saw.blade_width_mm
     if cand.pitch.source != "given" and not cand.pitch.fits_blade(width):
         out.append(
@@ -222,7 +256,7 @@ def warnings(
                 mm(cand.pitch.max_blade_width_mm),
             )  # fmt: skip
         )
-    out += _rubbing(plan, cand, cands, given)
+    out += _rubbing(plan, cand, cands, given, recommended)
     out += _limits(plan, cand)
     out += _clipped_speed(plan)
     out += extra
