@@ -21,6 +21,7 @@ class ExitCode(IntEnum):
     CONFLICT = 5
     DAMAGED = 6
     STORAGE = 7
+    SERVER = 9
 
 
 class SawplanError(Exception):
@@ -75,3 +76,9 @@ class StorageError(SawplanError, OSError):
     """The disk refused: full, read-only, locked too long."""
 
     exit_code = ExitCode.STORAGE
+
+
+class ServerError(SawplanError):
+    """The database server cannot be reached, or refuses the login."""
+
+    exit_code = ExitCode.SERVER

@@ -18,10 +18,12 @@ UnitsOpt = Annotated[
 JsonOpt = Annotated[bool, typer.Option("--json", help="Print JSON (keys carry their unit).")]
 CsvOpt = Annotated[bool, typer.Option("--csv", help="Print CSV instead of a table.")]
 DbOpt = Annotated[
-    Path | None,
+    str | None,
     typer.Option(
         "--db",
-        help="Blade log file (default: per-user data folder; env SAWPLAN_DB).",
+        metavar="PATH|URL",
+        help="Blade log: a file, or a postgresql:// URL "
+        "(default: per-user data folder; env SAWPLAN_DB).",
         show_default=False,
     ),
 ]

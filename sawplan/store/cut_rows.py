@@ -4,16 +4,23 @@ from __future__ import annotations
 
 import dataclasses
 import difflib
+import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 from sawplan.errors import BadDataError, ConflictError, NotFoundError, UsageError
 from sawplan.store.blade_rows import Blade, existing_blade_row, get_blade, retire_blade
-from sawplan.store.db import write_transaction
-from sawplan.store.fields import EVENT_KINDS, check_failure_mode, clean_text, modes_hint
+from sawplan.store.db import run_write
+from sawplan.store.fields import (
+    EVENT_KINDS,
+    check_failure_mode,
+    clean_text,
+    modes_hint,
+    whole_number,
+)
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database
+    from sawplan.store.db import Log as Database
 
 
 @dataclass(frozen=True)
@@ -42,9 +49,6 @@ class CutEntry:
 
 # the columns are CutEntry's own field names; every value is a bound parameter
 _CUT_COLUMNS = tuple(f.name for f in dataclasses.fields(CutEntry))
-_INSERT_CUT = (
-    f"INSERT INTO cuts ({', '.join(_CUT_COLUMNS)}) VALUES ({', '.join('?' * len(_CUT_COLUMNS))})"
-)
 
 
 def cut_row(entry: CutEntry) -> dict[str, Any]:
@@ -58,19 +62,23 @@ def cut_row(entry: CutEntry) -> dict[str, Any]:
 
 def log_cut(db: Database, entry: CutEntry) -> int:
     """Write one cut entry; refused on a retired blade. Returns the row id."""
-    if not entry.area_mm2 > 0 or entry.count < 1 or entry.pieces < 1:
-        raise BadDataError("a cut needs an area above 0 and at least one cut", field="cuts")
+    whole_number(entry.count, "count")
+    whole_number(entry.pieces, "pieces")
+    if not (math.isfinite(entry.area_mm2) and entry.area_mm2 > 0):
+        raise BadDataError("a cut needs an area above 0", field="area")
     row = cut_row(entry)
-    with write_transaction(db):
+
+    def step() -> int:
         status = db.execute(
-            "SELECT status, tag FROM blades WHERE id = ?", [entry.blade_id]
+            "SELECT status, tag FROM blades WHERE id = :id", {"id": entry.blade_id}
         ).fetchone()
         if status is None:
             raise NotFoundError(f"no blade with id {entry.blade_id}", field="blade")
         if status[0] == "retired":
             raise ConflictError(f"blade {status[1]} is retired; no more cuts can be logged on it")
-        cursor = db.execute(_INSERT_CUT, [row[c] for c in _CUT_COLUMNS])
-        return int(cursor.lastrowid or 0)
+        return db.insert("cuts", {c: row[c] for c in _CUT_COLUMNS})
+
+    return run_write(db, step)
 
 
 def list_cuts(
@@ -82,37 +90,34 @@ def list_cuts(
     limit: int = 30,
 ) -> list[dict[str, Any]]:
     """Cut entries, newest first, optionally for one blade, saw or job (limit 0: all)."""
-    if limit < 0:
-        raise UsageError(f"must be 0 (all) or more, got {limit}", field="limit")
+    whole_number(limit, "limit")
     sql = (
         "SELECT c.*, b.tag AS blade, s.name AS saw FROM cuts c JOIN blades b ON b.id = c.blade_id "
         "LEFT JOIN saws s ON s.id = c.saw_id WHERE 1 = 1"
     )
-    params: list[Any] = []
+    params: dict[str, Any] = {}
     if blade is not None:
-        sql += " AND b.id = ?"
-        params.append(get_blade(db, blade).id)
+        sql += " AND b.id = :blade_id"
+        params["blade_id"] = get_blade(db, blade).id
     if saw is not None:
-        sql += " AND s.name = ? COLLATE NOCASE"
-        params.append(saw.strip())
+        sql += " AND lower(s.name) = lower(:saw)"
+        params["saw"] = saw.strip()
     if job is not None:
-        sql += " AND c.job = ?"
-        params.append(job.strip())
+        sql += " AND c.job = :job"
+        params["job"] = job.strip()
     sql += " ORDER BY c.cut_on DESC, c.id DESC"
     if limit > 0:
-        sql += " LIMIT ?"
-        params.append(limit)
-    return list(db.query(sql, params))
+        sql += " LIMIT :limit"
+        params["limit"] = limit
+    return db.query(sql, params)
 
 
 def cuts_of(db: Database, blade_id: int) -> list[dict[str, Any]]:
     """A blade's cuts in the order they were made (date, then entry order)."""
-    return list(
-        db.query(
-            "SELECT c.*, s.name AS saw FROM cuts c LEFT JOIN saws s ON s.id = c.saw_id "
-            "WHERE c.blade_id = ? ORDER BY c.cut_on, c.id",
-            [blade_id],
-        )
+    return db.query(
+        "SELECT c.*, s.name AS saw FROM cuts c LEFT JOIN saws s ON s.id = c.saw_id "
+        "WHERE c.blade_id = :blade_id ORDER BY c.cut_on, c.id",
+        {"blade_id": blade_id},
     )
 
 
@@ -153,28 +158,35 @@ def log_event(db: Database, entry: EventEntry) -> Blade:
             note=entry.note,
         )
     mode = check_failure_mode(entry.mode, field="mode") if entry.mode else None
-    if entry.teeth is not None and entry.teeth < 1:
-        raise BadDataError(f"must be 1 or more, got {entry.teeth}", field="teeth")
+    if entry.teeth is not None:
+        whole_number(entry.teeth, "teeth")
     teeth = entry.teeth if entry.teeth is not None else (1 if kind == "teeth-lost" else None)
-    with write_transaction(db):
+    location = clean_text(entry.location, field="location")
+    note = clean_text(entry.note, field="note")
+
+    def step() -> None:
         blade = existing_blade_row(db, entry.blade_tag)
         if blade["status"] == "retired":
             raise ConflictError(f"blade {blade['tag']} was retired on {blade['retired_on']}")
-        db["events"].insert(
+        db.insert(
+            "events",
             {
                 "blade_id": blade["id"],
                 "happened_on": entry.happened_on,
                 "kind": kind,
                 "mode": mode,
-                "location": clean_text(entry.location, field="location"),
+                "location": location,
                 "teeth": teeth,
-                "note": clean_text(entry.note, field="note"),
-            }
+                "note": note,
+            },
         )
+
+    run_write(db, step)
     return get_blade(db, entry.blade_tag)
 
 
 def events_of(db: Database, blade_id: int) -> list[dict[str, Any]]:
-    return list(
-        db.query("SELECT * FROM events WHERE blade_id = ? ORDER BY happened_on, id", [blade_id])
+    return db.query(
+        "SELECT * FROM events WHERE blade_id = :blade_id ORDER BY happened_on, id",
+        {"blade_id": blade_id},
     )

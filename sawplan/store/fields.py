@@ -12,6 +12,19 @@ EVENT_KINDS = ("teeth-lost", "crooked", "stall", "failure")
 WELDED = ("in-house", "bought")
 MAX_TEXT = {"tag": 40, "name": 60, "job": 60, "heat": 60, "note": 300, "other": 120}
 
+# Whole numbers the log keeps, with their ranges: checked before any database sees
+# them (SQLite stores 64-bit integers, PostgreSQL's ``integer`` 32-bit ones).
+WHOLE_NUMBERS: dict[str, tuple[int, int]] = {
+    "count": (1, 100_000),  # identical cuts in one entry
+    "cuts": (1, 100_000),
+    "pieces": (1, 10_000),  # pieces cut at once (a bundle)
+    "teeth": (1, 10_000),  # teeth lost at once
+    "wheel_count": (2, 4),
+    "coolant": (0, 1),
+    "break_in": (0, 1),
+    "limit": (0, 1_000_000),  # entries shown; 0 is all
+}
+
 
 def fmt_num(v: float) -> str:
     """Shortest plain text of a size: 27.0 → '27', 0.9 → '0.9'."""
@@ -64,3 +77,15 @@ def positive(value: float, field: str) -> None:
     """Refuse zero, negative and non-finite numbers."""
     if not (isinstance(value, int | float) and math.isfinite(value) and value > 0):
         raise BadDataError(f"must be above 0, got {value!r}", field=field)
+
+
+def whole_number(value: object, field: str) -> int:
+    """A whole number inside its range (``WHOLE_NUMBERS``), or one line naming the field."""
+    low, high = WHOLE_NUMBERS[field]
+    if isinstance(value, bool) or not isinstance(value, int):
+        raise BadDataError(f"expected a whole number, got {value!r}", field=field)
+    if not low <= value <= high:
+        shown = f"{value:,}" if abs(value) < 10**15 else f"{float(value):.3g}"
+        lowest = "0 (all)" if field == "limit" else f"{low:,}"
+        raise BadDataError(f"must be {lowest} to {high:,}, got {shown}", field=field)
+    return value

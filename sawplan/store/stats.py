@@ -13,7 +13,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, NamedTuple
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database
+    from sawplan.store.db import Log as Database
 
 from sawplan.store.records import fmt_num, pitch_label
 
@@ -101,6 +101,19 @@ class TimedCut(NamedTuple):
 
 
 CALIBRATION_WINDOW = 200
+# "= :x" never matches NULL, so a cut without a saw or a group has its own query
+_TIMED = (
+    "SELECT time_min, predicted_time_min FROM cuts WHERE {} AND time_min > 0 "
+    "AND predicted_time_min > 0 ORDER BY id DESC LIMIT :latest"
+)
+_TIMED_SQL = {
+    (saw_null, group_null): _TIMED.format(
+        ("saw_id IS NULL" if saw_null else "saw_id = :saw_id")
+        + (" AND material_group IS NULL" if group_null else " AND material_group = :material_group")
+    )
+    for saw_null in (False, True)
+    for group_null in (False, True)
+}
 
 
 def timed_cuts(
@@ -128,10 +141,8 @@ def timed_cuts(
     out: list[TimedCut] = []
     for saw_id, group in sorted(pairs, key=lambda p: (str(names.get(p[0])), str(p[1]))):
         rows = db.execute(
-            "SELECT time_min, predicted_time_min FROM cuts WHERE saw_id IS ? AND "
-            "material_group IS ? AND time_min > 0 AND predicted_time_min > 0 "
-            "ORDER BY id DESC LIMIT ?",
-            [saw_id, group, latest],
+            _TIMED_SQL[saw_id is None, group is None],
+            {"saw_id": saw_id, "material_group": group, "latest": latest},
         ).fetchall()
         name = names.get(saw_id)
         out += [TimedCut(name, group, t, p) for t, p in reversed(rows)]

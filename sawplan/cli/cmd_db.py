@@ -1,0 +1,83 @@
+"""``sawplan db copy|upgrade``: move a whole log between a file and a server; upgrade it."""
+
+from __future__ import annotations
+
+from typing import Annotated
+
+import typer
+
+from sawplan.cli.options import DbOpt
+
+HELP = """Move the blade log between a file and a PostgreSQL server; upgrade its schema.
+
+\b
+Examples:
+  sawplan db copy --from blade-log.sqlite --to postgresql://office@saw-server/sawplan
+  sawplan db upgrade --db postgresql://office@saw-server/sawplan
+"""
+
+COPY_HELP = """Copy a whole blade log into a new file or an empty database.
+
+Either side may be a log file or a postgresql:// URL. Every row keeps its
+id; the whole copy is one transaction. Afterwards each table is read back
+and compared with the source: row count and checksum. The source is not
+changed (an old log file is upgraded first, with a backup).
+
+\\b
+Examples:
+  sawplan db copy --from blade-log.sqlite --to postgresql://office@saw-server/sawplan
+  sawplan db copy --from postgresql://office@saw-server/sawplan --to copy.sqlite
+"""
+
+UPGRADE_HELP = """Bring a blade log to the schema this sawplan uses.
+
+A log file is upgraded when it is opened anyway (after a check and a copy
+into backups/); a shared PostgreSQL log only with this command, run once
+from one PC: it first writes a backup (see `sawplan backup`) into the
+backups folder of your data folder, then upgrades in one transaction.
+
+\\b
+Examples:
+  sawplan db upgrade --db postgresql://office@saw-server/sawplan
+  sawplan db upgrade --db old-log.sqlite
+"""
+
+
+def copy_command(
+    source: Annotated[
+        str, typer.Option("--from", metavar="PATH|URL", help="The log to copy.", show_default=False)
+    ],
+    target: Annotated[
+        str,
+        typer.Option(
+            "--to", metavar="PATH|URL", help="A new file or an empty database.", show_default=False
+        ),
+    ],
+) -> None:
+    from sawplan.store.transfer import copy_log
+
+    result = copy_log(source, target)
+    print(f"copied {result.source} to {result.target}, every table verified:")
+    for t in result.tables:
+        print(f"  {t.table:9s} {t.rows:9,} rows  sha256 {t.checksum[:16]}")
+
+
+def upgrade_command(db: DbOpt = None) -> None:
+    from sawplan.store.upgrade import upgrade_log
+
+    outcome = upgrade_log(db)
+    if outcome.from_version == outcome.to_version:
+        print(f"{outcome.where} is at schema {outcome.to_version} already; nothing to do")
+        return
+    print(f"upgraded {outcome.where} from schema {outcome.from_version} to {outcome.to_version}")
+    if outcome.backup:
+        print(f"  backup made first: {outcome.backup} ({outcome.backup_kind})")
+
+
+def register(app: typer.Typer) -> None:
+    group = typer.Typer(
+        help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
+    )
+    group.command("copy", help=COPY_HELP)(copy_command)
+    group.command("upgrade", help=UPGRADE_HELP)(upgrade_command)
+    app.add_typer(group, name="db", help=HELP)
