@@ -138,7 +138,7 @@ def log_cut_command(
     from sawplan.sections import parse_section
     from sawplan.store import connect
     from sawplan.store.dates import parse_day
-    from sawplan.store.records import CutEntry, get_blade, log_cut
+    from sawplan.store.records import CutEntry, record_cut
     from sawplan.units import to_core
 
     mat = load_catalogue(materials_file).get(material)
@@ -166,20 +166,21 @@ def log_cut_command(
     feed_mm_min, feed_setting = parse_feed(feed)
     on = parse_day(date)
     notes: list[str] = []
-    with connect(db) as database:
-        target, saw_id, saw_obj = resolve_target(database, blade, saw, saws_file, on)
+
+    def entry_for(target) -> CutEntry:
+        notes.clear()  # the step may run again after a conflict with another station
         predicted = None
-        if area is None and saw_obj is not None:
+        if area is None and target.saw is not None:
             predicted, why = predict_minutes(
-                mat, sec, saw_obj, target, dry=dry, speed_m_min=speed_m_min
+                mat, sec, target.saw, target.blade, dry=dry, speed_m_min=speed_m_min
             )
             if predicted is None:
                 notes.append(f"no model time: {why}")
             else:
                 predicted *= cuts
-        entry = CutEntry(
-            blade_id=target.id,
-            saw_id=saw_id,
+        return CutEntry(
+            blade_id=target.blade.id,
+            saw_id=target.saw_id,
             cut_on=on,
             material=mat.key,
             material_group=mat.group,
@@ -197,8 +198,16 @@ def log_cut_command(
             heat=heat,
             note=note,
         )
-        entry_id = log_cut(database, entry)
-        after = get_blade(database, target.tag)
+
+    def profile_of(name: str):
+        from sawplan.saws import load_saws
+
+        return load_saws(saws_file).get(name.strip().lower())
+
+    with connect(db) as database:
+        entry_id, entry, after = record_cut(
+            database, blade, saw, entry_for, on=on, profile_of=profile_of
+        )
     if json_out:
         result = LoggedCut(entry_id, after.tag, after.saw, after.area_mm2, tuple(notes), entry)
         print(to_json(result, kind="logged-cut"))
@@ -245,33 +254,6 @@ def _positive(value: float, field: str) -> float:
     from sawplan.units import positive
 
     return positive(value, field=field, what="above 0")
-
-
-def resolve_target(database: Any, tag: str | None, saw: str | None, saws_file: Any, on: str):
-    """The blade the cut was made with, the saw's row id, and the saw's profile."""
-    from sawplan.errors import ConflictError
-    from sawplan.saws import load_saws
-    from sawplan.store.records import ensure_saw, find_saw, fitted_blade, get_blade
-
-    if tag is None:
-        target, saw_name = fitted_blade(database, saw)
-    else:
-        target = get_blade(database, tag)
-        if target.status == "retired":
-            raise ConflictError(
-                f"blade {target.tag} was retired on {target.retired_on}; no more cuts can be logged on it",
-                field="blade",
-            )
-        if saw is not None and target.saw is not None and target.saw.lower() != saw.strip().lower():
-            raise ConflictError(
-                f"blade {target.tag} is fitted on {target.saw}, not {saw}", field="saw"
-            )
-        saw_name = target.saw or saw
-    if saw_name is None:
-        return target, None, None
-    profile = find_saw(database, saw_name) or load_saws(saws_file).get(saw_name.strip().lower())
-    saw_id, _ = ensure_saw(database, saw_name, profile, on=on)
-    return target, saw_id, find_saw(database, saw_name)
 
 
 def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float | None):

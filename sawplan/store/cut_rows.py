@@ -20,6 +20,9 @@ from sawplan.store.fields import (
 )
 
 if TYPE_CHECKING:  # pragma: no cover
+    from collections.abc import Callable
+
+    from sawplan.saws import Saw
     from sawplan.store.db import Log as Database
 
 
@@ -60,25 +63,102 @@ def cut_row(entry: CutEntry) -> dict[str, Any]:
     return row
 
 
+@dataclass(frozen=True)
+class CutTarget:
+    """The blade a cut was made with, the saw's row id, and the saw's profile (if known)."""
+
+    blade: Blade
+    saw_id: int | None
+    saw: Saw | None
+
+
+def cut_target(
+    db: Database,
+    tag: str | None,
+    saw: str | None,
+    *,
+    on: str,
+    profile_of: Callable[[str], Saw | None] | None = None,
+) -> CutTarget:
+    """The blade a cut goes on: ``tag``, or the one fitted on ``saw`` (or the only fitted one).
+
+    A saw used for the first time is copied into the log from ``profile_of(name)``
+    (the packaged saws and the user's saws file; asked only then).
+    """
+    from sawplan.store.records import ensure_saw, find_saw, fitted_blade
+
+    if tag is None:
+        blade, saw_name = fitted_blade(db, saw)
+    else:
+        blade = get_blade(db, tag)
+        if blade.status == "retired":
+            raise ConflictError(
+                f"blade {blade.tag} was retired on {blade.retired_on}; "
+                "no more cuts can be logged on it",
+                field="blade",
+            )
+        if saw is not None and blade.saw is not None and blade.saw.lower() != saw.strip().lower():
+            raise ConflictError(
+                f"blade {blade.tag} is fitted on {blade.saw}, not {saw}", field="saw"
+            )
+        saw_name = blade.saw or saw
+    if saw_name is None:
+        return CutTarget(blade, None, None)
+    profile = find_saw(db, saw_name) or (profile_of(saw_name) if profile_of else None)
+    saw_id, _ = ensure_saw(db, saw_name, profile, on=on)
+    return CutTarget(blade, saw_id, find_saw(db, saw_name))
+
+
+def record_cut(
+    db: Database,
+    tag: str | None,
+    saw: str | None,
+    make_entry: Callable[[CutTarget], CutEntry],
+    *,
+    on: str,
+    profile_of: Callable[[str], Saw | None] | None = None,
+) -> tuple[int, CutEntry, Blade]:
+    """Log a cut on the blade fitted now, in one transaction with the look-up.
+
+    Finding the fitted blade and writing the cut on it is one read-then-write
+    step: another station refitting or retiring that blade meanwhile either
+    comes first (and this step sees it) or waits.  ``make_entry`` builds the
+    entry for the blade found (it may run again if the step is retried).
+    Returns the entry's id, the entry and the blade after the cut.
+    """
+
+    def step() -> tuple[int, CutEntry]:
+        entry = make_entry(cut_target(db, tag, saw, on=on, profile_of=profile_of))
+        return _insert_cut(db, entry), entry
+
+    entry_id, entry = run_write(db, step)
+    return entry_id, entry, get_blade(db, get_blade_tag(db, entry.blade_id))
+
+
+def get_blade_tag(db: Database, blade_id: int) -> str:
+    return str(db.scalar("SELECT tag FROM blades WHERE id = :id", {"id": blade_id}))
+
+
 def log_cut(db: Database, entry: CutEntry) -> int:
     """Write one cut entry; refused on a retired blade. Returns the row id."""
+    return run_write(db, lambda: _insert_cut(db, entry))
+
+
+def _insert_cut(db: Database, entry: CutEntry) -> int:
+    """Check and write one cut entry inside the caller's write transaction."""
     whole_number(entry.count, "count")
     whole_number(entry.pieces, "pieces")
     if not (math.isfinite(entry.area_mm2) and entry.area_mm2 > 0):
         raise BadDataError("a cut needs an area above 0", field="area")
     row = cut_row(entry)
-
-    def step() -> int:
-        status = db.execute(
-            "SELECT status, tag FROM blades WHERE id = :id", {"id": entry.blade_id}
-        ).fetchone()
-        if status is None:
-            raise NotFoundError(f"no blade with id {entry.blade_id}", field="blade")
-        if status[0] == "retired":
-            raise ConflictError(f"blade {status[1]} is retired; no more cuts can be logged on it")
-        return db.insert("cuts", {c: row[c] for c in _CUT_COLUMNS})
-
-    return run_write(db, step)
+    status = db.execute(
+        "SELECT status, tag FROM blades WHERE id = :id", {"id": entry.blade_id}
+    ).fetchone()
+    if status is None:
+        raise NotFoundError(f"no blade with id {entry.blade_id}", field="blade")
+    if status[0] == "retired":
+        raise ConflictError(f"blade {status[1]} is retired; no more cuts can be logged on it")
+    return db.insert("cuts", {c: row[c] for c in _CUT_COLUMNS})
 
 
 def list_cuts(

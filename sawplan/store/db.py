@@ -262,6 +262,10 @@ def open_log(
         from sawplan.store.perms import create_log_file
 
         create_log_file(path)
+    else:
+        from sawplan.store.safety import refuse_known_damage
+
+        refuse_known_damage(path)
     try:
         raw = _connect_file(path)
     except sqlite3.Error as err:

@@ -4,7 +4,8 @@
   (a few ms per MB; logs over ``QUICK_CHECK_MAX_BYTES`` are checked on about
   one opening in ``ROUTINE_CHECK_ONE_IN``), and refuses a file that damage was
   seen in before (the marker ``<log>.damaged``, left by any command that met
-  damage).  A damaged log is never written to, and the message names the
+  damage, and refused by every command but ``check`` and ``restore`` until a
+  backup is restored or ``sawplan check`` finds the file sound).  A damaged log is never written to, and the message names the
   newest backup that passes the check.
 - The full ``PRAGMA integrity_check`` (which also finds index rows that do not
   match their table) runs on ``sawplan check``, before every schema upgrade
@@ -67,11 +68,16 @@ def check_integrity(conn: sqlite3.Connection, path: Path, *, full: bool = False)
         raise damaged(path, f"SQLite's check: {problems[0][:80]}")
 
 
-def write_check(conn: sqlite3.Connection, path: Path) -> None:
-    """The check every opening for writing makes: no known damage, and a quick_check."""
+def refuse_known_damage(path: Path) -> None:
+    """Refuse a log that a command found damaged, until it is restored or checked sound."""
     mark = damage_mark(path)
     if mark.exists():
         raise damaged(path, f"damage was found earlier: {_read_mark(mark)}")
+
+
+def write_check(conn: sqlite3.Connection, path: Path) -> None:
+    """The check every opening for writing makes: no known damage, and a quick_check."""
+    refuse_known_damage(path)
     try:
         size = path.stat().st_size
     except OSError:

@@ -8,6 +8,7 @@ retired tells nothing about life and is left out.
 
 from __future__ import annotations
 
+import math
 from collections import defaultdict
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, NamedTuple
@@ -46,18 +47,22 @@ def blade_lives(db: Database, *, include_unused_failures: bool = False) -> list[
     Retired blades that never cut anything are left out unless
     ``include_unused_failures`` (a zero life cannot enter a Weibull fit).
     """
-    by_group: dict[int, dict[str | None, float]] = defaultdict(dict)
-    for blade_id, group, area in db.execute(
-        "SELECT blade_id, material_group, SUM(area_mm2) FROM cuts GROUP BY blade_id, material_group"
-    ):
-        by_group[blade_id][group] = float(area)
+    # Summed here, exactly (math.fsum), not by the database: SUM adds in whatever order
+    # the engine scans, so SQLite and PostgreSQL could differ in the last digit.
+    areas: dict[int, dict[str | None, list[float]]] = defaultdict(lambda: defaultdict(list))
+    for blade_id, group, area in db.execute("SELECT blade_id, material_group, area_mm2 FROM cuts"):
+        areas[blade_id][group].append(area)
+    by_group = {
+        blade_id: {g: math.fsum(groups[g]) for g in sorted(groups, key=str)}
+        for blade_id, groups in areas.items()
+    }
     lives = []
     for row in db.query(
         "SELECT id, tag, blade_material, grade, width_mm, thickness_mm, tpi_coarse, tpi_fine, "
         "price, status, retire_cause FROM blades ORDER BY id"
     ):
         groups = by_group.get(row["id"], {})
-        area_cm2 = sum(groups.values()) / 100.0
+        area_cm2 = math.fsum(a for g in areas.get(row["id"], {}).values() for a in g) / 100.0
         failed = row["status"] == "retired"
         if area_cm2 <= 0.0 and not (failed and include_unused_failures):
             continue
