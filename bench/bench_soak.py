@@ -82,7 +82,17 @@ def setup(db: str) -> None:
     for k in range(WRITERS):
         for args in (
             ["saw", "add", f"bay {k}", "--like", "mid-production"],
-            ["blade", "add", f"B-{k}", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm"],
+            [
+                "blade",
+                "add",
+                f"B-{k}",
+                "--pitch",
+                "3/4",
+                "--blade-width",
+                "27mm",
+                "--blade-thickness",
+                "0.9mm",
+            ],  # fmt: skip
             ["blade", "fit", f"B-{k}", "--saw", f"bay {k}"],
         ):
             code, _out, err = invoke([*args, "--db", db])

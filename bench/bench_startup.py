@@ -38,8 +38,8 @@ def main() -> int:
     base_log = median_time([PY, "-c", "import typer, pint, sqlite_utils"], env)
     # a log with a fitted blade, so `log cut` has somewhere to write
     for setup in (
-        ["blade", "add", "B1", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm",
-         "--length", "3505mm"],
+        ["blade", "add", "B1", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm",
+         "--blade-length", "3505mm"],
         ["blade", "fit", "B1", "--saw", "mid-production"],
     ):  # fmt: skip
         subprocess.run(sawplan + setup, check=True, env=env, stdout=subprocess.DEVNULL)

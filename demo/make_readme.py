@@ -53,7 +53,7 @@ def tour(trial_blade: str) -> list[tuple[str, str]]:
         (
             "The 4/6 blade from the bar work is still on the saw. What it would do "
             "instead, and why:",
-            f"sawplan cut 304 round 250mm --saw column-bay --blade-tpi 4/6 --db {DB}",
+            f"sawplan cut 304 round 250mm --saw column-bay --pitch 4/6 --db {DB}",
         ),
         (
             "How heavy one 110 mm slice is, and how to lift it (revised NIOSH lifting "
@@ -65,7 +65,7 @@ def tour(trial_blade: str) -> list[tuple[str, str]]:
             "remnant first), every cut from the head end, remnants to mark with their "
             "heat number, weights and lifting, blade and time per section, blades to have "
             "on hand and the quote. `--sheet job.html` writes the printable sheet with "
-            "every bar drawn to scale; `--csv DIR` and `--json` give the same plan as data:",
+            "every bar drawn to scale; `--csv-dir DIR` and `--json` give the same plan as data:",
             f"sawplan plan demo/jobs/billet-slices.toml --db {DB}",
         ),
         (
@@ -81,7 +81,7 @@ def tour(trial_blade: str) -> list[tuple[str, str]]:
         ),
         (
             "The Weibull plot of every blade in the log (median ranks, censored blades counted):",
-            f"sawplan chart weibull --height 16 --db {DB}",
+            f"sawplan chart weibull --chart-height 16 --db {DB}",
         ),
         (
             "Blades to have on the shelf for 2 m² of 304, at 90 % confidence, from the "

@@ -58,7 +58,7 @@ def steps(out: Path, trial_blade: str | None = None) -> list[tuple[str, list[str
         ),
         (
             "The same cut with the 4/6 blade from the bar work left on the saw",
-            f"cut 304 round 250mm --saw column-bay --blade-tpi 4/6 --db {db}",
+            f"cut 304 round 250mm --saw column-bay --pitch 4/6 --db {db}",
         ),
         (
             "Blade life from the log, by blade type, with the Weibull plot",

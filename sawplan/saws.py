@@ -102,6 +102,7 @@ class Saw:
             raise BadDataError(
                 f"{where}: must be 2, 3 or 4, got {self.wheel_count!r}", field="wheel_count"
             )
+        _check_ranges(self, where)
 
     @property
     def force_limited(self) -> bool:
@@ -135,6 +136,17 @@ class Saw:
         values = dict(data)
         values.setdefault("source", origin)
         return cls(name=name, **values)
+
+
+def _check_ranges(saw: Saw, where: str) -> None:
+    """Every number within its plausible range (``sawplan.fields``), named in shop words."""
+    from sawplan.fields import check, field_for
+
+    for f in fields(saw):
+        rule = field_for(f"saws.{f.name}")
+        value = getattr(saw, f.name)
+        if rule is not None and rule.low is not None and isinstance(value, int | float):
+            check(rule, value, words=f"{where}: {rule.words}")
 
 
 class SectionLike(Protocol):

@@ -34,12 +34,12 @@ def test_cut_json_has_the_contract_keys(cli):
 
 
 def test_constant_pitch_has_equal_numbers(cli):
-    data = json.loads(cli("cut", "1018", "flat", "50mm", "6mm", "--blade-tpi", "14", "--json").out)
+    data = json.loads(cli("cut", "1018", "flat", "50mm", "6mm", "--pitch", "14", "--json").out)
     assert data["tpi_coarse"] == data["tpi_fine"] == 14
 
 
 def test_fine_pitch_on_big_solid_is_compared_and_warned(cli):
-    result = cli("cut", "4140", "round", "10in", "--blade-tpi", "6/10")
+    result = cli("cut", "4140", "round", "10in", "--pitch", "6/10")
     assert result.code == 0, result.err
     assert "× the time of" in result.out
     assert "!" in result.out  # at least one warning line
@@ -60,9 +60,7 @@ def test_us_units(cli):
 @pytest.mark.parametrize(
     ("args", "fragment", "code"),
     [
-        pytest.param(
-            ["4140", "round", "7in", "--blade-tpi", "3-4x"], "blade-tpi", 2, id="not a pitch"
-        ),
+        pytest.param(["4140", "round", "7in", "--pitch", "3-4x"], "pitch", 2, id="not a pitch"),
         pytest.param(
             ["4140", "round", "7in", "--saw", "mid-prodution"],
             "mid-production",
@@ -71,14 +69,14 @@ def test_us_units(cli):
         ),
         pytest.param(["4140", "round", "2m"], "capacity", 3, id="over capacity"),
         pytest.param(
-            ["4140", "round", "7in", "--blade-tpi", "3/4", "--band-speed", "900m/min"],
+            ["4140", "round", "7in", "--pitch", "3/4", "--band-speed", "900m/min"],
             "band",
             3,
             id="band speed outside range",
         ),
         pytest.param(
             ["4140", "round", "7in", "--band-speed", "60m/min"],
-            "blade-tpi",
+            "--pitch",
             2,
             id="speed without pitch",
         ),

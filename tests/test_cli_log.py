@@ -72,9 +72,9 @@ def ok(result):
 def setup_shop(log) -> None:
     ok(log("saw", "add", "bay 2", "--like", "mid-production", "--wheel", "450mm", "--power", "2.2kW",
            "--speed-range", "20-90m/min"))  # fmt: skip
-    ok(log("blade", "add", "B-017", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm",
-           "--length", "3505mm", "--price", "60"))  # fmt: skip
-    ok(log("blade", "add", "B-018", "--pitch", "4/6", "--width", "27mm", "--thickness", "0.9mm",
+    ok(log("blade", "add", "B-017", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm",
+           "--blade-length", "3505mm", "--price", "60"))  # fmt: skip
+    ok(log("blade", "add", "B-018", "--pitch", "4/6", "--blade-width", "27mm", "--blade-thickness", "0.9mm",
            "--price", "55", "--grade", "M42"))  # fmt: skip
     ok(log("blade", "fit", "B-017", "--saw", "bay 2"))
 
@@ -121,7 +121,7 @@ def test_batch_of_cuts_is_n_times_the_section_area(log):
 def test_partial_cut_area_and_dial_feed(log):
     setup_shop(log)
     entry = json.loads(ok(log("log", "cut", "304", "round", "60mm", "--area", "20cm2", "--feed", "3",
-                               "--speed", "200ft/min", "--dry", "--json")).out)  # fmt: skip
+                               "--band-speed", "200ft/min", "--dry", "--json")).out)  # fmt: skip
     assert entry["area_mm2"] == pytest.approx(2000.0)  # 20 cm² = 2000 mm²
     assert entry["feed_setting"] == "3" and entry["feed_mm_min"] is None
     assert entry["band_speed_m_min"] == pytest.approx(UREG("200 ft/min").to("m/min").magnitude)
@@ -145,7 +145,7 @@ def test_fit_replaces_the_blade_on_the_saw_and_show_lists_history(log):
 def test_retire_then_life_json_has_the_promised_keys(log):
     setup_shop(log)
     ok(log("log", "cut", "304", "round", "60mm", "--cuts", "10", "--time", "40min"))
-    ok(log("blade", "retire", "B-017", "--cause", "dull"))
+    ok(log("blade", "retire", "B-017", "--failure", "dull"))
     ok(log("blade", "fit", "B-018", "--saw", "bay 2"))
     ok(log("log", "cut", "304", "round", "60mm", "--cuts", "4"))
     life = json.loads(ok(log("life", "--json")).out)
@@ -204,7 +204,7 @@ def test_forecast_uses_the_log_once_it_has_a_fit(log):
         if tag != "B-017":  # B-017 is on the saw already
             ok(log("blade", "fit", tag, "--saw", "bay 2"))
         ok(log("log", "cut", "304", "round", "60mm", "--cuts", cuts))
-        ok(log("blade", "retire", tag, "--cause", cause))
+        ok(log("blade", "retire", tag, "--failure", cause))
     result = json.loads(ok(log("forecast", "--area", "1m2", "--json")).out)
     assert result["life_source"] == "blade log" and result["method"] == "weibull-simulation"
     assert result["blades_needed"] >= 1
@@ -229,7 +229,7 @@ def test_charts_print_and_give_their_data(log):
     setup_shop(log)
     for minutes in ("3min", "3.1min", "3min", "3.2min", "3.1min"):
         ok(log("log", "cut", "304", "round", "60mm", "--cuts", "5", "--time", minutes))
-    chart = ok(log("chart", "wear", "B-017", "--width", "60", "--height", "15")).out
+    chart = ok(log("chart", "wear", "B-017", "--chart-width", "60", "--chart-height", "15")).out
     assert "area cut (cm²)" in chart and "\x1b[" not in chart
     data = json.loads(ok(log("chart", "wear", "B-017", "--json")).out)["items"]
     assert len(data) == 5
@@ -280,9 +280,9 @@ def shop_template(tmp_path_factory):
         pytest.param(("log", "cut", "unobtainium", "round", "60mm"), 4, "unobtainium", id="unknown material"),
         pytest.param(("log", "cut", "304", "round", "60mm", "--cuts", "0"), 3, "cuts", id="zero cuts"),
         pytest.param(("log", "cut", "304", "round", "60mm", "--time", "5kg"), 2, "time", id="time in kg"),
-        pytest.param(("blade", "add", "B-NEW", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9"), 2, "thickness", id="no unit"),
-        pytest.param(("blade", "add", "B-017", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm"), 5, "already in the log", id="tag taken"),
-        pytest.param(("blade", "retire", "B-017", "--cause", "tired"), 3, "must be one of", id="unknown cause"),
+        pytest.param(("blade", "add", "B-NEW", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9"), 2, "thickness", id="no unit"),
+        pytest.param(("blade", "add", "B-017", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm"), 5, "already in the log", id="tag taken"),
+        pytest.param(("blade", "retire", "B-017", "--failure", "tired"), 3, "must be one of", id="unknown cause"),
         pytest.param(("blade", "fit", "B-018", "--saw", "no-such-saw"), 4, "no saw", id="unknown saw"),
         pytest.param(("log", "event", "B-017", "sneeze"), 2, "teeth-lost", id="unknown event"),
         pytest.param(("saw", "add", "x", "--kind", "horizontal"), 2, "missing --wheel", id="incomplete saw"),
@@ -302,7 +302,19 @@ def test_bad_input_is_one_line_with_its_exit_code(log, shop_template, args, code
 
 
 def test_no_fitted_blade_and_no_blade_option(log):
-    ok(log("blade", "add", "B-1", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm"))
+    ok(
+        log(
+            "blade",
+            "add",
+            "B-1",
+            "--pitch",
+            "3/4",
+            "--blade-width",
+            "27mm",
+            "--blade-thickness",
+            "0.9mm",
+        )
+    )
     result = log("log", "cut", "304", "round", "60mm")
     assert result.code == 2
     assert "no blade is fitted" in result.err and "--blade" in result.err
@@ -347,7 +359,19 @@ def test_a_file_that_is_not_a_log_is_refused(cli, tmp_path, content):
 
 
 def test_a_log_from_a_newer_sawplan_is_refused(log):
-    ok(log("blade", "add", "B-1", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm"))
+    ok(
+        log(
+            "blade",
+            "add",
+            "B-1",
+            "--pitch",
+            "3/4",
+            "--blade-width",
+            "27mm",
+            "--blade-thickness",
+            "0.9mm",
+        )
+    )
     conn = sqlite3.connect(log.path)
     conn.execute("PRAGMA user_version = 99")
     conn.commit()
@@ -369,7 +393,17 @@ def test_env_var_names_the_log(cli, tmp_path, monkeypatch):
     path = tmp_path / "env.sqlite"
     monkeypatch.setenv("SAWPLAN_DB", str(path))
     assert (
-        cli("blade", "add", "B-1", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm").code
+        cli(
+            "blade",
+            "add",
+            "B-1",
+            "--pitch",
+            "3/4",
+            "--blade-width",
+            "27mm",
+            "--blade-thickness",
+            "0.9mm",
+        ).code
         == 0
     )
     assert [r[1] for r in rows_of(path)["blades"]] == ["B-1"]

@@ -135,7 +135,7 @@ def test_csv_files_and_formula_neutralisation(cli, tmp_path):
         encoding="utf-8",
     )
     out = tmp_path / "out"
-    r = cli("plan", str(job), "--csv", str(out))
+    r = cli("plan", str(job), "--csv-dir", str(out))
     assert r.code == 0, r.err
     assert sorted(p.name for p in out.iterdir()) == ["bars.csv", "cuts.csv", "summary.csv"]
     cuts = read_csv(out / "cuts.csv")
@@ -159,7 +159,7 @@ def bad_job(tmp_path: Path) -> tuple[Path, int]:
 def test_error_names_the_line_and_nothing_is_written(cli, tmp_path):
     job, line = bad_job(tmp_path)
     out, sheet = tmp_path / "out", tmp_path / "sheet.html"
-    r = cli("plan", str(job), "--csv", str(out), "--sheet", str(sheet))
+    r = cli("plan", str(job), "--csv-dir", str(out), "--sheet", str(sheet))
     assert r.code == 2  # usage: a value without its unit
     assert r.err.strip() == (
         f'error: bad.toml line {line} ([[part]] "collar"): length: expected a length with its '

@@ -48,7 +48,9 @@ def test_mixed_number_section_on_the_command_line(cli):
             ["4140", "rond", "60mm", "--length", "1m"], "round", id="unknown shape suggests"
         ),
         pytest.param(
-            ["4140", "round", "60mm", "--length", "1m", "--count", "0"], "count", id="zero count"
+            ["4140", "round", "60mm", "--length", "1m", "--count", "0"],
+            "number of pieces",
+            id="zero count",
         ),
     ],
 )

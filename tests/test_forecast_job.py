@@ -46,7 +46,9 @@ count = 50
 def test_groups_share_blades_in_the_total(cli, tmp_path):
     job = tmp_path / "job.toml"
     job.write_text(JOB, encoding="utf-8")
-    result = cli("forecast", "--job", str(job), "--db", str(tmp_path / "none.sqlite"), "--json")
+    result = cli(
+        "forecast", "--job-file", str(job), "--db", str(tmp_path / "none.sqlite"), "--json"
+    )
     assert result.code == 0, result.err
     data = json.loads(result.out)
     # one cut per part: 100 × π/4·(100 mm)² and 50 × π/4·(200 mm)², in cm² (closed form)

@@ -50,7 +50,7 @@ def test_parse_pitch(text, coarse, fine):
 def test_bad_pitch_text_is_a_usage_error_with_examples(text):
     with pytest.raises(UsageError) as err:
         parse_pitch(text)
-    assert err.value.field == "blade-tpi"
+    assert err.value.field == "pitch"
     assert "3/4" in str(err.value) and "10-14" in str(err.value)
 
 
@@ -58,7 +58,7 @@ def test_bad_pitch_text_is_a_usage_error_with_examples(text):
 def test_pitch_out_of_range_is_bad_data(text):
     with pytest.raises(BadDataError) as err:
         parse_pitch(text)
-    assert err.value.field == "blade-tpi"
+    assert err.value.field == "pitch"
 
 
 def test_label_round_trips_for_every_catalogue_pitch():

@@ -20,7 +20,7 @@ from logrows import snapshot
 
 from sawplan.store import safety
 
-BLADE = ("--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm")
+BLADE = ("--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm")
 
 
 def one_line(result, code: int) -> str:
@@ -295,7 +295,18 @@ def test_check_warns_about_a_log_others_may_read(shop_log, cli):
 
 def test_log_list_limit_beyond_any_integer_is_one_line(shop_log, cli):
     err = one_line(cli("log", "list", "--limit", "99999999999999999999", "--db", str(shop_log)), 3)
-    assert "limit: must be 0 (all) to 1,000,000" in err
+    assert "entries to show: must be" in err and "got a number of 20 digits" in err
+
+
+def test_the_store_bounds_whole_numbers_itself(tmp_path):
+    """The station will call the store without the command line: the same line comes back."""
+    from sawplan.errors import BadDataError
+    from sawplan.store import connect
+    from sawplan.store.records import list_cuts
+
+    with connect(tmp_path / "log.sqlite") as db, pytest.raises(BadDataError) as err:
+        list_cuts(db, limit=10**20)
+    assert "entries to show: must be" in str(err.value)
 
 
 def test_an_imported_count_of_1e23_is_one_line_and_writes_nothing(shop_log, cli, tmp_path):
@@ -312,5 +323,5 @@ def test_an_imported_count_of_1e23_is_one_line_and_writes_nothing(shop_log, cli,
     assert cli("blade", "add", "B-1", *BLADE, "--db", str(target)).code == 0
     before = snapshot(target)
     err = one_line(cli("import", str(folder), "--db", str(target)), 3)
-    assert "cuts.csv row 1" in err and "count: must be 1 to 100,000" in err
+    assert "cuts.csv row 1" in err and "count: must be from 1 to 100,000" in err
     assert snapshot(target) == before

@@ -26,7 +26,7 @@ from logrows import execute, snapshot
 from sawplan.store.schema import TABLE_NAMES
 
 SECRET = "Tr0ub4dor-and-3"
-BLADE = ("--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm")
+BLADE = ("--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm")
 
 
 def one_line(result, code: int) -> str:

@@ -93,14 +93,24 @@ def shop(tmp_path_factory) -> dict[str, Path]:
         assert code == 0, (args, err)
 
     ok("saw", "add", "bay 2", "--like", "mid-production")
-    ok("blade", "add", "B-017", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm",
+    ok("blade", "add", "B-017", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm",
        "--price", "60")  # fmt: skip
-    ok("blade", "add", "B-018", "--pitch", "4/6", "--width", "27mm", "--thickness", "0.9mm")
+    ok(
+        "blade",
+        "add",
+        "B-018",
+        "--pitch",
+        "4/6",
+        "--blade-width",
+        "27mm",
+        "--blade-thickness",
+        "0.9mm",
+    )
     ok("blade", "fit", "B-017", "--saw", "bay 2")
     for _ in range(3):
         ok("log", "cut", "304", "round", "60mm", "--cuts", "5", "--time", "10min")
     other = root / "other.sqlite"
-    ok("blade", "add", "B-900", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm",
+    ok("blade", "add", "B-900", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm",
        db=other)  # fmt: skip
     code, _out, err = invoke(["export", str(root / "csv-in"), "--db", str(other)])
     assert code == 0, err
@@ -254,7 +264,7 @@ def test_a_value_naming_no_real_unit_says_what_to_type(cli):
     result = cli("weigh", "4140", "round", "60mm", "--length", "7kg")
     assert result.code == 2
     assert result.err == (
-        "error: length: expected a length, got '7kg' (e.g. 60mm, 2.5in, 7-1/4 in, 3' 6\")\n"
+        "error: piece length: expected a length, got '7kg' (e.g. 60mm, 2.5in, 7-1/4 in, 3' 6\")\n"
     )
 
 

@@ -74,7 +74,17 @@ def log(cli, log_db):
     path = log_db
     for args in (
         ("saw", "add", "bay 2", "--like", "mid-production"),
-        ("blade", "add", "B-1", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm"),
+        (
+            "blade",
+            "add",
+            "B-1",
+            "--pitch",
+            "3/4",
+            "--blade-width",
+            "27mm",
+            "--blade-thickness",
+            "0.9mm",
+        ),
         ("blade", "fit", "B-1", "--saw", "bay 2"),
     ):
         result = cli(*args, "--db", str(path))

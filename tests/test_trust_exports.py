@@ -68,7 +68,7 @@ def test_plan_csv_cells_cannot_run_as_formulas(cli, tmp_path):
     text = text.replace('location = "B2"', 'location = "-2+3"')
     job = tmp_path / "job.toml"
     job.write_text(text, encoding="utf-8")
-    result = cli("plan", str(job), "--csv", str(tmp_path / "out"))
+    result = cli("plan", str(job), "--csv-dir", str(tmp_path / "out"))
     assert result.code == 0, result.err
     out = tmp_path / "out"
     assert risky_cells(out) == []
@@ -97,8 +97,8 @@ def test_log_export_cells_cannot_run_as_formulas_and_come_back(cli, tmp_path):
         result = cli(*args, "--db", str(log))
         assert result.code == 0, (args, result.err)
 
-    ok("saw", "add", "=bay(2)", "--like", "mid-production", "--notes", "@notes")
-    ok("blade", "add", "@B1", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm",
+    ok("saw", "add", "=bay(2)", "--like", "mid-production", "--note", "@notes")
+    ok("blade", "add", "@B1", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm",
        "--supplier", "+supplier", "--lot", "=lot")  # fmt: skip
     ok("blade", "fit", "@B1", "--saw", "=bay(2)")
     for i, value in enumerate(TRICKY):
@@ -140,10 +140,10 @@ def test_sql_injection_strings_are_stored_literally(cli, tmp_path, value):
         return cli(*args, "--db", str(log))
 
     assert run("saw", "add", value, "--like", "mid-production").code == 0
-    assert run("blade", "add", value, "--pitch", "3/4", "--width", "27mm",
-               "--thickness", "0.9mm").code == 0  # fmt: skip
-    assert run("blade", "add", "B-2", "--pitch", "3/4", "--width", "27mm",
-               "--thickness", "0.9mm").code == 0  # fmt: skip
+    assert run("blade", "add", value, "--pitch", "3/4", "--blade-width", "27mm",
+               "--blade-thickness", "0.9mm").code == 0  # fmt: skip
+    assert run("blade", "add", "B-2", "--pitch", "3/4", "--blade-width", "27mm",
+               "--blade-thickness", "0.9mm").code == 0  # fmt: skip
     assert run("blade", "fit", value, "--saw", value).code == 0
     assert run("log", "cut", "304", "round", "60mm", "--job", value, "--note", value,
                "--heat", value).code == 0  # fmt: skip

@@ -265,13 +265,33 @@ def exported(tmp_path_factory) -> Path:
     log = root / "log.sqlite"
     for args in (
         ["saw", "add", "bay 2", "--like", "mid-production"],
-        ["blade", "add", "B-1", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm"],
-        ["blade", "add", "B-2", "--pitch", "4/6", "--width", "27mm", "--thickness", "0.9mm"],
+        [
+            "blade",
+            "add",
+            "B-1",
+            "--pitch",
+            "3/4",
+            "--blade-width",
+            "27mm",
+            "--blade-thickness",
+            "0.9mm",
+        ],
+        [
+            "blade",
+            "add",
+            "B-2",
+            "--pitch",
+            "4/6",
+            "--blade-width",
+            "27mm",
+            "--blade-thickness",
+            "0.9mm",
+        ],
         ["blade", "fit", "B-1", "--saw", "bay 2"],
         ["log", "cut", "304", "round", "60mm", "--cuts", "3", "--time", "9min", "--job", "=1+1"],
         ["log", "cut", "4140", "flat", "100mm", "25mm", "--note", "-dull"],
         ["log", "event", "B-1", "teeth-lost", "--teeth", "2"],
-        ["blade", "retire", "B-2", "--cause", "dull"],
+        ["blade", "retire", "B-2", "--failure", "dull"],
     ):
         code, err = _invoke([*args, "--db", str(log)])
         assert code == 0, (args, err)

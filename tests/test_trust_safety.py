@@ -91,7 +91,17 @@ def shop_log(cli, tmp_path) -> Path:
     path = tmp_path / "shop" / "blade-log.sqlite"
     steps = [
         ("saw", "add", "bay 2", "--like", "mid-production"),
-        ("blade", "add", "B-1", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm"),
+        (
+            "blade",
+            "add",
+            "B-1",
+            "--pitch",
+            "3/4",
+            "--blade-width",
+            "27mm",
+            "--blade-thickness",
+            "0.9mm",
+        ),
         ("blade", "fit", "B-1", "--saw", "bay 2"),
         ("log", "cut", "304", "round", "60mm", "--cuts", "3", "--note", "first"),
     ]
@@ -229,7 +239,7 @@ def tiny_disk(tmp_path):
 
 def test_a_real_full_disk_is_one_line_and_writes_nothing(tiny_disk, tmp_path, cli):
     log = tiny_disk / "blade-log.sqlite"
-    result = cli("blade", "add", "B-1", "--pitch", "3/4", "--width", "27mm", "--thickness",
+    result = cli("blade", "add", "B-1", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness",
                  "0.9mm", "--db", str(log))  # fmt: skip
     assert result.code == 0, result.err
     folder = tmp_path / "csv"
@@ -341,7 +351,17 @@ def test_damage_is_found_when_opening_for_writing(big_log, cli, monkeypatch):
     damage(big_log, range(5, 12))
     monkeypatch.setattr(safety, "ROUTINE_CHECK_ONE_IN", 1)  # this open is the routine check
     before = big_log.read_bytes()
-    args = ("blade", "add", "B-2", "--pitch", "3/4", "--width", "27mm", "--thickness", "0.9mm")
+    args = (
+        "blade",
+        "add",
+        "B-2",
+        "--pitch",
+        "3/4",
+        "--blade-width",
+        "27mm",
+        "--blade-thickness",
+        "0.9mm",
+    )
     err = one_line(cli(*args, "--db", str(big_log)), 6)
     assert "is damaged" in err and "nothing was written" in err
     assert f"restore the newest good backup {newer}" in err  # the newest backup, by name

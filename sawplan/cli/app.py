@@ -8,6 +8,7 @@ from __future__ import annotations
 
 import importlib
 import sys
+from typing import Any
 
 import typer
 
@@ -99,9 +100,44 @@ def __getattr__(name: str) -> typer.Typer:
 
 
 def run(args: list[str]) -> int:
-    """Run the CLI without the boundary (tests use this through ``main``)."""
+    """Run the CLI without the boundary (tests use this through ``main``).
+
+    A group typed alone (``sawplan``, ``sawplan blade``) prints its help and
+    succeeds; old option spellings are rewritten with a note (``options.RENAMED``).
+    """
+    from typer._click.exceptions import NoArgsIsHelpError
+
     command = typer.main.get_command(make_app(_modules_for(args)))
-    return int(command.main(args=args, prog_name="sawplan", standalone_mode=False) or 0)
+    try:
+        return int(
+            command.main(args=_modern(command, args), prog_name="sawplan", standalone_mode=False)
+            or 0
+        )
+    except NoArgsIsHelpError as asked:
+        print(asked.ctx.get_help())
+        return 0
+
+
+def _modern(root: Any, args: list[str]) -> list[str]:
+    """``args`` with the old option spellings of the command they run rewritten."""
+    from sawplan.cli.options import modernise
+
+    node, path = root, []
+    for word in args:
+        sub = getattr(node, "commands", {}).get(word)
+        if sub is None:
+            break
+        node, path = sub, [*path, word]
+    if not path or getattr(node, "commands", None):
+        return args
+    takes_value = {
+        name
+        for param in node.params
+        if param.param_type_name == "option" and not getattr(param, "is_flag", False)
+        for name in param.opts
+    }
+    n = len(path)
+    return args[:n] + modernise(" ".join(path), args[n:], takes_value)
 
 
 def main(argv: list[str] | None = None) -> None:

@@ -6,8 +6,21 @@ from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.cmd_saw import DateOpt, SawsFileOpt, fmt_q, plain
-from sawplan.cli.options import CsvOpt, DbOpt, JsonOpt, UnitsOpt
+from sawplan.cli.cmd_saw import fmt_q, plain
+from sawplan.cli.options import (
+    ChartHeightOpt,
+    ChartWidthOpt,
+    CsvOpt,
+    DateOpt,
+    DbOpt,
+    JsonOpt,
+    NoteOpt,
+    SawsFileOpt,
+    TagArg,
+    UnitsOpt,
+    command,
+    opt,
+)
 from sawplan.units import UnitSystem
 
 BLADE_MATERIALS = {
@@ -35,7 +48,7 @@ this long".
 
 \b
 Examples:
-  sawplan blade add B-017 --pitch 3/4 --width 27mm --thickness 0.9mm --length 3505mm --price 60
+  sawplan blade add B-021 --pitch 3/4 --blade-width 27mm --blade-thickness 0.9mm --price 60
   sawplan blade fit B-017 --saw "bay 2"
   sawplan blade show B-017 --chart
 """
@@ -44,8 +57,8 @@ ADD_HELP = """Record a new blade with its tag, size, pitch and where it came fro
 
 \b
 Examples:
-  sawplan blade add B-017 --pitch 3/4 --width 27mm --thickness 0.9mm --length 3505mm --price 60
-  sawplan blade add B-018 --pitch 4/6 --width 1in --thickness 0.035in --grade M42 --form hook --set raker --supplier "north depot" --lot 2291 --bought 2024-03-02 --welded in-house
+  sawplan blade add B-021 --pitch 3/4 --blade-width 27mm --blade-thickness 0.9mm --blade-length 3505mm --price 60
+  sawplan blade add B-022 --pitch 4/6 --blade-width 1in --blade-thickness 0.035in --grade M42 --form hook --set raker --supplier "north depot" --lot 2291 --bought 2024-03-02 --welded in-house
 """
 
 FIT_HELP = """Fit a blade to a saw. Any blade already on that saw is taken off (removed).
@@ -66,13 +79,13 @@ Examples:
 
 RETIRE_HELP = """Retire a blade for good, with the failure that ended it.
 
-CAUSE is one of: stripped, body-crack, back-crack, weld, dull, crooked,
+--failure is one of: stripped, body-crack, back-crack, weld, dull, crooked,
 chips-welded. A retired blade counts as a failure in the life statistics.
 
 \b
 Examples:
-  sawplan blade retire B-017 --cause dull
-  sawplan blade retire B-009 --cause body-crack --location "gullet, 40 cm from weld"
+  sawplan blade retire B-017 --failure dull
+  sawplan blade retire B-009 --failure body-crack --location "gullet, 40 cm from weld"
 """
 
 LIST_HELP = """List the blades in the log with their status, saw and area cut.
@@ -96,10 +109,10 @@ Examples:
 """
 
 
-def _length(text: str | None, field: str) -> float | None:
-    from sawplan.units import to_core
+def _length(text: str | None, key: str) -> float | None:
+    from sawplan.fields import parse
 
-    return None if text is None else to_core(text, "length", field=field)
+    return None if text is None else parse(key, text)
 
 
 def _choice(value: str | None, allowed: tuple[str, ...], field: str) -> str | None:
@@ -114,51 +127,21 @@ def _choice(value: str | None, allowed: tuple[str, ...], field: str) -> str | No
 
 
 def blade_add_command(
-    tag: Annotated[str, typer.Argument(help="The blade's tag, e.g. B-017.", show_default=False)],
-    pitch: Annotated[
-        str, typer.Option("--pitch", "-p", help="Teeth per inch, e.g. 3/4, 6, 10/14.")
-    ],
-    width: Annotated[str, typer.Option("--width", "-w", help="Blade width, e.g. 27mm, 1in.")],
-    thickness: Annotated[
-        str, typer.Option("--thickness", "-t", help="Blade thickness, e.g. 0.9mm.")
-    ],
-    length: Annotated[
-        str | None,
-        typer.Option("--length", "-l", help="Blade length, e.g. 3505mm.", show_default=False),
-    ] = None,
-    material: Annotated[
-        str, typer.Option("--material", help="bi-metal, carbon or carbide.")
-    ] = "bi-metal",
-    grade: Annotated[
-        str | None, typer.Option("--grade", help="Tooth grade, e.g. M42, M51.", show_default=False)
-    ] = None,
-    form: Annotated[
-        str | None,
-        typer.Option("--form", help="Tooth form: regular, hook or skip.", show_default=False),
-    ] = None,
-    tooth_set: Annotated[
-        str | None,
-        typer.Option("--set", help="Tooth set: raker, wavy or alternate.", show_default=False),
-    ] = None,
-    supplier: Annotated[
-        str | None, typer.Option("--supplier", help="Free text.", show_default=False)
-    ] = None,
-    lot: Annotated[
-        str | None, typer.Option("--lot", help="Supplier's lot number.", show_default=False)
-    ] = None,
-    price: Annotated[
-        float | None,
-        typer.Option("--price", help="Price paid, in your currency.", show_default=False),
-    ] = None,
-    bought: Annotated[
-        str | None, typer.Option("--bought", help="Date bought, YYYY-MM-DD.", show_default=False)
-    ] = None,
-    welded: Annotated[
-        str, typer.Option("--welded", help="in-house or bought (welded).")
-    ] = "bought",
-    notes: Annotated[
-        str | None, typer.Option("--notes", help="Free text.", show_default=False)
-    ] = None,
+    tag: TagArg,
+    pitch: Annotated[str, opt("pitch")],
+    width: Annotated[str, opt("blade_width")],
+    thickness: Annotated[str, opt("blade_thickness")],
+    length: Annotated[str | None, opt("blade_length")] = None,
+    material: Annotated[str, opt("blade_material", show_default=True)] = "bi-metal",
+    grade: Annotated[str | None, opt("grade")] = None,
+    form: Annotated[str | None, opt("tooth_form")] = None,
+    tooth_set: Annotated[str | None, opt("tooth_set")] = None,
+    supplier: Annotated[str | None, opt("supplier")] = None,
+    lot: Annotated[str | None, opt("lot")] = None,
+    price: Annotated[float | None, opt("blade_price")] = None,
+    bought: Annotated[str | None, opt("bought")] = None,
+    welded: Annotated[str, opt("welded", show_default=True)] = "bought",
+    notes: NoteOpt = None,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     db: DbOpt = None,
@@ -174,15 +157,13 @@ def blade_add_command(
     blade_material = BLADE_MATERIALS.get(material.strip().lower())
     if blade_material is None:
         raise BadDataError(
-            f"must be bi-metal, carbon or carbide, got {material!r}", field="material"
+            f"must be bi-metal, carbon or carbide, got {material!r}", field="blade material"
         )
-    if price is not None and not price >= 0:
-        raise BadDataError(f"must be 0 or more, got {price:g}", field="price")
     spec = BladeSpec(
         tag=tag,
-        width_mm=_length(width, "width"),
-        thickness_mm=_length(thickness, "thickness"),
-        length_mm=_length(length, "length"),
+        width_mm=_length(width, "blade_width"),
+        thickness_mm=_length(thickness, "blade_thickness"),
+        length_mm=_length(length, "blade_length"),
         tpi_coarse=p.tpi_coarse,
         tpi_fine=p.tpi_fine,
         blade_material=blade_material,
@@ -224,37 +205,23 @@ def describe(blade: Any, units: UnitSystem) -> str:
 
 
 def blade_fit_command(
-    tag: Annotated[str, typer.Argument(help="The blade's tag.", show_default=False)],
-    saw: Annotated[
-        str, typer.Option("--saw", "-s", help="The saw it goes on.", show_default=False)
-    ],
+    tag: TagArg,
+    saw: Annotated[str, opt("saw", help="The saw it goes on.")],
     date: DateOpt = None,
-    tension: Annotated[
-        str | None,
-        typer.Option("--tension", help="Tension set, e.g. 200MPa or 30ksi.", show_default=False),
-    ] = None,
-    break_in: Annotated[
-        bool | None,
-        typer.Option(
-            "--break-in/--no-break-in",
-            help="Whether the blade is being broken in.",
-            show_default=False,
-        ),
-    ] = None,
-    break_in_how: Annotated[
-        str | None, typer.Option("--break-in-how", help="How, in a few words.", show_default=False)
-    ] = None,
+    tension: Annotated[str | None, opt("tension")] = None,
+    break_in: Annotated[bool | None, opt("break_in")] = None,
+    break_in_how: Annotated[str | None, opt("break_in_how")] = None,
     saws_file: SawsFileOpt = None,
     db: DbOpt = None,
 ) -> None:
+    from sawplan.fields import parse
     from sawplan.saws import load_saws
     from sawplan.store import connect
     from sawplan.store.dates import parse_day
     from sawplan.store.records import find_saw, fit_blade
-    from sawplan.units import to_core
 
     on = parse_day(date)
-    tension_mpa = None if tension is None else to_core(tension, "stress", field="tension")
+    tension_mpa = None if tension is None else parse("tension", tension)
     known = load_saws(saws_file)  # read (and check) a --saws file even when the log has the saw
     with connect(db) as database:
         profile = find_saw(database, saw) or known.get(saw.strip().lower())
@@ -277,7 +244,7 @@ def blade_fit_command(
 
 
 def blade_remove_command(
-    tag: Annotated[str, typer.Argument(help="The blade's tag.", show_default=False)],
+    tag: TagArg,
     date: DateOpt = None,
     db: DbOpt = None,
 ) -> None:
@@ -292,21 +259,11 @@ def blade_remove_command(
 
 
 def blade_retire_command(
-    tag: Annotated[str, typer.Argument(help="The blade's tag.", show_default=False)],
-    cause: Annotated[
-        str,
-        typer.Option("--cause", "-c", help="The failure mode that ended it.", show_default=False),
-    ],
+    tag: TagArg,
+    cause: Annotated[str, opt("failure")],
     date: DateOpt = None,
-    location: Annotated[
-        str | None,
-        typer.Option(
-            "--location", help="Where on the blade, e.g. gullet, weld.", show_default=False
-        ),
-    ] = None,
-    note: Annotated[
-        str | None, typer.Option("--note", help="Free text.", show_default=False)
-    ] = None,
+    location: Annotated[str | None, opt("location")] = None,
+    note: NoteOpt = None,
     units: UnitsOpt = UnitSystem.METRIC,
     db: DbOpt = None,
 ) -> None:
@@ -327,12 +284,7 @@ def blade_retire_command(
 
 
 def blade_list_command(
-    status: Annotated[
-        str | None,
-        typer.Option(
-            "--status", help="Only new, fitted, removed or retired blades.", show_default=False
-        ),
-    ] = None,
+    status: Annotated[str | None, opt("status")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
@@ -376,21 +328,18 @@ def blade_list_command(
         print(to_csv(headers, rows), end="")
     elif not rows:
         print(
-            "no blades in the log yet; add one: sawplan blade add TAG --pitch 3/4 --width 27mm --thickness 0.9mm"
+            "no blades in the log yet; add one: sawplan blade add TAG --pitch 3/4 "
+            "--blade-width 27mm --blade-thickness 0.9mm"
         )
     else:
         print(table(headers, rows, align="lllllrrl"))
 
 
 def blade_show_command(
-    tag: Annotated[str, typer.Argument(help="The blade's tag.", show_default=False)],
-    chart: Annotated[bool, typer.Option("--chart", help="Draw the wear curve.")] = False,
-    width: Annotated[
-        int, typer.Option("--width", help="Chart width in characters.", min=20, max=500)
-    ] = 72,
-    height: Annotated[
-        int, typer.Option("--height", help="Chart height in lines.", min=5, max=200)
-    ] = 20,
+    tag: TagArg,
+    chart: Annotated[bool, opt("chart", help="Draw the wear curve.")] = False,
+    width: ChartWidthOpt = 72,
+    height: ChartHeightOpt = 20,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
@@ -537,10 +486,10 @@ def register(app: typer.Typer) -> None:
     group = typer.Typer(
         help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
     )
-    group.command("add", help=ADD_HELP)(blade_add_command)
-    group.command("fit", help=FIT_HELP)(blade_fit_command)
-    group.command("remove", help=REMOVE_HELP)(blade_remove_command)
-    group.command("retire", help=RETIRE_HELP)(blade_retire_command)
-    group.command("list", help=LIST_HELP)(blade_list_command)
-    group.command("show", help=SHOW_HELP)(blade_show_command)
+    command(group, "add", ADD_HELP)(blade_add_command)
+    command(group, "fit", FIT_HELP)(blade_fit_command)
+    command(group, "remove", REMOVE_HELP)(blade_remove_command)
+    command(group, "retire", RETIRE_HELP)(blade_retire_command)
+    command(group, "list", LIST_HELP)(blade_list_command)
+    command(group, "show", SHOW_HELP)(blade_show_command)
     app.add_typer(group, name="blade", help=HELP)

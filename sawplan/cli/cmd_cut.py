@@ -2,7 +2,6 @@
 
 from __future__ import annotations
 
-from pathlib import Path
 from typing import Annotated
 
 import typer
@@ -11,16 +10,21 @@ from sawplan.cli.options import (
     BundleOpt,
     DbOpt,
     JsonOpt,
+    MaterialArg,
     MaterialsFileOpt,
     NestOpt,
     OrientOpt,
+    SawsFileOpt,
+    SectionArg,
     UnitsOpt,
+    command,
+    opt,
 )
 from sawplan.units import UnitSystem
 
 HELP = """Choose the blade, band speed and feed for one cut, and time it.
 
-Without --blade-tpi it recommends a pitch, tooth form and set for the section;
+Without --pitch it recommends a pitch, tooth form and set for the section;
 with it, it says what that blade will do instead (time, what limits it, what
 goes wrong) beside the recommendation.
 
@@ -28,7 +32,7 @@ goes wrong) beside the recommendation.
 Examples:
   sawplan cut 4140 round 7in
   sawplan cut 304 round 250mm --saw large-column --chart
-  sawplan cut 304 round 250mm --blade-tpi 4/6
+  sawplan cut 304 round 250mm --pitch 4/6
   sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm --units us
   sawplan cut 1018 tube 60mm 3mm --bundle 3x4 --json
 
@@ -39,48 +43,29 @@ DEFAULT_SAW = "mid-production"
 
 
 def cut_command(
-    material: Annotated[str, typer.Argument(help="Material key, e.g. 4140.", show_default=False)],
-    section: Annotated[
-        list[str], typer.Argument(help="Shape and sizes, e.g. round 7in.", show_default=False)
-    ],
+    material: MaterialArg,
+    section: SectionArg,
     saw: Annotated[
-        str, typer.Option("--saw", "-s", help="Saw profile (see `sawplan saw list`).")
+        str, opt("saw", help="Saw profile (see `sawplan saw list`).", show_default=True)
     ] = DEFAULT_SAW,
     blade_tpi: Annotated[
-        str | None,
-        typer.Option(
-            "--blade-tpi", "-t", help="Evaluate this pitch, e.g. 3/4 or 6.", show_default=False
-        ),
+        str | None, opt("pitch", help="Evaluate this pitch, e.g. 3/4 or 6.")
     ] = None,
     band_speed: Annotated[
-        str | None,
-        typer.Option(
-            "--band-speed",
-            help="Run at this band speed, e.g. 60m/min (with --blade-tpi).",
-            show_default=False,
-        ),
+        str | None, opt("band_speed", help="Run at this band speed, e.g. 60m/min (with --pitch).")
     ] = None,
-    dry: Annotated[bool, typer.Option("--dry", help="Cut without coolant.")] = False,
-    blade_material: Annotated[
-        str, typer.Option("--blade-material", help="bi-metal, carbon or carbide.")
-    ] = "bi-metal",
+    dry: Annotated[bool, opt("dry")] = False,
+    blade_material: Annotated[str, opt("blade_material", show_default=True)] = "bi-metal",
     orient: OrientOpt = None,
     bundle: BundleOpt = None,
     nest: NestOpt = False,
     chart: Annotated[
-        bool, typer.Option("--chart", help="Chart width of cut and feed through the cut.")
+        bool, opt("chart", help="Chart width of cut and feed through the cut.")
     ] = False,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     db: DbOpt = None,
-    saws_file: Annotated[
-        Path | None,
-        typer.Option(
-            "--saws",
-            help="Your own saw profiles (TOML; env SAWPLAN_SAWS).",
-            show_default=False,
-        ),
-    ] = None,
+    saws_file: SawsFileOpt = None,
     materials_file: MaterialsFileOpt = None,
 ) -> None:
     from sawplan.charts import cut_chart
@@ -100,7 +85,7 @@ def cut_command(
         )
     if band_speed is not None and blade_tpi is None:
         raise UsageError(
-            "give --blade-tpi with --band-speed (the blade on the saw)", field="band-speed"
+            "give --pitch with --band-speed (the blade on the saw)", field="band-speed"
         )
     mat = load_catalogue(materials_file).get(material)
     sec = parse_section(section, orientation=orient, bundle=bundle, nest=nest)
@@ -134,4 +119,4 @@ def cut_command(
 
 
 def register(app: typer.Typer) -> None:
-    app.command("cut", help=HELP)(cut_command)
+    command(app, "cut", HELP)(cut_command)

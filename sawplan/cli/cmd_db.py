@@ -6,7 +6,7 @@ from typing import Annotated
 
 import typer
 
-from sawplan.cli.options import DbOpt
+from sawplan.cli.options import DbOpt, command, opt
 
 HELP = """Move the blade log between a file and a PostgreSQL server; upgrade its schema.
 
@@ -44,15 +44,8 @@ Examples:
 
 
 def copy_command(
-    source: Annotated[
-        str, typer.Option("--from", metavar="PATH|URL", help="The log to copy.", show_default=False)
-    ],
-    target: Annotated[
-        str,
-        typer.Option(
-            "--to", metavar="PATH|URL", help="A new file or an empty database.", show_default=False
-        ),
-    ],
+    source: Annotated[str, opt("copy_from")],
+    target: Annotated[str, opt("copy_to")],
 ) -> None:
     from sawplan.store.transfer import copy_log
 
@@ -78,6 +71,6 @@ def register(app: typer.Typer) -> None:
     group = typer.Typer(
         help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
     )
-    group.command("copy", help=COPY_HELP)(copy_command)
-    group.command("upgrade", help=UPGRADE_HELP)(upgrade_command)
+    command(group, "copy", COPY_HELP)(copy_command)
+    command(group, "upgrade", UPGRADE_HELP)(upgrade_command)
     app.add_typer(group, name="db", help=HELP)

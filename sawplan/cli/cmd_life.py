@@ -9,16 +9,20 @@ from typing import Annotated, Any
 import typer
 
 from sawplan.cli.cmd_saw import plain
-from sawplan.cli.options import CsvOpt, DbOpt, JsonOpt, MaterialsFileOpt, UnitsOpt
+from sawplan.cli.options import (
+    ChartHeightOpt,
+    ChartWidthOpt,
+    ConfidenceOpt,
+    CsvOpt,
+    DbOpt,
+    JsonOpt,
+    MaterialsFileOpt,
+    TagArg,
+    UnitsOpt,
+    command,
+    opt,
+)
 from sawplan.units import UnitSystem
-
-ConfidenceOpt = Annotated[
-    float, typer.Option("--confidence", help="Confidence for intervals and forecasts, 0-1.")
-]
-WidthOpt = Annotated[
-    int, typer.Option("--width", help="Chart width in characters.", min=20, max=500)
-]
-HeightOpt = Annotated[int, typer.Option("--height", help="Chart height in lines.", min=5, max=200)]
 
 LIFE_HELP = """Blade life from the log: Weibull fit, failure modes, cost per area, calibration.
 
@@ -45,7 +49,7 @@ confidence) gives area ÷ life, and the answer says so.
 Examples:
   sawplan forecast --area 5m2
   sawplan forecast --area 800in2 --material 304 --confidence 0.95
-  sawplan forecast --job job.toml --json
+  sawplan forecast --job-file job.toml --json
 """
 
 CHART_HELP = """Charts of the log in the terminal; every chart also as --json or --csv data.
@@ -65,25 +69,13 @@ def _colorless() -> bool:
     return not sys.stdout.isatty() or bool(os.environ.get("NO_COLOR"))
 
 
-def _check_confidence(confidence: float) -> None:
-    from sawplan.errors import BadDataError
-
-    if not 0.5 <= confidence < 1.0:
-        raise BadDataError(f"must be from 0.5 to below 1, got {confidence:g}", field="confidence")
-
-
 # --- life -----------------------------------------------------------------------------------
 
 
 def life_command(
-    group_by: Annotated[
-        str | None,
-        typer.Option(
-            "--group-by", help="Also fit each blade-type or material-group.", show_default=False
-        ),
-    ] = None,
+    group_by: Annotated[str | None, opt("group_by")] = None,
     chart: Annotated[
-        bool, typer.Option("--chart", help="Add the Weibull plot and failure-mode chart.")
+        bool, opt("chart", help="Add the Weibull plot and failure-mode chart.")
     ] = False,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
@@ -94,7 +86,6 @@ def life_command(
     from sawplan.store import connect
     from sawplan.store.reports import life_report
 
-    _check_confidence(confidence)
     with connect(db, create=False) as database:
         report = life_report(database, group_by=group_by, confidence=confidence)
     if json_out:
@@ -257,28 +248,14 @@ def _weibull_plot_of(report: Any):
 
 
 def forecast_command(
-    area: Annotated[
-        str | None,
-        typer.Option("--area", "-a", help="Area to cut, e.g. 5m2, 800in2.", show_default=False),
-    ] = None,
+    area: Annotated[str | None, opt("area", help="Area to cut, e.g. 5m2, 800in2.")] = None,
     material: Annotated[
-        str | None,
-        typer.Option(
-            "--material", "-m", help="Material key: use its group's life.", show_default=False
-        ),
+        str | None, opt("material", help="Material key: use its group's life.")
     ] = None,
     job: Annotated[
-        Path | None,
-        typer.Option(
-            "--job", help="A job file: its parts' cut area per material.", show_default=False
-        ),
+        Path | None, opt("job_file", help="A job file: its parts' cut area per material.")
     ] = None,
-    life: Annotated[
-        str | None,
-        typer.Option(
-            "--life", help="Assume this life per blade instead, e.g. 2m2.", show_default=False
-        ),
-    ] = None,
+    life: Annotated[str | None, opt("life")] = None,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
@@ -286,19 +263,21 @@ def forecast_command(
     db: DbOpt = None,
 ) -> None:
     from sawplan.errors import UsageError
+    from sawplan.fields import parse
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
     from sawplan.store import connect
     from sawplan.store.reports import forecast_area, forecast_job
-    from sawplan.units import to_core
 
-    _check_confidence(confidence)
     if (area is None) == (job is None):
-        raise UsageError("give either --area or --job", field="forecast", hint="e.g. --area 5m2")
+        raise UsageError(
+            "give either --area or --job-file", field="forecast", hint="e.g. --area 5m2"
+        )
     if job is not None:
         if material is not None or life is not None:
             raise UsageError(
-                "--job takes the materials from the job file; drop --material/--life", field="job"
+                "--job-file takes the materials from the job file; drop --material/--life",
+                field="job file",
             )
         areas = job_cut_areas(job, load_catalogue(materials_file))
         result = forecast_job(db, areas, confidence=confidence)
@@ -307,8 +286,8 @@ def forecast_command(
             return
         print(render_job_forecast(result, units))
         return
-    area_cm2 = to_core(area, "area", field="area") / 100.0
-    life_cm2 = None if life is None else to_core(life, "area", field="life") / 100.0
+    area_cm2 = parse("area", area) / 100.0
+    life_cm2 = None if life is None else parse("life", life) / 100.0
     catalogue = load_catalogue(materials_file)  # a bad --materials-file is reported, not skipped
     mat = catalogue.get(material) if material is not None else None
     with connect(db, create=False) as database:
@@ -408,9 +387,9 @@ def _emit_rows(
 
 
 def chart_wear_command(
-    tag: Annotated[str, typer.Argument(help="The blade's tag.", show_default=False)],
-    width: WidthOpt = 72,
-    height: HeightOpt = 20,
+    tag: TagArg,
+    width: ChartWidthOpt = 72,
+    height: ChartHeightOpt = 20,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
@@ -430,8 +409,8 @@ def chart_wear_command(
 
 
 def chart_weibull_command(
-    width: WidthOpt = 72,
-    height: HeightOpt = 20,
+    width: ChartWidthOpt = 72,
+    height: ChartHeightOpt = 20,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
@@ -442,7 +421,6 @@ def chart_weibull_command(
     from sawplan.store import connect
     from sawplan.store.reports import life_report
 
-    _check_confidence(confidence)
     with connect(db, create=False) as database:
         report = life_report(database, confidence=confidence)
     plot = _weibull_plot_of(report)
@@ -463,7 +441,7 @@ def weibull_rows_empty() -> tuple[list[str], list[list[Any]]]:
 
 
 def chart_modes_command(
-    width: WidthOpt = 72,
+    width: ChartWidthOpt = 72,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -483,7 +461,7 @@ def chart_modes_command(
 
 
 def chart_cost_command(
-    width: WidthOpt = 72,
+    width: ChartWidthOpt = 72,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
@@ -494,7 +472,6 @@ def chart_cost_command(
     from sawplan.store import connect
     from sawplan.store.reports import life_report
 
-    _check_confidence(confidence)
     with connect(db, create=False) as database:
         report = life_report(database, confidence=confidence)
     if _emit_rows(*cost_rows(report.costs), "blade-costs", json_out, csv_out):
@@ -505,15 +482,15 @@ def chart_cost_command(
 
 
 def register(app: typer.Typer) -> None:
-    app.command("life", help=LIFE_HELP)(life_command)
-    app.command("forecast", help=FORECAST_HELP)(forecast_command)
+    command(app, "life", LIFE_HELP)(life_command)
+    command(app, "forecast", FORECAST_HELP)(forecast_command)
     group = typer.Typer(
         help=CHART_HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
     )
-    group.command("wear", help=_sub("Wear curve of one blade: cutting rate against area cut.", "chart wear B-017", "chart wear B-017 --csv"))(chart_wear_command)  # fmt: skip
-    group.command("weibull", help=_sub("Weibull probability plot of blade lives (median ranks, censored blades counted).", "chart weibull", "chart weibull --json"))(chart_weibull_command)  # fmt: skip
-    group.command("modes", help=_sub("Retired blades by failure mode.", "chart modes", "chart modes --csv"))(chart_modes_command)  # fmt: skip
-    group.command("cost", help=_sub("Cost per area cut by blade type.", "chart cost", "chart cost --units us --json"))(chart_cost_command)  # fmt: skip
+    command(group, "wear", _sub("Wear curve of one blade: cutting rate against area cut.", "chart wear B-017", "chart wear B-017 --csv"))(chart_wear_command)  # fmt: skip
+    command(group, "weibull", _sub("Weibull probability plot of blade lives (median ranks, censored blades counted).", "chart weibull", "chart weibull --json"))(chart_weibull_command)  # fmt: skip
+    command(group, "modes", _sub("Retired blades by failure mode.", "chart modes", "chart modes --csv"))(chart_modes_command)  # fmt: skip
+    command(group, "cost", _sub("Cost per area cut by blade type.", "chart cost", "chart cost --units us --json"))(chart_cost_command)  # fmt: skip
     app.add_typer(group, name="chart", help=CHART_HELP)
 
 

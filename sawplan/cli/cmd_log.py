@@ -8,20 +8,27 @@ from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.cmd_saw import DateOpt, SawsFileOpt, plain
+from sawplan.cli.cmd_saw import plain
 from sawplan.cli.options import (
     BundleOpt,
     CsvOpt,
+    DateOpt,
     DbOpt,
     JsonOpt,
+    MaterialArg,
     MaterialsFileOpt,
     NestOpt,
+    NoteOpt,
     OrientOpt,
+    SawsFileOpt,
+    SectionArg,
+    TagArg,
     UnitsOpt,
+    arg,
+    command,
+    opt,
 )
 from sawplan.units import UnitSystem
-
-MAX_BATCH = 100_000  # identical cuts in one entry; more is a typing mistake
 
 HELP = """Log what the blades cut (cuts) and what happened to them (events).
 
@@ -46,19 +53,19 @@ when less than the whole section was cut.
 Examples:
   sawplan log cut 304 round 60mm
   sawplan log cut 4140 flat 100mm 25mm --orient edge --cuts 12 --time 30min --job J-2291 --heat H77812
-  sawplan log cut A36 round 40mm --bundle 3x4 --blade B-017 --speed 60m/min --feed 3 --dry --date yesterday
+  sawplan log cut A36 round 40mm --bundle 3x4 --blade B-017 --band-speed 60m/min --feed 3 --dry --date yesterday
 """
 
 EVENT_HELP = """Log something that happened to a blade.
 
-KIND is teeth-lost, crooked, stall or failure. A failure needs --mode and
+KIND is teeth-lost, crooked, stall or failure. A failure needs --failure and
 retires the blade (as `sawplan blade retire` does).
 
 \b
 Examples:
   sawplan log event B-017 teeth-lost --teeth 3 --note "hit a hard spot"
-  sawplan log event B-017 crooked --mode crooked
-  sawplan log event B-017 failure --mode weld --location weld
+  sawplan log event B-017 crooked --failure crooked
+  sawplan log event B-017 failure --failure weld --location weld
 """
 
 LIST_HELP = """List logged cut entries, newest first.
@@ -72,74 +79,38 @@ Examples:
 
 
 def log_cut_command(
-    material: Annotated[str, typer.Argument(help="Material key, e.g. 304.", show_default=False)],
-    section: Annotated[
-        list[str], typer.Argument(help="Shape and sizes, e.g. round 60mm.", show_default=False)
-    ],
+    material: MaterialArg,
+    section: SectionArg,
     orient: OrientOpt = None,
     bundle: BundleOpt = None,
     nest: NestOpt = False,
-    blade: Annotated[
-        str | None,
-        typer.Option(
-            "--blade", help="The blade's tag (default: the fitted blade).", show_default=False
-        ),
-    ] = None,
-    saw: Annotated[
-        str | None,
-        typer.Option("--saw", "-s", help="The saw (picks its fitted blade).", show_default=False),
-    ] = None,
-    cuts: Annotated[int, typer.Option("--cuts", "-n", help="Identical cuts in this entry.")] = 1,
+    blade: Annotated[str | None, opt("blade")] = None,
+    saw: Annotated[str | None, opt("saw", help="The saw (picks its fitted blade).")] = None,
+    cuts: Annotated[int, opt("cuts", show_default=True)] = 1,
     area: Annotated[
-        str | None,
-        typer.Option(
-            "--area",
-            help="Area of one cut when less than the section, e.g. 20cm2.",
-            show_default=False,
-        ),
+        str | None, opt("area", help="Area of one cut when less than the section, e.g. 20cm2.")
     ] = None,
-    time: Annotated[
-        str | None,
-        typer.Option(
-            "--time", help="Measured time of the whole entry, e.g. 4.5min.", show_default=False
-        ),
-    ] = None,
+    time: Annotated[str | None, opt("time")] = None,
     date: DateOpt = None,
-    speed: Annotated[
-        str | None,
-        typer.Option("--speed", help="Band speed used, e.g. 60m/min.", show_default=False),
-    ] = None,
-    feed: Annotated[
-        str | None,
-        typer.Option(
-            "--feed", help="Feed: a rate (40mm/min) or the dial setting (3).", show_default=False
-        ),
-    ] = None,
-    dry: Annotated[bool, typer.Option("--dry", help="Cut without coolant.")] = False,
-    job: Annotated[
-        str | None, typer.Option("--job", help="Job reference.", show_default=False)
-    ] = None,
-    heat: Annotated[
-        str | None,
-        typer.Option("--heat", help="Heat or lot number of the stock.", show_default=False),
-    ] = None,
-    note: Annotated[
-        str | None, typer.Option("--note", help="Free text.", show_default=False)
-    ] = None,
+    speed: Annotated[str | None, opt("band_speed", help="Band speed used, e.g. 60m/min.")] = None,
+    feed: Annotated[str | None, opt("feed")] = None,
+    dry: Annotated[bool, opt("dry")] = False,
+    job: Annotated[str | None, opt("job")] = None,
+    heat: Annotated[str | None, opt("heat")] = None,
+    note: NoteOpt = None,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
     saws_file: SawsFileOpt = None,
     db: DbOpt = None,
 ) -> None:
-    from sawplan.errors import BadDataError
+    from sawplan.fields import parse
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
     from sawplan.sections import parse_section
     from sawplan.store import connect
     from sawplan.store.dates import parse_day
     from sawplan.store.records import CutEntry, record_cut
-    from sawplan.units import to_core
 
     mat = load_catalogue(materials_file).get(material)
     if saws_file is not None:  # read (and check) a --saws file even when the log has the saw
@@ -154,15 +125,9 @@ def log_cut_command(
     if nest:
         words.append("--nest")
     sec = parse_section(words)
-    if not 1 <= cuts <= MAX_BATCH:
-        raise BadDataError(f"must be 1 to {MAX_BATCH:,}, got {cuts}", field="cuts")
-    one_cut_mm2 = batch_cut_area(
-        sec.area_mm2, None if area is None else to_core(area, "area", field="area")
-    )
-    time_min = None if time is None else _positive(to_core(time, "time", field="time"), "time")
-    speed_m_min = (
-        None if speed is None else _positive(to_core(speed, "speed", field="speed"), "speed")
-    )
+    one_cut_mm2 = batch_cut_area(sec.area_mm2, None if area is None else parse("area", area))
+    time_min = None if time is None else parse("time", time)
+    speed_m_min = None if speed is None else parse("band_speed", speed)
     feed_mm_min, feed_setting = parse_feed(feed)
     on = parse_day(date)
     notes: list[str] = []
@@ -236,7 +201,8 @@ def batch_cut_area(section_area_mm2: float, area_mm2: float | None) -> float:
 def parse_feed(text: str | None) -> tuple[float | None, str | None]:
     """A rate with a unit (mm/min, in/min) or a bare dial setting, kept as text."""
     from sawplan.errors import UsageError
-    from sawplan.units import to_core
+    from sawplan.fields import parse
+    from sawplan.units import positive
 
     if text is None:
         return None, None
@@ -245,15 +211,9 @@ def parse_feed(text: str | None) -> tuple[float | None, str | None]:
     try:
         setting = float(text)
     except ValueError:
-        return _positive(to_core(text, "feed", field="feed"), "feed"), None
-    _positive(setting, "feed")  # a dial setting is a number above 0
+        return parse("feed", text), None
+    positive(setting, field="feed setting", what="above 0")  # a dial setting is a number
     return None, text.strip()
-
-
-def _positive(value: float, field: str) -> float:
-    from sawplan.units import positive
-
-    return positive(value, field=field, what="above 0")
 
 
 def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float | None):
@@ -321,25 +281,13 @@ def _cuts(n: int) -> str:
 
 
 def log_event_command(
-    tag: Annotated[str, typer.Argument(help="The blade's tag.", show_default=False)],
-    kind: Annotated[
-        str, typer.Argument(help="teeth-lost, crooked, stall or failure.", show_default=False)
-    ],
-    mode: Annotated[
-        str | None,
-        typer.Option("--mode", "-m", help="Failure mode, e.g. stripped, weld.", show_default=False),
-    ] = None,
-    location: Annotated[
-        str | None, typer.Option("--location", help="Where on the blade.", show_default=False)
-    ] = None,
-    teeth: Annotated[
-        int | None,
-        typer.Option("--teeth", help="Teeth lost (teeth-lost; default 1).", show_default=False),
-    ] = None,
+    tag: TagArg,
+    kind: Annotated[str, arg("event_kind", help="teeth-lost, crooked, stall or failure.")],
+    mode: Annotated[str | None, opt("failure", help="Failure mode, e.g. stripped, weld.")] = None,
+    location: Annotated[str | None, opt("location")] = None,
+    teeth: Annotated[int | None, opt("teeth")] = None,
     date: DateOpt = None,
-    note: Annotated[
-        str | None, typer.Option("--note", help="Free text.", show_default=False)
-    ] = None,
+    note: NoteOpt = None,
     db: DbOpt = None,
 ) -> None:
     from sawplan.store import connect
@@ -364,16 +312,10 @@ def log_event_command(
 
 
 def log_list_command(
-    blade: Annotated[
-        str | None, typer.Option("--blade", help="Only this blade.", show_default=False)
-    ] = None,
-    saw: Annotated[
-        str | None, typer.Option("--saw", "-s", help="Only this saw.", show_default=False)
-    ] = None,
-    job: Annotated[
-        str | None, typer.Option("--job", help="Only this job.", show_default=False)
-    ] = None,
-    limit: Annotated[int, typer.Option("--limit", help="Newest entries to show (0: all).")] = 30,
+    blade: Annotated[str | None, opt("blade", help="Only this blade.")] = None,
+    saw: Annotated[str | None, opt("saw", help="Only this saw.")] = None,
+    job: Annotated[str | None, opt("job", help="Only this job.")] = None,
+    limit: Annotated[int, opt("limit", show_default=True)] = 30,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
@@ -410,7 +352,7 @@ def register(app: typer.Typer) -> None:
     group = typer.Typer(
         help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
     )
-    group.command("cut", help=CUT_HELP)(log_cut_command)
-    group.command("event", help=EVENT_HELP)(log_event_command)
-    group.command("list", help=LIST_HELP)(log_list_command)
+    command(group, "cut", CUT_HELP)(log_cut_command)
+    command(group, "event", EVENT_HELP)(log_event_command)
+    command(group, "list", LIST_HELP)(log_list_command)
     app.add_typer(group, name="log", help=HELP)

@@ -7,9 +7,9 @@ from typing import Annotated
 
 import typer
 
-from sawplan.cli.options import DbOpt
+from sawplan.cli.options import DbOpt, ForceOpt, arg, command, opt
 
-EXPORT_HELP = """Write the blade log as CSV files into CSVDIR.
+EXPORT_HELP = """Write the blade log as CSV files into the folder DIR.
 
 One file per table: saws.csv, blades.csv, fittings.csv, cuts.csv,
 events.csv. Blades and saws are named by tag and name, so the folder can be
@@ -47,7 +47,7 @@ when complete.
 \b
 Examples:
   sawplan backup blade-log-2024-06-30.sqlite
-  sawplan backup /mnt/usb/blade-log.sqlite --force
+  sawplan backup usb/blade-log.sqlite --force
   sawplan backup shop-log-2024-06-30.dump --db postgresql://office@saw-server/sawplan
 """
 
@@ -75,17 +75,13 @@ from a log file or an export zip made by `sawplan backup`.
 \b
 Examples:
   sawplan restore --force
-  sawplan restore /mnt/usb/blade-log-2024-06-30.sqlite --force --db shop-log.sqlite
+  sawplan restore usb/blade-log-2024-06-30.sqlite --force --db shop-log.sqlite
   sawplan restore shop-log.zip --db postgresql://office@saw-server/sawplan
 """
 
-ForceOpt = Annotated[bool, typer.Option("--force", help="Replace files that exist.")]
-
 
 def export_command(
-    csvdir: Annotated[
-        Path, typer.Argument(help="Folder to write the CSV files into.", show_default=False)
-    ],
+    csvdir: Annotated[Path, arg("folder", help="Folder to write the CSV files into.")],
     force: ForceOpt = False,
     db: DbOpt = None,
 ) -> None:
@@ -103,10 +99,7 @@ def export_command(
 
 
 def import_command(
-    csvdir: Annotated[
-        Path,
-        typer.Argument(help="Folder holding the CSV files (or a zip of them).", show_default=False),
-    ],
+    csvdir: Annotated[Path, arg("folder", help="Folder (or zip) holding the CSV files.")],
     db: DbOpt = None,
 ) -> None:
     from sawplan.store import connect
@@ -119,7 +112,7 @@ def import_command(
 
 
 def backup_command(
-    file: Annotated[Path, typer.Argument(help="The backup file to write.", show_default=False)],
+    file: Annotated[Path, arg("file", help="The backup file to write.")],
     force: ForceOpt = False,
     db: DbOpt = None,
 ) -> None:
@@ -158,13 +151,10 @@ def check_command(db: DbOpt = None) -> None:
 def restore_command(
     file: Annotated[
         Path | None,
-        typer.Argument(
-            help="The backup to restore (default: the newest sound automatic backup).",
-            show_default=False,
-        ),
+        arg("file", help="The backup to restore (default: the newest sound automatic backup)."),
     ] = None,
     force: Annotated[
-        bool, typer.Option("--force", help="Replace the existing log (it is kept aside).")
+        bool, opt("force", help="Replace the existing log (it is kept aside).")
     ] = False,
     db: DbOpt = None,
 ) -> None:
@@ -177,8 +167,8 @@ def restore_command(
 
 
 def register(app: typer.Typer) -> None:
-    app.command("export", help=EXPORT_HELP)(export_command)
-    app.command("import", help=IMPORT_HELP)(import_command)
-    app.command("backup", help=BACKUP_HELP)(backup_command)
-    app.command("check", help=CHECK_HELP)(check_command)
-    app.command("restore", help=RESTORE_HELP)(restore_command)
+    command(app, "export", EXPORT_HELP)(export_command)
+    command(app, "import", IMPORT_HELP)(import_command)
+    command(app, "backup", BACKUP_HELP)(backup_command)
+    command(app, "check", CHECK_HELP)(check_command)
+    command(app, "restore", RESTORE_HELP)(restore_command)

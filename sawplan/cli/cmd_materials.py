@@ -6,7 +6,7 @@ from typing import Annotated
 
 import typer
 
-from sawplan.cli.options import CsvOpt, JsonOpt, MaterialsFileOpt, UnitsOpt
+from sawplan.cli.options import CsvOpt, JsonOpt, MaterialsFileOpt, UnitsOpt, arg, command, opt
 from sawplan.units import UnitSystem
 
 HELP = """List the materials sawplan knows, or show one with its sources.
@@ -21,13 +21,8 @@ Examples:
 
 
 def materials_command(
-    key: Annotated[
-        str | None, typer.Argument(help="Show this one material in full.", show_default=False)
-    ] = None,
-    group: Annotated[
-        str | None,
-        typer.Option("--group", "-g", help="Only this group, e.g. tool-steel.", show_default=False),
-    ] = None,
+    key: Annotated[str | None, arg("material", help="Show this one material in full.")] = None,
+    group: Annotated[str | None, opt("group")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
@@ -122,4 +117,4 @@ def render_one(m, units: UnitSystem) -> str:
 
 
 def register(app: typer.Typer) -> None:
-    app.command("materials", help=HELP)(materials_command)
+    command(app, "materials", HELP)(materials_command)

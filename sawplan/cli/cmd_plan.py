@@ -7,7 +7,16 @@ from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.options import DbOpt, JsonOpt, MaterialsFileOpt, UnitsOpt
+from sawplan.cli.options import (
+    DbOpt,
+    JsonOpt,
+    MaterialsFileOpt,
+    SawsFileOpt,
+    UnitsOpt,
+    arg,
+    command,
+    opt,
+)
 from sawplan.units import UnitSystem
 
 HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote.
@@ -31,7 +40,7 @@ Examples:
   sawplan plan job.toml
   sawplan plan job.toml --sheet job.html
   sawplan plan job.toml --sheet job.md --units us
-  sawplan plan job.toml --csv out/ --saw large-column
+  sawplan plan job.toml --csv-dir out --saw large-column
   sawplan plan job.toml --json --db shop-log.sqlite
 
 Estimates only: the saw maker's manual, the blade maker's data, shop rules and
@@ -40,62 +49,24 @@ local regulations govern.
 
 
 def plan_command(
-    jobfile: Annotated[
-        Path, typer.Argument(help="The job file (TOML).", show_default=False, metavar="JOBFILE")
-    ],
+    jobfile: Annotated[Path, arg("job_file", help="The job file (TOML).")],
     json_out: JsonOpt = False,
     csv_dir: Annotated[
-        Path | None,
-        typer.Option(
-            "--csv",
-            help="Write cuts.csv, bars.csv and summary.csv into DIR.",
-            show_default=False,
-            metavar="DIR",
-        ),
+        Path | None, opt("csv_dir", help="Write cuts.csv, bars.csv and summary.csv into DIR.")
     ] = None,
-    sheet: Annotated[
-        Path | None,
-        typer.Option(
-            "--sheet",
-            help="Write a printable cut sheet: HTML, or Markdown when FILE ends in .md.",
-            show_default=False,
-            metavar="FILE",
-        ),
-    ] = None,
+    sheet: Annotated[Path | None, opt("sheet")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
     db: DbOpt = None,
     saw_name: Annotated[
-        str | None,
-        typer.Option(
-            "--saw",
-            help="Saw to plan for (overrides saw in [job]).",
-            show_default=False,
-            metavar="NAME",
-        ),
+        str | None, opt("saw", help="Saw to plan for (overrides saw in [job]).")
     ] = None,
-    saws_file: Annotated[
-        Path | None,
-        typer.Option(
-            "--saws",
-            help="Your own saws TOML file (env SAWPLAN_SAWS).",
-            show_default=False,
-            metavar="FILE",
-        ),
-    ] = None,
+    saws_file: SawsFileOpt = None,
     materials_file: MaterialsFileOpt = None,
     time_limit: Annotated[
         float,
-        typer.Option(
-            "--time-limit", help="Seconds the optimiser may spend per section.", metavar="SECONDS"
-        ),
+        opt("time_limit", help="Seconds the optimiser may spend per section.", show_default=True),
     ] = 5.0,
-    allow: Annotated[
-        bool,
-        typer.Option(
-            "--allow",
-            help="Let the job file name files outside its own folder (stock_file).",
-        ),
-    ] = False,
+    allow: Annotated[bool, opt("allow")] = False,
 ) -> None:
     import sys
 
@@ -272,4 +243,4 @@ def _r(value: float, digits: int = 1) -> float:
 
 
 def register(app: typer.Typer) -> None:
-    app.command("plan", help=HELP)(plan_command)
+    command(app, "plan", HELP)(plan_command)

@@ -3,33 +3,22 @@
 from __future__ import annotations
 
 import re
-from pathlib import Path
 from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.options import CsvOpt, DbOpt, JsonOpt, UnitsOpt
+from sawplan.cli.options import (
+    CsvOpt,
+    DbOpt,
+    JsonOpt,
+    NoteOpt,
+    SawsFileOpt,
+    UnitsOpt,
+    arg,
+    command,
+    opt,
+)
 from sawplan.units import UnitSystem
-
-SawsFileOpt = Annotated[
-    Path | None,
-    typer.Option(
-        "--saws",
-        help="Your own saws TOML file, added to the packaged profiles (env SAWPLAN_SAWS).",
-        show_default=False,
-        exists=True,
-        dir_okay=False,
-    ),
-]
-DateOpt = Annotated[
-    str | None,
-    typer.Option(
-        "--date",
-        "-d",
-        help="When: YYYY-MM-DD, today or yesterday (default today).",
-        show_default=False,
-    ),
-]
 
 HELP = """Saw profiles: add your own saws to the blade log and list every saw known.
 
@@ -67,116 +56,58 @@ _RANGE = re.compile(
 def parse_speed_range(text: str) -> tuple[float, float]:
     """``20-90m/min`` or ``65-330 ft/min`` → (low, high) in m/min."""
     from sawplan.errors import BadDataError, UsageError
-    from sawplan.units import to_core
+    from sawplan.fields import parse
 
+    words = "band speed range"
     m = _RANGE.match(text)
     if not m:
         raise UsageError(
-            f"expected LOW-HIGH with a unit, got {text!r}",
-            field="speed-range",
-            hint="e.g. 20-90m/min",
+            f"expected LOW-HIGH with a unit, got {text!r}", field=words, hint="e.g. 20-90m/min"
         )
     unit = m.group("unit")
-    lo = to_core(m.group("lo") + (m.group("lo_unit") or unit), "speed", field="speed-range")
-    hi = to_core(m.group("hi") + unit, "speed", field="speed-range")
+    lo = parse("band_speed", m.group("lo") + (m.group("lo_unit") or unit), words=words)
+    hi = parse("band_speed", m.group("hi") + unit, words=words)
     if lo > hi:
-        raise BadDataError(f"the low speed is above the high one in {text!r}", field="speed-range")
+        raise BadDataError(f"the low speed is above the high one in {text!r}", field=words)
     return lo, hi
 
 
 def parse_rect(text: str) -> tuple[float, float]:
     """``350x260mm`` → (width, height) in mm."""
     from sawplan.errors import UsageError
+    from sawplan.fields import parse
     from sawplan.sections import split_sizes
-    from sawplan.units import to_core
 
     sizes = split_sizes(text.split())
     if len(sizes) != 2:
         raise UsageError(
             f"expected WIDTHxHEIGHT with a unit, got {text!r}",
-            field="capacity-rect",
+            field="rectangle capacity",
             hint="e.g. 350x260mm",
         )
-    w, h = (to_core(s, "length", field="capacity-rect") for s in sizes)
+    w, h = (parse("capacity_rect", s) for s in sizes)
     return w, h
 
 
 def saw_add_command(
-    name: Annotated[str, typer.Argument(help="The saw's name in your shop.", show_default=False)],
-    like: Annotated[
-        str | None,
-        typer.Option("--like", help="Start from this saw's profile.", show_default=False),
-    ] = None,
-    kind: Annotated[
-        str | None,
-        typer.Option("--kind", help="horizontal, column or vertical.", show_default=False),
-    ] = None,
-    wheel: Annotated[
-        str | None, typer.Option("--wheel", help="Wheel diameter, e.g. 450mm.", show_default=False)
-    ] = None,
-    blade_length: Annotated[
-        str | None,
-        typer.Option("--blade-length", help="Blade length, e.g. 3660mm.", show_default=False),
-    ] = None,
-    blade_width: Annotated[
-        str | None,
-        typer.Option("--blade-width", help="Blade width, e.g. 27mm.", show_default=False),
-    ] = None,
-    blade_thickness: Annotated[
-        str | None,
-        typer.Option("--blade-thickness", help="Blade thickness, e.g. 0.9mm.", show_default=False),
-    ] = None,
-    speed_range: Annotated[
-        str | None,
-        typer.Option(
-            "--speed-range", help="Band speed range, e.g. 20-90m/min.", show_default=False
-        ),
-    ] = None,
-    power: Annotated[
-        str | None,
-        typer.Option("--power", help="Motor power, e.g. 1.5kW or 2hp.", show_default=False),
-    ] = None,
-    efficiency: Annotated[
-        float | None,
-        typer.Option("--efficiency", help="Motor-to-blade efficiency, 0-1.", show_default=False),
-    ] = None,
-    capacity_round: Annotated[
-        str | None,
-        typer.Option("--capacity-round", help="Largest round, e.g. 260mm.", show_default=False),
-    ] = None,
-    capacity_rect: Annotated[
-        str | None,
-        typer.Option(
-            "--capacity-rect", help="Largest rectangle WxH, e.g. 350x260mm.", show_default=False
-        ),
-    ] = None,
-    feed_type: Annotated[
-        str | None,
-        typer.Option("--feed-type", help="constant, gravity or hydraulic.", show_default=False),
-    ] = None,
-    head_force: Annotated[
-        str | None,
-        typer.Option(
-            "--head-force",
-            help="Head force of a gravity/hydraulic feed, e.g. 2500N.",
-            show_default=False,
-        ),
-    ] = None,
-    coolant: Annotated[
-        bool | None,
-        typer.Option(
-            "--coolant/--no-coolant", help="Whether the saw has flood coolant.", show_default=False
-        ),
-    ] = None,
-    wheels: Annotated[
-        int | None, typer.Option("--wheels", help="Number of wheels (2-4).", show_default=False)
-    ] = None,
-    notes: Annotated[
-        str | None, typer.Option("--notes", help="Free text.", show_default=False)
-    ] = None,
-    replace: Annotated[
-        bool, typer.Option("--replace", help="Update a saw already in the log.")
-    ] = False,
+    name: Annotated[str, arg("saw", help="The saw's name in your shop.")],
+    like: Annotated[str | None, opt("like")] = None,
+    kind: Annotated[str | None, opt("saw_kind")] = None,
+    wheel: Annotated[str | None, opt("wheel")] = None,
+    blade_length: Annotated[str | None, opt("blade_length")] = None,
+    blade_width: Annotated[str | None, opt("blade_width")] = None,
+    blade_thickness: Annotated[str | None, opt("blade_thickness")] = None,
+    speed_range: Annotated[str | None, opt("speed_range")] = None,
+    power: Annotated[str | None, opt("power")] = None,
+    efficiency: Annotated[float | None, opt("efficiency")] = None,
+    capacity_round: Annotated[str | None, opt("capacity_round")] = None,
+    capacity_rect: Annotated[str | None, opt("capacity_rect")] = None,
+    feed_type: Annotated[str | None, opt("feed_type")] = None,
+    head_force: Annotated[str | None, opt("head_force")] = None,
+    coolant: Annotated[bool | None, opt("coolant")] = None,
+    wheels: Annotated[int | None, opt("wheels")] = None,
+    notes: NoteOpt = None,
+    replace: Annotated[bool, opt("replace")] = False,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     saws_file: SawsFileOpt = None,
@@ -185,12 +116,12 @@ def saw_add_command(
     import dataclasses
 
     from sawplan.errors import UsageError
+    from sawplan.fields import parse
     from sawplan.render import to_json
     from sawplan.saws import Saw, get_saw
     from sawplan.store import connect, saws_from_db
     from sawplan.store.dates import parse_day
     from sawplan.store.records import add_saw
-    from sawplan.units import to_core
 
     values: dict[str, Any] = {}
     if like is not None:
@@ -207,26 +138,24 @@ def saw_add_command(
         "wheel_count": wheels,
         "notes": notes,
     }
-    lengths = {
+    quantities = {
         "wheel_diameter_mm": (wheel, "wheel"),
-        "blade_length_mm": (blade_length, "blade-length"),
-        "blade_width_mm": (blade_width, "blade-width"),
-        "blade_thickness_mm": (blade_thickness, "blade-thickness"),
-        "capacity_round_mm": (capacity_round, "capacity-round"),
+        "blade_length_mm": (blade_length, "blade_length"),
+        "blade_width_mm": (blade_width, "blade_width"),
+        "blade_thickness_mm": (blade_thickness, "blade_thickness"),
+        "capacity_round_mm": (capacity_round, "capacity_round"),
+        "motor_power_w": (power, "power"),
+        "head_force_n": (head_force, "head_force"),
     }
-    for key, (text, option) in lengths.items():
+    for key, (text, field_key) in quantities.items():
         if text is not None:
-            given[key] = to_core(text, "length", field=option)
+            given[key] = parse(field_key, text)
     if speed_range is not None:
         given["band_speed_min_m_min"], given["band_speed_max_m_min"] = parse_speed_range(
             speed_range
         )
-    if power is not None:
-        given["motor_power_w"] = to_core(power, "power", field="power")
     if capacity_rect is not None:
         given["capacity_rect_w_mm"], given["capacity_rect_h_mm"] = parse_rect(capacity_rect)
-    if head_force is not None:
-        given["head_force_n"] = to_core(head_force, "force", field="head-force")
     values.update({k: v for k, v in given.items() if v is not None})
     values.setdefault("source", "blade log")
     missing = [_OPTION_OF[f.name] for f in dataclasses.fields(Saw) if f.name not in values
@@ -401,6 +330,6 @@ def register(app: typer.Typer) -> None:
     group = typer.Typer(
         help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
     )
-    group.command("add", help=ADD_HELP)(saw_add_command)
-    group.command("list", help=LIST_HELP)(saw_list_command)
+    command(group, "add", ADD_HELP)(saw_add_command)
+    command(group, "list", LIST_HELP)(saw_list_command)
     app.add_typer(group, name="saw", help=HELP)

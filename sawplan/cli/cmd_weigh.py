@@ -6,7 +6,15 @@ from typing import Annotated
 
 import typer
 
-from sawplan.cli.options import JsonOpt, MaterialsFileOpt, UnitsOpt
+from sawplan.cli.options import (
+    JsonOpt,
+    MaterialArg,
+    MaterialsFileOpt,
+    SectionArg,
+    UnitsOpt,
+    command,
+    opt,
+)
 from sawplan.units import UnitSystem
 
 HELP = """Weigh a bar or blank and say how to lift it.
@@ -26,64 +34,35 @@ constant). Shop rules and local regulations govern.
 
 
 def weigh_command(
-    material: Annotated[str, typer.Argument(help="Material key, e.g. 4140.", show_default=False)],
-    section: Annotated[
-        list[str], typer.Argument(help="Shape and sizes, e.g. round 60mm.", show_default=False)
-    ],
-    length: Annotated[
-        str, typer.Option("--length", "-l", help="Length of one piece, e.g. 1m, 12ft, 300mm.")
-    ],
-    count: Annotated[int, typer.Option("--count", "-n", help="Number of pieces.")] = 1,
-    reach: Annotated[
-        str | None,
-        typer.Option(
-            "--reach",
-            help="Hands' distance in front of the ankles at the lift (default 25cm).",
-            show_default=False,
-        ),
-    ] = None,
-    lift_from: Annotated[
-        str | None,
-        typer.Option(
-            "--lift-from",
-            help="Height of the hands at the start of the lift (default 75cm).",
-            show_default=False,
-        ),
-    ] = None,
-    travel: Annotated[
-        str | None,
-        typer.Option(
-            "--travel", help="Vertical travel of the lift (default 25cm).", show_default=False
-        ),
-    ] = None,
-    lifts_per_min: Annotated[
-        float, typer.Option("--lifts-per-min", help="How often the lift is repeated.")
-    ] = 0.2,
+    material: MaterialArg,
+    section: SectionArg,
+    length: Annotated[str, opt("length")],
+    count: Annotated[int, opt("count", show_default=True)] = 1,
+    reach: Annotated[str | None, opt("reach")] = None,
+    lift_from: Annotated[str | None, opt("lift_from")] = None,
+    travel: Annotated[str | None, opt("travel")] = None,
+    lifts_per_min: Annotated[float, opt("lifts_per_min", show_default=True)] = 0.2,
     units: UnitsOpt = UnitSystem.METRIC,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
 ) -> None:
+    from sawplan.fields import parse
     from sawplan.handling import LiftConditions
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
     from sawplan.sections import parse_section
-    from sawplan.units import to_core
     from sawplan.weights import weigh
 
     mat = load_catalogue(materials_file).get(material)
     sec = parse_section(section)
-    length_mm = to_core(length, "length", field="length")
+    length_mm = parse("length", length)
     defaults = LiftConditions()
     conditions = LiftConditions(
-        horizontal_cm=to_core(reach, "length", field="reach") / 10
-        if reach is not None
-        else defaults.horizontal_cm,
-        vertical_cm=to_core(lift_from, "length", field="lift-from") / 10
-        if lift_from is not None
-        else defaults.vertical_cm,
-        travel_cm=to_core(travel, "length", field="travel") / 10
-        if travel is not None
-        else defaults.travel_cm,
+        horizontal_cm=defaults.horizontal_cm if reach is None else parse("reach", reach) / 10,
+        vertical_cm=defaults.vertical_cm
+        if lift_from is None
+        else parse("lift_from", lift_from) / 10,
+        travel_cm=defaults.travel_cm if travel is None else parse("travel", travel) / 10,
         frequency_per_min=lifts_per_min,
     )
     result = weigh(mat, sec, length_mm, count, conditions)
@@ -133,4 +112,4 @@ def _advice(r, d) -> str:
 
 
 def register(app: typer.Typer) -> None:
-    app.command("weigh", help=HELP)(weigh_command)
+    command(app, "weigh", HELP)(weigh_command)

@@ -1,57 +1,224 @@
-"""Options shared by several commands, declared once."""
+"""Command-line options built from the one field table (``sawplan.fields``).
+
+Every command declares its options through :func:`opt` (or the shared
+aliases below), so a concept has one option name, one short flag and one
+placeholder everywhere.  Old spellings still work for one release: ``RENAMED``
+lists them per command, :func:`modernise` rewrites them before parsing and
+says so in one line on stderr.  :class:`Command` prints help with our
+placeholders (``MATERIAL SECTION...``), never Python types.
+"""
 
 from __future__ import annotations
 
+import sys
+from collections.abc import Callable
 from pathlib import Path
-from typing import Annotated
+from typing import Annotated, Any
 
 import typer
+from typer.core import TyperCommand
 
+from sawplan import fields
 from sawplan.units import UnitSystem
 
-UnitsOpt = Annotated[
-    UnitSystem,
-    typer.Option(
-        "--units", "-u", help="Units to show: us (in, lb, ft/min) or metric (mm, kg, m/min)."
-    ),
-]
-JsonOpt = Annotated[bool, typer.Option("--json", help="Print JSON (keys carry their unit).")]
-CsvOpt = Annotated[bool, typer.Option("--csv", help="Print CSV instead of a table.")]
-DbOpt = Annotated[
-    str | None,
-    typer.Option(
-        "--db",
-        metavar="PATH|URL",
-        help="Blade log: a file, or a postgresql:// URL "
-        "(default: per-user data folder; env SAWPLAN_DB).",
+# Old spellings per command (the path after ``sawplan``) -> the spelling of this release.
+# They are rewritten with a note on stderr; the next release drops them.
+_CHART_SIZE = {"--width": "--chart-width", "--height": "--chart-height"}
+RENAMED: dict[str, dict[str, str]] = {
+    "cut": {"--blade-tpi": "--pitch", "-t": "--pitch"},
+    "blade add": {
+        "--material": "--blade-material",
+        "--width": "--blade-width",
+        "-w": "--blade-width",
+        "--thickness": "--blade-thickness",
+        "-t": "--blade-thickness",
+        "--length": "--blade-length",
+        "-l": "--blade-length",
+        "--notes": "--note",
+    },
+    "blade retire": {"--cause": "--failure", "-c": "--failure"},
+    "blade show": _CHART_SIZE,
+    "saw add": {"--notes": "--note"},
+    "log cut": {"--speed": "--band-speed", "-n": "--cuts"},
+    "log event": {"--mode": "--failure", "-m": "--failure"},
+    "forecast": {"--job": "--job-file"},
+    "plan": {"--csv": "--csv-dir"},
+    "chart wear": _CHART_SIZE,
+    "chart weibull": _CHART_SIZE,
+    "chart modes": {"--width": "--chart-width"},
+    "chart cost": {"--width": "--chart-width"},
+}
+
+
+def _range_callback(f: fields.Field) -> Callable[[Any], Any]:
+    def check(value: Any) -> Any:
+        if value is not None and isinstance(value, int | float):
+            fields.check(f, value)
+        return value
+
+    return check
+
+
+def opt(key: str, *, help: str | None = None, callback: Callable | None = None, **extra) -> Any:
+    """The typer option of field ``key``: its name, short flag, placeholder and help.
+
+    A number typed as int/float is checked against the field's range as it is
+    parsed; text quantities are read with ``fields.parse`` in the command.
+    """
+    f = fields.field(key)
+    if f.option is None:
+        raise ValueError(f"field {key!r} has no command-line option")
+    decls = [f"{f.option}/{f.negative}" if f.negative else f.option]
+    if f.short:
+        decls.append(f.short)
+    if callback is None and (f.low is not None or f.high is not None) and not f.dimension:
+        callback = _range_callback(f)
+    return typer.Option(
+        *decls,
+        help=help or f.help,
+        metavar=f.placeholder or None,
+        show_default=extra.pop("show_default", False),
+        callback=callback,
+        **extra,
+    )
+
+
+def arg(key: str, *, help: str | None = None, **extra) -> Any:
+    """The typer argument of field ``key`` with its placeholder (``MATERIAL``)."""
+    f = fields.field(key)
+    return typer.Argument(
+        help=help or f.help,
+        metavar=f.placeholder.removesuffix("...") or key.upper(),
         show_default=False,
-    ),
-]
-MaterialsFileOpt = Annotated[
-    Path | None,
-    typer.Option(
-        "--materials-file",
-        help="Your own materials CSV, added to the catalogue (env SAWPLAN_MATERIALS).",
-        show_default=False,
-        exists=True,
-        dir_okay=False,
-    ),
-]
-OrientOpt = Annotated[
-    str | None,
-    typer.Option(
-        "--orient",
-        "-o",
-        help="How the work lies in the vise, e.g. flat, edge, corner.",
-        show_default=False,
-    ),
-]
-BundleOpt = Annotated[
-    str | None,
-    typer.Option(
-        "--bundle", "-b", help="Cut a bundle ROWSxCOLS at once, e.g. 3x2.", show_default=False
-    ),
-]
-NestOpt = Annotated[
-    bool, typer.Option("--nest", help="Rounds in a bundle nest into the row below.")
-]
+        **extra,
+    )
+
+
+# --- options shared by many commands --------------------------------------------------------
+
+
+def _db(value: str | None) -> str | None:
+    if value is not None and not value.strip():
+        from sawplan.errors import UsageError
+
+        raise UsageError("expected a file name or database URL, got nothing", field="blade log")
+    return value
+
+
+UnitsOpt = Annotated[UnitSystem, opt("units")]
+JsonOpt = Annotated[bool, opt("json")]
+CsvOpt = Annotated[bool, opt("csv")]
+DbOpt = Annotated[str | None, opt("db", callback=_db)]
+MaterialsFileOpt = Annotated[Path | None, opt("materials_file", exists=True, dir_okay=False)]
+SawsFileOpt = Annotated[Path | None, opt("saws_file", exists=True, dir_okay=False)]
+OrientOpt = Annotated[str | None, opt("orient")]
+BundleOpt = Annotated[str | None, opt("bundle")]
+NestOpt = Annotated[bool, opt("nest")]
+DateOpt = Annotated[str | None, opt("date")]
+NoteOpt = Annotated[str | None, opt("note")]
+ForceOpt = Annotated[bool, opt("force")]
+ConfidenceOpt = Annotated[float, opt("confidence", show_default=True)]
+ChartWidthOpt = Annotated[int, opt("chart_width", show_default=True)]
+ChartHeightOpt = Annotated[int, opt("chart_height", show_default=True)]
+MaterialArg = Annotated[str, arg("material")]
+SectionArg = Annotated[list[str], arg("section")]
+TagArg = Annotated[str, arg("tag")]
+
+
+# --- old spellings --------------------------------------------------------------------------
+
+
+def modernise(path: str, args: list[str], takes_value: set[str]) -> list[str]:
+    """``args`` of command ``path`` with this release's spellings, each old one noted once.
+
+    ``takes_value`` holds the command's options that take a value, so a value that
+    happens to look like an old option (``--note -t``) is left alone.
+    """
+    renamed = RENAMED.get(path)
+    if not renamed:
+        return args
+    out: list[str] = []
+    told: set[str] = set()
+    skip_next = False
+    for i, token in enumerate(args):
+        if skip_next or token == "--":
+            skip_next = False
+            if token == "--":
+                out += args[i:]
+                break
+            out.append(token)
+            continue
+        new, rest = _renamed(token, renamed)
+        if new is None:
+            out.append(token)
+            skip_next = token in takes_value
+            continue
+        old = token[: len(token) - len(rest)] if rest else token
+        if old.endswith("="):
+            old = old[:-1]
+        if old not in told:
+            told.add(old)
+            print(
+                f"note: {old} is now {new}; the old spelling goes in the next release",
+                file=sys.stderr,
+            )
+        if rest:
+            out += [new, rest]
+        else:
+            out.append(new)
+            skip_next = new in takes_value
+    return out
+
+
+def _renamed(token: str, renamed: dict[str, str]) -> tuple[str | None, str]:
+    """(new spelling, attached value) when ``token`` is an old spelling, else (None, "")."""
+    if token in renamed:
+        return renamed[token], ""
+    if token.startswith("--") and "=" in token:
+        name, value = token.split("=", 1)
+        if name in renamed:
+            return renamed[name], value
+        return None, ""
+    if len(token) > 2 and token[0] == "-" and token[1] != "-" and token[:2] in renamed:
+        return renamed[token[:2]], token[2:]
+    return None, ""
+
+
+# --- help that shows our placeholders -------------------------------------------------------
+
+
+class Command(TyperCommand):
+    """A command whose help names arguments by placeholder: ``MATERIAL SECTION...``."""
+
+    def collect_usage_pieces(self, ctx: Any) -> list[str]:
+        pieces = [self.options_metavar] if self.options_metavar else []
+        for param in self.get_params(ctx):
+            if param.param_type_name == "argument":
+                pieces.append(_arg_name(param) if param.required else f"[{_arg_name(param)}]")
+        return pieces
+
+    def format_options(self, ctx: Any, formatter: Any) -> None:
+        args, opts = [], []
+        for param in self.get_params(ctx):
+            if param.param_type_name == "argument":
+                args.append((_arg_name(param), param.help or ""))
+            else:
+                record = param.get_help_record(ctx)
+                if record is not None:
+                    opts.append(record)
+        if args:
+            with formatter.section("Arguments"):
+                formatter.write_dl(args)
+        if opts:
+            with formatter.section("Options"):
+                formatter.write_dl(opts)
+
+
+def _arg_name(param: Any) -> str:
+    name = param.metavar or param.name.upper()
+    return f"{name}..." if param.nargs != 1 else name
+
+
+def command(app: typer.Typer, name: str, help: str) -> Callable:
+    """``app.command`` with sawplan's help layout."""
+    return app.command(name, help=help, cls=Command)

@@ -113,7 +113,7 @@ _NUM = r"(\d+(?:\.\d*)?|\.\d+)"
 _PATTERN = re.compile(rf"^\s*{_NUM}\s*(?:[/\-]\s*{_NUM})?\s*(?:tpi)?\s*$", re.IGNORECASE)
 
 
-def parse_pitch(text: str, *, field: str = "blade-tpi") -> Pitch:
+def parse_pitch(text: str, *, field: str = "pitch") -> Pitch:
     """Read ``3/4``, ``4/6``, ``10-14``, ``14``, ``0.75/1.25`` (optionally "TPI")."""
     match = _PATTERN.match(str(text))
     if not match:

@@ -146,8 +146,8 @@ def log_cut(db: Database, entry: CutEntry) -> int:
 
 def _insert_cut(db: Database, entry: CutEntry) -> int:
     """Check and write one cut entry inside the caller's write transaction."""
-    whole_number(entry.count, "count")
-    whole_number(entry.pieces, "pieces")
+    whole_number(entry.count, "cuts.count")
+    whole_number(entry.pieces, "cuts.pieces")
     if not (math.isfinite(entry.area_mm2) and entry.area_mm2 > 0):
         raise BadDataError("a cut needs an area above 0", field="area")
     row = cut_row(entry)
@@ -239,7 +239,7 @@ def log_event(db: Database, entry: EventEntry) -> Blade:
         )
     mode = check_failure_mode(entry.mode, field="mode") if entry.mode else None
     if entry.teeth is not None:
-        whole_number(entry.teeth, "teeth")
+        whole_number(entry.teeth, "events.teeth")
     teeth = entry.teeth if entry.teeth is not None else (1 if kind == "teeth-lost" else None)
     location = clean_text(entry.location, field="location")
     note = clean_text(entry.note, field="note")

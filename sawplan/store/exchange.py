@@ -31,7 +31,7 @@ from sawplan.errors import (
     UsageError,
 )
 from sawplan.store.db import read_snapshot, run_write
-from sawplan.store.fields import WHOLE_NUMBERS, whole_number
+from sawplan.store.fields import whole_number
 from sawplan.store.records import BLADE_STATUSES, EVENT_KINDS, WELDED
 from sawplan.store.schema import SAW_PROFILE_COLUMNS
 
@@ -291,6 +291,7 @@ def _convert_row(
 ) -> dict[str, Any]:
     from sawplan.store.dates import check_stored_day
 
+    table = name.rsplit(".", 1)[0]  # "cuts.csv" -> cuts
     out: dict[str, Any] = {}
     for column, kind in columns.items():
         cell = raw.get(column)
@@ -306,9 +307,7 @@ def _convert_row(
             elif kind == "real":
                 value = _number(text, float)
             elif kind == "int":
-                value = _number(text, int)
-                if column in WHOLE_NUMBERS:
-                    value = whole_number(value, column)
+                value = whole_number(_number(text, int), f"{table}.{column}")
             elif kind == "flag":
                 value = _flag(text)
             else:

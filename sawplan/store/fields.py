@@ -12,19 +12,6 @@ EVENT_KINDS = ("teeth-lost", "crooked", "stall", "failure")
 WELDED = ("in-house", "bought")
 MAX_TEXT = {"tag": 40, "name": 60, "job": 60, "heat": 60, "note": 300, "other": 120}
 
-# Whole numbers the log keeps, with their ranges: checked before any database sees
-# them (SQLite stores 64-bit integers, PostgreSQL's ``integer`` 32-bit ones).
-WHOLE_NUMBERS: dict[str, tuple[int, int]] = {
-    "count": (1, 100_000),  # identical cuts in one entry
-    "cuts": (1, 100_000),
-    "pieces": (1, 10_000),  # pieces cut at once (a bundle)
-    "teeth": (1, 10_000),  # teeth lost at once
-    "wheel_count": (2, 4),
-    "coolant": (0, 1),
-    "break_in": (0, 1),
-    "limit": (0, 1_000_000),  # entries shown; 0 is all
-}
-
 
 def fmt_num(v: float) -> str:
     """Shortest plain text of a size: 27.0 → '27', 0.9 → '0.9'."""
@@ -79,13 +66,16 @@ def positive(value: float, field: str) -> None:
         raise BadDataError(f"must be above 0, got {value!r}", field=field)
 
 
-def whole_number(value: object, field: str) -> int:
-    """A whole number inside its range (``WHOLE_NUMBERS``), or one line naming the field."""
-    low, high = WHOLE_NUMBERS[field]
+def whole_number(value: object, name: str) -> int:
+    """A whole number inside the range the field table gives ``name`` (a field's key, or
+    "TABLE.column"),
+    checked before any database sees it (SQLite stores 64-bit integers, PostgreSQL's
+    ``integer`` 32-bit ones); one line naming the field otherwise."""
+    from sawplan import fields
+
+    rule = fields.FIELDS.get(name) or fields.field_for(name)
+    if rule is None:  # a column without a rule of its own: what every engine stores
+        rule = fields.Field(name, name.rsplit(".", 1)[-1], low=0, high=2**31 - 1, integer=True)
     if isinstance(value, bool) or not isinstance(value, int):
-        raise BadDataError(f"expected a whole number, got {value!r}", field=field)
-    if not low <= value <= high:
-        shown = f"{value:,}" if abs(value) < 10**15 else f"{float(value):.3g}"
-        lowest = "0 (all)" if field == "limit" else f"{low:,}"
-        raise BadDataError(f"must be {lowest} to {high:,}, got {shown}", field=field)
-    return value
+        raise BadDataError(f"expected a whole number, got {value!r}", field=rule.words)
+    return fields.check_count(rule, value)
