@@ -275,10 +275,10 @@ def test_log_mode_shares_the_log_with_the_group(tmp_path, cli, monkeypatch):
 
 
 def test_a_bad_log_mode_is_one_line(tmp_path, cli, monkeypatch):
-    monkeypatch.setenv("SAWPLAN_LOG_MODE", "0777")
+    monkeypatch.setenv("SAWPLAN_LOG_MODE", "0444")  # the owner could not write
     log = tmp_path / "blade-log.sqlite"
-    err = one_line(cli("blade", "add", "B-1", *BLADE, "--db", str(log)), 2)
-    assert "log_mode" in err and "0600" in err
+    err = one_line(cli("blade", "add", "B-1", *BLADE, "--db", str(log)), 3)
+    assert "SAWPLAN_LOG_MODE" in err and "octal file mode" in err
     assert not log.exists()
 
 

@@ -81,8 +81,7 @@ def configured(key: str) -> str | None:
         from sawplan import config  # the config file's reader
     except ImportError:
         return None
-    getter = getattr(config, "configured_value", None)
-    value = getter(key) if getter is not None else None
+    value = config.get(key)
     return str(value) if value not in (None, "") else None
 
 

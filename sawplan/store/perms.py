@@ -17,33 +17,38 @@ import os
 import stat
 from pathlib import Path
 
-from sawplan.errors import StorageError, UsageError
-from sawplan.store.location import configured
+from sawplan.errors import BadDataError, StorageError
 
 ENV_VAR = "SAWPLAN_LOG_MODE"
 PRIVATE = 0o600
+WORDS = {"private": 0o600, "group": 0o660, "everyone": 0o666}
 POSIX = os.name == "posix"
 
 
 def file_mode() -> int:
-    """The mode for new log files: 0600, or the shop's ``log_mode``."""
-    text = os.environ.get(ENV_VAR) or configured("log_mode")
-    if not text:
-        return PRIVATE
+    """The mode for new log files: 0600, or the shop's ``log_mode`` (a word or octal)."""
     try:
-        mode = int(str(text).strip(), 8)
-    except ValueError:
-        raise UsageError(
-            f"expected an octal file mode such as 0600 or 0660, got {text!r}",
-            field="log_mode",
-        ) from None
-    if mode & ~0o666 or mode & 0o600 != 0o600:
-        raise UsageError(
-            f"expected a mode that lets the owner read and write, without execute bits "
-            f"(0600 to 0666), got {text!r}",
-            field="log_mode",
-        )
-    return mode
+        from sawplan import config  # the config file knows log_mode (env, file, default)
+    except ImportError:
+        return _mode_from(os.environ.get(ENV_VAR))
+    return int(config.log_file_mode())
+
+
+def _mode_from(text: str | None) -> int:
+    if text is None or not text.strip():
+        return PRIVATE
+    word = text.strip().lower()
+    if word in WORDS:
+        return WORDS[word]
+    if len(word) in (3, 4) and all(c in "01234567" for c in word):
+        mode = int(word, 8)
+        if mode & 0o600 == 0o600 and not mode & ~0o666:
+            return mode
+    raise BadDataError(
+        f"expected private, group, everyone or an octal file mode such as 0640 (the owner "
+        f"must read and write; no execute bits), got {text!r}",
+        field=f"env {ENV_VAR} (log_mode)",
+    )
 
 
 def folder_mode(mode: int | None = None) -> int:
