@@ -2,7 +2,7 @@
 
 Measures, and prints beside each goal, for each engine:
 - building the log with a bulk insert (no goal; says how long a big import takes);
-- `sawplan life` on it (goal < 2 s wall time; on PostgreSQL also within 2× of SQLite);
+- `sawplan life` on it (goal on SQLite < 2 s wall time; on PostgreSQL within 2× of SQLite);
 - logging one cut, `sawplan log cut ...` (goal on SQLite < 1.3 × `python -c "import typer,
   pint, sqlite_utils"`; PostgreSQL's is reported beside it);
 - bytes per cut on disk (SQLite), table plus its indexes (goal < 300).
@@ -181,10 +181,11 @@ def main() -> int:
             shutil.rmtree(tmp, ignore_errors=True)
 
 
-def engine_times(db: str, tmp: Path) -> dict[str, float]:
+def engine_times(db: str, tmp: Path, after_build=lambda: None) -> dict[str, float]:
     """Build the log at ``db``, then time `sawplan life` and one `sawplan log cut` on it."""
     env = {**os.environ, "SAWPLAN_HOME": str(tmp), "SAWPLAN_DB": db}
     built = build(db)
+    after_build()
     sawplan = [PY, "-c", CLI]
     life = median_time(sawplan + ["life"], env, rounds=3)
     tag = f"B-{BLADES:05d}"  # fitted on a saw
@@ -198,9 +199,12 @@ def run(tmp: Path) -> int:
     sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "tests"))
     import pg_server
 
+    measured: list[tuple[float, int]] = []
     file_db = tmp / "blade-log.sqlite"
-    lite = engine_times(str(file_db), tmp)
-    per_cut, count = bytes_per_cut(file_db)
+    lite = engine_times(
+        str(file_db), tmp, after_build=lambda: measured.append(bytes_per_cut(file_db))
+    )
+    ((per_cut, count),) = measured
     with pg_server.server() as admin, pg_server.scratch_database(admin) as url:
         pg = engine_times(url, tmp)
     base = median_time([PY, "-c", "import typer, pint, sqlite_utils"], {**os.environ})
@@ -212,7 +216,6 @@ def run(tmp: Path) -> int:
     print(f"{'sawplan log cut (one cut)':38s} {lite['one']:8.3f}s {pg['one']:10.3f}s")
     for label, value, goal in (
         ("sawplan life, SQLite (s)", lite["life"], 2.0),
-        ("sawplan life, PostgreSQL (s)", pg["life"], 2.0),
         ("life: PostgreSQL ÷ SQLite", pg["life"] / lite["life"], 2.0),
         ("bytes per cut (table + indexes)", per_cut, 300.0),
         ("log cut ÷ import typer, pint, sqlite_utils", lite["one"] / base, 1.3),
