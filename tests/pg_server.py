@@ -136,30 +136,31 @@ def server() -> Iterator[str]:
 
 
 @contextlib.contextmanager
-def scratch_database(admin_url: str) -> Iterator[str]:
-    """A database with a unique name for this run, dropped at the end."""
+def _scratch(url: str, kind: str, name: str) -> Iterator[None]:
+    """CREATE ``kind`` ``name`` through ``url``; DROP it afterwards, whatever happened."""
     import psycopg
 
-    name = f"sawplan_test_{os.getpid()}_{uuid.uuid4().hex[:8]}"
-    with psycopg.connect(admin_url, autocommit=True) as conn:
-        conn.execute(f'CREATE DATABASE "{name}"')
+    drop = "WITH (FORCE)" if kind == "DATABASE" else "CASCADE"
+    with psycopg.connect(url, autocommit=True) as conn:
+        conn.execute(f'CREATE {kind} "{name}"')
     try:
-        yield with_database(admin_url, name)
+        yield
     finally:
-        with psycopg.connect(admin_url, autocommit=True) as conn:
-            conn.execute(f'DROP DATABASE IF EXISTS "{name}" WITH (FORCE)')
+        with psycopg.connect(url, autocommit=True) as conn:
+            conn.execute(f'DROP {kind} IF EXISTS "{name}" {drop}')
+
+
+@contextlib.contextmanager
+def scratch_database(admin_url: str) -> Iterator[str]:
+    """A database with a unique name for this run, dropped at the end."""
+    name = f"sawplan_test_{os.getpid()}_{uuid.uuid4().hex[:8]}"
+    with _scratch(admin_url, "DATABASE", name):
+        yield with_database(admin_url, name)
 
 
 @contextlib.contextmanager
 def scratch_schema(database_url: str) -> Iterator[str]:
     """A schema of its own inside the run's database: the URL of an empty sawplan log."""
-    import psycopg
-
     name = f"t_{uuid.uuid4().hex[:12]}"
-    with psycopg.connect(database_url, autocommit=True) as conn:
-        conn.execute(f'CREATE SCHEMA "{name}"')
-    try:
+    with _scratch(database_url, "SCHEMA", name):
         yield with_schema(database_url, name)
-    finally:
-        with psycopg.connect(database_url, autocommit=True) as conn:
-            conn.execute(f'DROP SCHEMA IF EXISTS "{name}" CASCADE')

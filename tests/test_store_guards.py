@@ -325,3 +325,16 @@ def test_an_imported_count_of_1e23_is_one_line_and_writes_nothing(shop_log, cli,
     err = one_line(cli("import", str(folder), "--db", str(target)), 3)
     assert "cuts.csv row 1" in err and "count: must be from 1 to 100,000" in err
     assert snapshot(target) == before
+
+
+def test_an_imported_control_character_is_one_line_on_both_engines(log_db, cli, tmp_path):
+    """A NUL byte in a tag: SQLite would store it, PostgreSQL cannot; neither gets it."""
+    folder = tmp_path / "csv"
+    source = tmp_path / "source.sqlite"
+    assert cli("blade", "add", "B-1", *BLADE, "--db", str(source)).code == 0
+    assert cli("export", str(folder), "--db", str(source)).code == 0
+    text = (folder / "blades.csv").read_text(encoding="utf-8").replace("B-1", "B-\x001")
+    (folder / "blades.csv").write_text(text, encoding="utf-8")
+    err = one_line(cli("import", str(folder), "--db", log_db), 3)
+    assert "blades.csv row 1" in err and "tag: must not hold control characters" in err
+    assert "blades" not in snapshot(log_db) or snapshot(log_db)["blades"] == []

@@ -302,6 +302,9 @@ def _convert_row(
             if kind == "text":
                 value: Any = text[1:] if text.startswith("'") else text
                 value = value if value.strip() else None
+                if value is not None and any(ord(c) < 32 or 127 <= ord(c) < 160 for c in value):
+                    # sawplan never stores them (a NUL is not even text to PostgreSQL)
+                    raise BadDataError("must not hold control characters")
             elif text.strip() == "":
                 value = None
             elif kind == "real":
