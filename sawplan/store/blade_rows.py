@@ -114,6 +114,14 @@ FROM blades b
 LEFT JOIN fittings f ON f.blade_id = b.id AND f.removed_on IS NULL
 LEFT JOIN saws s ON s.id = f.saw_id
 """
+# Without the totals: what a write step needs (it must not read the blade's cuts, or two
+# stations logging on one blade would conflict on PostgreSQL for nothing).
+_BLADE_ONLY_QUERY = """
+SELECT b.*, s.name AS saw, 0.0 AS area_mm2, 0 AS cuts
+FROM blades b
+LEFT JOIN fittings f ON f.blade_id = b.id AND f.removed_on IS NULL
+LEFT JOIN saws s ON s.id = f.saw_id
+"""
 _BLADE_FIELDS = tuple(f.name for f in dataclasses.fields(Blade))
 
 
@@ -156,9 +164,13 @@ def add_blade(db: Database, spec: BladeSpec, *, added_on: str) -> Blade:
     return get_blade(db, tag)
 
 
-def get_blade(db: Database, tag: str) -> Blade:
-    """One blade by tag (case-insensitive); unknown tags get a suggestion."""
-    rows = db.query(_BLADE_QUERY + " WHERE lower(b.tag) = lower(:tag)", {"tag": tag.strip()})
+def get_blade(db: Database, tag: str, *, totals: bool = True) -> Blade:
+    """One blade by tag (case-insensitive); unknown tags get a suggestion.
+
+    ``totals=False`` leaves the area and number of cuts at 0 (no read of its cuts).
+    """
+    sql = _BLADE_QUERY if totals else _BLADE_ONLY_QUERY
+    rows = db.query(sql + " WHERE lower(b.tag) = lower(:tag)", {"tag": tag.strip()})
     if rows:
         return _blade(rows[0])
     tags = [r["tag"] for r in db.query("SELECT tag FROM blades")]
@@ -299,7 +311,9 @@ def retire_blade(
     return get_blade(db, tag)
 
 
-def fitted_blade(db: Database, saw_name: str | None = None) -> tuple[Blade, str]:
+def fitted_blade(
+    db: Database, saw_name: str | None = None, *, totals: bool = True
+) -> tuple[Blade, str]:
     """The blade on ``saw_name``, or the only fitted blade when no saw is named."""
     sql = (
         "SELECT b.tag, s.name AS saw FROM fittings f JOIN blades b ON b.id = f.blade_id "
@@ -327,7 +341,7 @@ def fitted_blade(db: Database, saw_name: str | None = None) -> tuple[Blade, str]
             field="blade",
             hint="give --saw NAME or --blade TAG",
         )
-    return get_blade(db, rows[0]["tag"]), rows[0]["saw"]
+    return get_blade(db, rows[0]["tag"], totals=totals), rows[0]["saw"]
 
 
 def fitted_on_saws(db: Database) -> dict[str, str]:

@@ -82,15 +82,17 @@ def cut_target(
 ) -> CutTarget:
     """The blade a cut goes on: ``tag``, or the one fitted on ``saw`` (or the only fitted one).
 
+    The blade comes without its totals (area and cuts 0): a write step reads no cuts.
+
     A saw used for the first time is copied into the log from ``profile_of(name)``
     (the packaged saws and the user's saws file; asked only then).
     """
     from sawplan.store.records import ensure_saw, find_saw, fitted_blade
 
     if tag is None:
-        blade, saw_name = fitted_blade(db, saw)
+        blade, saw_name = fitted_blade(db, saw, totals=False)
     else:
-        blade = get_blade(db, tag)
+        blade = get_blade(db, tag, totals=False)
         if blade.status == "retired":
             raise ConflictError(
                 f"blade {blade.tag} was retired on {blade.retired_on}; "

@@ -48,7 +48,6 @@ if TYPE_CHECKING:  # pragma: no cover
 
 T = TypeVar("T")
 BUSY_TIMEOUT_S = engines.BUSY_TIMEOUT_S
-WRITE_RETRIES = 12  # serialization failures in a row before giving up (PostgreSQL)
 
 __all__ = [
     "ENV_VAR",
@@ -385,20 +384,23 @@ def write_transaction(db: Log) -> Iterator[Log]:
 
 
 def run_write(db: Log, step: Callable[[], T]) -> T:
-    """Run ``step`` in one write transaction; again (a few times) when the server says
-    another writer got in the way.  Inside an open transaction it is a savepoint."""
+    """Run ``step`` in one write transaction; again when the server says another writer
+    got in the way (for up to ``BUSY_TIMEOUT_S``, as SQLite waits for its lock).
+    Inside an open transaction it is a savepoint."""
     if db.in_transaction:
         with write_transaction(db):
             return step()
-    for attempt in range(WRITE_RETRIES):
+    deadline = time.monotonic() + BUSY_TIMEOUT_S
+    attempt = 0
+    while True:
         try:
             with write_transaction(db):
                 return step()
         except Exception as err:
-            if attempt == WRITE_RETRIES - 1 or not engines.is_retryable(err):
+            if not engines.is_retryable(err) or time.monotonic() > deadline:
                 raise
-            time.sleep(random.uniform(0.0, min(0.5, 0.005 * 2**attempt)))
-    raise AssertionError("unreachable")  # pragma: no cover
+            time.sleep(random.uniform(0.0, min(0.5, 0.005 * 2**attempt)))  # jittered back-off
+            attempt += 1
 
 
 @contextmanager
