@@ -46,11 +46,16 @@ def main() -> int:
     cases = [
         ("sawplan --help", sawplan + ["--help"], base),
         (
-            "sawplan weigh 4140 round 60mm --length 1m",
-            sawplan + ["weigh", "4140", "round", "60mm", "--length", "1m"],
+            "sawplan weigh A36 channel 150mm 75mm 5.5mm 9mm --length 6m",
+            sawplan
+            + ["weigh", "A36", "channel", "150mm", "75mm", "5.5mm", "9mm", "--length", "6m"],
             base,
         ),
-        ("sawplan cut 4140 round 7in", sawplan + ["cut", "4140", "round", "7in"], base),
+        (
+            "sawplan cut 1045 round 180mm",
+            sawplan + ["cut", "1045", "round", "180mm"],
+            base,
+        ),
         (
             "sawplan log cut 4140 round 60mm --time 1min",
             sawplan + ["log", "cut", "4140", "round", "60mm", "--time", "1min"],

@@ -25,8 +25,8 @@ same log):
   (pivot-bay 1.20, auto-bay 1.08, column-bay 0.93), a lognormal scatter of
   7 % per entry, a break-in surcharge (up to +35 % over the first 500 cm² of a
   blade broken in at reduced feed) and a wear rise towards the end of a
-  worn-out blade's life (up to +45 %, reference §7: 30-50 % slower near the
-  end).  The model's own time is logged beside it as the prediction, as
+  worn-out blade's life (up to +45 %; common practice: 30-50 % slower near
+  the end).  The model's own time is logged beside it as the prediction, as
   ``sawplan log cut`` does.
 
 Run it alone to (re)build ``demo/out/demo-log.sqlite``::
@@ -50,7 +50,7 @@ DEMO_DIR = Path(__file__).resolve().parent
 SAWS_FILE = DEMO_DIR / "saws.toml"
 DEFAULT_DB = DEMO_DIR / "out" / "demo-log.sqlite"
 
-SEED = 20251201
+SEED = 20251202
 START = dt.date(2025, 12, 1)
 END = dt.date(2026, 11, 27)
 SHUTDOWNS = (
@@ -81,15 +81,22 @@ SAW_BLADE = {"pivot-bay": "pivot", "auto-bay": "auto", "column-bay": "column"}
 # Daily work of each saw: (material, section, share of the day's area, heats).
 WORK = {
     "pivot-bay": [
-        ("1018", "round 25mm", 0.35, ("H25-1187", "H26-0204")),
-        ("4140", "round 40mm", 0.40, ("H25-0931", "H26-0316")),
-        ("1018", "flat 50mm 12mm", 0.25, ("H25-1240",)),
+        ("1018", "round 25mm", 0.25, ("H25-1187", "H26-0204")),
+        ("4140", "round 40mm", 0.25, ("H25-0931", "H26-0316")),
+        ("1018", "flat 50mm 12mm", 0.15, ("H25-1240",)),
+        ("6061-T6", "tube 48.3mm 3.2mm", 0.15, ("L25-0655", "L26-0712")),
+        ("6061-T6", "flat 50mm 6mm", 0.10, ("L26-0736",)),
+        ("304", "tube 42.4mm 2mm", 0.10, ("H26-7851",)),
     ],
     "auto-bay": [
-        ("4140", "round 40mm", 0.30, ("H25-0931", "H26-0316", "H26-0588")),
-        ("4140", "round 60mm", 0.25, ("H25-0977", "H26-0402")),
-        ("1045", "round 80mm", 0.20, ("H25-1102", "H26-0441")),
-        ("1018", "round 25mm", 0.25, ("H25-1187", "H26-0204")),
+        ("4140", "round 40mm", 0.20, ("H25-0931", "H26-0316", "H26-0588")),
+        ("4140", "round 60mm", 0.15, ("H25-0977", "H26-0402")),
+        ("1045", "round 80mm", 0.15, ("H25-1102", "H26-0441")),
+        ("1018", "round 25mm", 0.15, ("H25-1187", "H26-0204")),
+        ("A36", "ibeam 200mm 100mm 5.6mm 8.5mm", 0.10, ("H25-2210", "H26-2291")),
+        ("A36", "channel 150mm 75mm 5.5mm 9mm", 0.10, ("H25-2232", "H26-2307")),
+        ("A36", "angle 75mm 75mm 8mm", 0.05, ("H26-2315",)),
+        ("1020", "rtube 100mm 50mm 4mm", 0.10, ("H26-1904",)),
     ],
     "column-bay": [
         ("304", "round 250mm", 0.45, ("H25-7731", "H26-7790")),
@@ -296,7 +303,7 @@ def _fit_new(db, state: _State, saw_name: str, day: dt.date) -> _OnSaw:
     add_blade(db, _spec(kind, tag, day - dt.timedelta(days=10), lot=lot), added_on=day.isoformat())
     fit_blade(
         db, tag, saw_name, on=day.isoformat(), tension_mpa=200.0, break_in=True,
-        break_in_how="half feed over the first 500 cm2",
+        break_in_how="half feed, raised over the first few cuts",
     )  # fmt: skip
     return _OnSaw(tag, kind, _life(state, kind), broken_in=True)
 

@@ -45,28 +45,35 @@ def tour(trial_blade: str) -> list[tuple[str, str]]:
     """(text before the command, the command) for each step of the tour."""
     return [
         (
-            "The demo shop has a 250 mm round of 304 stainless to slice on its "
-            "twin-column saw. Which blade, how fast, how hard to feed, how long per cut "
-            "(`--db` adds the shop's calibration from its blade log):",
-            f"sawplan cut 304 round 250mm --saw column-bay --db {DB}",
+            "The demo shop is building the base frame of a conveyor: I-beams, channels, "
+            "angles and rectangular tube, cut on its semi-automatic saw. Which blade for the "
+            "I-beam, how fast, how hard to feed, how long per cut (`--db` adds the shop's "
+            "calibration from its blade log):",
+            f"sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm --saw auto-bay --db {DB}",
         ),
         (
-            "The 4/6 blade from the bar work is still on the saw. What it would do "
-            "instead, and why:",
+            "On the twin-column saw a 250 mm billet of 304 stainless waits, and the 4/6 "
+            "blade from the bar work is still on the saw. What it would do, and why:",
             f"sawplan cut 304 round 250mm --saw column-bay --pitch 4/6 --db {DB}",
         ),
         (
-            "How heavy one 110 mm slice is, and how to lift it (revised NIOSH lifting "
-            "equation; `--reach`, `--lift-from` and `--travel` describe the lift):",
-            "sawplan weigh 304 round 250mm --length 110mm",
+            "A 6 m channel from the rack: its weight and how to move it (revised NIOSH "
+            "lifting equation, and what the piece is: it tips, it is long, its ends cut; "
+            "`--reach`, `--lift-from` and `--travel` describe the lift):",
+            "sawplan weigh A36 channel 150mm 75mm 5.5mm 9mm --length 6m",
         ),
         (
-            "The whole job, `demo/jobs/billet-slices.toml`: the bars to fetch (the rack "
-            "remnant first), every cut from the head end, remnants to mark with their "
-            "heat number, weights and lifting, blade and time per section, blades to have "
-            "on hand and the quote. `--sheet job.html` writes the printable sheet with "
-            "every bar drawn to scale; `--csv-dir DIR` and `--json` give the same plan as data:",
-            f"sawplan plan demo/jobs/billet-slices.toml --db {DB}",
+            "A handrail post of aluminium pipe in US units, inches to the nearest 1/32 "
+            "(every command takes `--units us`, and `--fractions` for a tape measure):",
+            "sawplan weigh 6061-T6 tube 48.3mm 3.2mm --length 1100mm --units us --fractions",
+        ),
+        (
+            "The whole frame, `demo/jobs/frame-kit.toml`: the bars to fetch, every cut from "
+            "the head end, remnants to mark with their heat number, weights and lifting, "
+            "blade and time per section, blades to have on hand and the quote. "
+            "`--sheet job.html` writes the printable sheet with every bar drawn to scale; "
+            "`--csv-dir DIR` and `--json` give the same plan as data:",
+            f"sawplan plan demo/jobs/frame-kit.toml --db {DB}",
         ),
         (
             "A year of the shop's blade log (invented by `demo/make_history.py`). Life "

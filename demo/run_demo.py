@@ -2,9 +2,12 @@
 
 1. Rebuild the demo blade log from scratch (``demo/make_history.py``: an
    invented year of blades, cuts and failures of a fictional shop).
-2. Plan the main job (several hundred small blanks from bar) and the heavy
-   billet job, each with its printable sheet in ``demo/out/``.
-3. Choose the blade for one billet cut, and show what a finer blade would do.
+2. Plan the shop's jobs, each with its printable sheet in ``demo/out/``: the
+   main one, a machine-base frame in structural steel and tube; several
+   hundred small blanks from alloy and carbon bar; heavy stainless billet
+   slices; and aluminium and stainless handrail parts.
+3. Choose the blade for an I-beam cut, show what a blade left on the saw does
+   to a billet cut, and weigh a 6 m channel (a lift for two or the crane).
 4. Blade life from the log, with its Weibull plot.
 
 Everything goes to ``demo/out/``: the blade log is ``demo/out/demo-log.sqlite``
@@ -29,8 +32,13 @@ REPO = Path(__file__).resolve().parent.parent
 DEMO = REPO / "demo"
 DEFAULT_OUT = DEMO / "out"
 DB_NAME = "demo-log.sqlite"
-MAIN_JOB = "pump-blanks"
-BILLET_JOB = "billet-slices"
+MAIN_JOB = "frame-kit"
+JOBS = (
+    (MAIN_JOB, "Plan the main job: a machine-base frame, structural steel and tube"),
+    ("pump-blanks", "Plan several hundred blanks from alloy and carbon bar"),
+    ("billet-slices", "Plan the heavy job: stainless billet slices (weights and lifting matter)"),
+    ("rail-posts", "Plan handrail parts: aluminium pipe and flat, stainless tube, 6 m bars"),
+)
 
 if str(DEMO) not in sys.path:  # make_history sits beside this file
     sys.path.insert(0, str(DEMO))
@@ -40,25 +48,22 @@ def steps(out: Path, trial_blade: str | None = None) -> list[tuple[str, list[str
     """The demo's commands after the log is built: (heading, sawplan arguments)."""
     db = shlex.quote(_show(out / DB_NAME))
     jobs = shlex.quote(_show(DEMO / "jobs"))
-    main_sheet = shlex.quote(_show(out / f"{MAIN_JOB}.html"))
-    billet_sheet = shlex.quote(_show(out / f"{BILLET_JOB}.html"))
-    listed = [
-        ("The demo shop's saws (kept in the demo blade log)", f"saw list --db {db}"),
+    listed = [("The demo shop's saws (kept in the demo blade log)", f"saw list --db {db}")]
+    for job, heading in JOBS:
+        sheet = shlex.quote(_show(out / f"{job}.html"))
+        listed.append((heading, f"plan {jobs}/{job}.toml --sheet {sheet} --db {db}"))
+    listed += [
         (
-            "Plan the main job: several hundred blanks from bar, with its printable sheet",
-            f"plan {jobs}/{MAIN_JOB}.toml --sheet {main_sheet} --db {db}",
+            "One I-beam cut on the production saw: the blade to fit",
+            f"cut A36 ibeam 200mm 100mm 5.6mm 8.5mm --saw auto-bay --db {db}",
         ),
         (
-            "Plan the heavy job: stainless billet slices (weights and lifting matter)",
-            f"plan {jobs}/{BILLET_JOB}.toml --sheet {billet_sheet} --db {db}",
-        ),
-        (
-            "One billet cut on the column saw: the blade to fit",
-            f"cut 304 round 250mm --saw column-bay --db {db}",
-        ),
-        (
-            "The same cut with the 4/6 blade from the bar work left on the saw",
+            "A billet cut on the column saw with the 4/6 blade from the bar work left on it",
             f"cut 304 round 250mm --saw column-bay --pitch 4/6 --db {db}",
+        ),
+        (
+            "A 6 m channel from the rack: its weight and how to lift it",
+            "weigh A36 channel 150mm 75mm 5.5mm 9mm --length 6m",
         ),
         (
             "Blade life from the log, by blade type, with the Weibull plot",
@@ -109,8 +114,8 @@ def main(argv: Sequence[str] | None = None, *, out_dir: Path | None = None) -> i
             return code
     elapsed = time.perf_counter() - started
     _heading("Done")
-    print(f"printable sheets: {_show(out / (MAIN_JOB + '.html'))}, "
-          f"{_show(out / (BILLET_JOB + '.html'))} (open them in a browser and print)")  # fmt: skip
+    sheets = ", ".join(_show(out / f"{job}.html") for job, _ in JOBS)
+    print(f"printable sheets: {sheets} (open them in a browser and print)")
     print(f"demo blade log:   {_show(out / DB_NAME)} (try: sawplan blade list --db ...)")
     print(f"finished in {elapsed:.1f} s")
     return 0

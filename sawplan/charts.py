@@ -16,7 +16,7 @@ import math
 from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any
 
-from sawplan.units import Display, UnitSystem
+from sawplan.display import Display, UnitSystem, as_display, fmt_percent, fmt_plain
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.life import BladeCost, ModeRanking, WearCurve, WeibullPlot
@@ -40,17 +40,6 @@ def _text(fig: Any, key: str, colorless: bool) -> str:
     body = fig.build().string(colorless=colorless).rstrip("\n")
     lines = [line.rstrip() for line in body.split("\n")]
     return "\n".join(lines) + ("\n" + key if key else "")
-
-
-def _plain(v: float) -> str:
-    """3 significant figures, thousands separated, no trailing zeros."""
-    if v == 0 or not math.isfinite(v):
-        return f"{v:g}"
-    r = float(f"{v:.3g}")
-    if r.is_integer():
-        return f"{int(r):,}"
-    decimals = max(0, 2 - math.floor(math.log10(abs(r))))
-    return f"{r:,.{decimals}f}".rstrip("0").rstrip(".")
 
 
 def _nice_ticks(lo: float, hi: float, count: int = 5) -> list[float]:
@@ -103,7 +92,7 @@ def wear_chart(
     curve: WearCurve,
     *,
     title: str = "wear curve",
-    units: UnitSystem = UnitSystem.METRIC,
+    units: UnitSystem | Display = UnitSystem.METRIC,
     width: int = WIDTH,
     height: int = HEIGHT,
     colorless: bool = True,
@@ -117,7 +106,7 @@ def wear_chart(
     """
     if not curve.points:
         return f"{title}: no timed cuts to draw"
-    d = Display(units)
+    d = as_display(units)
     area = 100.0  # cm² → core mm²
     xs = [d.value("area", p.cumulative_area_cm2 * area) for p in curve.points]
     rates = [d.value("rate", p.rate_cm2_min * area) for p in curve.points]
@@ -132,8 +121,8 @@ def wear_chart(
         fig.line(steady, 0)
         fig.line(steady / (1.0 + curve.rise_threshold), 0)
         key.append(
-            f"── steady rate {_plain(steady)}, and end-of-life signs "
-            f"(time per area +{curve.rise_threshold:.0%})"
+            f"── steady rate {fmt_plain(steady)}, and end-of-life signs "
+            f"(time per area +{fmt_percent(curve.rise_threshold)})"
         )
     if len(xs) > 1:
         fig.draw(fig.signal(xs, trend).lines(True))
@@ -145,11 +134,11 @@ def wear_chart(
     bottom = _nice_floor(min(levels) * 0.9)
     fig.ruler("y").lim(bottom, top)
     ticks = _nice_ticks(bottom, top)
-    fig.ruler("y").ticks(ticks, labels=[_plain(t) for t in ticks])
+    fig.ruler("y").ticks(ticks, labels=[fmt_plain(t) for t in ticks])
     x_hi = max(xs) * 1.02
     x_ticks = _nice_ticks(0, x_hi)
     fig.ruler("x").lim(0, x_hi)
-    fig.ruler("x").ticks(x_ticks, labels=[_plain(t) for t in x_ticks])
+    fig.ruler("x").ticks(x_ticks, labels=[fmt_plain(t) for t in x_ticks])
     status = (
         verdict
         or {
@@ -201,7 +190,7 @@ def weibull_chart(
     plot: WeibullPlot,
     *,
     title: str = "Weibull probability plot",
-    units: UnitSystem = UnitSystem.METRIC,
+    units: UnitSystem | Display = UnitSystem.METRIC,
     width: int = WIDTH,
     height: int = HEIGHT,
     colorless: bool = True,
@@ -209,7 +198,7 @@ def weibull_chart(
     """Failures at their median ranks on Weibull axes; a Weibull sample lies on a line."""
     if not plot.points:
         return f"{title}: no failures to plot"
-    d = Display(units)
+    d = as_display(units)
     to_display = d.value("area", 100.0)  # one cm² in display units
     xs = [p.x for p in plot.points]
     ys = [p.y for p in plot.points]
@@ -233,7 +222,7 @@ def weibull_chart(
     columns = width - max((len(label) for label in y_labels), default=0) - 2
     lives = _log_ticks(math.exp(x_lo) * to_display, math.exp(x_hi) * to_display, columns)
     fig.ruler("x").ticks(
-        [math.log(v / to_display) for v in lives], labels=[_plain(v) for v in lives]
+        [math.log(v / to_display) for v in lives], labels=[fmt_plain(v) for v in lives]
     )
     fig.ruler("y").ticks([_weibull_y(p) for p in probs], labels=y_labels)
     return _text(fig, "   ".join(key), colorless)
@@ -282,7 +271,7 @@ def _log_ticks(lo: float, hi: float, columns: int = WIDTH) -> list[float]:
         return math.log(v / lo) / span * (columns - 1)
 
     def clash(a: float, b: float) -> bool:
-        room = (len(_plain(a)) + len(_plain(b))) / 2 + LABEL_GAP
+        room = (len(fmt_plain(a)) + len(fmt_plain(b))) / 2 + LABEL_GAP
         return abs(column(a) - column(b)) < room
 
     def fits(ticks: list[float]) -> bool:
@@ -367,7 +356,7 @@ def cost_chart(
     costs: Sequence[BladeCost],
     *,
     title: str = "blade cost per area cut",
-    units: UnitSystem = UnitSystem.METRIC,
+    units: UnitSystem | Display = UnitSystem.METRIC,
     width: int = WIDTH,
     height: int | None = None,
     colorless: bool = True,
@@ -375,10 +364,10 @@ def cost_chart(
     """Price ÷ life per blade type, cheapest on top (currency as the prices were logged)."""
     if not costs:
         return f"{title}: no blade type has both a price and a retired blade yet"
-    per = "m²" if units is UnitSystem.METRIC else "ft²"
-    scale = 1.0 if units is UnitSystem.METRIC else 0.09290304  # 1 ft² = 0.09290304 m² (exact)
-    labels = [c.blade_type for c in costs]
-    values = [c.cost_per_m2 * scale for c in costs]
+    d = as_display(units)
+    labels = [d.text(c.blade_type) for c in costs]
+    values = [d.per("large_area", c.cost_per_m2 / 1e6) for c in costs]
+    per = d.label("large_area")
     return _hbars(labels, values, title, f"cost per {per} cut", width, height, colorless)
 
 
@@ -404,18 +393,18 @@ def _hbars(
     ticks = _covering_ticks(top, integer=integer)
     upper = ticks[-1]
     fig.ruler("x").lim(0, upper)
-    fig.ruler("x").ticks(ticks, labels=[_plain(t) for t in ticks])
+    fig.ruler("x").ticks(ticks, labels=[fmt_plain(t) for t in ticks])
     return _text(fig, "", colorless)
 
 
 # --- one cut: width of cut and feed against depth -----------------------------------------
 
 
-def cut_chart(r: Any, units: UnitSystem, *, width: int = 72, height: int = 18) -> str:
+def cut_chart(r: Any, units: UnitSystem | Display, *, width: int = 72, height: int = 18) -> str:
     """Chord W(y) and the predicted feed through the cut, against depth."""
     from sawplan.cutting.explain import LIMIT_WORDS
 
-    d = Display(units)
+    d = as_display(units)
     ys = [d.value("length", p.y_mm) for p in r.profile]
     chords = [d.value("length", p.chord_mm) for p in r.profile]
     feeds = [d.value("feed", p.feed_mm_min) for p in r.profile]
@@ -444,8 +433,82 @@ def _depth_axes(fig: Any, xs: list[float], ys: list[float]) -> None:
     top = max(ys) * 1.08 if max(ys) > 0 else 1.0
     y_ticks = _nice_ticks(0, top, 4)
     fig.ruler("y").lim(0, top)
-    fig.ruler("y").ticks(y_ticks, labels=[_plain(t) for t in y_ticks])
+    fig.ruler("y").ticks(y_ticks, labels=[fmt_plain(t) for t in y_ticks])
     x_hi = max(xs) if max(xs) > 0 else 1.0
     x_ticks = _nice_ticks(0, x_hi)
     fig.ruler("x").lim(0, x_hi)
-    fig.ruler("x").ticks(x_ticks, labels=[_plain(t) for t in x_ticks])
+    fig.ruler("x").ticks(x_ticks, labels=[fmt_plain(t) for t in x_ticks])
+
+
+# --- one cut: cost per cut against band speed ---------------------------------------------
+
+RUN_MARKS = {"recommended": "R", "cost": "C", "production": "P"}
+
+
+def speed_cost_rows(curve: Sequence[Any]) -> tuple[list[str], list[list[Any]]]:
+    """``cutting.cut_cost.cost_curve`` points as rows (money in the shop's currency)."""
+    headers = [
+        "band_speed_m_min",
+        "cut_time_min",
+        "blade_life_cm2",
+        "machine",
+        "blade",
+        "change",
+        "total",
+        "time_per_cut_min",
+    ]
+    rows = [
+        [p.band_speed_m_min, p.cut_time_min, p.blade_life_cm2, p.machine, p.blade, p.change,
+         p.total, p.time_per_cut_min]
+        for p in curve
+    ]  # fmt: skip
+    return headers, rows
+
+
+def speed_cost_chart(
+    curve: Sequence[Any],
+    runs: Sequence[Any] = (),
+    *,
+    title: str = "cost per cut against band speed",
+    units: UnitSystem | Display = UnitSystem.METRIC,
+    width: int = WIDTH,
+    height: int = HEIGHT,
+    colorless: bool = True,
+) -> str:
+    """The three cost terms stacked at each band speed; the speeds of ``runs`` marked.
+
+    ``curve`` is ``cost_curve`` of one cut (as many points as the plot has columns
+    reads best); ``runs`` are ``RunSpeed`` results (recommended, cheapest, fastest).
+    """
+    if not curve:
+        return f"{title}: no speeds to draw"
+    d = as_display(units)
+    xs = [d.value("speed", p.band_speed_m_min) for p in curve]
+    fig = _figure(width, height)
+    fig.title(title)
+    fig.label(f"band speed ({d.label('speed')})", "x")
+    fig.label("cost per cut", "y")
+    top = _covering_ticks(max(p.total for p in curve) * 1.1)
+    # drawn as totals from the top term down, so the last drawn owns each shared text cell
+    layers = (
+        ([p.total for p in curve], "░"),
+        ([p.machine + p.blade for p in curve], "▒"),
+        ([p.machine for p in curve], "█"),
+    )
+    for values, marker in layers:
+        fig.draw(fig.bar(xs, values, marker=marker, width=1.0, lines=False))
+    key = ["█ machine and operator", "▒ blade", "░ blade change"]
+    marks = []
+    for r in runs:
+        x = d.value("speed", r.band_speed_m_min)
+        mark = RUN_MARKS.get(r.run, "?")
+        fig.line(x, "v", style="dotted")
+        fig.draw(fig.text(x, top[-1] * 0.97, mark))
+        marks.append(f"{mark} {r.run} {fmt_plain(x)} {d.label('speed')}")
+    lo, hi = min(xs), max(xs)
+    fig.ruler("x").lim(lo, hi if hi > lo else lo + 1.0)
+    x_ticks = _nice_ticks(lo, hi, 6)
+    fig.ruler("x").ticks(x_ticks, labels=[fmt_plain(t) for t in x_ticks])
+    fig.ruler("y").lim(0, top[-1])
+    fig.ruler("y").ticks(top, labels=[fmt_plain(t) for t in top])
+    return _text(fig, "   ".join(key) + ("\n" + " · ".join(marks) if marks else ""), colorless)

@@ -14,8 +14,9 @@ as 25 cm and beyond 63 cm gives HM = 0; V beyond 175 cm gives VM = 0; D below
 AM = 0; F below 0.2 lifts/min counts as 0.2 (Pub. 94-110 §1.3).
 
 The handling class on top of the lifting index is shop practice, not part of
-the standard: see :func:`assess_lift`.  The estimate never replaces the
-shop's own rules or local regulations.
+the standard: see :func:`assess_lift`.  What the piece is (it rolls, it is
+long, its edges cut) is applied in ``sawplan.piece_handling``.  The estimate
+never replaces the shop's own rules or local regulations.
 """
 
 from __future__ import annotations
@@ -24,6 +25,7 @@ import math
 from bisect import bisect_right
 from dataclasses import dataclass, fields
 
+from sawplan.display import Q, say
 from sawplan.errors import BadDataError
 
 LOAD_CONSTANT_KG = 23.0
@@ -68,15 +70,12 @@ COUPLINGS: dict[str, tuple[float, float]] = {
 }
 
 # Team lifting: a team of two may lift about 2/3 of the sum of their
-# individual capacities (UK HSE guidance, common practice); and two people
-# at ideal conditions handle up to about 35 kg (common practice, reference §8).
+# individual capacities (UK HSE guidance INDG143, from memory); and two people
+# at ideal conditions handle up to about 35 kg (common practice).
 TEAM_SHARE = 2.0 / 3.0
 TEAM_IDEAL_KG = 35.0
 
-CAUTION = (
-    "Know the weight before lifting; chock round stock so it cannot roll; "
-    "the shop's rules and local regulations govern."
-)
+CAUTION = "Know the weight before lifting; the shop's rules and local regulations govern."
 
 
 @dataclass(frozen=True)
@@ -123,6 +122,8 @@ class Handling:
     handling: str  # "one-person" / "two-person" / "lift-aid"
     advice: str
     caution: str
+    horizontal_cm: float = H_MIN_CM  # H the limit was worked out for
+    cautions: tuple[str, ...] = ()  # what this piece needs (sawplan.piece_handling)
 
 
 def _check(c: LiftConditions) -> None:
@@ -196,7 +197,7 @@ def team_limit_kg(rwl_kg: float) -> float:
 
 
 def assess_lift(mass_kg: float, c: LiftConditions = LiftConditions()) -> Handling:
-    """Classify the lift of one piece (common practice, reference §8).
+    """Classify the lift of one piece (common practice).
 
     - one-person: lifting index LI = mass/RWL ≤ 1 (the NIOSH design goal);
     - two-person: mass ≤ the team limit, the smaller of 2/3 of two people's
@@ -222,26 +223,27 @@ def assess_lift(mass_kg: float, c: LiftConditions = LiftConditions()) -> Handlin
                 "what the lifting equation allows for manual lifting"
             ),
             caution=CAUTION,
+            horizontal_cm=c.horizontal_cm,
         )
     li = mass_kg / rwl
     team = team_limit_kg(rwl)
+    mass, limit, team_q = Q("mass", mass_kg), Q("mass", rwl), Q("mass", team)
     if li <= 1.0:
         handling = "one-person"
-        advice = (
-            f"one person: {mass_kg:.1f} kg is within the recommended limit of "
-            f"{rwl:.1f} kg (lifting index {li:.2f})"
-        )
+        advice = say("one person: {} is within the recommended limit of {}", mass, limit)
     elif mass_kg <= team:
         handling = "two-person"
-        advice = (
-            f"two people: {mass_kg:.1f} kg is over one person's limit of {rwl:.1f} kg "
-            f"(lifting index {li:.2f}) but within a two-person team's {team:.1f} kg"
+        advice = say(
+            "two people, or a lift aid: {} is over one person's limit of {} but within "
+            "a two-person team's {}",
+            mass,
+            limit,
+            team_q,
         )
     else:
         handling = "lift-aid"
-        advice = (
-            f"use a hoist, crane or lift table: {mass_kg:.1f} kg is over a two-person "
-            f"team's {team:.1f} kg (lifting index {li:.2f})"
+        advice = say(
+            "use a hoist, crane or lift table: {} is over a two-person team's {}", mass, team_q
         )
     return Handling(
         mass_kg=mass_kg,
@@ -250,4 +252,5 @@ def assess_lift(mass_kg: float, c: LiftConditions = LiftConditions()) -> Handlin
         handling=handling,
         advice=advice,
         caution=CAUTION,
+        horizontal_cm=c.horizontal_cm,
     )

@@ -8,18 +8,25 @@ and simple (documented in DEVELOPERS.md):
     density kg/m³, stress MPa.
 
 User text becomes a pint quantity here, is dimension-checked, and is handed to
-the core as a float in those units.  Output goes back through ``Display``.
+the core as a float in those units.  Output goes back through ``Display``
+(``sawplan.display``, re-exported here).
 """
 
 from __future__ import annotations
 
 import math
 import re
-from dataclasses import dataclass
-from enum import StrEnum
 from functools import lru_cache
 from typing import TYPE_CHECKING
 
+from sawplan.display import (  # noqa: F401 -- the display side, importable from here too
+    DISPLAY,
+    Display,
+    UnitSystem,
+    fmt_duration,
+    fmt_number,
+    fmt_ratio,
+)
 from sawplan.errors import UsageError
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -108,13 +115,6 @@ _UNIT_ALIASES = {
     "lbs": "lb",
     "#": "lb",
 }
-
-
-class UnitSystem(StrEnum):
-    """Display system chosen with ``--units``."""
-
-    US = "us"
-    METRIC = "metric"
 
 
 def _a(word: str) -> str:
@@ -240,7 +240,7 @@ def to_core(
         from sawplan.errors import BadDataError
 
         raise BadDataError(
-            f"{str(text).strip()!r} is out of range (at most {MAX_CORE_MAGNITUDE:.0e} "
+            f"{str(text).strip()!r} is out of range (at most {MAX_CORE_MAGNITUDE:,.0f} "
             f"{core_unit.replace(' ** ', '^').replace(' ', '')})",
             field=field,
         )
@@ -303,85 +303,3 @@ def positive(value: float, *, field: str, what: str = "a positive value") -> flo
     if not math.isfinite(value) or value <= 0:
         raise BadDataError(f"must be {what}, got {value:g}", field=field)
     return value
-
-
-# --- display ---------------------------------------------------------------
-
-# core unit -> (label, factor) per system: shown = core_value * factor.
-# Factors are exact definitions (1 in = 25.4 mm, 1 lb = 0.45359237 kg) and are
-# checked against pint in tests/test_units.py.
-_IN = 25.4
-_LB = 0.45359237
-_FT = 304.8
-DISPLAY: dict[str, dict[UnitSystem, tuple[str, float]]] = {
-    "length": {UnitSystem.US: ("in", 1 / _IN), UnitSystem.METRIC: ("mm", 1.0)},
-    "long_length": {UnitSystem.US: ("ft", 1 / _FT), UnitSystem.METRIC: ("m", 1e-3)},
-    "area": {UnitSystem.US: ("in²", 1 / _IN**2), UnitSystem.METRIC: ("cm²", 1e-2)},
-    "mass": {UnitSystem.US: ("lb", 1 / _LB), UnitSystem.METRIC: ("kg", 1.0)},
-    "mass_per_length": {
-        UnitSystem.US: ("lb/ft", _FT / 1000 / _LB),
-        UnitSystem.METRIC: ("kg/m", 1.0),
-    },
-    "time": {UnitSystem.US: ("min", 1.0), UnitSystem.METRIC: ("min", 1.0)},
-    "speed": {UnitSystem.US: ("ft/min", 1000 / _FT), UnitSystem.METRIC: ("m/min", 1.0)},
-    "feed": {UnitSystem.US: ("in/min", 1 / _IN), UnitSystem.METRIC: ("mm/min", 1.0)},
-    "rate": {UnitSystem.US: ("in²/min", 1 / _IN**2), UnitSystem.METRIC: ("cm²/min", 1e-2)},
-    "force": {UnitSystem.US: ("lbf", 1 / (_LB * 9.80665)), UnitSystem.METRIC: ("N", 1.0)},
-    "power": {UnitSystem.US: ("hp", 1 / 745.69987158227022), UnitSystem.METRIC: ("kW", 1e-3)},
-    "stress": {UnitSystem.US: ("ksi", 1 / 6.894757293168361), UnitSystem.METRIC: ("MPa", 1.0)},
-    "density": {UnitSystem.US: ("lb/in³", _IN**3 * 1e-9 / _LB), UnitSystem.METRIC: ("g/cm³", 1e-3)},
-    "bite": {UnitSystem.US: ("in", 1 / _IN), UnitSystem.METRIC: ("µm", 1000.0)},
-}
-
-
-@dataclass(frozen=True)
-class Display:
-    """Turns core floats into display numbers and labels for one unit system."""
-
-    system: UnitSystem = UnitSystem.METRIC
-
-    def label(self, kind: str) -> str:
-        return DISPLAY[kind][self.system][0]
-
-    def value(self, kind: str, core_value: float) -> float:
-        return core_value * DISPLAY[kind][self.system][1]
-
-    def fmt(self, kind: str, core_value: float | None, digits: int = 3) -> str:
-        """Format with sensible significant figures and the unit label."""
-        if core_value is None or not math.isfinite(core_value):
-            return "—"
-        if kind == "time":
-            return fmt_duration(core_value, digits)
-        v = self.value(kind, core_value)
-        return f"{fmt_number(v, digits)} {self.label(kind)}"
-
-
-def fmt_number(v: float, digits: int = 3) -> str:
-    """Round to ``digits`` significant figures without scientific notation."""
-    if v == 0 or not math.isfinite(v):
-        return f"{v:g}" if math.isfinite(v) else "—"
-    v = float(f"{v:.{digits}g}")  # round first so 0.99999 counts as 1
-    mag = math.floor(math.log10(abs(v)))
-    decimals = max(0, digits - 1 - mag)
-    return f"{v:,.{decimals}f}"
-
-
-LONG_TIME_MIN = 90.0  # above this a time reads better as hours and minutes
-
-
-def fmt_duration(minutes: float | None, digits: int = 3) -> str:
-    """A time for people: '42.5 min' up to 90 min, then '3 h 20 min' (whole minutes)."""
-    if minutes is None or not math.isfinite(minutes):
-        return "—"
-    if minutes <= LONG_TIME_MIN:
-        return f"{fmt_number(minutes, digits)} min"
-    whole = round(minutes)
-    hours, mins = divmod(whole, 60)
-    return f"{hours:,} h {mins} min" if mins else f"{hours:,} h"
-
-
-def fmt_ratio(ratio: float) -> str:
-    """A ratio for people: '0.4×', '2.5×', and 'over ten times' beyond 10."""
-    if not math.isfinite(ratio) or ratio > 10:
-        return "over ten times"
-    return f"{fmt_number(ratio, 2)}×"

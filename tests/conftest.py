@@ -51,6 +51,28 @@ def cli(capsys):
     return invoke
 
 
+@pytest.fixture(scope="session")
+def demo_tree(tmp_path_factory):
+    """A copy of demo/ (saws, jobs) with its blade log built once per session."""
+    import importlib.util
+    import shutil
+    import sys
+    from pathlib import Path
+
+    repo = Path(__file__).resolve().parent.parent
+    root = tmp_path_factory.mktemp("demo-tree")
+    shutil.copytree(repo / "demo" / "jobs", root / "demo" / "jobs")
+    shutil.copy2(repo / "demo" / "saws.toml", root / "demo" / "saws.toml")
+    spec = importlib.util.spec_from_file_location(
+        "demo_make_history", repo / "demo" / "make_history.py"
+    )
+    module = importlib.util.module_from_spec(spec)
+    sys.modules[spec.name] = module  # dataclasses look their module up here
+    spec.loader.exec_module(module)
+    module.build(root / "demo" / "out" / "demo-log.sqlite")
+    return root
+
+
 # --- the blade log on both engines ------------------------------------------------------
 
 

@@ -77,7 +77,7 @@ WEAR = """\
   └┬──────────────────────────┬──────────────────────────┬─┘
    0                        1,000                     2,000
 rate (cm²/min)          area cut (cm²)
-o each cut   ▚ trend (median of 5)   ── steady rate 58.8, and end-of-life signs (time per area +30%)
+o each cut   ▚ trend (median of 5)   ── steady rate 58.8, and end-of-life signs (time per area +30 %)
 verdict: steady wear
 """
 

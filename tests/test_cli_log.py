@@ -131,7 +131,7 @@ def test_fit_replaces_the_blade_on_the_saw_and_show_lists_history(log):
     blades = {b["tag"]: b for b in json.loads(ok(log("blade", "list", "--json")).out)["items"]}
     assert blades["B-017"]["status"] == "removed" and blades["B-018"]["status"] == "fitted"
     shown = ok(log("blade", "show", "B-017")).out
-    assert "round 60mm" in shown and "=SUM(A1)" in shown
+    assert "round Ø60 mm" in shown and "=SUM(A1)" in shown  # the section in display units
     history = json.loads(ok(log("blade", "show", "B-017", "--json")).out)
     assert len(history["cuts"]) == 1 and len(history["fittings"]) == 1
 

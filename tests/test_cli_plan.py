@@ -81,7 +81,7 @@ def test_terminal_report_shows_sections_bars_drawings_and_cautions(cli):
     for line in drawings:
         inner = line.split("|", 1)[1].rsplit("|", 1)[0]
         assert len(inner) == 72  # fixed width: every bar drawn to the same scale length
-    assert "Chock round stock" in out
+    assert "it rolls: chock it" in out  # a job of rounds
     assert "saw maker's manual" in out
     assert "H-2231" in out  # the heat number travels with the bar
 
@@ -110,7 +110,7 @@ def test_html_sheet_has_every_bar_an_svg_each_and_the_cautions(cli, tmp_path):
     assert "@page { size: auto; margin: 12mm }" in html
     assert "break-inside: avoid" in html
     assert ".bar svg { display: block; width: 100%" in html
-    assert "Chock round stock" in html
+    assert "it rolls: chock it" in html
     assert "saw maker&#x27;s manual" in html or "saw maker's manual" in html
     assert "H-2231" in html and "4140" in html
     assert "<script" not in html and "http://" not in html.replace("http://www.w3.org/2000/svg", "")
@@ -123,7 +123,7 @@ def test_markdown_sheet(cli, tmp_path):
     text = sheet.read_text(encoding="utf-8")
     assert text.startswith("# Cut sheet: pump shafts")
     assert text.count("### Bar ") == int(re.search(r"^bars\s+(\d+)", r.out, re.M).group(1))
-    assert "Chock round stock" in text
+    assert "it rolls: chock it" in text
 
 
 def test_csv_files_and_formula_neutralisation(cli, tmp_path):

@@ -13,7 +13,7 @@ def test_weigh_json_keys_and_values(cli):
     data = json.loads(result.out)
     for key in ("weight_kg", "mass_per_length_kg_m", "handling", "lot_weight_kg", "lifting_index"):
         assert key in data
-    # 0.006165·D² kg/m for steel (common practice, reference §8)
+    # 0.006165·D² kg/m for steel (common practice)
     assert data["mass_per_length_kg_m"] == pytest.approx(0.006165 * 3600, rel=0.005)
     assert data["lot_weight_kg"] == pytest.approx(3 * data["weight_kg"])
 

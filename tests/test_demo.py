@@ -149,11 +149,13 @@ def test_make_demo_shows_the_plan_the_quote_and_blade_life(tmp_path, capsys, mon
     for heading in ("CUT SHEET", "BARS TO SCALE", "SECTIONS", "BLADES", "QUOTE", "CAUTIONS"):
         assert heading in out, heading
     assert "quoted total" in out and "have on hand" in out
-    assert "pump blanks" in out and "valve body slices" in out
-    assert "× the time of" in out  # the blade-choice comparison on the billet
+    for job in ("conveyor base frame", "pump blanks", "valve body slices", "walkway handrail"):
+        assert job in out, job
+    assert "the time of 1.4/2" in out  # the blade-choice comparison on the billet
+    assert "lifting beam and two slings" in out  # a 6 m channel of 112 kg on the crane
     assert "blade life (area cut)" in out and "Weibull probability plot" in out
     assert "teeth stripped" in out and "not broken in" in out
-    for sheet in ("pump-blanks.html", "billet-slices.html"):
+    for sheet in ("frame-kit.html", "pump-blanks.html", "billet-slices.html", "rail-posts.html"):
         assert (out_dir / sheet).stat().st_size > 1000
     assert (out_dir / "demo-log.sqlite").is_file()
     assert list(home.iterdir()) == []

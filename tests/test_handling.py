@@ -4,7 +4,7 @@ Sources: NIOSH Applications Manual for the Revised NIOSH Lifting Equation,
 DHHS (NIOSH) Pub. 94-110 (1994, rev. 2021) — formulas (§1.3), metric
 Tables 1-4 (multipliers, printed to two decimals), Table 5 (frequency
 multiplier), Table 7 (coupling multiplier), Example 4 worksheet; Waters et al.
-1993, Ergonomics 36:749.  Handling classes: common practice (reference §8).
+1993, Ergonomics 36:749.  Handling classes: common practice.
 Unit conversions by pint.
 """
 
@@ -214,7 +214,7 @@ def test_hand_computed_case():
     assert assessed.lifting_index == pytest.approx(10.0 / by_hand)
 
 
-# Handling classes: common practice (reference §8); the team limit is 2/3 of two
+# Handling classes: common practice; the team limit is 2/3 of two
 # people's RWL (team-lifting guidance, UK HSE INDG143, memory) and at most about
 # 35 kg at ideal conditions.  At the standard location: 23 kg one person,
 # 4/3 × 23 = 30.67 kg two people.
@@ -262,7 +262,8 @@ def test_out_of_range_conditions_need_a_lift_aid():
 
 
 def test_caution_defers_to_shop_rules():
-    assert "chock round stock" in CAUTION
+    assert "local regulations govern" in CAUTION
+    assert "round" not in CAUTION  # what the piece is: sawplan.piece_handling
     assert "local regulations" in CAUTION
 
 

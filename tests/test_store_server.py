@@ -11,10 +11,8 @@ PostgreSQL's ``pg_restore --list`` reading the backups.
 
 from __future__ import annotations
 
-import importlib.util
 import shutil
 import subprocess
-import sys
 import zipfile
 from pathlib import Path
 from urllib.parse import urlsplit, urlunsplit
@@ -107,21 +105,10 @@ def test_the_password_never_shows_in_a_plan_note(pg_log, cli, tmp_path):
 # --- moving a log ---------------------------------------------------------------------------
 
 
-def _demo_log(path: Path) -> None:
-    spec = importlib.util.spec_from_file_location(
-        "make_history", Path(__file__).parent.parent / "demo" / "make_history.py"
-    )
-    module = importlib.util.module_from_spec(spec)
-    sys.modules.setdefault("make_history", module)  # its dataclasses look themselves up
-    spec.loader.exec_module(module)
-    module.build(path)
-
-
 @pytest.fixture(scope="module")
-def demo_log(tmp_path_factory) -> Path:
-    path = tmp_path_factory.mktemp("demo") / "demo-log.sqlite"
-    _demo_log(path)
-    return path
+def demo_log(demo_tree) -> Path:
+    """The demo shop's year of history (built once per session by ``demo_tree``)."""
+    return demo_tree / "demo" / "out" / "demo-log.sqlite"
 
 
 def test_db_copy_file_to_server_and_back_gives_identical_exports(demo_log, pg_log, cli, tmp_path):

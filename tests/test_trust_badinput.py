@@ -58,7 +58,12 @@ OUTPUT_PATHS = {
     ("db", "copy", "target"),
 }
 # "0" is meaningful here: a free blade, an occasional lift, "all entries"
-ZERO_OK = {("blade", "add", "price"), ("weigh", "lifts_per_min"), ("log", "list", "limit")}
+ZERO_OK = {
+    ("blade", "add", "price"),
+    ("weigh", "lifts_per_min"),
+    ("weigh", "twist"),  # no twist: the standard lift
+    ("log", "list", "limit"),
+}
 
 
 def invoke(args: list[str]) -> tuple[int, str, str]:

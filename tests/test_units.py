@@ -106,14 +106,19 @@ def test_display_factors_agree_with_pint(kind, system):
         "stress": "MPa",
         "density": "kg/m**3",
         "bite": "mm",
+        "large_area": "mm**2",
+        "volume_rate": "mm**3/min",
+        "energy_density": "J/mm**3",
     }[kind]
     label, factor = DISPLAY[kind][system]
-    target = label.replace("²", "**2").replace("³", "**3").replace("µm", "micrometer")
+    target = (
+        label.replace("²", "**2").replace("³", "**3").replace("µm", "micrometer").replace("·", "*")
+    )
     assert factor == pytest.approx(REF(f"1 {core_unit}").to(target).magnitude, rel=1e-9)
 
 
 def test_display_formats_us_and_metric():
-    assert Display(UnitSystem.US).fmt("length", 25.4) == "1.00 in"
+    assert Display(UnitSystem.US).fmt("length", 25.4) == "1 in"  # a length keeps 0.001 in
     assert Display(UnitSystem.METRIC).fmt("mass", 12.345, 3) == "12.3 kg"
     assert fmt_number(1234.5, 3) == "1,230"  # 3 significant figures, no exponent
 
@@ -166,6 +171,7 @@ def test_fast_path_and_pint_path_agree(text):
 @pytest.mark.parametrize(
     ("minutes", "text"),
     [
+        pytest.param(0.14, "8.40 s", id="under-a-minute-in-seconds"),  # 0.14 × 60 = 8.4
         pytest.param(42.5, "42.5 min", id="short-stays-minutes"),
         pytest.param(200.0, "3 h 20 min", id="200-min-is-3h20"),  # 3 × 60 + 20 = 200
         pytest.param(180.0, "3 h", id="whole-hours"),

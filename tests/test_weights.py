@@ -1,4 +1,4 @@
-"""Bar weights against the shop formulas for steel (reference §8, common practice)."""
+"""Bar weights against the shop formulas for steel (common practice)."""
 
 from __future__ import annotations
 
@@ -23,7 +23,7 @@ def steel():
 @pytest.mark.parametrize(
     ("section", "size_in", "lb_per_ft"),
     [
-        # common practice, reference §8: round 2.67·D², square 3.40·s², hex 2.94·F², flat 3.40·w·t
+        # common practice: round 2.67·D², square 3.40·s², hex 2.94·F², flat 3.40·w·t
         pytest.param("round 2in", 2.0, 2.67 * 2.0**2, id="round 2in 2.67D2"),
         pytest.param("round 7in", 7.0, 2.67 * 7.0**2, id="round 7in 2.67D2"),
         pytest.param("square 3in", 3.0, 3.40 * 3.0**2, id="square 3in 3.40s2"),
@@ -37,7 +37,7 @@ def test_steel_bar_weight_matches_shop_formula(steel, section, size_in, lb_per_f
 
 
 def test_metric_round_formula(steel):
-    # common practice, reference §8: 0.006165·D²[mm] kg/m for ρ = 7.85
+    # common practice: 0.006165·D²[mm] kg/m for ρ = 7.85
     result = weigh(steel, parse_section("round 60mm"), 1000)
     assert result.mass_per_length_kg_m == pytest.approx(0.006165 * 60**2, rel=0.005)
 

@@ -21,8 +21,8 @@ from the stock on hand, and keep a log of what each blade really cut.
 
 \b
 Examples:
-  sawplan weigh 4140 round 60mm --length 1m
-  sawplan cut 304 round 7in
+  sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm
+  sawplan weigh 6061-T6 tube 48.3mm 3.2mm --length 6m
   sawplan plan job.toml --sheet job.html
   sawplan life
 

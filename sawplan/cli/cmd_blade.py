@@ -6,13 +6,13 @@ from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.cmd_saw import fmt_q, plain
 from sawplan.cli.options import (
     ChartHeightOpt,
     ChartWidthOpt,
     CsvOpt,
     DateOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     NoteOpt,
     SawsFileOpt,
@@ -21,6 +21,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display, as_display, fmt_money, fmt_number, section_text
 from sawplan.units import UnitSystem
 
 BLADE_MATERIALS = {
@@ -143,6 +144,7 @@ def blade_add_command(
     welded: Annotated[str, opt("welded", show_default=True)] = "bought",
     notes: NoteOpt = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     db: DbOpt = None,
 ) -> None:
@@ -182,17 +184,16 @@ def blade_add_command(
     if json_out:
         print(to_json(blade, kind="blade"))
         return
-    print(f"added blade {blade.tag}: {describe(blade, units)}")
+    print(f"added blade {blade.tag}: {describe(blade, Display(units, fractions))}")
 
 
-def describe(blade: Any, units: UnitSystem) -> str:
+def describe(blade: Any, units: UnitSystem | Display) -> str:
     """``bi-metal M42, 27 × 0.9 mm, 3/4 TPI, 3,505 mm long``."""
-    from sawplan.units import Display
 
-    d = Display(units)
+    d = as_display(units)
     size = (
-        f"{plain(d.value('length', blade.width_mm))} × "
-        f"{plain(d.value('length', blade.thickness_mm))} {d.label('length')}"
+        f"{d.num('length', blade.width_mm)} × {d.num('length', blade.thickness_mm)} "
+        f"{d.label('length')}"
     )
     parts = [
         " ".join(p for p in (blade.blade_material, blade.grade) if p),
@@ -200,7 +201,7 @@ def describe(blade: Any, units: UnitSystem) -> str:
         f"{blade.pitch} TPI",
     ]
     if blade.length_mm:
-        parts.append(f"{fmt_q(d, 'length', blade.length_mm, 4)} long")
+        parts.append(f"{d.bar_length(blade.length_mm)} long")
     return ", ".join(parts)
 
 
@@ -265,19 +266,19 @@ def blade_retire_command(
     location: Annotated[str | None, opt("location")] = None,
     note: NoteOpt = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     db: DbOpt = None,
 ) -> None:
     from sawplan.life.failure_modes import failure_mode
     from sawplan.store import connect
     from sawplan.store.dates import parse_day
     from sawplan.store.records import retire_blade
-    from sawplan.units import Display
 
     on = parse_day(date)
     with connect(db) as database:
         blade = retire_blade(database, tag, cause, on=on, location=location, note=note)
     mode = failure_mode(blade.retire_cause or cause)
-    area = Display(units).fmt("area", blade.area_mm2, 3)
+    area = Display(units, fractions).fmt("area", blade.area_mm2)
     cuts = "1 cut" if blade.cuts == 1 else f"{blade.cuts:,} cuts"
     print(f"retired blade {blade.tag} ({on}) after {area} in {cuts}: {mode.name}")
     print("usual causes (common practice): " + "; ".join(mode.causes))
@@ -286,6 +287,7 @@ def blade_retire_command(
 def blade_list_command(
     status: Annotated[str | None, opt("status")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -293,14 +295,13 @@ def blade_list_command(
     from sawplan.render import table, to_csv, to_json
     from sawplan.store import connect
     from sawplan.store.records import list_blades
-    from sawplan.units import Display
 
     with connect(db, create=False) as database:
         blades = list_blades(database, status=status)
     if json_out:
         print(to_json(blades, kind="blades"))
         return
-    d = Display(units)
+    d = Display(units, fractions)
     headers = [
         "tag",
         "type",
@@ -314,12 +315,12 @@ def blade_list_command(
     rows = [
         [
             b.tag,
-            b.blade_type,
+            d.text(b.blade_type),
             b.status,
             b.saw or "",
             b.cuts,
-            plain(d.value("area", b.area_mm2)),
-            "" if b.price is None else f"{b.price:g}",
+            d.num("area", b.area_mm2),
+            "" if b.price is None else fmt_money(b.price),
             " ".join(x for x in (b.retired_on, b.retire_cause) if x),
         ]
         for b in blades
@@ -341,6 +342,7 @@ def blade_show_command(
     width: ChartWidthOpt = 72,
     height: ChartHeightOpt = 20,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -363,9 +365,9 @@ def blade_show_command(
             print(to_csv(*wear_rows(history.wear)), end="")
         return
     if chart:
-        print(wear_chart_text(history, units, width, height))
+        print(wear_chart_text(history, Display(units, fractions), width, height))
         return
-    print(render_history(history, units))
+    print(render_history(history, Display(units, fractions)))
 
 
 def wear_rows_empty() -> tuple[list[str], list[list[Any]]]:
@@ -376,7 +378,7 @@ def wear_rows_empty() -> tuple[list[str], list[list[Any]]]:
     return headers, []
 
 
-def wear_chart_text(history: Any, units: UnitSystem, width: int, height: int) -> str:
+def wear_chart_text(history: Any, units: UnitSystem | Display, width: int, height: int) -> str:
     import sys
 
     from sawplan.charts import wear_chart
@@ -385,6 +387,7 @@ def wear_chart_text(history: Any, units: UnitSystem, width: int, height: int) ->
         return (
             f"blade {history.blade.tag}: no timed cuts yet, so no wear curve (log cuts with --time)"
         )
+    off_saw = history.blade.status in ("retired", "removed")
     text = wear_chart(
         history.wear,
         title=f"blade {history.blade.tag}: cutting rate against area cut",
@@ -393,16 +396,15 @@ def wear_chart_text(history: Any, units: UnitSystem, width: int, height: int) ->
         height=height,
         colorless=not sys.stdout.isatty(),
         # a retired or removed blade's verdict is its life, not "still breaking in"
-        verdict=history.wear_summary if history.blade.status in ("retired", "removed") else None,
+        verdict=as_display(units).text(history.wear_summary) if off_saw else None,
     )
     return "\n".join([text, *history.wear_notes])
 
 
-def render_history(h: Any, units: UnitSystem) -> str:
+def render_history(h: Any, units: UnitSystem | Display) -> str:
     from sawplan.render import key_values, table
-    from sawplan.units import Display
 
-    d = Display(units)
+    d = as_display(units)
     b = h.blade
     pairs = [
         ("blade", f"{b.tag}: {describe(b, units)}"),
@@ -415,19 +417,20 @@ def render_history(h: Any, units: UnitSystem) -> str:
     if made:
         pairs.append(("from", ", ".join(made)))
     if b.price is not None:
-        pairs.append(("price", f"{b.price:g}"))
+        pairs.append(("price", fmt_money(b.price)))
     pairs.append(
-        ("cut", f"{d.fmt('area', b.area_mm2, 3)} in {b.cuts:,} cut{'' if b.cuts == 1 else 's'}")
+        ("cut", f"{d.fmt('area', b.area_mm2)} in {b.cuts:,} cut{'' if b.cuts == 1 else 's'}")
     )
     if h.cost_per_m2 is not None:
-        pairs.append(("cost so far", f"{plain(h.cost_per_m2)} per m² cut"))
+        per_unit = fmt_number(d.per("large_area", h.cost_per_m2 / 1e6))
+        pairs.append(("cost so far", f"{per_unit} per {d.label('large_area')} cut"))
     if b.notes:
         pairs.append(("notes", b.notes))
     out = [key_values(pairs)]
     if h.fittings:
         rows = [
             [f["saw"], f["fitted_on"], f["removed_on"] or "(on the saw)",
-             "" if f["tension_mpa"] is None else fmt_q(d, "stress", f["tension_mpa"]),
+             d.fmt("stress", f["tension_mpa"]) if f["tension_mpa"] is not None else "",
              {None: "", 1: "yes", 0: "no"}[f["break_in"]] + (f" ({f['break_in_how']})" if f["break_in_how"] else "")]
             for f in h.fittings
         ]  # fmt: skip
@@ -441,9 +444,10 @@ def render_history(h: Any, units: UnitSystem) -> str:
         )
     if h.cuts:
         rows = [
-            [c["cut_on"], c["material"], c["section"], c["count"], plain(d.value("area", c["area_mm2"])),
-             "" if c["time_min"] is None else plain(c["time_min"]),
-             "" if c["predicted_time_min"] is None else plain(c["predicted_time_min"]),
+            [c["cut_on"], c["material"], section_text(d, c["section"]), c["count"],
+             d.num("area", c["area_mm2"]),
+             "" if c["time_min"] is None else fmt_number(c["time_min"]),
+             "" if c["predicted_time_min"] is None else fmt_number(c["predicted_time_min"]),
              c["saw"] or "", c["job"] or ""]
             for c in h.cuts[-h.shown_cuts:]
         ]  # fmt: skip
@@ -475,7 +479,7 @@ def render_history(h: Any, units: UnitSystem) -> str:
                 title="\nevents",
             )
         )
-    out.append("\nwear: " + h.wear_summary)
+    out.append("\nwear: " + d.text(h.wear_summary))
     out.extend(h.wear_notes)
     if h.wear is not None:
         out.append(h.wear.caution)

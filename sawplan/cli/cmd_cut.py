@@ -9,6 +9,7 @@ import typer
 from sawplan.cli.options import (
     BundleOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialArg,
     MaterialsFileOpt,
@@ -20,6 +21,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display
 from sawplan.units import UnitSystem
 
 HELP = """Choose the blade, band speed and feed for one cut, and time it.
@@ -30,11 +32,12 @@ goes wrong) beside the recommendation.
 
 \b
 Examples:
-  sawplan cut 4140 round 7in
+  sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm
   sawplan cut 304 round 250mm --saw large-column --chart
-  sawplan cut 304 round 250mm --pitch 4/6
-  sawplan cut A36 ibeam 200mm 100mm 5.6mm 8.5mm --units us
-  sawplan cut 1018 tube 60mm 3mm --bundle 3x4 --json
+  sawplan cut 1045 square 80mm --pitch 4/6
+  sawplan cut 4140 round 5-1/2in --units us --fractions
+  sawplan cut 6061-T6 tube 60mm 3mm --bundle 3x4 --json
+  sawplan cut 4140 round 150mm --economics --shop-rate 75 --chart
 
 Estimates only: the saw maker's manual and the blade maker's data govern.
 """
@@ -62,7 +65,15 @@ def cut_command(
     chart: Annotated[
         bool, opt("chart", help="Chart width of cut and feed through the cut.")
     ] = False,
+    economics: Annotated[bool, opt("economics")] = False,
+    shop_rate: Annotated[float | None, opt("shop_rate")] = None,
+    handling_time: Annotated[str | None, opt("handling_time")] = None,
+    change_time: Annotated[str | None, opt("change_time")] = None,
+    blade_price: Annotated[
+        float | None, opt("blade_price", help="Blade price, for the cost per cut.")
+    ] = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     db: DbOpt = None,
     saws_file: SawsFileOpt = None,
@@ -102,20 +113,86 @@ def cut_command(
             kw["band_speed_m_min"] = to_core(band_speed, "speed", field="band-speed")
         comparison = compare(mat, sec, the_saw, blade_tpi, **kw)
         result, summary = comparison.chosen, comparison.summary
+    econ = times = choice = None
+    if economics:
+        from sawplan.cli.cut_economics import (
+            ShopFigures,
+            blade_choice_for_cut,
+            economics_of_cut,
+        )
+
+        figures = ShopFigures(
+            shop_rate_per_h=shop_rate,
+            handling_min=_minutes(handling_time, "handling_time"),
+            blade_price=blade_price,
+            change_min=_minutes(change_time, "change_time"),
+        )
+        econ, (times, _fit) = economics_of_cut(result, mat, sec, the_saw, log, figures, dry=dry)
+        choice = blade_choice_for_cut(result, mat, sec, the_saw, log, figures, dry=dry)
+    elif any(v is not None for v in (shop_rate, handling_time, change_time, blade_price)):
+        raise UsageError(
+            "the shop's rates and prices are for the cost per cut",
+            field="economics",
+            hint="add --economics",
+        )
     if json_out:
         from sawplan.render import jsonable
 
         payload = {**jsonable(result), "comparison": summary, "calibration_cuts": calibration_n}
+        if econ is not None:
+            payload["economics"] = jsonable(econ)
+            payload["blade_choice"] = jsonable(choice) if choice is not None else None
+            if chart:
+                payload["cost_curve"] = _curve_rows(econ, times, the_saw)
         print(to_json(payload, kind="cut"))
         return
+    d = Display(units, fractions)
     if summary:
-        print(summary)
+        print(d.text(summary))
         print()
-    label = sec.label(units.value)
-    print(render_cut(result, units, section_label=label, calibration_cuts=calibration_n))
+    print(render_cut(result, d, section_label=d.section(sec), calibration_cuts=calibration_n))
+    if econ is not None:
+        from sawplan.cli.economics_view import render_economics
+
+        print()
+        print(render_economics(econ, d))
+        if choice is not None:
+            from sawplan.cli.economics_view import render_blade_choice
+
+            print()
+            print(render_blade_choice(choice, d))
     if chart:
         print()
-        print(cut_chart(result, units))
+        print(cut_chart(result, d))
+        if econ is not None:
+            from sawplan.charts import speed_cost_chart
+
+            print()
+            print(speed_cost_chart(_curve(econ, times, the_saw), econ.runs, units=d))
+
+
+def _minutes(text: str | None, key: str) -> float | None:
+    """A time typed with its unit (30s, 15min), in minutes, inside the field's range."""
+    if text is None:
+        return None
+    from sawplan import fields
+
+    return fields.parse(key, text, default_unit="min")
+
+
+def _curve(econ, times, saw):
+    from sawplan.charts import WIDTH
+    from sawplan.cutting.cut_cost import cost_curve
+
+    span = (saw.band_speed_min_m_min, saw.band_speed_max_m_min)
+    return cost_curve(econ.area_mm2, times, econ.life, econ.inputs, span, points=WIDTH - 6)
+
+
+def _curve_rows(econ, times, saw) -> list[dict]:
+    from sawplan.charts import speed_cost_rows
+
+    headers, rows = speed_cost_rows(_curve(econ, times, saw))
+    return [dict(zip(headers, row, strict=True)) for row in rows]
 
 
 def register(app: typer.Typer) -> None:

@@ -8,13 +8,13 @@ from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.cmd_saw import plain
 from sawplan.cli.options import (
     ChartHeightOpt,
     ChartWidthOpt,
     ConfidenceOpt,
     CsvOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialsFileOpt,
     TagArg,
@@ -22,6 +22,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display, as_display, fmt_money, fmt_number, fmt_percent
 from sawplan.units import UnitSystem
 
 LIFE_HELP = """Blade life from the log: Weibull fit, failure modes, cost per area, calibration.
@@ -79,6 +80,7 @@ def life_command(
     ] = False,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     db: DbOpt = None,
 ) -> None:
@@ -91,27 +93,26 @@ def life_command(
     if json_out:
         print(to_json(report, kind="life"))
         return
-    print(render_life(report, units))
+    print(render_life(report, Display(units, fractions)))
     if chart:
         from sawplan.charts import modes_chart
 
         print()
-        print(_weibull_text(report, units, 72, 20))
+        print(_weibull_text(report, Display(units, fractions), 72, 20))
         print()
         print(modes_chart(report.failure_modes, colorless=_colorless()))
 
 
 def _area(d: Any, cm2: float | None) -> str:
-    return "—" if cm2 is None else f"{plain(d.value('area', cm2 * 100.0))} {d.label('area')}"
+    return d.fmt("area", None if cm2 is None else cm2 * 100.0)
 
 
-def render_life(r: Any, units: UnitSystem) -> str:
+def render_life(r: Any, units: UnitSystem | Display) -> str:
     from sawplan.render import table
-    from sawplan.units import Display
 
-    d = Display(units)
+    d = as_display(units)
     o = r.overall
-    pct = f"{r.confidence:.0%}"
+    pct = fmt_percent(r.confidence)
     lines = [
         f"blade life (area cut): {_n(o.blades, 'blade')}, {o.failed} retired (failures), "
         f"{o.censored} still running or removed unworn (censored)"
@@ -140,7 +141,7 @@ def render_life(r: Any, units: UnitSystem) -> str:
         headers = [r.group_by, "blades", "retired", "β", f"η {d.label('area')}",
                    f"median {d.label('area')}", f"B10 {d.label('area')}"]  # fmt: skip
         rows = [
-            [g.key, g.blades, g.failed,
+            [d.text(g.key), g.blades, g.failed,
              "—" if g.weibull_shape is None else f"{g.weibull_shape:.2f}",
              _num(d, g.weibull_scale_cm2), _num(d, g.median_life_cm2), _num(d, g.b10_life_cm2)]
             for g in r.groups
@@ -148,11 +149,12 @@ def render_life(r: Any, units: UnitSystem) -> str:
         lines.append(table(headers, rows, align="lrrrrrr", title=f"\nby {r.group_by}"))
         unfitted = [g for g in r.groups if not g.fitted]
         if unfitted:
-            lines.append("  — no fit: " + "; ".join(f"{g.key}: {g.reason}" for g in unfitted))
-    lines += _warning_lines(r)
+            no_fit = "; ".join(f"{d.text(g.key)}: {g.reason}" for g in unfitted)
+            lines.append("  — no fit: " + no_fit)
+    lines += _warning_lines(r, d)
     modes = r.failure_modes
     if modes.modes:
-        rows = [[m.code, m.name, m.count, f"{m.share:.0%}"] for m in modes.modes]
+        rows = [[m.code, m.name, m.count, fmt_percent(m.share)] for m in modes.modes]
         lines.append(table(["failure mode", "", "blades", "share"], rows,
                            align="llrr", title="\nfailure modes, most frequent first"))  # fmt: skip
         top = modes.modes[0]
@@ -163,13 +165,14 @@ def render_life(r: Any, units: UnitSystem) -> str:
         if modes.unrecorded:
             lines.append(f"  {modes.unrecorded} retired blade(s) without a recorded mode")
     if r.costs:
-        per = "m²"
-        rows = [[c.blade_type, f"{c.price:g}", _num(d, c.life_cm2), c.life_method, plain(c.cost_per_m2)]
+        per = d.label("large_area")
+        rows = [[d.text(c.blade_type), fmt_money(c.price), _num(d, c.life_cm2), c.life_method,
+                 fmt_number(d.per("large_area", c.cost_per_m2 / 1e6))]
                 for c in r.costs]  # fmt: skip
         lines.append(table(["blade type", "price", f"life {d.label('area')}", "life from", f"cost per {per}"],
                            rows, align="lrrlr", title="\ncost per area cut, cheapest first"))  # fmt: skip
     if r.costs_missing:
-        lines.append("  no cost yet for " + "; ".join(r.costs_missing))
+        lines.append("  no cost yet for " + "; ".join(d.text(m) for m in r.costs_missing))
     if r.calibration:
         rows = [[c.saw or "(no saw)", c.material_group or "—", c.cuts,
                  "—" if c.factor is None else f"{c.factor:.2f}",
@@ -180,7 +183,7 @@ def render_life(r: Any, units: UnitSystem) -> str:
                            align="llrrll", title="\ncut-time calibration (median of actual ÷ model time)"))  # fmt: skip
     if r.left_out:
         lines.append(f"\nleft out (retired before cutting anything): {', '.join(r.left_out)}")
-    lines += [f"\nnote: {n}" for n in r.notes]
+    lines += [f"\nnote: {d.text(n)}" for n in r.notes]
     return "\n".join(lines)
 
 
@@ -190,14 +193,14 @@ def _warned_modes(r: Any) -> set[str]:
     return {w.mode for w in found if w is not None and w.mode is not None}
 
 
-def _warning_lines(r: Any) -> list[str]:
+def _warning_lines(r: Any, d: Any) -> list[str]:
     """The early-failure warnings (β < 1) of all blades and of each group, as JSON has them.
 
     Each warning names its most frequent early failure mode and that mode's usual
     causes; the set-up checks and the caution, the same for all, follow once.
     """
     warnings = [
-        (f" for {r.group_by} {g.key}", g.early_failure)
+        (f" for {r.group_by} {d.text(g.key)}", g.early_failure)
         for g in r.groups
         if g.early_failure is not None
     ]
@@ -205,14 +208,14 @@ def _warning_lines(r: Any) -> list[str]:
         warnings.insert(0, (" for all blades" if warnings else "", r.early_failure))
     lines: list[str] = []
     for who, w in warnings:
-        lines += ["", f"WARNING{who}: {w.message}"]
+        lines += ["", f"WARNING{who}: {d.text(w.message)}"]
         if w.causes:
             lines.append(
                 f"  usual causes of {w.mode_name} (common practice): " + "; ".join(w.causes)
             )
     if warnings:
         w = warnings[0][1]
-        lines.append("  check: " + "; ".join(w.setup_checks))
+        lines.append("  check: " + "; ".join(d.text(c) for c in w.setup_checks))
         lines.append("  " + w.caution)
     return lines
 
@@ -222,10 +225,10 @@ def _n(n: int, word: str) -> str:
 
 
 def _num(d: Any, cm2: float | None) -> str:
-    return "—" if cm2 is None else plain(d.value("area", cm2 * 100.0))
+    return d.num("area", None if cm2 is None else cm2 * 100.0)
 
 
-def _weibull_text(report: Any, units: UnitSystem, width: int, height: int) -> str:
+def _weibull_text(report: Any, units: UnitSystem | Display, width: int, height: int) -> str:
     from sawplan.charts import weibull_chart
 
     plot = _weibull_plot_of(report)
@@ -258,6 +261,7 @@ def forecast_command(
     life: Annotated[str | None, opt("life")] = None,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
     db: DbOpt = None,
@@ -284,7 +288,7 @@ def forecast_command(
         if json_out:
             print(to_json(result, kind="forecast-job"))
             return
-        print(render_job_forecast(result, units))
+        print(render_job_forecast(result, Display(units, fractions)))
         return
     area_cm2 = parse("area", area) / 100.0
     life_cm2 = None if life is None else parse("life", life) / 100.0
@@ -302,7 +306,7 @@ def forecast_command(
     if json_out:
         print(to_json(result, kind="forecast"))
         return
-    print(render_forecast(result, units))
+    print(render_forecast(result, Display(units, fractions)))
 
 
 def job_cut_areas(path: Path, catalogue: Any) -> dict[str, float]:
@@ -326,28 +330,26 @@ def job_cut_areas(path: Path, catalogue: Any) -> dict[str, float]:
     return areas
 
 
-def render_forecast(f: Any, units: UnitSystem) -> str:
-    from sawplan.units import Display
+def render_forecast(f: Any, units: UnitSystem | Display) -> str:
 
-    d = Display(units)
+    d = as_display(units)
     what = f" of {f.material} ({f.material_group})" if f.material else ""
     lines = [f"blades needed to cut {_area(d, f.area_cm2)}{what}: {f.blades_needed}"]
     if f.method == "weibull-simulation":
         lines.append(
-            f"  {f.confidence:.0%} sure from the blade log's Weibull fit (β {f.weibull_shape:.2f}, "
+            f"  {fmt_percent(f.confidence)} sure from the blade log's Weibull fit (β {f.weibull_shape:.2f}, "
             f"η {_area(d, f.weibull_scale_cm2)}); expected {f.expected_blades:.1f} blades"
         )
     else:
         lines.append(f"  area ÷ life per blade {_area(d, f.life_cm2)}, rounded up")
-    lines.append(f"  {f.note}")
+    lines.append(f"  {d.text(f.note)}")
     return "\n".join(lines)
 
 
-def render_job_forecast(j: Any, units: UnitSystem) -> str:
+def render_job_forecast(j: Any, units: UnitSystem | Display) -> str:
     from sawplan.render import table
-    from sawplan.units import Display
 
-    d = Display(units)
+    d = as_display(units)
     rows = [
         [g.material_group, _num(d, g.area_cm2), g.blades_needed, g.life_source] for g in j.groups
     ]
@@ -357,7 +359,7 @@ def render_job_forecast(j: Any, units: UnitSystem) -> str:
             rows,
             align="lrrl",
         ),
-        f"blades needed: {j.blades_needed} ({j.confidence:.0%} confidence; one cut per part, "
+        f"blades needed: {j.blades_needed} ({fmt_percent(j.confidence)} confidence; one cut per part, "
         "bar-end trim cuts not counted)",
     ]
     if j.combined_on:
@@ -365,7 +367,7 @@ def render_job_forecast(j: Any, units: UnitSystem) -> str:
             f"  one blade cuts every group: areas put on the {j.combined_on} scale by mean life, "
             "as `sawplan plan` does"
         )
-    out += [f"  {g.material_group}: {g.note}" for g in j.groups]
+    out += [f"  {g.material_group}: {d.text(g.note)}" for g in j.groups]
     return "\n".join(out)
 
 
@@ -391,6 +393,7 @@ def chart_wear_command(
     width: ChartWidthOpt = 72,
     height: ChartHeightOpt = 20,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -405,7 +408,7 @@ def chart_wear_command(
     headers, rows = wear_rows(history.wear) if history.wear is not None else wear_rows_empty()
     if _emit_rows(headers, rows, "wear-curve", json_out, csv_out):
         return
-    print(wear_chart_text(history, units, width, height))
+    print(wear_chart_text(history, Display(units, fractions), width, height))
 
 
 def chart_weibull_command(
@@ -413,6 +416,7 @@ def chart_weibull_command(
     height: ChartHeightOpt = 20,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -430,7 +434,7 @@ def chart_weibull_command(
         headers, rows = weibull_rows(plot)
     if _emit_rows(headers, rows, "weibull-plot", json_out, csv_out):
         return
-    print(_weibull_text(report, units, width, height))
+    print(_weibull_text(report, Display(units, fractions), width, height))
 
 
 def weibull_rows_empty() -> tuple[list[str], list[list[Any]]]:
@@ -464,6 +468,7 @@ def chart_cost_command(
     width: ChartWidthOpt = 72,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -476,7 +481,11 @@ def chart_cost_command(
         report = life_report(database, confidence=confidence)
     if _emit_rows(*cost_rows(report.costs), "blade-costs", json_out, csv_out):
         return
-    print(cost_chart(report.costs, units=units, width=width, colorless=_colorless()))
+    print(
+        cost_chart(
+            report.costs, units=Display(units, fractions), width=width, colorless=_colorless()
+        )
+    )
     if report.costs_missing:
         print("no cost yet for " + "; ".join(report.costs_missing))
 

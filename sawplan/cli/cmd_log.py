@@ -8,12 +8,12 @@ from typing import Annotated, Any
 
 import typer
 
-from sawplan.cli.cmd_saw import plain
 from sawplan.cli.options import (
     BundleOpt,
     CsvOpt,
     DateOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialArg,
     MaterialsFileOpt,
@@ -28,6 +28,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display, as_display, fmt_number, fmt_plain, section_text
 from sawplan.units import UnitSystem
 
 HELP = """Log what the blades cut (cuts) and what happened to them (events).
@@ -99,6 +100,7 @@ def log_cut_command(
     heat: Annotated[str | None, opt("heat")] = None,
     note: NoteOpt = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
     saws_file: SawsFileOpt = None,
@@ -177,7 +179,7 @@ def log_cut_command(
         result = LoggedCut(entry_id, after.tag, after.saw, after.area_mm2, tuple(notes), entry)
         print(to_json(result, kind="logged-cut"))
         return
-    print(render_logged(entry, sec, mat, after, units, notes))
+    print(render_logged(entry, sec, mat, after, Display(units, fractions), notes))
 
 
 def batch_cut_area(section_area_mm2: float, area_mm2: float | None) -> float:
@@ -187,11 +189,11 @@ def batch_cut_area(section_area_mm2: float, area_mm2: float | None) -> float:
     if area_mm2 is None:
         return section_area_mm2
     if not area_mm2 > 0:
-        raise BadDataError(f"must be above 0, got {area_mm2:g} mm²", field="area")
+        raise BadDataError(f"must be above 0, got {fmt_plain(area_mm2)} mm²", field="area")
     if area_mm2 > section_area_mm2 * (1 + 1e-9):
         raise BadDataError(
-            f"{plain(area_mm2 / 100)} cm² is more than the section allows "
-            f"({plain(section_area_mm2 / 100)} cm² per cut)",
+            f"{fmt_number(area_mm2 / 100)} cm² is more than the section allows "
+            f"({fmt_number(section_area_mm2 / 100)} cm² per cut)",
             field="area",
             hint="give the area of one cut, at most the section's; --cuts N counts the cuts",
         )
@@ -255,22 +257,19 @@ class LoggedCut:
         return body
 
 
-def render_logged(entry, sec, mat, blade, units: UnitSystem, notes: list[str]) -> str:
-    from sawplan.units import Display
+def render_logged(entry, sec, mat, blade, units: UnitSystem | Display, notes: list[str]) -> str:
 
-    d = Display(units)
+    d = as_display(units)
     what = _cuts(entry.count)
     lines = [
-        f"logged {what} of {mat.key} {sec.label(units.value)} on blade {blade.tag}"
+        f"logged {what} of {mat.key} {d.section(sec)} on blade {blade.tag}"
         + (f" ({blade.saw})" if blade.saw else ""),
-        f"  area {d.fmt('area', entry.area_mm2, 4)}; blade total {d.fmt('area', blade.area_mm2, 4)} "
+        f"  area {d.fmt('area', entry.area_mm2)}; blade total {d.fmt('area', blade.area_mm2)} "
         f"in {_cuts(blade.cuts)}",
     ]
     if entry.time_min is not None or entry.predicted_time_min is not None:
-        measured = "—" if entry.time_min is None else f"{plain(entry.time_min)} min"
-        model = (
-            "—" if entry.predicted_time_min is None else f"{plain(entry.predicted_time_min)} min"
-        )
+        measured = d.fmt("time", entry.time_min)
+        model = d.fmt("time", entry.predicted_time_min)
         lines.append(f"  time measured {measured}, model {model}")
     lines += [f"  note: {n}" for n in notes]
     return "\n".join(lines)
@@ -317,6 +316,7 @@ def log_list_command(
     job: Annotated[str | None, opt("job", help="Only this job.")] = None,
     limit: Annotated[int, opt("limit", show_default=True)] = 30,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     db: DbOpt = None,
@@ -324,20 +324,21 @@ def log_list_command(
     from sawplan.render import table, to_csv, to_json
     from sawplan.store import connect
     from sawplan.store.records import list_cuts
-    from sawplan.units import Display
 
     with connect(db, create=False) as database:
         rows = list_cuts(database, blade=blade, saw=saw, job=job, limit=limit)
     if json_out:
         print(to_json(rows, kind="cuts"))
         return
-    d = Display(units)
+    d = Display(units, fractions)
     headers = ["id", "date", "blade", "saw", "material", "section", "cuts", f"area {d.label('area')}",
                "min", "model min", "job", "heat"]  # fmt: skip
     body = [
-        [r["id"], r["cut_on"], r["blade"], r["saw"] or "", r["material"], r["section"], r["count"],
-         plain(d.value("area", r["area_mm2"])), "" if r["time_min"] is None else plain(r["time_min"]),
-         "" if r["predicted_time_min"] is None else plain(r["predicted_time_min"]), r["job"] or "", r["heat"] or ""]
+        [r["id"], r["cut_on"], r["blade"], r["saw"] or "", r["material"],
+         section_text(d, r["section"]), r["count"], d.num("area", r["area_mm2"]),
+         "" if r["time_min"] is None else fmt_number(r["time_min"]),
+         "" if r["predicted_time_min"] is None else fmt_number(r["predicted_time_min"]),
+         r["job"] or "", r["heat"] or ""]
         for r in rows
     ]  # fmt: skip
     if csv_out:

@@ -6,7 +6,17 @@ from typing import Annotated
 
 import typer
 
-from sawplan.cli.options import CsvOpt, JsonOpt, MaterialsFileOpt, UnitsOpt, arg, command, opt
+from sawplan.cli.options import (
+    CsvOpt,
+    FractionsOpt,
+    JsonOpt,
+    MaterialsFileOpt,
+    UnitsOpt,
+    arg,
+    command,
+    opt,
+)
+from sawplan.display import Display, as_display
 from sawplan.units import UnitSystem
 
 HELP = """List the materials sawplan knows, or show one with its sources.
@@ -24,6 +34,7 @@ def materials_command(
     key: Annotated[str | None, arg("material", help="Show this one material in full.")] = None,
     group: Annotated[str | None, opt("group")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     materials_file: MaterialsFileOpt = None,
@@ -35,7 +46,11 @@ def materials_command(
     cat = load_catalogue(materials_file)
     if key is not None:
         mat = cat.get(key)
-        print(to_json(mat, kind="material") if json_out else render_one(mat, units))
+        print(
+            to_json(mat, kind="material")
+            if json_out
+            else render_one(mat, Display(units, fractions))
+        )
         return
     if group is not None:
         if group not in cat.groups():
@@ -47,7 +62,7 @@ def materials_command(
         mats = cat.in_group(group)
     else:
         mats = list(cat)
-    headers, rows = list_rows(mats, units)
+    headers, rows = list_rows(mats, Display(units, fractions))
     if json_out:
         print(to_json(mats, kind="materials"))
     elif csv_out:
@@ -59,10 +74,10 @@ def materials_command(
         print("\n`sawplan materials KEY` shows one material with the source of each value.")
 
 
-def list_rows(mats, units: UnitSystem):
-    from sawplan.units import Display, fmt_number
+def list_rows(mats, units: UnitSystem | Display):
+    from sawplan.display import fmt_number
 
-    d = Display(units)
+    d = as_display(units)
     headers = [
         "key",
         "designation",
@@ -87,11 +102,15 @@ def list_rows(mats, units: UnitSystem):
     return headers, rows
 
 
-def render_one(m, units: UnitSystem) -> str:
-    from sawplan.render import key_values
-    from sawplan.units import Display
+# The widths of cut the catalogue's speeds and rates are stated for (data/materials.csv).
+BAND_SPEED_CUT_MM = 101.6  # 4 in
+CUTTING_RATE_CUT_MM = 100.0
 
-    d = Display(units)
+
+def render_one(m, units: UnitSystem | Display) -> str:
+    from sawplan.render import key_values
+
+    d = as_display(units)
     pairs = [
         ("key", m.key),
         ("designation", m.designation),
@@ -101,13 +120,16 @@ def render_one(m, units: UnitSystem) -> str:
         ("density", f"{d.fmt('density', m.density_kg_m3, 4)}   [{m.density_source}]"),
         ("hardness", f"{m.hardness_hb:.0f} HB   [{m.hardness_source}]"),
         (
-            "band speed (bi-metal, coolant, 4 in cut)",
-            f"{d.fmt('speed', m.band_speed_m_min, 3)}   [{m.band_speed_source}]",
+            f"band speed (bi-metal, coolant, {d.length(BAND_SPEED_CUT_MM)} cut)",
+            f"{d.fmt('speed', m.band_speed_m_min)}   [{m.band_speed_source}]",
         ),
-        ("unit cutting energy", f"{m.unit_energy_j_mm3:g} J/mm³   [{m.unit_energy_source}]"),
         (
-            "typical cutting rate (100 mm cut)",
-            f"{d.fmt('rate', m.cutting_rate_cm2_min * 100, 3)}   [{m.cutting_rate_source}]",
+            "unit cutting energy",
+            f"{d.fmt('energy_density', m.unit_energy_j_mm3)}   [{m.unit_energy_source}]",
+        ),
+        (
+            f"typical cutting rate ({d.length(CUTTING_RATE_CUT_MM)} cut)",
+            f"{d.fmt('rate', m.cutting_rate_cm2_min * 100)}   [{m.cutting_rate_source}]",
         ),
         ("work-hardens", "yes" if m.work_hardens else "no"),
     ]

@@ -9,6 +9,7 @@ import typer
 
 from sawplan.cli.options import (
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     MaterialsFileOpt,
     SawsFileOpt,
@@ -17,6 +18,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display, fmt_plain
 from sawplan.units import UnitSystem
 
 HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote.
@@ -42,6 +44,7 @@ Examples:
   sawplan plan job.toml --sheet job.md --units us
   sawplan plan job.toml --csv-dir out --saw large-column
   sawplan plan job.toml --json --db shop-log.sqlite
+  sawplan plan job.toml --run cost
 
 Estimates only: the saw maker's manual, the blade maker's data, shop rules and
 local regulations govern.
@@ -56,6 +59,7 @@ def plan_command(
     ] = None,
     sheet: Annotated[Path | None, opt("sheet")] = None,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     db: DbOpt = None,
     saw_name: Annotated[
         str | None, opt("saw", help="Saw to plan for (overrides saw in [job]).")
@@ -67,6 +71,7 @@ def plan_command(
         opt("time_limit", help="Seconds the optimiser may spend per section.", show_default=True),
     ] = 5.0,
     allow: Annotated[bool, opt("allow")] = False,
+    run: Annotated[str | None, opt("run")] = None,
 ) -> None:
     import sys
 
@@ -81,7 +86,9 @@ def plan_command(
             "expected a saw name, got nothing", field="saw", hint="see `sawplan saw list`"
         )
     if not 0 < time_limit <= 600:
-        raise UsageError(f"must be between 0 and 600 s, got {time_limit:g}", field="time-limit")
+        raise UsageError(
+            f"must be between 0 and 600 s, got {fmt_plain(time_limit)}", field="time-limit"
+        )
     catalogue = load_catalogue(materials_file)
     job = load_job(jobfile, catalogue, allow_outside=allow)
     from sawplan.store.lookup import BladeLog
@@ -96,13 +103,30 @@ def plan_command(
         log_label=log.label,
         time_limit_s=time_limit,
     )
-    outputs = render_outputs(plan, units, csv_dir, sheet)
+    quote = None
+    if run is not None:
+        from sawplan import fields
+        from sawplan.cli.cut_economics import plan_economics
+
+        quote = plan_economics(plan, job, saw, log, fields.check_choice("run", run))
+    d = Display(units, fractions)
+    outputs = render_outputs(plan, d, csv_dir, sheet)
     if json_out:
-        print(to_json(plan, kind="plan"))
+        if quote is None:
+            print(to_json(plan, kind="plan"))
+        else:
+            from sawplan.render import jsonable
+
+            print(to_json({**jsonable(plan), "run_quote": jsonable(quote)}, kind="plan"))
     else:
         from sawplan.cutlist.sheets.text import render_plan
 
-        print(render_plan(plan, units))
+        print(render_plan(plan, d))
+        if quote is not None:
+            from sawplan.cli.economics_view import render_run_quote
+
+            print()
+            print(render_run_quote(quote, d, currency=plan.currency))
     written = write_all(outputs)
     for path in written:
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
@@ -145,7 +169,7 @@ def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
 
 
 def render_outputs(
-    plan, units: UnitSystem, csv_dir: Path | None, sheet: Path | None
+    plan, units: UnitSystem | Display, csv_dir: Path | None, sheet: Path | None
 ) -> dict[Path, str]:
     """Every file to write, as text, before anything touches the disk."""
     outputs: dict[Path, str] = {}

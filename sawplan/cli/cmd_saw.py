@@ -10,6 +10,7 @@ import typer
 from sawplan.cli.options import (
     CsvOpt,
     DbOpt,
+    FractionsOpt,
     JsonOpt,
     NoteOpt,
     SawsFileOpt,
@@ -18,6 +19,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.display import Display, as_display
 from sawplan.units import UnitSystem
 
 HELP = """Saw profiles: add your own saws to the blade log and list every saw known.
@@ -109,6 +111,7 @@ def saw_add_command(
     notes: NoteOpt = None,
     replace: Annotated[bool, opt("replace")] = False,
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     saws_file: SawsFileOpt = None,
     db: DbOpt = None,
@@ -173,7 +176,7 @@ def saw_add_command(
     if json_out:
         print(to_json(saw, kind="saw"))
         return
-    print(render_saw(saw, units))
+    print(render_saw(saw, Display(units, fractions)))
     print(
         f"\nSaved in the blade log; use it with `sawplan blade fit TAG --saw {_quote(saw.name)}`."
     )
@@ -200,34 +203,33 @@ def _quote(name: str) -> str:
     return f'"{name}"' if " " in name else name
 
 
-def render_saw(saw, units: UnitSystem) -> str:
+def render_saw(saw, units: UnitSystem | Display) -> str:
     from sawplan.render import key_values
-    from sawplan.units import Display
 
-    d = Display(units)
+    d = as_display(units)
     length = d.label("length")
     pairs = [
         ("saw", saw.name),
         ("kind", saw.kind),
-        ("wheels", f"{saw.wheel_count} × {fmt_q(d, 'length', saw.wheel_diameter_mm)}"),
+        ("wheels", f"{saw.wheel_count} × {d.fmt('length', saw.wheel_diameter_mm)}"),
         (
             "blade",
-            f"{fmt_q(d, 'length', saw.blade_length_mm, 4)} long, "
-            f"{_n(d.value('length', saw.blade_width_mm))} × "
-            f"{_n(d.value('length', saw.blade_thickness_mm))} {length}",
+            f"{d.bar_length(saw.blade_length_mm)} long, "
+            f"{d.num('length', saw.blade_width_mm)} × "
+            f"{d.num('length', saw.blade_thickness_mm)} {length}",
         ),
         ("band speed", f"{_speed_range(saw, d)}"),
-        ("motor", f"{fmt_q(d, 'power', saw.motor_power_w)} (efficiency {saw.drive_efficiency:g})"),
+        ("motor", f"{d.fmt('power', saw.motor_power_w)} (efficiency {saw.drive_efficiency:g})"),
         (
             "capacity",
-            f"round {fmt_q(d, 'length', saw.capacity_round_mm)}, rectangle "
-            f"{_n(d.value('length', saw.capacity_rect_w_mm))} × "
-            f"{_n(d.value('length', saw.capacity_rect_h_mm))} {length}",
+            f"round {d.fmt('length', saw.capacity_round_mm)}, rectangle "
+            f"{d.num('length', saw.capacity_rect_w_mm)} × "
+            f"{d.num('length', saw.capacity_rect_h_mm)} {length}",
         ),
         (
             "feed",
             saw.feed_type
-            + (f", head force {fmt_q(d, 'force', saw.head_force_n)}" if saw.head_force_n else ""),
+            + (f", head force {d.fmt('force', saw.head_force_n)}" if saw.head_force_n else ""),
         ),
         ("coolant", "yes" if saw.coolant else "no"),
         ("source", saw.source),
@@ -238,12 +240,12 @@ def render_saw(saw, units: UnitSystem) -> str:
 
 
 def _speed_range(saw, d) -> str:
-    lo = _n(d.value("speed", saw.band_speed_min_m_min))
-    return f"{lo}-{fmt_q(d, 'speed', saw.band_speed_max_m_min)}"
+    return f"{d.span_of('speed', saw.band_speed_min_m_min, saw.band_speed_max_m_min)}"
 
 
 def saw_list_command(
     units: UnitsOpt = UnitSystem.METRIC,
+    fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
     saws_file: SawsFileOpt = None,
@@ -253,7 +255,6 @@ def saw_list_command(
     from sawplan.saws import load_saws
     from sawplan.store import connect
     from sawplan.store.records import fitted_on_saws, logged_saws
-    from sawplan.units import Display
 
     with connect(db, create=False) as database:
         logged = logged_saws(database)
@@ -262,7 +263,7 @@ def saw_list_command(
     if json_out:
         print(to_json([_saw_json(s, fitted) for s in saws], kind="saws"))
         return
-    d = Display(units)
+    d = Display(units, fractions)
     headers = [
         "saw",
         "kind",
@@ -278,10 +279,10 @@ def saw_list_command(
         [
             s.name,
             s.kind,
-            _n(d.value("length", s.wheel_diameter_mm)),
-            f"{_n(d.value('speed', s.band_speed_min_m_min))}-{_n(d.value('speed', s.band_speed_max_m_min))}",
-            _n(d.value("power", s.motor_power_w)),
-            _n(d.value("length", s.capacity_round_mm)),
+            d.num("length", s.wheel_diameter_mm),
+            d.span_of("speed", s.band_speed_min_m_min, s.band_speed_max_m_min, unit=False),
+            d.num("power", s.motor_power_w),
+            d.num("length", s.capacity_round_mm),
             s.feed_type,
             fitted.get(s.name.lower(), ""),
             s.source,
@@ -292,32 +293,6 @@ def saw_list_command(
         print(to_csv(headers, rows), end="")
     else:
         print(table(headers, rows, align="llrrrrlll"))
-
-
-def _n(v: float) -> str:
-    return plain(v)
-
-
-def plain(v: float | None, digits: int = 3) -> str:
-    """``digits`` significant figures without trailing zeros: 20.0 → 20, 0.750 → 0.75."""
-    import math
-
-    if v is None or not math.isfinite(v):
-        return "—"
-    if v == 0:
-        return "0"
-    r = float(f"{v:.{digits}g}")
-    if r.is_integer():
-        return f"{int(r):,}"
-    decimals = max(0, digits - 1 - math.floor(math.log10(abs(r))))
-    return f"{r:,.{decimals}f}".rstrip("0").rstrip(".")
-
-
-def fmt_q(d, kind: str, value: float | None, digits: int = 3) -> str:
-    """A display value with its unit label, e.g. ``27 mm``; ``—`` when missing."""
-    if value is None:
-        return "—"
-    return f"{plain(d.value(kind, value), digits)} {d.label(kind)}"
 
 
 def _saw_json(saw, fitted: dict[str, str]) -> dict[str, Any]:

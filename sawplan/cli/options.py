@@ -106,6 +106,7 @@ def _db(value: str | None) -> str | None:
 
 
 UnitsOpt = Annotated[UnitSystem, opt("units")]
+FractionsOpt = Annotated[bool, opt("fractions")]
 JsonOpt = Annotated[bool, opt("json")]
 CsvOpt = Annotated[bool, opt("csv")]
 DbOpt = Annotated[str | None, opt("db", callback=_db)]

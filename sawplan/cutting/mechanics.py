@@ -13,6 +13,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 from sawplan.cutting import constants as K
+from sawplan.display import Q, say
 from sawplan.errors import BadDataError, DamagedFileError
 from sawplan.paths import data_file
 
@@ -42,10 +43,12 @@ def wheel_ratio_warning(thickness_mm: float, wheel_diameter_mm: float) -> str | 
     limit = K.number("mechanics", "min_wheel_to_thickness")
     ratio = wheel_diameter_mm / thickness_mm
     if ratio < limit:
-        return (
-            f"wheel diameter / blade thickness is {ratio:.0f}, under about {limit:.0f}: "
-            f"bending stress {bending_stress_mpa(thickness_mm, wheel_diameter_mm):.0f} MPa "
-            "shortens blade life; use a thinner blade"
+        return say(
+            "wheel diameter / blade thickness is {}, under about {}: bending stress {} "
+            "shortens blade life; use a thinner blade",
+            f"{ratio:.0f}",
+            f"{limit:.0f}",
+            Q("stress", bending_stress_mpa(thickness_mm, wheel_diameter_mm)),
         )
     return None
 

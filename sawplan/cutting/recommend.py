@@ -27,6 +27,7 @@ from sawplan.cutting.plan import (
     score,
 )
 from sawplan.cutting.result import CAUTION, Comparison, CutResult, ProfilePoint
+from sawplan.display import Q, fmt_ratio, say
 from sawplan.saws import Saw
 
 PROFILE_POINTS = 41
@@ -50,19 +51,17 @@ def _profile(plan: Plan, cand: Candidate) -> tuple[ProfilePoint, ...]:
 
 
 def _explanation(plan: Plan, cand: Candidate, cands: list[Candidate] | None) -> tuple[str, ...]:
-    section, run = plan.section, cand.run
+    section = plan.section
     lines = [explain.why_chosen(cand, section) if cands else f"{cand.pitch.label} as given"]
     if cands:
         line = explain.neighbours(cand, cands, section)
         if line:
             lines.append(line)
-    lines.append(f"{cand.teeth.form_why}; {cand.teeth.set_why}")
+    lines.append(say("{}; {}", cand.teeth.form_why, cand.teeth.set_why))
     lines.append(explain.speed_line(plan))
-    lines.append(explain.feed_line(plan, cand))
+    lines.append(explain.feed_line(plan))
     if plan.calibration != 1.0:
-        lines.append(
-            f"time × {plan.calibration:.2f} shop calibration (model {run.cut_time_min:.3g} min)"
-        )
+        lines.append(explain.calibration_line(plan, cand))
     lines.extend(plan.notes)
     return tuple(lines)
 
@@ -185,8 +184,13 @@ def compare(
         problem = (
             chosen.warnings[0] if chosen.warnings else explain.SHORT_WHY[chosen.governing_limit]
         )
-        summary = (
-            f"{chosen.pitch_label} takes {ratio:.2g}× the time of {recommended.pitch_label} "
-            f"({chosen.cut_time_min:.3g} vs {recommended.cut_time_min:.3g} min): {problem}"
+        summary = say(
+            "{} takes {} the time of {} ({} against {}): {}",
+            chosen.pitch_label,
+            fmt_ratio(ratio),
+            recommended.pitch_label,
+            Q("time", chosen.cut_time_min),
+            Q("time", recommended.cut_time_min),
+            problem,
         )
     return Comparison(chosen, recommended, ratio, summary)

@@ -12,6 +12,7 @@ from dataclasses import dataclass
 
 from sawplan.cutting import constants as K
 from sawplan.cutting.pitch import Pitch
+from sawplan.display import Q, say
 
 SKIP_MAX_TPI = 6.0  # memory: skip-tooth blades are made in coarse pitches only
 HOOK_MAX_TPI = 10.0  # memory: positive-rake forms are made up to about 10 TPI
@@ -54,8 +55,10 @@ def choose_teeth(
     elif large and pitch.tpi_fine <= HOOK_MAX_TPI:
         form, form_why = (
             "hook",
-            "hook (positive rake) teeth: deeper gullets and a cleaner bite across the "
-            f"{widest_chord_mm:.0f} mm chord",
+            say(
+                "hook (positive rake) teeth: deeper gullets and a cleaner bite across the {} chord",
+                Q("length", widest_chord_mm),
+            ),
         )
     else:
         form, form_why = (

@@ -13,13 +13,18 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 from functools import lru_cache
 
+from sawplan.display import Q, say
 from sawplan.errors import BadDataError
 from sawplan.life.weibull import WeibullFit, WeibullNotFitted
 
 # General set-up checks behind early failures (reference §6 and §7, common practice).
 SETUP_CHECKS: tuple[str, ...] = (
-    "break-in of each new blade: normal band speed, reduced feed, raised step by step "
-    "over the first 300-650 cm² of cut",
+    say(
+        "break-in of each new blade: normal band speed, reduced feed, raised step by step "
+        "over the first {} to {} of cut",
+        Q("area", 30_000.0),
+        Q("area", 65_000.0),
+    ),
     "band tension",
     "guide alignment, guide arm spacing and back-up bearings",
     "pitch suited to the section (at least 3 teeth in the cut, gullets not packed)",

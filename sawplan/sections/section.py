@@ -9,6 +9,7 @@ bundles give several).
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 from functools import cached_property
 from typing import Any
@@ -258,14 +259,15 @@ class Section:
             words.append("--nest")
         return " ".join(words)
 
-    def label(self, system: str | None = None) -> str:
+    def label(self, system: str | None = None, size: Callable[[float], str] | None = None) -> str:
         """Short human label in mm, e.g. ``flat 100×25 on edge``.
 
-        With ``system`` "us" or "metric" the unit is written out (in or mm).
+        With ``system`` "us" or "metric" the unit is written out (in or mm);
+        ``size`` writes one size given in mm (``sawplan.display.Display.size``).
         """
         us = system is not None and str(getattr(system, "value", system)).lower() == "us"
         scale = 1 / 25.4 if us else 1.0
-        dims = [_num(d * scale) for d in self.dims_mm]
+        dims = [size(d) if size else _num(d * scale) for d in self.dims_mm]
         if self.shape == "stube":
             dims.insert(0, dims[0])
         text = (

@@ -13,6 +13,7 @@ import difflib
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
+from sawplan.display import Q, join, say
 from sawplan.errors import BadDataError, ConflictError, NotFoundError, UsageError
 from sawplan.store.db import run_write
 from sawplan.store.fields import (
@@ -87,14 +88,14 @@ class Blade:
 
     @property
     def size(self) -> str:
-        """Width × thickness in mm, e.g. ``27×0.9``."""
-        return f"{fmt_num(self.width_mm)}×{fmt_num(self.thickness_mm)}"
+        """Width × thickness in mm, e.g. ``27×0.9`` (shown in inches under ``--units us``)."""
+        return say("{}×{}", Q("size", self.width_mm), Q("size", self.thickness_mm))
 
     @property
     def blade_type(self) -> str:
         """What makes two blades interchangeable for statistics: material, grade, size, pitch."""
         parts = [self.blade_material, self.grade or "", self.size, self.pitch]
-        return " ".join(p for p in parts if p)
+        return join(" ", [p for p in parts if p])
 
     @property
     def area_cm2(self) -> float:

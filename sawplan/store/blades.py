@@ -2,11 +2,11 @@
 
 from __future__ import annotations
 
-import math
 from collections.abc import Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any
 
+from sawplan.display import Q, say
 from sawplan.store.records import Blade, cuts_of, events_of, fittings_of, get_blade
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -83,23 +83,29 @@ def wear_summary(
     if wear is None:
         return "no timed cuts yet (log cuts with --time to follow the wear)"
     if wear.status == "break-in" and wear.total_area_cm2 < wear.break_in_cm2:
-        return (
-            f"breaking in: {wear.total_area_cm2:,.0f} of {wear.break_in_cm2:,.0f} cm² cut "
-            "(reduced feed, common practice)"
+        return say(
+            "breaking in: {} of {} cut (reduced feed, common practice)",
+            Q("area", wear.total_area_cm2 * 100.0, bare=True),
+            _area(wear.break_in_cm2),
         )
     if wear.status in ("break-in", "too-few-cuts"):
         return "past break-in, too few timed cuts yet to set a steady rate"
     rise = wear.latest_rise or 0.0
-    steady = f"steady rate {wear.steady_rate_cm2_min:.3g} cm²/min"
+    steady = say("steady rate {}", Q("rate", wear.steady_rate_cm2_min * 100.0))
     if wear.status == "end-of-life-signs":
-        return (
-            f"END-OF-LIFE SIGNS: the latest cuts are {rise:.0%} slower than the {steady}, "
-            f"since {wear.end_of_life_from_cm2:,.0f} cm² (signs from +{wear.rise_threshold:.0%}, "
-            "common practice); check the teeth and chips"
+        return say(
+            "END-OF-LIFE SIGNS: the latest cuts are {} slower than the {}, since {} "
+            "(signs from +{}, common practice); check the teeth and chips",
+            f"{rise:.0%}",
+            steady,
+            _area(wear.end_of_life_from_cm2),
+            f"{wear.rise_threshold:.0%}",
         )
-    return (
-        f"{steady}; the latest cuts are {rise:+.0%} against it "
-        f"(end-of-life signs from +{wear.rise_threshold:.0%}, common practice)"
+    return say(
+        "{}; the latest cuts are {} against it (end-of-life signs from +{}, common practice)",
+        steady,
+        f"{rise:+.0%}",
+        f"{wear.rise_threshold:.0%}",
     )
 
 
@@ -122,34 +128,46 @@ def life_summary(
     area_cm2 = blade.area_mm2 / 100.0
     break_in_cm2 = wear.break_in_cm2 if wear is not None else BREAK_IN_CM2
     if blade.status == "removed":
-        line = (
-            f"removed unworn after {_cm2(area_cm2)} cm² cut: counts as a life of at least "
-            "that (censored) until it is refitted and retired"
+        line = say(
+            "removed unworn after {} cut: counts as a life of at least that (censored) "
+            "until it is refitted and retired",
+            _area(area_cm2),
         )
         if wear is not None and wear.status == "end-of-life-signs":
-            line += "; its last cuts showed end-of-life signs, check the teeth before refitting"
+            line = say(
+                "{}; its last cuts showed end-of-life signs, check the teeth before refitting",
+                line,
+            )
         return line
     mode = failure_modes().get(blade.retire_cause or "")
     cause = mode.name if mode is not None else (blade.retire_cause or "no cause recorded")
     if area_cm2 <= 0:
         return f"retired before cutting anything ({cause})"
-    line = f"retired after {_cm2(area_cm2)} cm² ({cause})"
+    line = say("retired after {} ({})", _area(area_cm2), cause)
     early = _failed_in_break_in(cuts, area_cm2, break_in_cm2)
     if early:
-        line += f": failed during break-in (the first {_cm2(break_in_cm2)} cm², common practice)"
+        line = say(
+            "{}: failed during break-in (the first {}, common practice)",
+            line,
+            _area(break_in_cm2),
+        )
     elif wear is not None and wear.status == "end-of-life-signs":
-        line += f", with end-of-life signs from {_cm2(wear.end_of_life_from_cm2 or 0.0)} cm²"
+        line = say(
+            "{}, with end-of-life signs from {}", line, _area(wear.end_of_life_from_cm2 or 0.0)
+        )
     elif wear is not None and wear.status == "steady":
-        line += (
-            f", past break-in; its last cuts ran {wear.latest_rise or 0.0:+.0%} against its "
-            f"steady rate of {wear.steady_rate_cm2_min:.3g} cm²/min"
+        line = say(
+            "{}, past break-in; its last cuts ran {} against its steady rate of {}",
+            line,
+            f"{wear.latest_rise or 0.0:+.0%}",
+            Q("rate", wear.steady_rate_cm2_min * 100.0),
         )
     else:
-        line += ", past break-in"
+        line = say("{}, past break-in", line)
     skipped = _break_in(fittings)
     if skipped is not True and mode is not None and any("broken in" in c for c in mode.causes):
         how = "fitted without break-in" if skipped is False else "no break-in recorded"
-        line += f"; {how}, one of the usual causes of {mode.name} (common practice)"
+        line = say("{}; {}, one of the usual causes of {} (common practice)", line, how, mode.name)
     return line
 
 
@@ -175,12 +193,6 @@ def _break_in(fittings: Sequence[dict[str, Any]]) -> bool | None:
     return None
 
 
-def _cm2(v: float) -> str:
-    """3 significant figures, thousands separated: 37.14 → '37.1', 16,934 → '16,900'."""
-    if v == 0 or not math.isfinite(v):
-        return f"{v:g}"
-    r = float(f"{v:.3g}")
-    if r.is_integer():
-        return f"{int(r):,}"
-    decimals = max(0, 2 - math.floor(math.log10(abs(r))))
-    return f"{r:,.{decimals}f}".rstrip("0").rstrip(".")
+def _area(cm2: float) -> Q:
+    """An area given in cm², as a quantity that follows ``--units``."""
+    return Q("area", cm2 * 100.0)

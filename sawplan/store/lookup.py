@@ -50,3 +50,16 @@ class BladeLog:
         from sawplan.store import saws_from_db
 
         return saws_from_db(self.path)
+
+    def speed_rows(self, material_group: str | None = None):
+        """The log as arrays for the life-against-speed fit (None without a log); read once."""
+        if not self.exists:
+            return None
+        cache = self.__dict__.setdefault("_speed_rows", {})
+        if material_group not in cache:
+            from sawplan.store.db import connect
+            from sawplan.store.speed_rows import speed_life_rows
+
+            with connect(self.path, create=False, light=True) as db:
+                cache[material_group] = speed_life_rows(db, material_group)
+        return cache[material_group]

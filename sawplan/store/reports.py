@@ -22,6 +22,7 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any, NamedTuple
 
+from sawplan.display import Q, say
 from sawplan.errors import BadDataError, UsageError
 from sawplan.store.stats import BladeLife, blade_lives, timed_cuts, unused_retired
 
@@ -255,7 +256,7 @@ def _costs(lives: Sequence[BladeLife], confidence: float) -> tuple[tuple, tuple[
         failed = [b.area_cm2 for b in blades if b.failed]
         if not prices or not failed:
             why = "no price recorded" if not prices else "no retired blade yet"
-            missing.append(f"{blade_type}: {why}")
+            missing.append(say("{}: {}", blade_type, why))
             continue
         price = _median(prices)
         fit = fit_weibull([b.area_cm2 for b in blades], [b.failed for b in blades], confidence)
@@ -347,9 +348,12 @@ def life_basis(
         note = f"blade log: {gl.blades} blades ({gl.failed} retired) cutting mostly {label}"
         return LifeBasis(gl.fit, fallback, gl.blades, gl.failed, note)
     why = gl.reason or "no blades"
-    note = (
-        f"not enough history for {label} ({why}); default life "
-        f"{fallback.life_cm2:,.0f} cm² ({fallback.source}) — calibrate by logging blades"
+    note = say(
+        "not enough history for {} ({}); default life {} ({}) — calibrate by logging blades",
+        label,
+        why,
+        Q("area", fallback.life_cm2 * 100.0),
+        fallback.source,
     )
     return LifeBasis(None, fallback, gl.blades, gl.failed, note)
 

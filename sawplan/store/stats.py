@@ -16,7 +16,8 @@ from typing import TYPE_CHECKING, NamedTuple
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.store.db import Log as Database
 
-from sawplan.store.records import fmt_num, pitch_label
+from sawplan.display import Q, join, say
+from sawplan.store.records import pitch_label
 
 
 @dataclass(frozen=True)
@@ -35,10 +36,10 @@ class BladeLife:
 
 def blade_type_of(row: dict) -> str:
     """Material, grade, width × thickness and pitch: what makes blades comparable."""
-    size = f"{fmt_num(row['width_mm'])}×{fmt_num(row['thickness_mm'])}"
+    size = say("{}×{}", Q("size", row["width_mm"]), Q("size", row["thickness_mm"]))
     parts = [row["blade_material"], row.get("grade") or "", size]
     parts.append(pitch_label(row["tpi_coarse"], row["tpi_fine"]))
-    return " ".join(p for p in parts if p)
+    return join(" ", [p for p in parts if p])
 
 
 def blade_lives(db: Database, *, include_unused_failures: bool = False) -> list[BladeLife]:

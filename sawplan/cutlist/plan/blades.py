@@ -10,6 +10,7 @@ from collections.abc import Callable
 from typing import Any
 
 from sawplan.cutlist.plan.types import SectionPlan
+from sawplan.display import Q, say
 
 LifeLookup = Callable[[str], Any]  # material group -> Weibull fit or None
 
@@ -32,7 +33,8 @@ def blade_life(
     if fit is not None and getattr(fit, "fitted", False):
         return (float(fit.mean_life_cm2), f"blade log Weibull fit ({fit.n} blades)", fit), note
     default = default_life(group)
-    return (default.life_cm2, f"default {default.life_cm2:,.0f} cm² — {default.source}", None), note
+    source = say("default {} — {}", Q("area", default.life_cm2 * 100), default.source)
+    return (default.life_cm2, source, None), note
 
 
 def blades_on_hand(

@@ -23,6 +23,7 @@ from sawplan.cutlist.plan.blades import LifeLookup, blade_life, blades_on_hand
 from sawplan.cutlist.plan.section import RESOLUTION_PER_MM, plan_section
 from sawplan.cutlist.plan.types import BarCut, JobPlan, PieceCut, Remnant, SectionPlan
 from sawplan.cutlist.sheets.bar_layout import bar_layout
+from sawplan.display import join, say
 from sawplan.errors import SawplanError
 
 __all__ = [
@@ -45,13 +46,13 @@ CONFIDENCE = 0.90
 CAUTIONS = (
     "Know the weight before lifting: the handling class of every bar and piece is on the sheet; "
     "use a hoist or lift table for lift-aid loads.",
-    "Chock round stock so it cannot roll; support long bars on stands and catch falling off-cuts.",
+    "Support long bars on stands and catch falling off-cuts.",
     "Clamp the work before the blade enters; never hold work by hand; no gloves near a moving "
     "blade (gloves only to handle blades: coiled blades spring open).",
     "Keep the guards in place; wear eye and hearing protection; stop and isolate the saw before "
     "reaching into the cut or changing a blade.",
-    "Break in every new blade: normal band speed, about half the feed over the first few "
-    "hundred cm² (common practice).",
+    "Break in every new blade: normal band speed and a reduced feed, raised step by step "
+    "as each section's break-in line says (common practice).",
     "These are estimates: the saw maker's manual, the blade maker's data, shop rules and local "
     "regulations govern.",
 )
@@ -104,7 +105,7 @@ def plan_job(
         if material.group not in lives:
             lives[material.group], log_note = blade_life(material.group, life_for)
             if log_note:
-                notes.append(f"{material.group}: {log_note}")
+                notes.append(say("{}: {}", material.group, log_note))
         section_plan, group_bars = plan_section(
             job, group, material, section, cut, factor, n_cal, kerf_mm, kerf_source,
             lives[material.group], marks, first_bar=len(bars) + 1, time_limit_s=time_limit_s,
@@ -131,12 +132,18 @@ def plan_job(
         notes.append("no blade_price in [job]: blade wear is not in the quote")
     unpriced = sorted({b.stock for b in bars if b.cost == 0 and not b.from_rack_remnant})
     if unpriced:
-        notes.append("no price for " + "; ".join(unpriced) + ": material cost counted as 0")
+        notes.append(say("no price for {}: material cost counted as 0", join("; ", unpriced)))
     for s in sections:
         if s.calibration_n:
             notes.append(
-                f"{s.group}: cut time × {s.calibration_factor:.2f} from {s.calibration_n} "
-                f"logged cut(s) on {saw.name} ({log_label})"
+                say(
+                    "{}: cut time × {} from {} logged cut(s) on {} ({})",
+                    s.group,
+                    f"{s.calibration_factor:.2f}",
+                    s.calibration_n,
+                    saw.name,
+                    log_label,
+                )
             )
     notes.append(life_note)
 
@@ -173,7 +180,7 @@ def plan_job(
         blades_needed=needed,
         blade_confidence=confidence,
         blade_forecast_method=method,
-        blade_life_source="; ".join(f"{g}: {src}" for g, (_l, src, _f) in lives.items()),
+        blade_life_source=join("; ", [say("{}: {}", g, src) for g, (_l, src, _f) in lives.items()]),
         material_cost=material_cost,
         saw_cost=saw_cost,
         blade_cost=blade_cost,
@@ -181,7 +188,7 @@ def plan_job(
         shop_rate_per_h=h.shop_rate_per_h,
         blade_price=h.blade_price,
         notes=tuple(notes),
-        cautions=_lift_cautions(bars) + CAUTIONS,
+        cautions=_lift_cautions(bars) + _shape_cautions(job) + CAUTIONS,
     )
 
 
@@ -197,6 +204,20 @@ def _lift_cautions(bars: list[BarCut]) -> tuple[str, ...]:
     pieces = sorted({p.part for b in bars for p in b.pieces if p.handling != "one-person"})
     if pieces:
         out.append(f"Pieces too heavy for one person: {', '.join(pieces)}.")
+    return tuple(out)
+
+
+def _shape_cautions(job: Job) -> tuple[str, ...]:
+    """What the job's stock needs besides its weight: it rolls, it tips, its sawn ends cut."""
+    from sawplan.piece_handling import EDGE_CAUTION, ROLL_CAUTION, ROLLS, TIP_CAUTION, TIPS
+
+    shapes = {job.sections[group[1]].shape for group in job.groups()}
+    out = []
+    if shapes & ROLLS:
+        out.append(f"Rounds, tubes and hexagons: {ROLL_CAUTION}.")
+    if shapes & TIPS:
+        out.append(f"Angles, channels and I-beams: {TIP_CAUTION}.")
+    out.append(EDGE_CAUTION[0].upper() + EDGE_CAUTION[1:] + ".")
     return tuple(out)
 
 

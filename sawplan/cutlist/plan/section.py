@@ -15,6 +15,7 @@ from sawplan.cutlist.jobfile.lines import located
 from sawplan.cutlist.jobfile.types import Job
 from sawplan.cutlist.plan.types import BarCut, SectionPlan
 from sawplan.cutlist.sheets.bar_layout import bar_cost, bar_cut
+from sawplan.display import Q, say
 from sawplan.errors import SawplanError
 from sawplan.weights import mass_per_length_kg_m
 
@@ -74,8 +75,8 @@ def plan_section(
     except SawplanError as err:  # e.g. too few bars for the layout, though enough length
         raise located(err, job.where(stock[0])) from None
 
-    # the section as the job file's first stock entry writes it: what is on the rack label
-    label = f"{material.key} {stock[0].section_text}"
+    # material and section, its sizes shown again in the display units (a Phrase)
+    label = say("{} {}", material.key, Q("section", section))
     time_per_cut = cut.cut_time_min
     bars: list[BarCut] = []
     for i, pattern in enumerate(result.bars):
@@ -83,7 +84,7 @@ def plan_section(
         pieces = [by_part[k] for k in pattern.pieces]
         bars.append(
             bar_cut(first_bar + i, label, s, pieces, marks, kerf_mm, h.trim_mm, kg_per_m,
-                 time_per_cut, h.min_remnant_mm)
+                 time_per_cut, h.min_remnant_mm, section)
         )  # fmt: skip
 
     cuts = sum(b.cuts for b in bars)

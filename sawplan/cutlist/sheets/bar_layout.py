@@ -1,6 +1,6 @@
 """One bar of a plan: where each piece lies from the head, the cuts, the remnant, the weights.
 
-Length bookkeeping (reference §9, and the optimiser's): the first piece starts
+Length bookkeeping (the optimiser's, docs/cut-lists.md): the first piece starts
 at ``trim`` (the squaring cut's kerf lies inside the trim); each piece costs its
 length plus one kerf; the tail after the last piece loses one more kerf when
 the last cut is made, and what is left is the remnant.  A bar filled exactly
@@ -9,14 +9,17 @@ the last cut is made, and what is left is the remnant.  A bar filled exactly
 
 from __future__ import annotations
 
+from typing import Any
+
 from sawplan.cutlist.jobfile.types import PartLine, StockLine
 from sawplan.cutlist.plan.types import BarCut, PieceCut
+from sawplan.display import Q, say
 
 
 def bar_layout(
     length_mm: float, piece_lengths_mm: list[float], kerf_mm: float, trim_mm: float
 ) -> tuple[list[tuple[float, float]], float | None, float | None, float, float]:
-    """Positions on one bar from the head (reference §9 bookkeeping).
+    """Positions on one bar from the head (the bookkeeping of docs/cut-lists.md).
 
     Returns (piece (start, end) list, squaring-cut position or None, last-cut
     position or None, remnant start, remnant length).  The squaring cut parts
@@ -49,9 +52,17 @@ def bar_cut(
     kg_per_m: float,
     time_per_cut: float,
     min_remnant_mm: float,
+    section: Any,
 ) -> BarCut:
-    """Bar ``number`` with its pieces placed, its cuts counted, weights, handling and cost."""
-    from sawplan.handling import assess_lift
+    """Bar ``number`` with its pieces placed, its cuts counted, weights, handling and cost.
+
+    Handling goes by weight, shape and length (``sawplan.piece_handling``): a
+    light bar of several metres is still a lift for two.
+    """
+    from sawplan.piece_handling import Piece, assess_piece
+
+    def handling(mass_kg: float, length_mm: float):
+        return assess_piece(mass_kg, Piece(section.shape, length_mm, section.width_mm))
 
     spans, trim_cut, last_cut, rem_start, remnant = bar_layout(
         s.length_mm, [p.length_mm for p in parts], kerf_mm, trim_mm
@@ -62,14 +73,14 @@ def bar_cut(
         pieces.append(
             PieceCut(
                 seq=seq, part=p.name, mark=marks[p.index], start_mm=a, end_mm=b,
-                length_mm=p.length_mm, weight_kg=w, handling=assess_lift(w).handling,
+                length_mm=p.length_mm, weight_kg=w, handling=handling(w, p.length_mm).handling,
                 drawing=p.drawing, tolerance=p.tolerance,
             )
         )  # fmt: skip
     # squaring cut (if any) + one per piece, less the last when the bar is used exactly
     cuts = (1 if trim_cut is not None else 0) + len(parts) - (0 if last_cut is not None else 1)
     weight = kg_per_m * s.length_mm / 1000.0
-    lift = assess_lift(weight)
+    lift = handling(weight, s.length_mm)
     # Kept or scrap is decided on the exact remnant shown on the sheet (the
     # optimiser saw lengths rounded to 0.1 mm, pieces up and bars down).
     kept = remnant > 1e-9 and remnant + 1e-9 >= min_remnant_mm
@@ -78,7 +89,7 @@ def bar_cut(
         group=label,
         material=s.material,
         section=s.section_text,
-        stock=f"{label} × {s.length_mm:.6g} mm" + (" (rack remnant)" if s.remnant else ""),
+        stock=say("{} × {}{}", label, Q("bar_length", s.length_mm), " (rack remnant)" * s.remnant),
         stock_entry=s.index,
         location=s.location,
         heat=s.heat,

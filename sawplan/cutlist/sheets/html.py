@@ -14,18 +14,13 @@ from __future__ import annotations
 
 from html import escape
 
+from sawplan.cutlist.sheets.palette import piece_tints
 from sawplan.cutlist.sheets.text import (
     breakin_text,
     forecast_text,
-    length,
-    mass,
-    minutes,
-    money,
     piece_rows,
-    pos,
-    stock_text,
 )
-from sawplan.units import Display, UnitSystem, fmt_number
+from sawplan.display import Display, UnitSystem, as_display, fmt_money, fmt_number
 
 VIEW_W = 1000.0  # drawing width in viewBox units
 # The drawing is about 690 px wide on an A4 page (186 mm between the margins), so
@@ -36,7 +31,6 @@ CHAR_W = 0.62  # width of a bold sans-serif character, in ems (estimate for fitt
 BAR_Y, BAR_H = 30.0, 38.0
 LABEL_GAP = 64.0  # least distance between two position labels
 MAX_SINGLE_MARKS = 8  # longer runs of one part are marked once, "A ×56"
-_PALETTE = ("#cfe2f3", "#d9ead3", "#fff2cc", "#f4cccc", "#d9d2e9", "#fce5cd", "#d0e0e3", "#ead1dc")
 
 CSS = """
 @page { size: auto; margin: 12mm }
@@ -70,11 +64,11 @@ footer { margin-top: 4mm; font-size: 8pt; color: #444 }
 """
 
 
-def render_html(plan, units: UnitSystem = UnitSystem.METRIC) -> str:
+def render_html(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> str:
     """The whole sheet as one HTML document (UTF-8, self-contained)."""
     from sawplan import __version__
 
-    d = Display(units)
+    d = as_display(units)
     e = escape
     body = [
         f"<h1>Cut sheet: {e(plan.job)}</h1>",
@@ -86,7 +80,7 @@ def render_html(plan, units: UnitSystem = UnitSystem.METRIC) -> str:
         _remnants(plan, d),
         "<h2>Blades and quote</h2>",
         _quote(plan, d),
-        _cautions(plan),
+        _cautions(plan, d),
         f"<footer>sawplan {e(__version__)} · {e(plan.file)} · estimates only</footer>",
     ]
     return (
@@ -99,7 +93,7 @@ def render_html(plan, units: UnitSystem = UnitSystem.METRIC) -> str:
 
 
 def _facts(plan, d: Display) -> str:
-    materials = "; ".join(f"{s.group} ({s.designation})" for s in plan.sections)
+    materials = "; ".join(f"{d.text(s.group)} ({s.designation})" for s in plan.sections)
     rows = []
     if plan.customer:
         rows.append(("Customer", plan.customer))
@@ -110,8 +104,11 @@ def _facts(plan, d: Display) -> str:
         ("Saw", plan.saw),
         ("Bars", f"{plan.bars_used} (LP bound {plan.lp_bound_bars}, gap {plan.gap_bars})"),
         ("Pieces / cuts", f"{plan.pieces} / {plan.cuts}"),
-        ("Waste", f"{plan.waste_pct:.1f} % of {length(d, plan.stock_length_mm)}"),
-        ("Time", f"{minutes(plan.total_time_min)} ({minutes(plan.total_cut_time_min)} cutting)"),
+        ("Waste", f"{plan.waste_pct:.1f} % of {d.bar_length(plan.stock_length_mm)}"),
+        (
+            "Time",
+            f"{d.fmt('time', plan.total_time_min)} ({d.fmt('time', plan.total_cut_time_min)} cutting)",
+        ),
         ("Blades on hand", str(plan.blades_needed)),
         ("Job file", plan.file),
     ]
@@ -127,24 +124,23 @@ def _sections_table(plan, d: Display) -> str:
     )
     rows = []
     for s in plan.sections:
-        per_cut = escape(minutes(s.cut_time_min))
+        label = escape(d.text(s.group))
+        per_cut = escape(d.fmt("time", s.cut_time_min))
         if s.calibration_n:  # on a line of its own, so the column can stay narrow
             per_cut += f' <span class="sub">(×{s.calibration_factor:.2f} from log)</span>'
         rows.append(
-            f"<tr><td>{escape(s.group)}</td>"
+            f"<tr><td>{label}</td>"
             f"<td>{escape(f'{s.pitch} TPI, {s.tooth_form}, {s.tooth_set} set')}</td>"
             f"<td class=n>{escape(d.fmt('speed', s.band_speed_m_min, 3))}</td>"
             f"<td class=n>{escape(d.fmt('feed', s.feed_mm_min, 3))}</td>"
-            f"<td class=n>{escape(length(d, s.kerf_mm))}</td>"
+            f"<td class=n>{escape(d.length(s.kerf_mm))}</td>"
             f"<td class=n>{per_cut}</td><td class=n>{s.cuts}</td>"
             f"<td class=n>{s.bars_used} ({s.lp_bound_bars})</td></tr>"
         )
         if s.breakin_cuts:
-            rows.append(
-                f"<tr><td colspan=8>{escape(s.group)}: {escape(breakin_text(s, d))}</td></tr>"
-            )
+            rows.append(f"<tr><td colspan=8>{label}: {escape(breakin_text(s, d))}</td></tr>")
         for w in s.warnings:
-            rows.append(f"<tr><td colspan=8>⚠ {escape(s.group)}: {escape(w)}</td></tr>")
+            rows.append(f"<tr><td colspan=8>⚠ {label}: {escape(d.text(w))}</td></tr>")
     return f"<table>{head}{''.join(rows)}</table>"
 
 
@@ -152,15 +148,15 @@ def _bar_block(plan, b, d: Display) -> str:
     e = escape
     lift = f'<span class="{e(b.handling)}">{e(b.handling)}</span>'
     title = (
-        f"<h3>Bar {b.bar} · {e(stock_text(b, d))}"
+        f"<h3>Bar {b.bar} · {e(d.text(b.stock))}"
         + (f" · heat {e(b.heat)}" if b.heat else "")
         + (f" · rack {e(b.location)}" if b.location else "")
-        + f" · {e(mass(d, b.weight_kg))} {lift}</h3>"
+        + f" · {e(d.fmt('mass', b.weight_kg))} {lift}</h3>"
     )
     rows = []
     if b.trim_cut_mm is not None:
         rows.append(
-            f"<tr><td class=step>trim</td><td class=n>0–{e(pos(d, b.trim_mm))}</td>"
+            f"<tr><td class=step>trim</td><td class=n>{e(d.span(0.0, b.trim_mm))}</td>"
             "<td>squaring cut</td><td></td><td></td></tr>"
         )
     for row in piece_rows(b):
@@ -174,15 +170,15 @@ def _bar_block(plan, b, d: Display) -> str:
     if b.length_mm - b.remnant_start_mm > 1e-9:
         if b.remnant_kept:
             what = (
-                f'<span class="keep">keep remnant {e(length(d, b.remnant_mm))}, '
+                f'<span class="keep">keep remnant {e(d.tape(b.remnant_mm))}, '
                 f"mark heat {e(b.heat or '—')}</span>"
             )
         else:
-            what = f"scrap {e(length(d, b.remnant_mm))}"
-        weight = e(mass(d, b.remnant_weight_kg)) if b.remnant_mm > 0 else ""
+            what = f"scrap {e(d.tape(b.remnant_mm))}"
+        weight = e(d.fmt("mass", b.remnant_weight_kg)) if b.remnant_mm > 0 else ""
         rows.append(
             f"<tr><td class=step>end</td>"
-            f"<td class=n>{e(pos(d, b.remnant_start_mm))}–{e(pos(d, b.length_mm))}</td>"
+            f"<td class=n>{e(d.span(b.remnant_start_mm, b.length_mm))}</td>"
             f"<td>{what}</td><td class=n>{weight}</td><td></td></tr>"
         )
     head = (
@@ -203,14 +199,14 @@ def bar_svg(b, d: Display) -> str:
     height = BAR_Y + BAR_H + TICK_FONT + 12
     out = [
         f'<svg xmlns="http://www.w3.org/2000/svg" viewBox="-4 0 {VIEW_W + 8:g} {height:g}" '
-        f'role="img" aria-label="bar {b.bar}, {e(length(d, b.length_mm))}" '
+        f'role="img" aria-label="bar {b.bar}, {e(d.tape(b.length_mm))}" '
         f'font-family="sans-serif" font-size="{FONT:g}">',
         f'<defs><pattern id="keep-{b.bar}" width="8" height="8" patternUnits="userSpaceOnUse" '
         'patternTransform="rotate(45)"><rect width="8" height="8" fill="#fff"/>'
         '<line x1="0" y1="0" x2="0" y2="8" stroke="#2a7" stroke-width="3"/></pattern></defs>',
         f'<text x="0" y="{FONT:g}">head</text><text x="{VIEW_W:g}" y="{FONT:g}" '
         'text-anchor="end">'
-        f"{e(length(d, b.length_mm))}</text>",
+        f"{e(d.tape(b.length_mm))}</text>",
     ]
 
     def rect(x0: float, x1: float, fill: str, cls: str) -> str:
@@ -233,8 +229,9 @@ def bar_svg(b, d: Display) -> str:
     if b.trim_mm > 0:
         out.append(rect(0.0, b.trim_mm, "#555", "trim"))
     marks = sorted({p.mark for p in b.pieces})
+    tints = piece_tints()
     for i, p in enumerate(b.pieces):
-        colour = _PALETTE[marks.index(p.mark) % len(_PALETTE)]
+        colour = tints[marks.index(p.mark) % len(tints)]
         out.append(rect(p.start_mm, p.end_mm, colour, "piece"))
         nxt = b.pieces[i + 1].start_mm if i + 1 < len(b.pieces) else None
         if nxt is not None and nxt > p.end_mm:
@@ -265,7 +262,7 @@ def bar_svg(b, d: Display) -> str:
         if b.remnant_mm > 0:
             if b.remnant_kept:
                 out.append(rect(b.remnant_start_mm, b.length_mm, f"url(#keep-{b.bar})", "remnant"))
-                text = f"R {length(d, b.remnant_mm)}" + (f" {b.heat}" if b.heat else "")
+                text = f"R {d.tape(b.remnant_mm)}" + (f" {b.heat}" if b.heat else "")
                 out.append(
                     label(b.remnant_start_mm, b.length_mm, text, bold=True)
                     or label(b.remnant_start_mm, b.length_mm, "R", bold=True)
@@ -290,7 +287,7 @@ def bar_svg(b, d: Display) -> str:
             out.append(
                 f'<text x="{px:.2f}" y="{y + TICK_FONT + 6:g}" text-anchor="{anchor}" '
                 f'font-size="{TICK_FONT:g}">'
-                f"{e(pos(d, x))}</text>"
+                f"{e(d.pos(x))}</text>"
             )
             shown = px
     out.append("</svg>")
@@ -301,9 +298,9 @@ def _remnants(plan, d: Display) -> str:
     if not plan.remnants:
         return ""
     rows = "".join(
-        f"<tr><td class=n>{r.bar}</td><td>{escape(r.group)}</td>"
-        f"<td class=n>{escape(length(d, r.length_mm))}</td><td>{escape(r.heat or '—')}</td>"
-        f"<td>{escape(r.location or '—')}</td><td class=n>{escape(mass(d, r.weight_kg))}</td></tr>"
+        f"<tr><td class=n>{r.bar}</td><td>{escape(d.text(r.group))}</td>"
+        f"<td class=n>{escape(d.tape(r.length_mm))}</td><td>{escape(r.heat or '—')}</td>"
+        f"<td>{escape(r.location or '—')}</td><td class=n>{escape(d.fmt('mass', r.weight_kg))}</td></tr>"
         for r in plan.remnants
     )
     return (
@@ -315,7 +312,7 @@ def _remnants(plan, d: Display) -> str:
 
 def _quote(plan, d: Display) -> str:
     c = plan.currency
-    rate = f" at {money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
+    rate = f" at {fmt_money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
     rows = [
         ("Area cut", d.fmt("area", plan.cut_area_cm2 * 100, 4)),
         ("Blades worn by this job", f"{fmt_number(plan.blades_consumed, 2)}"),
@@ -323,19 +320,19 @@ def _quote(plan, d: Display) -> str:
             "Blades to have on hand",
             f"{plan.blades_needed} ({forecast_text(plan)})",
         ),
-        ("Blade life", plan.blade_life_source),
-        ("Material", money(plan.material_cost, c)),
-        (f"Saw time {minutes(plan.total_time_min)}{rate}", money(plan.saw_cost, c)),
-        ("Blade wear", money(plan.blade_cost, c)),
-        ("Quoted total", money(plan.total_cost, c)),
+        ("Blade life", d.text(plan.blade_life_source)),
+        ("Material", fmt_money(plan.material_cost, c)),
+        (f"Saw time {d.fmt('time', plan.total_time_min)}{rate}", fmt_money(plan.saw_cost, c)),
+        ("Blade wear", fmt_money(plan.blade_cost, c)),
+        ("Quoted total", fmt_money(plan.total_cost, c)),
     ]
     body = "".join(f"<tr><th>{escape(k)}</th><td>{escape(v)}</td></tr>" for k, v in rows)
     return f"<table>{body}</table>"
 
 
-def _cautions(plan) -> str:
-    notes = "".join(f"<li>{escape(n)}</li>" for n in plan.notes)
-    cautions = "".join(f"<li>{escape(c)}</li>" for c in plan.cautions)
+def _cautions(plan, d: Display) -> str:
+    notes = "".join(f"<li>{escape(d.text(n))}</li>" for n in plan.notes)
+    cautions = "".join(f"<li>{escape(d.text(c))}</li>" for c in plan.cautions)
     out = ""
     if notes:
         out += f'<h2>Notes</h2><ul class="notes">{notes}</ul>'

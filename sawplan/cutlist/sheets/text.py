@@ -12,39 +12,9 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-from sawplan.units import Display, UnitSystem, fmt_number
+from sawplan.display import Display, UnitSystem, as_display, fmt_money, fmt_number, fmt_percent
 
 DRAW_WIDTH = 72
-
-
-# --- number formatting --------------------------------------------------------------------
-
-
-def pos(d: Display, mm: float) -> str:
-    """A position or length for the saw: 0.1 mm, or 0.001 in (no unit)."""
-    if d.system is UnitSystem.US:
-        return f"{mm / 25.4:.3f}"
-    return f"{mm:.1f}".removesuffix(".0")
-
-
-def length(d: Display, mm: float) -> str:
-    return f"{pos(d, mm)} {d.label('length')}"
-
-
-def mass(d: Display, kg: float) -> str:
-    return d.fmt("mass", kg, 3)
-
-
-def minutes(m: float) -> str:
-    if m >= 90:
-        return f"{m / 60:.1f} h"
-    return f"{fmt_number(m, 3)} min"
-
-
-def stock_text(b, d: Display) -> str:
-    """What to fetch from the rack, in the display units."""
-    text = f"{b.group} × {length(d, b.length_mm)}"
-    return text + " (rack remnant)" if b.from_rack_remnant else text
 
 
 @dataclass(frozen=True)
@@ -59,18 +29,18 @@ class PieceRow:
         return str(self.first.seq) if self.count == 1 else f"{self.first.seq}–{self.last.seq}"
 
     def span(self, d: Display) -> str:
-        return f"{pos(d, self.first.start_mm)}–{pos(d, self.last.end_mm)}"
+        return d.span(self.first.start_mm, self.last.end_mm)
 
     def what(self, d: Display) -> str:
         p = self.first
-        text = f"{p.mark} {p.part} ({length(d, p.length_mm)})"
+        text = f"{p.mark} {p.part} ({d.tape(p.length_mm)})"
         if self.count > 1:
             pitch = (self.last.start_mm - p.start_mm) / (self.count - 1)
-            text += f" ×{self.count}, one every {length(d, pitch)}"
+            text += f" ×{self.count}, one every {d.tape(pitch)}"
         return text
 
     def weight(self, d: Display) -> str:
-        return mass(d, self.first.weight_kg) + (" each" if self.count > 1 else "")
+        return d.fmt("mass", self.first.weight_kg) + (" each" if self.count > 1 else "")
 
 
 def piece_rows(bar, run: int = 3) -> list[PieceRow]:
@@ -88,11 +58,6 @@ def piece_rows(bar, run: int = 3) -> list[PieceRow]:
         else:
             rows += [PieceRow(p, p, 1) for p in g]
     return rows
-
-
-def money(amount: float, currency: str) -> str:
-    text = f"{amount:,.2f}"
-    return f"{text} {currency}" if currency else text
 
 
 # --- drawings -----------------------------------------------------------------------------
@@ -198,9 +163,11 @@ def _centred(text: str, w: int, fill: str) -> str:
 # --- the terminal report --------------------------------------------------------------------
 
 
-def render_plan(plan, units: UnitSystem = UnitSystem.METRIC, width: int = DRAW_WIDTH) -> str:
+def render_plan(
+    plan, units: UnitSystem | Display = UnitSystem.METRIC, width: int = DRAW_WIDTH
+) -> str:
     """The terminal report: summary, sections, cut sheet, drawings, blades, quote, cautions."""
-    d = Display(units)
+    d = as_display(units)
     blocks = [
         _header(plan, d),
         _sections(plan, d),
@@ -208,8 +175,8 @@ def render_plan(plan, units: UnitSystem = UnitSystem.METRIC, width: int = DRAW_W
         _drawings(plan, d, width),
         _remnants(plan, d),
         _blades(plan, d),
-        _quote(plan),
-        _notes(plan),
+        _quote(plan, d),
+        _notes(plan, d),
     ]
     return "\n\n".join(b for b in blocks if b)
 
@@ -231,20 +198,20 @@ def _header(plan, d: Display) -> str:
         ),
         (
             "waste",
-            f"{plan.waste_pct:.1f} % ({length(d, plan.waste_mm)} of "
-            f"{length(d, plan.stock_length_mm)})",
+            f"{plan.waste_pct:.1f} % ({d.bar_length(plan.waste_mm)} of "
+            f"{d.bar_length(plan.stock_length_mm)})",
         ),
-        ("weight", mass(d, plan.total_weight_kg)),
+        ("weight", d.fmt("mass", plan.total_weight_kg)),
         (
             "time",
-            f"{minutes(plan.total_time_min)}: {minutes(plan.total_cut_time_min)} cutting + "
-            f"{minutes(plan.total_handling_time_min)} handling",
+            f"{d.fmt('time', plan.total_time_min)}: {d.fmt('time', plan.total_cut_time_min)} cutting + "
+            f"{d.fmt('time', plan.total_handling_time_min)} handling",
         ),
         (
             "blades on hand",
             f"{plan.blades_needed} ({fmt_number(plan.blades_consumed, 2)} worn by this job)",
         ),
-        ("quoted total", money(plan.total_cost, plan.currency)),
+        ("quoted total", fmt_money(plan.total_cost, plan.currency)),
     ]
     return key_values(pairs, title="JOB")
 
@@ -258,25 +225,26 @@ def _sections(plan, d: Display) -> str:
     ]  # fmt: skip
     rows = []
     for s in plan.sections:
-        per_cut = minutes(s.cut_time_min)
+        per_cut = d.fmt("time", s.cut_time_min)
         if s.calibration_n:
             per_cut += f" (×{s.calibration_factor:.2f} log)"
         rows.append([
-            s.group, s.bars_used, s.lp_bound_bars, s.gap_bars, length(d, s.kerf_mm),
+            d.text(s.group), s.bars_used, s.lp_bound_bars, s.gap_bars, d.length(s.kerf_mm),
             f"{s.pitch} {s.tooth_form}", d.fmt("speed", s.band_speed_m_min, 3),
-            d.fmt("feed", s.feed_mm_min, 3), per_cut, s.cuts, minutes(s.cutting_time_min),
-            minutes(s.total_time_min),
+            d.fmt("feed", s.feed_mm_min, 3), per_cut, s.cuts, d.fmt('time', s.cutting_time_min),
+            d.fmt('time', s.total_time_min),
         ])  # fmt: skip
     text = table(headers, rows, align="lrrrrllrrrrr", title="SECTIONS")
     extra = []
     for s in plan.sections:
+        label = d.text(s.group)
         extra.append(
-            f"  {s.group}: {s.designation}; kerf from the {s.kerf_source}; "
+            f"  {label}: {s.designation}; kerf from the {s.kerf_source}; "
             f"{s.tooth_set} set; limited by {s.governing_limit}; optimiser {s.method}"
         )
         if s.breakin_cuts:
-            extra.append(f"  {s.group}: {breakin_text(s, d)}")
-        extra += [f"  {s.group}: warning: {w}" for w in s.warnings]
+            extra.append(f"  {label}: {breakin_text(s, d)}")
+        extra += [f"  {label}: warning: {d.text(w)}" for w in s.warnings]
     return text + "\n" + "\n".join(extra)
 
 
@@ -288,11 +256,11 @@ def _cut_table(plan, d: Display) -> str:
     rows: list[list[str]] = []
     for b in plan.bars:
         where = f" @{b.location}" if b.location else ""
-        first = [str(b.bar), stock_text(b, d) + where, b.heat or "—"]
+        first = [str(b.bar), d.text(b.stock) + where, b.heat or "—"]
         blank = ["", "", ""]
         lead = first
         if b.trim_cut_mm is not None:
-            rows.append([*lead, "trim", f"0–{pos(d, b.trim_mm)}", "squaring cut", "", ""])
+            rows.append([*lead, "trim", d.span(0.0, b.trim_mm), "squaring cut", "", ""])
             lead = blank
         for row in piece_rows(b):
             rows.append([
@@ -301,15 +269,15 @@ def _cut_table(plan, d: Display) -> str:
             lead = blank
         if b.remnant_mm > 0 or b.length_mm - b.remnant_start_mm > 1e-9:
             what = (
-                f"keep {length(d, b.remnant_mm)} remnant, mark heat {b.heat or '—'}"
+                f"keep {d.tape(b.remnant_mm)} remnant, mark heat {b.heat or '—'}"
                 if b.remnant_kept
-                else f"scrap {length(d, b.remnant_mm)}"
+                else f"scrap {d.tape(b.remnant_mm)}"
             )
-            weight = mass(d, b.remnant_weight_kg) if b.remnant_mm > 0 else ""
-            span = f"{pos(d, b.remnant_start_mm)}–{pos(d, b.length_mm)}"
+            weight = d.fmt("mass", b.remnant_weight_kg) if b.remnant_mm > 0 else ""
+            span = d.span(b.remnant_start_mm, b.length_mm)
             rows.append([*lead, "end", span, what, weight, ""])
             lead = blank
-        summary = f"bar {mass(d, b.weight_kg)}, {b.handling}; {b.cuts} cuts"
+        summary = f"bar {d.fmt('mass', b.weight_kg)}, {b.handling}; {b.cuts} cuts"
         rows.append(["", summary, "", "", "", "", "", ""])
     title = "CUT SHEET (positions from the head end of each bar)"
     return table(headers, rows, align="rlllrlrl", title=title)
@@ -319,14 +287,14 @@ def _drawings(plan, d: Display, width: int) -> str:
     lines = [f"BARS TO SCALE ({width} columns = one bar; # trim, [A] piece, =R= keep, ... scrap)"]
     num = max((len(str(b.bar)) for b in plan.bars), default=1)
     for b in plan.bars:
-        tail = f"{length(d, b.length_mm)}"
+        tail = d.bar_length(b.length_mm)
         if b.remnant_kept:
-            tail += f", R {length(d, b.remnant_mm)}" + (f" heat {b.heat}" if b.heat else "")
+            tail += f", R {d.tape(b.remnant_mm)}" + (f" heat {b.heat}" if b.heat else "")
         lines.append(f"{str(b.bar).rjust(num)} |{draw_bar(b, width)}| {tail}")
     seen: dict[str, str] = {}
     for b in plan.bars:
         for p in b.pieces:
-            seen.setdefault(p.mark, f"{p.part} {length(d, p.length_mm)}")
+            seen.setdefault(p.mark, f"{p.part} {d.tape(p.length_mm)}")
     counts: dict[str, int] = {}
     for b in plan.bars:
         for p in b.pieces:
@@ -343,11 +311,11 @@ def _remnants(plan, d: Display) -> str:
     rows = [
         [
             r.bar,
-            r.group,
-            length(d, r.length_mm),
+            d.text(r.group),
+            d.tape(r.length_mm),
             r.heat or "—",
             r.location or "—",
-            mass(d, r.weight_kg),
+            d.fmt("mass", r.weight_kg),
         ]
         for r in plan.remnants
     ]
@@ -366,13 +334,13 @@ def _blades(plan, d: Display) -> str:
         ("area cut", d.fmt("area", plan.cut_area_cm2 * 100, 4)),
         ("blades worn", f"{fmt_number(plan.blades_consumed, 2)}"),
         ("have on hand", f"{plan.blades_needed} ({forecast_text(plan)})"),
-        ("blade life", plan.blade_life_source),
+        ("blade life", d.text(plan.blade_life_source)),
     ]
     return key_values(pairs, title="BLADES")
 
 
 def breakin_text(s, d: Display) -> str:
-    """How to run in a new blade on this section (common practice, reference §6)."""
+    """How to run in a new blade on this section (common practice)."""
     return (
         f"new blade: start at {s.breakin_start_percent:.0f} % of the feed and raise it step by "
         f"step over the first {d.fmt('area', s.breakin_area_cm2 * 100, 3)} "
@@ -383,46 +351,46 @@ def breakin_text(s, d: Display) -> str:
 def forecast_text(plan) -> str:
     """How the blades-on-hand figure was reached, in words."""
     if plan.blade_forecast_method == "weibull-simulation":
-        return f"Weibull forecast, {plan.blade_confidence:.0%} confidence"
+        return f"Weibull forecast, {fmt_percent(plan.blade_confidence)} confidence"
     if plan.blade_forecast_method == "deterministic":
         return "area cut ÷ blade life, rounded up"
     return plan.blade_forecast_method
 
 
-def _quote(plan) -> str:
+def _quote(plan, d: Display) -> str:
     from sawplan.render import key_values
 
     c = plan.currency
-    rate = f" at {money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
+    rate = f" at {fmt_money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
     share = ""
     if plan.blade_price is not None:
-        share = f" ({fmt_number(plan.blades_consumed, 2)} × {money(plan.blade_price, c)})"
+        share = f" ({fmt_number(plan.blades_consumed, 2)} × {fmt_money(plan.blade_price, c)})"
     pairs = [
-        ("material", money(plan.material_cost, c)),
-        (f"saw time {minutes(plan.total_time_min)}{rate}", money(plan.saw_cost, c)),
-        (f"blade wear{share}", money(plan.blade_cost, c)),
-        ("total", money(plan.total_cost, c)),
+        ("material", fmt_money(plan.material_cost, c)),
+        (f"saw time {d.fmt('time', plan.total_time_min)}{rate}", fmt_money(plan.saw_cost, c)),
+        (f"blade wear{share}", fmt_money(plan.blade_cost, c)),
+        ("total", fmt_money(plan.total_cost, c)),
     ]
     return key_values(pairs, title="QUOTE")
 
 
-def _notes(plan) -> str:
+def _notes(plan, d: Display) -> str:
     lines = []
     if plan.notes:
         lines.append("NOTES")
-        lines += [f"- {n}" for n in plan.notes]
+        lines += [f"- {d.text(n)}" for n in plan.notes]
         lines.append("")
     lines.append("CAUTIONS")
-    lines += [f"- {c}" for c in plan.cautions]
+    lines += [f"- {d.text(c)}" for c in plan.cautions]
     return "\n".join(lines)
 
 
 # --- Markdown sheet ---------------------------------------------------------------------------
 
 
-def render_markdown(plan, units: UnitSystem = UnitSystem.METRIC) -> str:
+def render_markdown(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> str:
     """A Markdown cut sheet: the same content as the HTML sheet, drawings as text."""
-    d = Display(units)
+    d = as_display(units)
     out = [f"# Cut sheet: {_md(plan.job)}", ""]
     head = [("file", plan.file), ("saw", plan.saw)]
     if plan.customer:
@@ -438,19 +406,19 @@ def render_markdown(plan, units: UnitSystem = UnitSystem.METRIC) -> str:
     out.append("|---|---:|---:|---:|---|---:|---:|---:|---:|")
     for s in plan.sections:
         out.append(
-            f"| {_md(s.group)} | {s.bars_used} | {s.lp_bound_bars} | {length(d, s.kerf_mm)} | "
+            f"| {_md(d.text(s.group))} | {s.bars_used} | {s.lp_bound_bars} | {d.length(s.kerf_mm)} | "
             f"{_md(s.pitch)} {_md(s.tooth_form)} | {d.fmt('speed', s.band_speed_m_min, 3)} | "
-            f"{d.fmt('feed', s.feed_mm_min, 3)} | {minutes(s.cut_time_min)} | {s.cuts} |"
+            f"{d.fmt('feed', s.feed_mm_min, 3)} | {d.fmt('time', s.cut_time_min)} | {s.cuts} |"
         )
     out += ["", "## Bars", ""]
     for b in plan.bars:
-        title = f"### Bar {b.bar}: {_md(stock_text(b, d))}"
+        title = f"### Bar {b.bar}: {_md(d.text(b.stock))}"
         out.append(title + (f", heat {_md(b.heat)}" if b.heat else ""))
         out += ["", "```", draw_bar(b), "```", ""]
         out.append(f"| step | from head ({d.label('length')}) | piece | weight | lift |")
         out.append("|---|---|---|---:|---|")
         if b.trim_cut_mm is not None:
-            out.append(f"| trim | 0–{pos(d, b.trim_mm)} | squaring cut | | |")
+            out.append(f"| trim | {d.span(0.0, b.trim_mm)} | squaring cut | | |")
         for row in piece_rows(b):
             out.append(
                 f"| {row.step(d)} | {row.span(d)} | {_md(row.what(d))} | {row.weight(d)} | "
@@ -458,16 +426,16 @@ def render_markdown(plan, units: UnitSystem = UnitSystem.METRIC) -> str:
             )
         if b.length_mm - b.remnant_start_mm > 1e-9:
             what = (
-                f"keep remnant {length(d, b.remnant_mm)}, mark heat {_md(b.heat or '—')}"
+                f"keep remnant {d.tape(b.remnant_mm)}, mark heat {_md(b.heat or '—')}"
                 if b.remnant_kept
-                else f"scrap {length(d, b.remnant_mm)}"
+                else f"scrap {d.tape(b.remnant_mm)}"
             )
-            out.append(f"| end | {pos(d, b.remnant_start_mm)}–{pos(d, b.length_mm)} | {what} | | |")
-        out += ["", f"Bar weight {mass(d, b.weight_kg)}: **{b.handling}**.", ""]
-    out += ["## Blades and quote", "", "```", _blades(plan, d), "", _quote(plan), "```", ""]
+            out.append(f"| end | {d.span(b.remnant_start_mm, b.length_mm)} | {what} | | |")
+        out += ["", f"Bar weight {d.fmt('mass', b.weight_kg)}: **{b.handling}**.", ""]
+    out += ["## Blades and quote", "", "```", _blades(plan, d), "", _quote(plan, d), "```", ""]
     out += ["## Notes and cautions", ""]
-    out += [f"- {_md(n)}" for n in plan.notes]
-    out += [f"- **{_md(c)}**" for c in plan.cautions]
+    out += [f"- {_md(d.text(n))}" for n in plan.notes]
+    out += [f"- **{_md(d.text(c))}**" for c in plan.cautions]
     return "\n".join(out) + "\n"
 
 
