@@ -354,12 +354,32 @@ def _is_driver_error(err: BaseException) -> bool:
 
 
 @contextmanager
+def begin(db: Log, isolation: str, *, read_only: bool = False) -> Iterator[Any]:
+    """The outermost transaction at ``isolation`` on PostgreSQL (plain BEGIN on SQLite).
+
+    A server connection sits in autocommit between transactions, so a single
+    read costs one round trip; psycopg then opens a transaction with one
+    ``BEGIN ISOLATION LEVEL ...``.
+    """
+    conn = db.conn
+    if db.dialect == "postgresql":
+        conn.execution_options(isolation_level=isolation, postgresql_readonly=read_only)
+    try:
+        with conn.begin() as transaction:
+            yield transaction
+    finally:
+        if db.dialect == "postgresql":
+            conn.execution_options(isolation_level="AUTOCOMMIT", postgresql_readonly=False)
+
+
+@contextmanager
 def write_transaction(db: Log) -> Iterator[Log]:
     """One write transaction: all of it or none (nested use: a savepoint).
 
     SQLite takes the write lock before the first read (``BEGIN IMMEDIATE``);
     PostgreSQL runs it SERIALIZABLE.  This block runs once; ``run_write``
-    runs a step again after a serialization failure.
+    runs a step again after a serialization failure.  A full disk may refuse
+    even the COMMIT; then nothing is kept.
     """
     if db.light:
         raise UsageError("this log was opened for reading only", field="db")
@@ -368,17 +388,10 @@ def write_transaction(db: Log) -> Iterator[Log]:
         with conn.begin_nested():
             yield db
         return
-    conn.info["write"] = True
-    transaction = conn.begin()
+    conn.info["write"] = True  # the SQLite begin hook says BEGIN IMMEDIATE
     try:
-        if db.dialect == "postgresql":
-            conn.exec_driver_sql("SET TRANSACTION ISOLATION LEVEL SERIALIZABLE")
-        yield db
-        transaction.commit()  # a full disk may refuse even this; then nothing is kept
-    except BaseException:
-        with contextlib.suppress(Exception):
-            transaction.rollback()
-        raise
+        with begin(db, "SERIALIZABLE"):
+            yield db
     finally:
         conn.info.pop("write", None)
 
@@ -405,18 +418,14 @@ def run_write(db: Log, step: Callable[[], T]) -> T:
 
 @contextmanager
 def read_snapshot(db: AnyLog) -> Iterator[AnyLog]:
-    """Several reads that see one moment of the log (an export, a report)."""
+    """Several reads that see one moment of the log (an export, a report); writes nothing."""
     if db.light or db.in_transaction:
         yield db
         return
-    conn = db.conn
-    transaction = conn.begin()
-    try:
-        if db.dialect == "postgresql":
-            conn.exec_driver_sql("SET TRANSACTION ISOLATION LEVEL REPEATABLE READ, READ ONLY")
-        yield db
-    finally:
-        with contextlib.suppress(Exception):
+    with begin(db, "REPEATABLE READ", read_only=True) as transaction:
+        try:
+            yield db
+        finally:
             transaction.rollback()
 
 

@@ -256,7 +256,7 @@ def open_server(location: LogLocation, *, create: bool, older_ok: bool = False) 
 
     engine = engines.server_engine(location)
     try:
-        conn = engine.connect()
+        conn = engine.connect().execution_options(isolation_level="AUTOCOMMIT")
     except Exception as err:
         engine.dispose()
         raise engines.server_error(err, location) from None
@@ -286,17 +286,28 @@ def open_server(location: LogLocation, *, create: bool, older_ok: bool = False) 
 
 def server_state(log: Log) -> str:
     """current, empty, older, newer or foreign."""
+    if not log.in_transaction:  # autocommit: ask for the version first, one round trip
+        from sqlalchemy.exc import ProgrammingError
+
+        try:
+            return _state_of(log.scalar(f"SELECT version_num FROM {VERSION_TABLE}"))
+        except ProgrammingError as err:
+            if engines.sqlstate(err) != "42P01":  # anything but "no such table"
+                raise
     if has_table(log, VERSION_TABLE):
-        revision = log.scalar(f"SELECT version_num FROM {VERSION_TABLE}")
-        if revision == HEAD:
-            return "current"
-        if revision in REVISIONS:
-            return "older"
-        return "newer" if revision is not None else "foreign"
+        return _state_of(log.scalar(f"SELECT version_num FROM {VERSION_TABLE}"))
     tables = log.scalar(
         "SELECT COUNT(*) FROM information_schema.tables WHERE table_schema = current_schema()"
     )
     return "foreign" if tables else "empty"
+
+
+def _state_of(revision: str | None) -> str:
+    if revision == HEAD:
+        return "current"
+    if revision in REVISIONS:
+        return "older"
+    return "newer" if revision is not None else "foreign"
 
 
 def refusal(log: Log, state: str) -> DamagedFileError:
@@ -324,7 +335,9 @@ def create_server_schema(log: Log) -> None:
     READ COMMITTED, not SERIALIZABLE: after waiting for the lock, the next
     statement must see what the other station committed meanwhile.
     """
-    with log.conn.begin():
+    from sawplan.store.db import begin
+
+    with begin(log, "READ COMMITTED"):
         log.execute("SELECT pg_advisory_xact_lock(:k)", {"k": ADVISORY_LOCK})
         if server_state(log) == "empty":
             run_migrations(log.conn)
@@ -332,7 +345,9 @@ def create_server_schema(log: Log) -> None:
 
 def upgrade_server(log: Log) -> tuple[int, int]:
     """Bring a PostgreSQL log to the newest schema (``sawplan db upgrade``); (from, to)."""
-    with log.conn.begin():  # READ COMMITTED, as in create_server_schema
+    from sawplan.store.db import begin
+
+    with begin(log, "READ COMMITTED"):  # as in create_server_schema
         log.execute("SELECT pg_advisory_xact_lock(:k)", {"k": ADVISORY_LOCK})
         state = server_state(log)
         if state in ("newer", "foreign"):
