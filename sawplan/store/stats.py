@@ -42,6 +42,9 @@ def blade_type_of(row: dict) -> str:
     return join(" ", [p for p in parts if p])
 
 
+_AREAS_SQL = "SELECT blade_id, material_group, area_mm2 FROM cuts"
+
+
 def blade_lives(db: Database, *, include_unused_failures: bool = False) -> list[BladeLife]:
     """Every blade that is a life observation, in the order blades were added.
 
@@ -51,7 +54,7 @@ def blade_lives(db: Database, *, include_unused_failures: bool = False) -> list[
     # Summed here, exactly (math.fsum), not by the database: SUM adds in whatever order
     # the engine scans, so SQLite and PostgreSQL could differ in the last digit.
     areas: dict[int, dict[str | None, list[float]]] = defaultdict(lambda: defaultdict(list))
-    for blade_id, group, area in db.execute("SELECT blade_id, material_group, area_mm2 FROM cuts"):
+    for blade_id, group, area in db.bulk_rows(_AREAS_SQL):
         areas[blade_id][group].append(area)
     by_group = {
         blade_id: {g: math.fsum(groups[g]) for g in sorted(groups, key=str)}
