@@ -21,6 +21,7 @@ class ExitCode(IntEnum):
     CONFLICT = 5
     DAMAGED = 6
     STORAGE = 7
+    PLAN_INCOMPLETE = 8  # not an error: the plan is printed, but stock on hand is short
     SERVER = 9
 
 

@@ -111,6 +111,9 @@ _TABLE: tuple[Field, ...] = (
     Field("force", "replace files", "--force", help="Replace files that exist."),
     Field("file", "file", placeholder=FILE, help="A file."),
     Field("folder", "folder", placeholder=DIR, help="A folder."),
+    Field("setting", "setting", placeholder="KEY",
+          help="units, saw, db, currency, log_mode, materials_file or saws_file."),
+    Field("setting_value", "setting value", placeholder="VALUE", help="The value to keep."),
     Field("csv_dir", "CSV folder", "--csv-dir", placeholder=DIR,
           help="Write the CSV files into this folder."),
     Field("sheet", "cut sheet", "--sheet", placeholder=FILE,
@@ -310,8 +313,8 @@ _TABLE: tuple[Field, ...] = (
     Field("pieces", "pieces cut at once", low=1, high=10_000, integer=True,
           why="a bundle is a few rows of bars, never ten thousand", names=("cuts.pieces",)),
     Field("area", "area cut", "--area", "-a", "AREA", "Area cut, e.g. 20cm2, 5m2, 800in2.",
-          dimension="area", low=1, high=1e10, above=False,
-          why="under 1 mm² is no cut; 10,000 m² is decades of sawing on one saw",
+          dimension="area", low=1, high=1e9,
+          why="under 1 mm² is no cut; 1,000 m² is years of sawing on one saw",
           names=("cuts.area_mm2",)),
     Field("time", "measured time", "--time", placeholder="TIME",
           help="Measured time of the whole entry, e.g. 4.5min.", dimension="time", low=0,
@@ -347,8 +350,13 @@ _TABLE: tuple[Field, ...] = (
           why="a blade that cuts under 100 cm² failed, it has no life to plan on; 1,000 m² is far "
               "beyond any band's life"),
     Field("time_limit", "time limit", "--time-limit", placeholder="SECONDS",
-          help="Seconds the optimiser may spend.", low=0, high=600, above=True,
-          why="ten minutes is the longest a shop waits for a plan"),
+          help="Seconds the whole plan may take: a safety stop (the same job gives the same "
+               "plan; when the limit stops the optimiser, the plan says so).",
+          low=0.5, high=600,
+          why="under half a second the safety stop fires before the exact steps; ten minutes "
+              "is the longest a shop waits for a plan"),
+    Field("order", "order list", "--order",
+          help="Print only the bars to order for a short job (with --json as JSON)."),
     Field("kerf", "kerf", dimension="length", low=0.1, high=10,
           why="band kerfs run from about 0.8 mm to 3 mm; over 10 mm is no band saw",
           names=("job.kerf",)),
@@ -383,6 +391,10 @@ _TABLE: tuple[Field, ...] = (
     Field("price_per_kg", "price per kg", low=0, high=1_000_000,
           why="even precious alloys cost under a million per kg in any common currency",
           names=("stock.price_per_kg",)),
+    Field("remnant_credit", "rack credit", dimension="text", high=12,
+          choices=("bar-price", "none"),
+          why="remnants back on the rack are credited at their bar's price per length, or not",
+          names=("job.remnant_credit",)),
 )
 # fmt: on
 

@@ -100,6 +100,31 @@ class Material:
         return self.cutting_rate_cm2_min * 100.0
 
 
+@dataclass(frozen=True)
+class Alias:
+    """Another name of a catalogue material, and how close it is.
+
+    ``relation``: ``same`` (the same alloy in another naming system),
+    ``corresponding`` (the grade a standard pairs with it) or ``near`` (a
+    near equivalent: same density and sawing data for our purposes).
+    """
+
+    alias: str
+    key: str
+    relation: str
+    source: str
+
+    def note(self) -> str:
+        kind = {"same": "another name of", "corresponding": "the grade corresponding to"}
+        return f"{self.alias} is {kind.get(self.relation, 'a near equivalent of')} {self.key} ({self.source})"
+
+
+# words a shop puts around a designation: "AISI 304", "SS 304", "304 stainless", "UNS S30400"
+_PREFIXES = ("stainless", "werkstoffnr.", "werkstoff", "w.nr.", "wnr.", "wnr", "alloy", "astm",
+             "aisi", "type", "sae", "uns", "din", "jis", "sst", "aa", "en", "ss")  # fmt: skip
+_SUFFIXES = ("stainlesssteel", "stainless", "steel", "sst", "ss")
+
+
 def normalise_key(key: str) -> str:
     """Lookup form of a key: case, spaces, hyphens and underscores ignored.
 
@@ -115,7 +140,9 @@ class Catalogue:
     additions after); ``keys()`` gives their keys as written.
     """
 
-    def __init__(self, materials: list[Material] | tuple[Material, ...]):
+    def __init__(
+        self, materials: list[Material] | tuple[Material, ...], aliases: tuple[Alias, ...] = ()
+    ):
         by_key: dict[str, Material] = {}
         for material in materials:
             by_key[normalise_key(material.key)] = material
@@ -125,25 +152,51 @@ class Catalogue:
             if material.uns:
                 by_uns.setdefault(normalise_key(material.uns), material)
         self._by_uns = MappingProxyType(by_uns)
+        by_alias = {
+            normalise_key(a.alias): a
+            for a in aliases
+            if normalise_key(a.key) in by_key and normalise_key(a.alias) not in by_key
+        }
+        self._by_alias = MappingProxyType(by_alias)
 
     def get(self, key: str) -> Material:
-        """The material called ``key`` (or with that UNS number).
+        """The material called ``key``: its key, UNS number or a trade alias.
 
         Raises NotFoundError naming the closest keys when there is none.
         """
+        return self.resolve(key)[0]
+
+    def resolve(self, key: str) -> tuple[Material, Alias | None]:
+        """The material ``key`` names and, when it was an alias, the alias with its source.
+
+        Accepts what a shop writes: ``304``, ``ss304``, ``AISI 304``, ``304 stainless``,
+        ``S30400``, ``UNS S30400``, ``1.4301``, ``X5CrNi18-10``, ``17-4 PH``.
+        """
         wanted = normalise_key(key)
+        for candidate in _bare_forms(wanted):
+            found = self._exact(candidate)
+            if found is not None:
+                return found
+        raise NotFoundError(f"unknown material '{key}'", field="material", hint=self._hint(wanted))
+
+    def _exact(self, wanted: str) -> tuple[Material, Alias | None] | None:
         found = self._by_key.get(wanted) or self._by_uns.get(wanted)
         if found is not None:
-            return found
-        # swapped characters (4410 for 4140) first, then difflib's closest
+            return found, None
+        alias = self._by_alias.get(wanted)
+        if alias is not None:
+            return self._by_key[normalise_key(alias.key)], alias
+        return None
+
+    def _hint(self, wanted: str) -> str:
+        """The closest keys: swapped characters (4410 for 4140) first, then difflib's."""
+        names_of = {k: m.key for k, m in self._by_key.items()}
+        names_of.update({a: self._by_alias[a].key for a in self._by_alias})
         swapped = [k for k in self._by_key if sorted(k) == sorted(wanted)]
-        close = difflib.get_close_matches(wanted, list(self._by_key), n=3, cutoff=0.6)
-        ranked = list(dict.fromkeys(swapped + close))[:3]
-        names = [self._by_key[c].key for c in ranked]
+        close = difflib.get_close_matches(wanted, list(names_of), n=5, cutoff=0.6)
+        names = list(dict.fromkeys(names_of[c] for c in swapped + close))[:3]
         hint = "see `sawplan materials`"
-        if names:
-            hint = f"did you mean {_or_list(names)}? {hint}"
-        raise NotFoundError(f"unknown material '{key}'", field="material", hint=hint)
+        return f"did you mean {_or_list(names)}? {hint}" if names else hint
 
     __getitem__ = get
 
@@ -151,7 +204,16 @@ class Catalogue:
         if not isinstance(key, str):
             return False
         wanted = normalise_key(key)
-        return wanted in self._by_key or wanted in self._by_uns
+        return any(self._exact(c) is not None for c in _bare_forms(wanted))
+
+    def aliases_of(self, key: str) -> list[Alias]:
+        """The trade aliases of the material ``key``, in table order."""
+        material = self.get(key)
+        return [
+            a
+            for a in self._by_alias.values()
+            if normalise_key(a.key) == normalise_key(material.key)
+        ]
 
     def __iter__(self) -> Iterator[Material]:
         return iter(self._by_key.values())
@@ -175,6 +237,18 @@ class Catalogue:
                 f"unknown group '{group}'; expected one of {', '.join(GROUPS)}", field="group"
             )
         return [m for m in self if m.group == group]
+
+
+def _bare_forms(wanted: str) -> list[str]:
+    """``wanted`` and the same with one trade prefix and/or suffix taken off."""
+    forms = [wanted]
+    for prefix in ("", *_PREFIXES):
+        if prefix and not (wanted.startswith(prefix) and len(wanted) > len(prefix)):
+            continue
+        rest = wanted[len(prefix) :]
+        forms.append(rest)
+        forms += [rest[: -len(s)] for s in _SUFFIXES if rest.endswith(s) and len(rest) > len(s)]
+    return list(dict.fromkeys(forms))
 
 
 def _or_list(names: list[str]) -> str:
@@ -204,7 +278,7 @@ def load_catalogue(user_csv: str | Path | None = None) -> Catalogue:
     merged = {normalise_key(m.key): m for m in _packaged_materials()}
     for material in user_rows:
         merged[normalise_key(material.key)] = material
-    return Catalogue(list(merged.values()))
+    return Catalogue(list(merged.values()), packaged_aliases())
 
 
 @lru_cache(maxsize=1)
@@ -215,7 +289,30 @@ def _packaged_materials() -> tuple[Material, ...]:
 
 @lru_cache(maxsize=1)
 def _packaged_catalogue() -> Catalogue:
-    return Catalogue(_packaged_materials())
+    return Catalogue(_packaged_materials(), packaged_aliases())
+
+
+ALIAS_RELATIONS = ("same", "corresponding", "near")
+
+
+@lru_cache(maxsize=1)
+def packaged_aliases() -> tuple[Alias, ...]:
+    """The trade aliases of ``data/material_aliases.csv``, each with its source."""
+    path = data_file("material_aliases.csv")
+    with path.open(newline="", encoding="utf-8") as handle:
+        rows = list(csv.DictReader(handle))
+    aliases = []
+    for line, row in enumerate(rows, start=2):
+        alias = Alias(**{k: (v or "").strip() for k, v in row.items()})
+        if (
+            not (alias.alias and alias.key and alias.source)
+            or alias.relation not in ALIAS_RELATIONS
+        ):
+            raise BadDataError(
+                "needs alias, key, relation and source", field=f"{path.name} row {line}"
+            )
+        aliases.append(alias)
+    return tuple(aliases)
 
 
 def _read_table(path: Path, *, label: str, origin: str, user: bool) -> list[Material]:

@@ -200,22 +200,63 @@ def get_saw(name: str, user_file: str | Path | None = None, extra: Iterable[Saw]
     raise NotFoundError(f"unknown saw {name!r}", field="saw", hint=hint)
 
 
-def check_capacity(saw: Saw, section: SectionLike) -> None:
-    """BadDataError when the work does not fit the saw's vise and throat."""
+def fits(saw: Saw, section: SectionLike) -> bool:
+    """Whether the work fits the saw's vise and throat."""
     if section.shape in ROUND_SHAPES and section.pieces == 1:
-        if section.height_mm > saw.capacity_round_mm + 1e-9:
-            raise BadDataError(
-                f"{section.height_mm:.4g} mm round is over the {saw.name} capacity of "
-                f"{saw.capacity_round_mm:g} mm round",
-                field="section",
-            )
+        return section.height_mm <= saw.capacity_round_mm + 1e-9
+    return (
+        section.height_mm <= saw.capacity_rect_h_mm + 1e-9
+        and section.width_mm <= saw.capacity_rect_w_mm + 1e-9
+    )
+
+
+def check_capacity(
+    saw: Saw, section: SectionLike, alternatives: Iterable[Saw] | None = None
+) -> None:
+    """BadDataError when the work does not fit the saw, naming the saws that take it.
+
+    ``alternatives``: the saws to suggest, largest first (default: the packaged
+    saws and the user's saws file).
+    """
+    if fits(saw, section):
         return
-    if (
-        section.height_mm > saw.capacity_rect_h_mm + 1e-9
-        or section.width_mm > saw.capacity_rect_w_mm + 1e-9
-    ):
-        raise BadDataError(
-            f"{section.width_mm:.4g} wide × {section.height_mm:.4g} mm high is over the {saw.name} "
-            f"capacity of {saw.capacity_rect_w_mm:g} × {saw.capacity_rect_h_mm:g} mm (wide × high)",
-            field="section",
+    if section.shape in ROUND_SHAPES and section.pieces == 1:
+        message = (
+            f"{section.height_mm:.4g} mm round is over the {saw.name} capacity of "
+            f"{saw.capacity_round_mm:g} mm round"
         )
+    else:
+        message = (
+            f"{section.width_mm:.4g} wide × {section.height_mm:.4g} mm high is over the "
+            f"{saw.name} capacity of {saw.capacity_rect_w_mm:g} × {saw.capacity_rect_h_mm:g} mm "
+            "(wide × high)"
+        )
+    others = list(load_saws().values() if alternatives is None else alternatives)
+    takers = sorted((s for s in others if fits(s, section)), key=_size, reverse=True)
+    if takers:
+        names = ", ".join(f"{s.name} ({_capacity(s, section)})" for s in takers[:4])
+        hint = f"it fits {names}: give --saw {_quoted(takers[0].name)}"
+    else:
+        largest = max(others, key=_size, default=saw)
+        hint = (
+            f"no known saw takes it; the largest is {largest.name} ({_capacity(largest, section)})"
+        )
+    raise BadDataError(message, field="section", hint=hint)
+
+
+def _size(saw: Saw) -> tuple[float, float, float]:
+    return (
+        saw.capacity_round_mm,
+        saw.capacity_rect_w_mm * saw.capacity_rect_h_mm,
+        saw.capacity_rect_h_mm,
+    )
+
+
+def _capacity(saw: Saw, section: SectionLike) -> str:
+    if section.shape in ROUND_SHAPES and section.pieces == 1:
+        return f"{saw.capacity_round_mm:g} mm round"
+    return f"{saw.capacity_rect_w_mm:g} × {saw.capacity_rect_h_mm:g} mm"
+
+
+def _quoted(name: str) -> str:
+    return f'"{name}"' if " " in name else name

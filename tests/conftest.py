@@ -24,7 +24,17 @@ os.environ["COLUMNS"] = "100"
 def _isolated_home(tmp_path_factory, monkeypatch):
     home = tmp_path_factory.mktemp("home")
     monkeypatch.setenv("SAWPLAN_HOME", str(home))
-    for var in ("SAWPLAN_DB", "SAWPLAN_MATERIALS", "SAWPLAN_SAWS", "SAWPLAN_DEBUG"):
+    for var in (
+        "SAWPLAN_DB",
+        "SAWPLAN_MATERIALS",
+        "SAWPLAN_SAWS",
+        "SAWPLAN_DEBUG",
+        "SAWPLAN_CONFIG",
+        "SAWPLAN_UNITS",
+        "SAWPLAN_SAW",
+        "SAWPLAN_CURRENCY",
+        "SAWPLAN_LOG_MODE",
+    ):
         monkeypatch.delenv(var, raising=False)
     yield
 

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import pytest
 
-from sawplan.cutlist.jobfile.load import check_supply, parse_job
+from sawplan.cutlist.jobfile.load import parse_job
 from sawplan.errors import BadDataError, NotFoundError, SawplanError, UsageError
 from sawplan.materials import load_catalogue
 
@@ -237,29 +237,3 @@ def test_a_job_without_parts_is_refused(catalogue):
     assert error_of(text, catalogue).one_line() == (
         "job.toml: has no [[part]] entries: nothing to cut"
     )
-
-
-def test_not_enough_stock_says_how_much_is_missing(catalogue):
-    # A 3000 mm bar holds pieces with Σ(ℓ + k) ≤ L − trim − grip + k = 3002 mm
-    # (reference §9).  Five 700 mm pieces need 5 × 702 = 3510 mm: one bar on hand
-    # is short by 508 mm, i.e. one more bar (worked by hand).
-    text = swap(BASE, "count = 2", "count = 1")
-    text = swap(text, "count = 4", "count = 5")
-    job = parse_job(text, catalogue, file="job.toml")
-    with pytest.raises(BadDataError) as info:
-        check_supply(job, ("1018", "round 50mm"), 2.0)
-    line = line_of(text, "[[stock]]")
-    assert info.value.one_line() == (
-        f"job.toml line {line} {STOCK}: not enough 1018 round 50mm on hand for 5 pieces: "
-        "1 bar(s) in the job, short by at least 0.508 m (about 1 more bar(s) of 3000 mm) "
-        "(add stock or raise a count)"
-    )
-
-
-def test_exactly_enough_stock_passes_the_supply_check(catalogue):
-    # Four 748.5 mm pieces with k = 2 need 4 × 750.5 = 3002 mm: exactly the capacity
-    # L − trim − grip + k = 3000 + 2 of one 3 m bar (reference §9, worked by hand).
-    text = swap(BASE, "count = 2", "count = 1")
-    text = swap(text, 'length = "700mm"', 'length = "748.5mm"')
-    job = parse_job(text, catalogue)
-    check_supply(job, ("1018", "round 50mm"), 2.0)  # no error

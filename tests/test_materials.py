@@ -326,9 +326,10 @@ def test_unknown_key_without_close_match_still_points_to_list(catalogue):
     assert "did you mean" not in str(err.value)
 
 
-def test_temper_missing_suggests_the_temper(catalogue):
-    with pytest.raises(NotFoundError, match="6061-T6"):
-        catalogue.get("6061")
+def test_temper_missing_takes_the_catalogue_temper_and_says_so(catalogue):
+    material, alias = catalogue.resolve("6061")
+    assert material.key == "6061-T6"
+    assert alias.relation == "near" and "T6" in alias.note()
 
 
 def test_unknown_group_is_an_error(catalogue):

@@ -567,11 +567,12 @@ def _triplets(count: int, seed: int) -> list[Demand]:
 
 def test_arc_flow_packs_triplets_exactly() -> None:
     from sawplan.cutlist.optimise.arcflow import solve_arc_flow
+    from sawplan.cutlist.optimise.budget import Clock
     from sawplan.cutlist.optimise.build import make_instance
 
     demand = _triplets(8, seed=3)
     problem = make_instance([StockType("bar", 1000, None, 1.0)], demand, Allowances()).problem
-    result = solve_arc_flow(problem, deadline=time.perf_counter() + 30)
+    result = solve_arc_flow(problem, clock=Clock(time.perf_counter() + 30), max_nodes=10_000)
     assert result is not None and result.proven_optimal
     assert len(result.bars) == 8  # total length = 8 bars exactly (by construction)
     cut = Counter()
@@ -589,14 +590,12 @@ def test_triplets_reach_the_optimum() -> None:
 
 
 def test_lp_failure_falls_back_to_first_fit_decreasing(monkeypatch: pytest.MonkeyPatch) -> None:
-    import types
+    from sawplan.cutlist.optimise import colgen
 
-    import scipy.optimize
+    def failing_lp(*args: object, **kwargs: object) -> None:
+        raise colgen.LpFailure("master LP not solved: numerical difficulties")
 
-    def failing_linprog(*args: object, **kwargs: object) -> types.SimpleNamespace:
-        return types.SimpleNamespace(status=4, x=None, message="numerical difficulties")
-
-    monkeypatch.setattr(scipy.optimize, "linprog", failing_linprog)
+    monkeypatch.setattr(colgen, "solve_lp", failing_lp)
     demand = [Demand("A", 49, 2), Demand("B", 26, 2), Demand("C", 25, 2)]
     stock = [StockType("bar", 100, None, 1.0)]
     plan = optimise(stock, demand)

@@ -163,6 +163,9 @@ def baselines(shop: dict[str, Path]) -> dict[tuple[str, ...], dict[str, object]]
         ("chart", "weibull"): {},
         ("chart", "modes"): {},
         ("chart", "cost"): {},
+        ("config", "show"): {},
+        ("config", "set"): {"key": "units", "value": "us"},
+        ("config", "unset"): {"key": "units"},
     }
 
 
@@ -190,6 +193,8 @@ def may_succeed(path: tuple[str, ...], name: str, label: str, value: str) -> boo
         return label != "10k characters"  # stored text has a length limit
     if name in OUTPUT_PATHS or key in OUTPUT_PATHS:
         return label != "10k characters"  # any other name is a file the user may want
+    if name == "section" and label == "diameter sign":
+        return True  # "round ⌀60mm" and "⌀60mm" are a 60 mm round, as the tool prints it
     if name == "db":  # a new name starts a new log (or reads as an empty one)
         return label not in ("10k characters", "empty", "path traversal")
     return label == "zero" and key in ZERO_OK

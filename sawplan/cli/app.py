@@ -48,6 +48,7 @@ COMMANDS: dict[str, str] = {
     "check": "sawplan.cli.cmd_logdata",
     "restore": "sawplan.cli.cmd_logdata",
     "db": "sawplan.cli.cmd_db",
+    "config": "sawplan.cli.cmd_config",
 }
 COMMAND_MODULES = tuple(dict.fromkeys(COMMANDS.values()))
 
@@ -116,6 +117,12 @@ def run(args: list[str]) -> int:
     except NoArgsIsHelpError as asked:
         print(asked.ctx.get_help())
         return 0
+    except SystemExit as stop:  # click answers a closed pipe with exit 1; the boundary says 0
+        from typer._click.utils import PacifyFlushWrapper
+
+        if stop.code == 1 and isinstance(sys.stdout, PacifyFlushWrapper):
+            raise BrokenPipeError(32, "the reader closed the pipe") from None
+        raise
 
 
 def _modern(root: Any, args: list[str]) -> list[str]:
@@ -142,10 +149,13 @@ def _modern(root: Any, args: list[str]) -> list[str]:
 
 def main(argv: list[str] | None = None) -> None:
     """Console-script entry point."""
-    from sawplan.cli.boundary import run_guarded
+    from sawplan.cli.boundary import quiet_stdout, run_guarded
 
     code = run_guarded(run, sys.argv[1:] if argv is None else argv)
-    sys.stdout.flush()
+    try:
+        sys.stdout.flush()
+    except BrokenPipeError:  # the reader stopped early (`| head -1`): that is fine
+        quiet_stdout()
     raise SystemExit(code)
 
 

@@ -17,6 +17,7 @@ import os
 import sqlite3
 import sys
 from collections.abc import Callable, Sequence
+from pathlib import Path
 
 from sawplan.errors import (
     DamagedFileError,
@@ -34,24 +35,104 @@ _DEBUG_HINT = "run again with --debug and report the traceback"
 
 
 def run_guarded(run: Callable[[list[str]], int | None], argv: Sequence[str]) -> int:
-    """Run the CLI on ``argv``; turn any exception into one stderr line and an exit code."""
+    """Run the CLI on ``argv``; turn any exception into one stderr line and an exit code.
+
+    A closed pipe (``sawplan materials | head -1``) ends quietly with 0, and a
+    blade log that a failing command created is removed again (nothing written).
+    """
     args = list(argv)
     debug = os.environ.get("SAWPLAN_DEBUG", "") not in ("", "0")
     if "--debug" in args:
         args.remove("--debug")
         debug = True
+    _NEW_LOGS.clear()
+    code = int(ExitCode.INTERNAL)
     try:
-        code = run(args)
-        return int(code or 0)
+        code = int(run(args) or 0)
+        return code
+    except BrokenPipeError:
+        quiet_stdout()
+        code = 0
+        return code
     except (KeyboardInterrupt, _abort_class()):
         _say("stopped.")
-        return STOPPED
+        code = STOPPED
+        return code
     except Exception as err:
         if debug:
             raise
         code, line = describe(err)
         _say(line)
         return code
+    finally:
+        if code != 0:
+            _remove_new_logs()
+        _NEW_LOGS.clear()
+
+
+# --- a failing command leaves no new blade log behind -------------------------------------------
+
+_NEW_LOGS: list[tuple[Path, list[Path]]] = []  # (log file, folders made for it)
+_LOG_TABLES = ("saws", "blades", "fittings", "cuts", "events")
+
+
+def forget_new_log_on_failure(db: str | os.PathLike[str] | None) -> None:
+    """Note the blade log ``db`` names when it does not exist yet.
+
+    Should the command then fail, the log it created (empty of rows) is removed
+    with the folders made for it, so a refused write leaves nothing on disk.
+    """
+    if db is not None and "://" in str(db):
+        return  # a database server: nothing is made on this disk
+    from sawplan.store import resolve_db_path
+
+    path = resolve_db_path(db)
+    if str(db) == ":memory:" or path.exists():
+        return
+    made = [p for p in path.parents if not p.exists()]
+    _NEW_LOGS.append((path, made))
+
+
+def _remove_new_logs() -> None:
+    for path, made in _NEW_LOGS:
+        if path.exists() and _holds_no_rows(path):
+            for suffix in ("", "-wal", "-shm", "-journal"):
+                Path(f"{path}{suffix}").unlink(missing_ok=True)
+        for folder in made:  # innermost first
+            try:
+                folder.rmdir()
+            except OSError:
+                break  # not empty (someone else uses it) or gone: leave it
+
+
+def _holds_no_rows(path: Path) -> bool:
+    """True for a new log without a single saw, blade, fitting, cut or event."""
+    if path.stat().st_size == 0:
+        return True
+    try:
+        conn = sqlite3.connect(f"{path.resolve().as_uri()}?mode=ro", uri=True)
+    except sqlite3.Error:
+        return False
+    try:
+        names = {r[0] for r in conn.execute("SELECT name FROM sqlite_master WHERE type='table'")}
+        return all(
+            conn.execute(f"SELECT COUNT(*) FROM {table}").fetchone()[0] == 0  # noqa: S608
+            for table in _LOG_TABLES
+            if table in names
+        )
+    except sqlite3.Error:
+        return False
+    finally:
+        conn.close()
+
+
+def quiet_stdout() -> None:
+    """Point stdout at the null device so the interpreter's last flush cannot fail."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+    except (OSError, ValueError, AttributeError):
+        pass  # not a real file (tests capture it): nothing to flush into a closed pipe
 
 
 def describe(err: BaseException) -> tuple[int, str]:

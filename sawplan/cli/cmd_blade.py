@@ -2,10 +2,18 @@
 
 from __future__ import annotations
 
-from typing import Annotated, Any
+from typing import Annotated
 
 import typer
 
+from sawplan.cli.blade_view import (
+    BLADE_CAUTION,
+    blade_table,
+    describe,
+    render_history,
+    wear_chart_text,
+    wear_rows_empty,
+)
 from sawplan.cli.options import (
     ChartHeightOpt,
     ChartWidthOpt,
@@ -19,10 +27,10 @@ from sawplan.cli.options import (
     TagArg,
     UnitsOpt,
     command,
+    group,
     opt,
 )
-from sawplan.display import Display, as_display, fmt_money, fmt_number, section_text
-from sawplan.units import UnitSystem
+from sawplan.display import Display
 
 BLADE_MATERIALS = {
     "bi-metal": "bi-metal",
@@ -34,14 +42,8 @@ BLADE_MATERIALS = {
 }
 TOOTH_FORMS = ("regular", "hook", "skip")
 TOOTH_SETS = ("raker", "wavy", "alternate")
-_WELDED_TEXT = {"in-house": "welded in house", "bought": "bought welded"}
-BLADE_CAUTION = (
-    "Caution: fit and tension blades with the saw stopped and isolated, guards back on before "
-    "running; break a new blade in at reduced feed. The saw maker's manual, the blade maker's "
-    "data and shop rules govern."
-)
 
-HELP = """The blades in the blade log: add, fit, remove, retire, list, show.
+HELP = """The blades in the log: add, fit, remove, retire, list, show.
 
 A blade's life is the area it cut. A retired blade counts as a failure in
 `sawplan life`; a blade still fitted, or removed unworn, counts as "at least
@@ -54,7 +56,7 @@ Examples:
   sawplan blade show B-017 --chart
 """
 
-ADD_HELP = """Record a new blade with its tag, size, pitch and where it came from.
+ADD_HELP = """Record a new blade: its tag, size, pitch and where it came from.
 
 \b
 Examples:
@@ -67,7 +69,7 @@ FIT_HELP = """Fit a blade to a saw. Any blade already on that saw is taken off (
 \b
 Examples:
   sawplan blade fit B-017 --saw "bay 2"
-  sawplan blade fit B-017 --saw mid-production --tension 200MPa --break-in --break-in-how "half feed, 500 cm2"
+  sawplan blade fit B-009 --saw mid-production --tension 200MPa --break-in --break-in-how "half feed, 500 cm2"
 """
 
 REMOVE_HELP = """Take a blade off its saw, unworn (it may be fitted again later).
@@ -143,7 +145,7 @@ def blade_add_command(
     bought: Annotated[str | None, opt("bought")] = None,
     welded: Annotated[str, opt("welded", show_default=True)] = "bought",
     notes: NoteOpt = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     db: DbOpt = None,
@@ -185,24 +187,6 @@ def blade_add_command(
         print(to_json(blade, kind="blade"))
         return
     print(f"added blade {blade.tag}: {describe(blade, Display(units, fractions))}")
-
-
-def describe(blade: Any, units: UnitSystem | Display) -> str:
-    """``bi-metal M42, 27 × 0.9 mm, 3/4 TPI, 3,505 mm long``."""
-
-    d = as_display(units)
-    size = (
-        f"{d.num('length', blade.width_mm)} × {d.num('length', blade.thickness_mm)} "
-        f"{d.label('length')}"
-    )
-    parts = [
-        " ".join(p for p in (blade.blade_material, blade.grade) if p),
-        size,
-        f"{blade.pitch} TPI",
-    ]
-    if blade.length_mm:
-        parts.append(f"{d.bar_length(blade.length_mm)} long")
-    return ", ".join(parts)
 
 
 def blade_fit_command(
@@ -265,7 +249,7 @@ def blade_retire_command(
     date: DateOpt = None,
     location: Annotated[str | None, opt("location")] = None,
     note: NoteOpt = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     db: DbOpt = None,
 ) -> None:
@@ -286,7 +270,7 @@ def blade_retire_command(
 
 def blade_list_command(
     status: Annotated[str | None, opt("status")] = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
@@ -301,30 +285,7 @@ def blade_list_command(
     if json_out:
         print(to_json(blades, kind="blades"))
         return
-    d = Display(units, fractions)
-    headers = [
-        "tag",
-        "type",
-        "status",
-        "saw",
-        "cuts",
-        f"area {d.label('area')}",
-        "price",
-        "retired",
-    ]
-    rows = [
-        [
-            b.tag,
-            d.text(b.blade_type),
-            b.status,
-            b.saw or "",
-            b.cuts,
-            d.num("area", b.area_mm2),
-            "" if b.price is None else fmt_money(b.price),
-            " ".join(x for x in (b.retired_on, b.retire_cause) if x),
-        ]
-        for b in blades
-    ]
+    headers, rows = blade_table(blades, Display(units, fractions))
     if csv_out:
         print(to_csv(headers, rows), end="")
     elif not rows:
@@ -341,7 +302,7 @@ def blade_show_command(
     chart: Annotated[bool, opt("chart", help="Draw the wear curve.")] = False,
     width: ChartWidthOpt = 72,
     height: ChartHeightOpt = 20,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
@@ -370,130 +331,11 @@ def blade_show_command(
     print(render_history(history, Display(units, fractions)))
 
 
-def wear_rows_empty() -> tuple[list[str], list[list[Any]]]:
-    from sawplan.charts import wear_rows
-    from sawplan.life import wear_curve
-
-    headers, _ = wear_rows(wear_curve([1.0], [1.0]))
-    return headers, []
-
-
-def wear_chart_text(history: Any, units: UnitSystem | Display, width: int, height: int) -> str:
-    import sys
-
-    from sawplan.charts import wear_chart
-
-    if history.wear is None:
-        return (
-            f"blade {history.blade.tag}: no timed cuts yet, so no wear curve (log cuts with --time)"
-        )
-    off_saw = history.blade.status in ("retired", "removed")
-    text = wear_chart(
-        history.wear,
-        title=f"blade {history.blade.tag}: cutting rate against area cut",
-        units=units,
-        width=width,
-        height=height,
-        colorless=not sys.stdout.isatty(),
-        # a retired or removed blade's verdict is its life, not "still breaking in"
-        verdict=as_display(units).text(history.wear_summary) if off_saw else None,
-    )
-    return "\n".join([text, *history.wear_notes])
-
-
-def render_history(h: Any, units: UnitSystem | Display) -> str:
-    from sawplan.render import key_values, table
-
-    d = as_display(units)
-    b = h.blade
-    pairs = [
-        ("blade", f"{b.tag}: {describe(b, units)}"),
-        ("status", b.status + (f" on {b.saw}" if b.saw else "")),
-    ]
-    if b.status == "retired":
-        pairs.append(("retired", f"{b.retired_on}: {b.retire_cause}"))
-    made = [x for x in (b.supplier, f"lot {b.lot}" if b.lot else None, f"bought {b.bought_on}" if b.bought_on else None,
-                        _WELDED_TEXT.get(b.welded or "")) if x]  # fmt: skip
-    if made:
-        pairs.append(("from", ", ".join(made)))
-    if b.price is not None:
-        pairs.append(("price", fmt_money(b.price)))
-    pairs.append(
-        ("cut", f"{d.fmt('area', b.area_mm2)} in {b.cuts:,} cut{'' if b.cuts == 1 else 's'}")
-    )
-    if h.cost_per_m2 is not None:
-        per_unit = fmt_number(d.per("large_area", h.cost_per_m2 / 1e6))
-        pairs.append(("cost so far", f"{per_unit} per {d.label('large_area')} cut"))
-    if b.notes:
-        pairs.append(("notes", b.notes))
-    out = [key_values(pairs)]
-    if h.fittings:
-        rows = [
-            [f["saw"], f["fitted_on"], f["removed_on"] or "(on the saw)",
-             d.fmt("stress", f["tension_mpa"]) if f["tension_mpa"] is not None else "",
-             {None: "", 1: "yes", 0: "no"}[f["break_in"]] + (f" ({f['break_in_how']})" if f["break_in_how"] else "")]
-            for f in h.fittings
-        ]  # fmt: skip
-        out.append(
-            table(
-                ["saw", "fitted", "removed", "tension", "break-in"],
-                rows,
-                align="lllll",
-                title="\nfittings",
-            )
-        )
-    if h.cuts:
-        rows = [
-            [c["cut_on"], c["material"], section_text(d, c["section"]), c["count"],
-             d.num("area", c["area_mm2"]),
-             "" if c["time_min"] is None else fmt_number(c["time_min"]),
-             "" if c["predicted_time_min"] is None else fmt_number(c["predicted_time_min"]),
-             c["saw"] or "", c["job"] or ""]
-            for c in h.cuts[-h.shown_cuts:]
-        ]  # fmt: skip
-        title = (
-            "\ncuts"
-            if len(h.cuts) <= h.shown_cuts
-            else f"\nlast {h.shown_cuts} of {len(h.cuts)} entries"
-        )
-        headers = [
-            "date",
-            "material",
-            "section",
-            "cuts",
-            f"area {d.label('area')}",
-            "min",
-            "model min",
-            "saw",
-            "job",
-        ]
-        out.append(table(headers, rows, align="lllrrrrll", title=title))
-    if h.events:
-        rows = [[e["happened_on"], e["kind"], e["mode"] or "", e["teeth"] or "", e["location"] or "", e["note"] or ""]
-                for e in h.events]  # fmt: skip
-        out.append(
-            table(
-                ["date", "event", "mode", "teeth", "where", "note"],
-                rows,
-                align="llllll",
-                title="\nevents",
-            )
-        )
-    out.append("\nwear: " + d.text(h.wear_summary))
-    out.extend(h.wear_notes)
-    if h.wear is not None:
-        out.append(h.wear.caution)
-    return "\n".join(out)
-
-
 def register(app: typer.Typer) -> None:
-    group = typer.Typer(
-        help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
-    )
-    command(group, "add", ADD_HELP)(blade_add_command)
-    command(group, "fit", FIT_HELP)(blade_fit_command)
-    command(group, "remove", REMOVE_HELP)(blade_remove_command)
-    command(group, "retire", RETIRE_HELP)(blade_retire_command)
-    command(group, "list", LIST_HELP)(blade_list_command)
-    command(group, "show", SHOW_HELP)(blade_show_command)
-    app.add_typer(group, name="blade", help=HELP)
+    sub = group(app, "blade", HELP)
+    command(sub, "add", ADD_HELP)(blade_add_command)
+    command(sub, "fit", FIT_HELP)(blade_fit_command)
+    command(sub, "remove", REMOVE_HELP)(blade_remove_command)
+    command(sub, "retire", RETIRE_HELP)(blade_retire_command)
+    command(sub, "list", LIST_HELP)(blade_list_command)
+    command(sub, "show", SHOW_HELP)(blade_show_command)

@@ -20,9 +20,9 @@ from sawplan.cli.options import (
     UnitsOpt,
     command,
     opt,
+    saw_opt,
 )
 from sawplan.display import Display
-from sawplan.units import UnitSystem
 
 HELP = """Choose the blade, band speed and feed for one cut, and time it.
 
@@ -49,8 +49,12 @@ def cut_command(
     material: MaterialArg,
     section: SectionArg,
     saw: Annotated[
-        str, opt("saw", help="Saw profile (see `sawplan saw list`).", show_default=True)
-    ] = DEFAULT_SAW,
+        str,
+        saw_opt(
+            f"Saw profile (see `sawplan saw list`); default: config saw, else {DEFAULT_SAW}.",
+            DEFAULT_SAW,
+        ),
+    ] = None,
     blade_tpi: Annotated[
         str | None, opt("pitch", help="Evaluate this pitch, e.g. 3/4 or 6.")
     ] = None,
@@ -72,7 +76,7 @@ def cut_command(
     blade_price: Annotated[
         float | None, opt("blade_price", help="Blade price, for the cost per cut.")
     ] = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     db: DbOpt = None,
@@ -85,7 +89,7 @@ def cut_command(
     from sawplan.errors import UsageError
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
-    from sawplan.saws import check_capacity, get_saw
+    from sawplan.saws import check_capacity, get_saw, load_saws
     from sawplan.sections import parse_section
     from sawplan.store.lookup import BladeLog
     from sawplan.units import to_core
@@ -102,7 +106,7 @@ def cut_command(
     sec = parse_section(section, orientation=orient, bundle=bundle, nest=nest)
     log = BladeLog(db)
     the_saw = get_saw(saw, saws_file, extra=log.saws())
-    check_capacity(the_saw, sec)
+    check_capacity(the_saw, sec, load_saws(saws_file, log.saws()).values())
     calibration, calibration_n = log.calibration(the_saw.name, mat.group) or (1.0, 0)
     kw = {"dry": dry, "blade_material": blade_material, "calibration": calibration}
     summary = None

@@ -2,12 +2,11 @@
 
 from __future__ import annotations
 
-import dataclasses
-from dataclasses import dataclass, field
 from typing import Annotated, Any
 
 import typer
 
+from sawplan.cli.log_view import LoggedCut, cut_table, render_logged
 from sawplan.cli.options import (
     BundleOpt,
     CsvOpt,
@@ -26,12 +25,13 @@ from sawplan.cli.options import (
     UnitsOpt,
     arg,
     command,
+    group,
     opt,
+    saw_opt,
 )
-from sawplan.display import Display, as_display, fmt_number, fmt_plain, section_text
-from sawplan.units import UnitSystem
+from sawplan.display import Display, fmt_number, fmt_plain
 
-HELP = """Log what the blades cut (cuts) and what happened to them (events).
+HELP = """Log what the blades cut and what happened to them.
 
 \b
 Examples:
@@ -86,7 +86,9 @@ def log_cut_command(
     bundle: BundleOpt = None,
     nest: NestOpt = False,
     blade: Annotated[str | None, opt("blade")] = None,
-    saw: Annotated[str | None, opt("saw", help="The saw (picks its fitted blade).")] = None,
+    saw: Annotated[
+        str | None, saw_opt("The saw (picks its fitted blade).", use_config=False)
+    ] = None,
     cuts: Annotated[int, opt("cuts", show_default=True)] = 1,
     area: Annotated[
         str | None, opt("area", help="Area of one cut when less than the section, e.g. 20cm2.")
@@ -99,13 +101,14 @@ def log_cut_command(
     job: Annotated[str | None, opt("job")] = None,
     heat: Annotated[str | None, opt("heat")] = None,
     note: NoteOpt = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
     saws_file: SawsFileOpt = None,
     db: DbOpt = None,
 ) -> None:
+    from sawplan import config
     from sawplan.fields import parse
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
@@ -171,9 +174,11 @@ def log_cut_command(
 
         return load_saws(saws_file).get(name.strip().lower())
 
+    # the shop's configured saw only chooses between several saws that carry blades
+    shop_saw = config.get("saw") if blade is None and saw is None else None
     with connect(db) as database:
         entry_id, entry, after = record_cut(
-            database, blade, saw, entry_for, on=on, profile_of=profile_of
+            database, blade, saw, entry_for, on=on, profile_of=profile_of, preferred_saw=shop_saw
         )
     if json_out:
         result = LoggedCut(entry_id, after.tag, after.saw, after.area_mm2, tuple(notes), entry)
@@ -239,46 +244,6 @@ def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float |
     return result.cut_time_model_min, None
 
 
-@dataclass(frozen=True)
-class LoggedCut:
-    """The entry as written, for ``--json``."""
-
-    id: int
-    blade: str
-    saw: str | None
-    blade_area_mm2: float
-    notes: tuple[str, ...]
-    entry: Any = field(metadata={"json": False})
-
-    def json_extra(self) -> dict[str, Any]:
-        body = dataclasses.asdict(self.entry)
-        body.pop("blade_id")
-        body.pop("saw_id")
-        return body
-
-
-def render_logged(entry, sec, mat, blade, units: UnitSystem | Display, notes: list[str]) -> str:
-
-    d = as_display(units)
-    what = _cuts(entry.count)
-    lines = [
-        f"logged {what} of {mat.key} {d.section(sec)} on blade {blade.tag}"
-        + (f" ({blade.saw})" if blade.saw else ""),
-        f"  area {d.fmt('area', entry.area_mm2)}; blade total {d.fmt('area', blade.area_mm2)} "
-        f"in {_cuts(blade.cuts)}",
-    ]
-    if entry.time_min is not None or entry.predicted_time_min is not None:
-        measured = d.fmt("time", entry.time_min)
-        model = d.fmt("time", entry.predicted_time_min)
-        lines.append(f"  time measured {measured}, model {model}")
-    lines += [f"  note: {n}" for n in notes]
-    return "\n".join(lines)
-
-
-def _cuts(n: int) -> str:
-    return "1 cut" if n == 1 else f"{n:,} cuts"
-
-
 def log_event_command(
     tag: TagArg,
     kind: Annotated[str, arg("event_kind", help="teeth-lost, crooked, stall or failure.")],
@@ -315,7 +280,7 @@ def log_list_command(
     saw: Annotated[str | None, opt("saw", help="Only this saw.")] = None,
     job: Annotated[str | None, opt("job", help="Only this job.")] = None,
     limit: Annotated[int, opt("limit", show_default=True)] = 30,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
@@ -326,21 +291,11 @@ def log_list_command(
     from sawplan.store.records import list_cuts
 
     with connect(db, create=False) as database:
-        rows = list_cuts(database, blade=blade, saw=saw, job=job, limit=limit)
+        entries = list_cuts(database, blade=blade, saw=saw, job=job, limit=limit)
     if json_out:
-        print(to_json(rows, kind="cuts"))
+        print(to_json(entries, kind="cuts"))
         return
-    d = Display(units, fractions)
-    headers = ["id", "date", "blade", "saw", "material", "section", "cuts", f"area {d.label('area')}",
-               "min", "model min", "job", "heat"]  # fmt: skip
-    body = [
-        [r["id"], r["cut_on"], r["blade"], r["saw"] or "", r["material"],
-         section_text(d, r["section"]), r["count"], d.num("area", r["area_mm2"]),
-         "" if r["time_min"] is None else fmt_number(r["time_min"]),
-         "" if r["predicted_time_min"] is None else fmt_number(r["predicted_time_min"]),
-         r["job"] or "", r["heat"] or ""]
-        for r in rows
-    ]  # fmt: skip
+    headers, body = cut_table(entries, Display(units, fractions))
     if csv_out:
         print(to_csv(headers, body), end="")
     elif not body:
@@ -350,10 +305,7 @@ def log_list_command(
 
 
 def register(app: typer.Typer) -> None:
-    group = typer.Typer(
-        help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
-    )
-    command(group, "cut", CUT_HELP)(log_cut_command)
-    command(group, "event", EVENT_HELP)(log_event_command)
-    command(group, "list", LIST_HELP)(log_list_command)
-    app.add_typer(group, name="log", help=HELP)
+    sub = group(app, "log", HELP)
+    command(sub, "cut", CUT_HELP)(log_cut_command)
+    command(sub, "event", EVENT_HELP)(log_event_command)
+    command(sub, "list", LIST_HELP)(log_list_command)

@@ -31,8 +31,8 @@ with the same profile is reused.
 
 \b
 Examples:
-  sawplan import log-csv
-  sawplan import log-csv --db new-log.sqlite
+  sawplan import old-shop-csv
+  sawplan import old-shop-csv --db new-log.sqlite
 """
 
 BACKUP_HELP = """Copy the whole blade log into one FILE, safely while others use it.
@@ -85,6 +85,7 @@ def export_command(
     force: ForceOpt = False,
     db: DbOpt = None,
 ) -> None:
+    from sawplan.cli.progress import progress
     from sawplan.errors import NotFoundError
     from sawplan.store import connect, resolve_db
     from sawplan.store.exchange import export_csv
@@ -92,7 +93,10 @@ def export_command(
     where = resolve_db(db)
     if where.kind == "sqlite" and where.path is not None and not where.path.is_file():
         raise NotFoundError(f"no blade log at {where.label}", field="db", hint="give --db")
-    with connect(where, create=False) as database:
+    with (
+        connect(where, create=False) as database,
+        progress(f"exporting the blade log to {csvdir}"),
+    ):
         result = export_csv(database, csvdir, overwrite=force)
     counts = ", ".join(f"{n} {table}" for table, n in result.rows.items())
     print(f"exported to {result.folder}: {counts}")
@@ -102,10 +106,11 @@ def import_command(
     csvdir: Annotated[Path, arg("folder", help="Folder (or zip) holding the CSV files.")],
     db: DbOpt = None,
 ) -> None:
+    from sawplan.cli.progress import progress
     from sawplan.store import connect
     from sawplan.store.exchange import import_csv
 
-    with connect(db) as database:
+    with connect(db) as database, progress(f"importing {csvdir}"):
         result = import_csv(database, csvdir)
     counts = ", ".join(f"{n} {table}" for table, n in result.rows.items())
     print(f"imported from {result.folder}: {counts}")
@@ -116,9 +121,11 @@ def backup_command(
     force: ForceOpt = False,
     db: DbOpt = None,
 ) -> None:
+    from sawplan.cli.progress import progress
     from sawplan.store.backup import backup
 
-    result = backup(db, file, overwrite=force)
+    with progress(f"backing up the blade log to {file}"):
+        result = backup(db, file, overwrite=force)
     print(f"backed up {result.source} to {result.backup} ({result.bytes:,} bytes): {result.what}")
     if result.note:
         print(f"  ({result.note})")

@@ -6,6 +6,7 @@ from typing import Annotated
 
 import typer
 
+from sawplan.cli.materials_view import list_rows, render_one
 from sawplan.cli.options import (
     CsvOpt,
     FractionsOpt,
@@ -16,8 +17,7 @@ from sawplan.cli.options import (
     command,
     opt,
 )
-from sawplan.display import Display, as_display
-from sawplan.units import UnitSystem
+from sawplan.display import Display
 
 HELP = """List the materials sawplan knows, or show one with its sources.
 
@@ -26,14 +26,18 @@ Examples:
   sawplan materials
   sawplan materials --group austenitic-stainless
   sawplan materials 17-4PH
+  sawplan materials 1.4301
   sawplan materials --materials-file shop-materials.csv --csv
 """
 
 
 def materials_command(
-    key: Annotated[str | None, arg("material", help="Show this one material in full.")] = None,
+    key: Annotated[
+        list[str] | None,
+        arg("material", help="Show this one material in full: a key, UNS, EN or trade name."),
+    ] = None,
     group: Annotated[str | None, opt("group")] = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
@@ -44,13 +48,17 @@ def materials_command(
     from sawplan.render import to_csv, to_json
 
     cat = load_catalogue(materials_file)
-    if key is not None:
-        mat = cat.get(key)
-        print(
-            to_json(mat, kind="material")
-            if json_out
-            else render_one(mat, Display(units, fractions))
-        )
+    if key:
+        mat, alias = cat.resolve(" ".join(key))
+        if json_out:
+            print(to_json(mat, kind="material"))
+            return
+        if alias is not None:
+            print(alias.note() + "\n")
+        print(render_one(mat, Display(units, fractions)))
+        also = [a.alias for a in cat.aliases_of(mat.key)]
+        if also:
+            print("\nalso written: " + ", ".join(also))
         return
     if group is not None:
         if group not in cat.groups():
@@ -74,68 +82,7 @@ def materials_command(
         print("\n`sawplan materials KEY` shows one material with the source of each value.")
 
 
-def list_rows(mats, units: UnitSystem | Display):
-    from sawplan.display import fmt_number
-
-    d = as_display(units)
-    headers = [
-        "key",
-        "designation",
-        "UNS",
-        "group",
-        f"density {d.label('density')}",
-        "HB",
-        f"band speed {d.label('speed')}",
-    ]
-    rows = [
-        [
-            m.key,
-            m.designation,
-            m.uns,
-            m.group,
-            fmt_number(d.value("density", m.density_kg_m3), 3),
-            f"{m.hardness_hb:.0f}",
-            fmt_number(d.value("speed", m.band_speed_m_min), 2),
-        ]
-        for m in mats
-    ]
-    return headers, rows
-
-
 # The widths of cut the catalogue's speeds and rates are stated for (data/materials.csv).
-BAND_SPEED_CUT_MM = 101.6  # 4 in
-CUTTING_RATE_CUT_MM = 100.0
-
-
-def render_one(m, units: UnitSystem | Display) -> str:
-    from sawplan.render import key_values
-
-    d = as_display(units)
-    pairs = [
-        ("key", m.key),
-        ("designation", m.designation),
-        ("UNS", m.uns),
-        ("standard", m.standard),
-        ("group", m.group),
-        ("density", f"{d.fmt('density', m.density_kg_m3, 4)}   [{m.density_source}]"),
-        ("hardness", f"{m.hardness_hb:.0f} HB   [{m.hardness_source}]"),
-        (
-            f"band speed (bi-metal, coolant, {d.length(BAND_SPEED_CUT_MM)} cut)",
-            f"{d.fmt('speed', m.band_speed_m_min)}   [{m.band_speed_source}]",
-        ),
-        (
-            "unit cutting energy",
-            f"{d.fmt('energy_density', m.unit_energy_j_mm3)}   [{m.unit_energy_source}]",
-        ),
-        (
-            f"typical cutting rate ({d.length(CUTTING_RATE_CUT_MM)} cut)",
-            f"{d.fmt('rate', m.cutting_rate_cm2_min * 100)}   [{m.cutting_rate_source}]",
-        ),
-        ("work-hardens", "yes" if m.work_hardens else "no"),
-    ]
-    if getattr(m, "notes", ""):
-        pairs.append(("notes", m.notes))
-    return key_values(pairs)
 
 
 def register(app: typer.Typer) -> None:

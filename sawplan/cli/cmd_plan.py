@@ -18,14 +18,14 @@ from sawplan.cli.options import (
     command,
     opt,
 )
-from sawplan.display import Display, fmt_plain
+from sawplan.display import Display
 from sawplan.units import UnitSystem
 
-HELP = """Plan a job: cut lists from the stock on hand, time, blades and a quote.
+HELP = """Plan a job: cut lists from stock on hand, time, blades, quote.
 
 JOBFILE is a TOML file with a [job] table (name, kerf, trim, grip,
 min_remnant, saw, shop_rate, handling_time, blade_price, currency, customer,
-due, stock_file), [[stock]] entries (material, section, length, count, price or
+due, stock_file, remnant_credit), [[stock]] entries (material, section, length, count, price or
 price_per_kg, heat, location, remnant) and [[part]] entries (name, material,
 section, length, count, tolerance, drawing). Lengths carry their unit.
 stock_file names a CSV with the [[stock]] columns, in the job file's folder;
@@ -37,6 +37,13 @@ prints the bars to fetch, every cut from the head end, remnants to keep
 and settings per section, time, blades to have on hand and the quote.
 Nothing is written when the job has an error.
 
+When the stock on hand cannot finish the job, the plan shows what can be
+cut now under a SHORT banner, lists the bars to order (a [[stock]] line
+with count = 0 names a length to buy) and exits with status 8; --order
+prints the order list alone (--csv-dir DIR also writes it as order.csv).
+--time-limit bounds the whole plan; the same job always gives the same
+plan unless the limit stops the optimiser, which the plan then says.
+
 \b
 Examples:
   sawplan plan job.toml
@@ -45,6 +52,7 @@ Examples:
   sawplan plan job.toml --csv-dir out --saw large-column
   sawplan plan job.toml --json --db shop-log.sqlite
   sawplan plan job.toml --run cost
+  sawplan plan job.toml --order
 
 Estimates only: the saw maker's manual, the blade maker's data, shop rules and
 local regulations govern.
@@ -55,10 +63,11 @@ def plan_command(
     jobfile: Annotated[Path, arg("job_file", help="The job file (TOML).")],
     json_out: JsonOpt = False,
     csv_dir: Annotated[
-        Path | None, opt("csv_dir", help="Write cuts.csv, bars.csv and summary.csv into DIR.")
+        Path | None,
+        opt("csv_dir", help="Write cuts.csv, bars.csv, summary.csv and order.csv into DIR."),
     ] = None,
     sheet: Annotated[Path | None, opt("sheet")] = None,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     db: DbOpt = None,
     saw_name: Annotated[
@@ -68,16 +77,21 @@ def plan_command(
     materials_file: MaterialsFileOpt = None,
     time_limit: Annotated[
         float,
-        opt("time_limit", help="Seconds the optimiser may spend per section.", show_default=True),
-    ] = 5.0,
+        opt("time_limit", show_default=True),
+    ] = 10.0,
+    order: Annotated[bool, opt("order")] = False,
     allow: Annotated[bool, opt("allow")] = False,
     run: Annotated[str | None, opt("run")] = None,
-) -> None:
+) -> int:
     import sys
+    import time
 
+    started = time.perf_counter()
+
+    from sawplan.cli.progress import progress
     from sawplan.cutlist.jobfile.load import load_job
     from sawplan.cutlist.plan.job import plan_job
-    from sawplan.errors import UsageError
+    from sawplan.errors import ExitCode, UsageError
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
 
@@ -85,24 +99,24 @@ def plan_command(
         raise UsageError(
             "expected a saw name, got nothing", field="saw", hint="see `sawplan saw list`"
         )
-    if not 0 < time_limit <= 600:
-        raise UsageError(
-            f"must be between 0 and 600 s, got {fmt_plain(time_limit)}", field="time-limit"
-        )
     catalogue = load_catalogue(materials_file)
     job = load_job(jobfile, catalogue, allow_outside=allow)
+    job = with_shop_currency(job)
     from sawplan.store.lookup import BladeLog
 
     log = BladeLog(db)
     saw = choose_saw(job, saw_name, saws_file, log)
-    plan = plan_job(
-        job,
-        saw,
-        calibration_for=log.calibration,
-        life_for=log.life,
-        log_label=log.label,
-        time_limit_s=time_limit,
-    )
+    sections = len(job.groups())
+    what = f"planning {sections} section{'' if sections == 1 else 's'} on {saw.name}"
+    with progress(what, quiet=json_out):
+        plan = plan_job(
+            job,
+            saw,
+            calibration_for=log.calibration,
+            life_for=log.life,
+            log_label=log.label,
+            deadline=started + time_limit,
+        )
     quote = None
     if run is not None:
         from sawplan import fields
@@ -111,7 +125,9 @@ def plan_command(
         quote = plan_economics(plan, job, saw, log, fields.check_choice("run", run))
     d = Display(units, fractions)
     outputs = render_outputs(plan, d, csv_dir, sheet)
-    if json_out:
+    if order:
+        print(order_text(plan, d, json_out))
+    elif json_out:
         if quote is None:
             print(to_json(plan, kind="plan"))
         else:
@@ -130,10 +146,55 @@ def plan_command(
     written = write_all(outputs)
     for path in written:
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
+    return 0 if plan.complete else int(ExitCode.PLAN_INCOMPLETE)
+
+
+def order_text(plan, d: Display, json_out: bool) -> str:
+    """The order list alone: text (or 'nothing to order'), or JSON."""
+    if json_out:
+        from sawplan.render import to_json
+
+        return to_json({"complete": plan.complete, "order": order_rows(plan)}, kind="plan-order")
+    if plan.complete:
+        return "nothing to order: the stock on hand finishes the job"
+    from sawplan.cutlist.sheets.text import order_list
+
+    return order_list(plan, d)
+
+
+def order_rows(plan) -> list[dict]:
+    """One row per stock length to buy (metric, units in the keys)."""
+    return [
+        {
+            "group": o.group,
+            "stock_entry": o.stock_entry,
+            "bars": o.count,
+            "length_mm": o.length_mm,
+            "price_each": o.price_each,
+            "cost": o.price_each * o.count,
+            "pieces_not_planned": "; ".join(f"{name} x{n}" for name, n in f.pieces),
+        }
+        for f in plan.shortfalls
+        for o in f.order
+    ]
+
+
+def with_shop_currency(job):
+    """The job, priced in the configured currency when its [job] table names none."""
+    import dataclasses
+
+    from sawplan import config
+
+    currency = config.get("currency")
+    if job.header.currency or not currency:
+        return job
+    return dataclasses.replace(job, header=dataclasses.replace(job.header, currency=currency))
 
 
 def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
-    """``--saw``, else ``saw`` in [job], else the smallest saw that takes every section."""
+    """``--saw``, else ``saw`` in [job], else the configured saw when it takes every section,
+    else the smallest saw that does."""
+    from sawplan import config
     from sawplan.cutlist.jobfile.load import Where, located
     from sawplan.errors import BadDataError, SawplanError
     from sawplan.saws import check_capacity, get_saw, load_saws
@@ -151,6 +212,9 @@ def choose_saw(job, saw_name: str | None, saws_file: Path | None, log: Any):
         load_saws(saws_file, extra).values(),
         key=lambda s: (s.capacity_round_mm, s.capacity_rect_w_mm, s.name),
     )
+    shop_saw = config.get("saw")  # the shop's usual saw, when it takes the job
+    if shop_saw:
+        saws = [get_saw(shop_saw, saws_file, extra)] + saws
     for saw in saws:
         try:
             for section in sections:
@@ -216,7 +280,8 @@ def write_all(outputs: dict[Path, str]) -> list[Path]:
 
 
 def plan_csv(plan) -> dict[str, str]:
-    """cuts.csv, bars.csv and summary.csv (metric, units in the headers, cells neutralised)."""
+    """cuts.csv, bars.csv, summary.csv and order.csv (metric, units in the headers, cells
+    neutralised)."""
     from sawplan.render import to_csv
 
     cuts = to_csv(
@@ -259,7 +324,9 @@ def plan_csv(plan) -> dict[str, str]:
          "blades_consumed", "waste_pct", "material_cost"],
         rows,
     )  # fmt: skip
-    return {"cuts.csv": cuts, "bars.csv": bars, "summary.csv": summary}
+    keys = ["group", "stock_entry", "bars", "length_mm", "price_each", "cost", "pieces_not_planned"]
+    order = to_csv(keys, [[row[k] for k in keys] for row in order_rows(plan)])
+    return {"cuts.csv": cuts, "bars.csv": bars, "summary.csv": summary, "order.csv": order}
 
 
 def _r(value: float, digits: int = 1) -> float:

@@ -17,32 +17,34 @@ from sawplan.cli.options import (
     UnitsOpt,
     arg,
     command,
+    group,
     opt,
 )
-from sawplan.display import Display, as_display
-from sawplan.units import UnitSystem
+from sawplan.cli.saw_view import render_saw, saw_json, saw_table
+from sawplan.display import Display
 
-HELP = """Saw profiles: add your own saws to the blade log and list every saw known.
+HELP = """Saw profiles: add your own saws and list every saw known.
 
 \b
 Examples:
-  sawplan saw add "bay 2" --like mid-production --wheel 450mm --power 2.2kW
+  sawplan saw add "bay 3" --like mid-production --wheel 450mm --power 2.2kW
   sawplan saw list
 """
 
-ADD_HELP = """Keep a saw's profile in the blade log, so `sawplan blade fit` and
-`sawplan cut --saw NAME` can use it.
+ADD_HELP = """Keep a saw's profile in the blade log.
+
+`sawplan blade fit` and `sawplan cut --saw NAME` can then use it.
 
 Start from a known profile with --like and change what differs, or give every
 field. Sizes take units (mm, in); the speed range is LOW-HIGH with a unit.
 
 \b
 Examples:
-  sawplan saw add "bay 2" --like mid-production --wheel 450mm --power 1.5kW --speed-range 20-90m/min
+  sawplan saw add "bay 3" --like mid-production --wheel 450mm --power 1.5kW --speed-range 20-90m/min
   sawplan saw add hyd-330 --kind horizontal --wheel 400mm --blade-length 3660mm --blade-width 27mm --blade-thickness 0.9mm --speed-range 20-100m/min --power 1.5kW --efficiency 0.75 --capacity-round 260mm --capacity-rect 350x260mm --feed-type hydraulic --head-force 2500N
 """
 
-LIST_HELP = """List every saw known: packaged profiles, your saws file, and the blade log.
+LIST_HELP = """List every saw known: packaged, from your saws file and in the log.
 
 \b
 Examples:
@@ -110,7 +112,7 @@ def saw_add_command(
     wheels: Annotated[int | None, opt("wheels")] = None,
     notes: NoteOpt = None,
     replace: Annotated[bool, opt("replace")] = False,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     saws_file: SawsFileOpt = None,
@@ -203,48 +205,8 @@ def _quote(name: str) -> str:
     return f'"{name}"' if " " in name else name
 
 
-def render_saw(saw, units: UnitSystem | Display) -> str:
-    from sawplan.render import key_values
-
-    d = as_display(units)
-    length = d.label("length")
-    pairs = [
-        ("saw", saw.name),
-        ("kind", saw.kind),
-        ("wheels", f"{saw.wheel_count} × {d.fmt('length', saw.wheel_diameter_mm)}"),
-        (
-            "blade",
-            f"{d.bar_length(saw.blade_length_mm)} long, "
-            f"{d.num('length', saw.blade_width_mm)} × "
-            f"{d.num('length', saw.blade_thickness_mm)} {length}",
-        ),
-        ("band speed", f"{_speed_range(saw, d)}"),
-        ("motor", f"{d.fmt('power', saw.motor_power_w)} (efficiency {saw.drive_efficiency:g})"),
-        (
-            "capacity",
-            f"round {d.fmt('length', saw.capacity_round_mm)}, rectangle "
-            f"{d.num('length', saw.capacity_rect_w_mm)} × "
-            f"{d.num('length', saw.capacity_rect_h_mm)} {length}",
-        ),
-        (
-            "feed",
-            saw.feed_type
-            + (f", head force {d.fmt('force', saw.head_force_n)}" if saw.head_force_n else ""),
-        ),
-        ("coolant", "yes" if saw.coolant else "no"),
-        ("source", saw.source),
-    ]
-    if saw.notes:
-        pairs.append(("notes", saw.notes))
-    return key_values(pairs)
-
-
-def _speed_range(saw, d) -> str:
-    return f"{d.span_of('speed', saw.band_speed_min_m_min, saw.band_speed_max_m_min)}"
-
-
 def saw_list_command(
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     csv_out: CsvOpt = False,
@@ -261,50 +223,16 @@ def saw_list_command(
         fitted = fitted_on_saws(database)
     saws = list(load_saws(saws_file, logged).values())
     if json_out:
-        print(to_json([_saw_json(s, fitted) for s in saws], kind="saws"))
+        print(to_json([saw_json(s, fitted) for s in saws], kind="saws"))
         return
-    d = Display(units, fractions)
-    headers = [
-        "saw",
-        "kind",
-        f"wheel {d.label('length')}",
-        f"band speed {d.label('speed')}",
-        f"power {d.label('power')}",
-        f"round {d.label('length')}",
-        "feed",
-        "blade fitted",
-        "source",
-    ]
-    rows = [
-        [
-            s.name,
-            s.kind,
-            d.num("length", s.wheel_diameter_mm),
-            d.span_of("speed", s.band_speed_min_m_min, s.band_speed_max_m_min, unit=False),
-            d.num("power", s.motor_power_w),
-            d.num("length", s.capacity_round_mm),
-            s.feed_type,
-            fitted.get(s.name.lower(), ""),
-            s.source,
-        ]
-        for s in saws
-    ]
+    headers, rows = saw_table(saws, fitted, Display(units, fractions))
     if csv_out:
         print(to_csv(headers, rows), end="")
     else:
         print(table(headers, rows, align="llrrrrlll"))
 
 
-def _saw_json(saw, fitted: dict[str, str]) -> dict[str, Any]:
-    from sawplan.render import jsonable
-
-    return {**jsonable(saw), "blade_fitted": fitted.get(saw.name.lower())}
-
-
 def register(app: typer.Typer) -> None:
-    group = typer.Typer(
-        help=HELP, no_args_is_help=True, rich_markup_mode=None, add_completion=False
-    )
-    command(group, "add", ADD_HELP)(saw_add_command)
-    command(group, "list", LIST_HELP)(saw_list_command)
-    app.add_typer(group, name="saw", help=HELP)
+    sub = group(app, "saw", HELP)
+    command(sub, "add", ADD_HELP)(saw_add_command)
+    command(sub, "list", LIST_HELP)(saw_list_command)

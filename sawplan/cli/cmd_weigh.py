@@ -16,8 +16,8 @@ from sawplan.cli.options import (
     command,
     opt,
 )
+from sawplan.cli.weigh_view import render_weigh
 from sawplan.display import Display
-from sawplan.units import UnitSystem
 
 HELP = """Weigh a bar or blank and say how to lift it.
 
@@ -49,7 +49,7 @@ def weigh_command(
     travel: Annotated[str | None, opt("travel")] = None,
     twist: Annotated[float, opt("twist", show_default=True)] = 0.0,
     lifts_per_min: Annotated[float, opt("lifts_per_min", show_default=True)] = 0.2,
-    units: UnitsOpt = UnitSystem.METRIC,
+    units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     json_out: JsonOpt = False,
     materials_file: MaterialsFileOpt = None,
@@ -79,34 +79,6 @@ def weigh_command(
         print(to_json(result, kind="weigh"))
         return
     print(render_weigh(result, Display(units, fractions)))
-
-
-def render_weigh(r, d: Display) -> str:
-    from sawplan.render import key_values
-
-    pairs = [
-        ("material", f"{r.material} ({r.designation})"),
-        ("section", d.section(r.section_shape) if r.section_shape else r.section),
-        ("metal area", d.fmt("area", r.area_mm2)),
-        ("mass per length", d.fmt("mass_per_length", r.mass_per_length_kg_m)),
-        ("piece length", d.bar_length(r.length_mm)),
-        ("one piece", d.fmt("mass", r.weight_kg)),
-    ]
-    if r.count > 1:
-        pairs.append((f"{r.count:,} pieces", d.fmt("mass", r.lot_weight_kg)))
-    index = "—" if r.lifting_index == float("inf") else f"{r.lifting_index:.2f}"
-    pairs += [
-        (
-            "handling",
-            f"{r.handling} (lifting index {index}; one person's limit "
-            f"{d.fmt('mass', r.recommended_limit_kg)} at a {d.fmt('length', r.reach_cm * 10, 3)} "
-            "reach)",
-        ),
-        ("", d.text(r.advice)),
-    ]
-    pairs += [("caution" if i == 0 else "", d.text(c)) for i, c in enumerate(r.cautions)]
-    pairs.append(("", r.caution))
-    return key_values(pairs)
 
 
 def register(app: typer.Typer) -> None:

@@ -97,21 +97,60 @@ def arg(key: str, *, help: str | None = None, **extra) -> Any:
 # --- options shared by many commands --------------------------------------------------------
 
 
+def _configured(key: str, convert: Callable[[str], Any] = str) -> Callable[[Any], Any]:
+    """A callback giving an option left out its default: environment, config file, built-in."""
+
+    def resolve(value: Any) -> Any:
+        if value is not None:
+            return value
+        from sawplan import config
+
+        found = config.get(key)
+        return None if found is None else convert(found)
+
+    return resolve
+
+
 def _db(value: str | None) -> str | None:
+    """The blade log named, else the configured one; a log made by a failing command goes."""
+    from sawplan.cli.boundary import forget_new_log_on_failure
+
     if value is not None and not value.strip():
         from sawplan.errors import UsageError
 
         raise UsageError("expected a file name or database URL, got nothing", field="blade log")
-    return value
+    resolved = _configured("db")(value)
+    forget_new_log_on_failure(resolved)
+    return resolved
 
 
-UnitsOpt = Annotated[UnitSystem, opt("units")]
+def saw_opt(help: str, fallback: str | None = None, *, use_config: bool = True) -> Any:
+    """``--saw NAME``, defaulting to the configured saw (``use_config``), else ``fallback``."""
+    configured = _configured("saw") if use_config else (lambda value: value)
+
+    def resolve(value: str | None) -> str | None:
+        if value is not None and not value.strip():
+            from sawplan.errors import UsageError
+
+            raise UsageError("expected a saw name, got nothing", field="saw",
+                             hint="see `sawplan saw list`")  # fmt: skip
+        return configured(value) or fallback
+
+    return opt("saw", help=help, callback=resolve)
+
+
+UnitsOpt = Annotated[UnitSystem, opt("units", callback=_configured("units", UnitSystem))]
 FractionsOpt = Annotated[bool, opt("fractions")]
 JsonOpt = Annotated[bool, opt("json")]
 CsvOpt = Annotated[bool, opt("csv")]
 DbOpt = Annotated[str | None, opt("db", callback=_db)]
-MaterialsFileOpt = Annotated[Path | None, opt("materials_file", exists=True, dir_okay=False)]
-SawsFileOpt = Annotated[Path | None, opt("saws_file", exists=True, dir_okay=False)]
+MaterialsFileOpt = Annotated[
+    Path | None,
+    opt("materials_file", exists=True, dir_okay=False, callback=_configured("materials_file")),
+]
+SawsFileOpt = Annotated[
+    Path | None, opt("saws_file", exists=True, dir_okay=False, callback=_configured("saws_file"))
+]
 OrientOpt = Annotated[str | None, opt("orient")]
 BundleOpt = Annotated[str | None, opt("bundle")]
 NestOpt = Annotated[bool, opt("nest")]
@@ -121,8 +160,36 @@ ForceOpt = Annotated[bool, opt("force")]
 ConfidenceOpt = Annotated[float, opt("confidence", show_default=True)]
 ChartWidthOpt = Annotated[int, opt("chart_width", show_default=True)]
 ChartHeightOpt = Annotated[int, opt("chart_height", show_default=True)]
+
+
+def _material_words(ctx: typer.Context, words: list[str]) -> list[str]:
+    """Give the material the words a shell split off it: ``17-4 PH round 60mm``, ``AISI 304 …``.
+
+    The material argument comes first; while the section's first word is not a
+    shape and the material with it names a known material, it belongs to the name.
+    """
+    material = ctx.params.get("material")
+    if not material or not words:
+        return words
+    from sawplan.materials import load_catalogue
+    from sawplan.sections import canonical_shape
+
+    user_file = ctx.params.get("materials_file") or _configured("materials_file")(None)
+    catalogue = load_catalogue(user_file)
+    taken = 0
+    for n in (1, 2):
+        head = words[:n]
+        if len(words) <= n or canonical_shape(head[-1]) is not None:
+            break
+        if " ".join([material, *head]) in catalogue:
+            taken = n
+    if taken:
+        ctx.params["material"] = " ".join([material, *words[:taken]])
+    return words[taken:]
+
+
 MaterialArg = Annotated[str, arg("material")]
-SectionArg = Annotated[list[str], arg("section")]
+SectionArg = Annotated[list[str], arg("section", callback=_material_words)]
 TagArg = Annotated[str, arg("tag")]
 
 
@@ -223,3 +290,10 @@ def _arg_name(param: Any) -> str:
 def command(app: typer.Typer, name: str, help: str) -> Callable:
     """``app.command`` with sawplan's help layout."""
     return app.command(name, help=help, cls=Command)
+
+
+def group(app: typer.Typer, name: str, help: str) -> typer.Typer:
+    """A group of commands (``sawplan blade ...``); typed alone it prints its help."""
+    sub = typer.Typer(help=help, no_args_is_help=True, rich_markup_mode=None, add_completion=False)
+    app.add_typer(sub, name=name, help=help)
+    return sub

@@ -45,6 +45,11 @@ _OPTIONS = {
     "--nested": "nest",
 }
 _BUNDLE_HINT = "write ROWSxCOLS, e.g. 3x2 for 3 rows of 2"
+# marks the tool prints or a shop writes beside a size: "round Ø250 mm", "dia 60mm", "2in OD",
+# "hex 50 A/F mm"; a diameter mark alone makes the shape a round
+_DIAMETER_SIGNS = ("Ø", "ø", "⌀")
+_DIAMETER_WORDS = frozenset({"dia", "dia.", "diam", "diam.", "diameter", "od", "o.d.", "o/d"})
+_FLATS_WORDS = frozenset({"a/f", "af", "a.f.", "a/c"})
 
 
 def parse_bundle(text: str) -> tuple[int, int]:
@@ -99,6 +104,24 @@ def _take_options(tokens: list[str]) -> tuple[list[str], dict[str, str | bool]]:
             raise UsageError(f"given twice ({found[key]} and {value})", field=key)
         found[key] = value
     return rest, found
+
+
+def _drop_marks(tokens: list[str]) -> tuple[list[str], bool]:
+    """The words without diameter and across-flats marks, and whether a diameter mark was there."""
+    out: list[str] = []
+    diameter = False
+    for token in tokens:
+        low = token.lower()
+        if low in _DIAMETER_WORDS or low in _FLATS_WORDS:
+            diameter |= low in _DIAMETER_WORDS
+            continue
+        if token[:1] in _DIAMETER_SIGNS:
+            diameter = True
+            token = token[1:]
+            if not token:
+                continue
+        out.append(token)
+    return out, diameter
 
 
 def _ends_with_unit(token: str) -> bool:
@@ -192,6 +215,9 @@ def parse_section(
     Keyword options and options written inline must agree when both are given.
     """
     tokens, inline = _take_options(_tokens(words))
+    tokens, diameter = _drop_marks(tokens)
+    if diameter and tokens and canonical_shape(tokens[0]) is None:
+        tokens = ["round", *tokens]  # "Ø60mm" or "60mm OD" alone: a round
     if not tokens:
         raise UsageError(
             "expected a shape and its sizes, got nothing",

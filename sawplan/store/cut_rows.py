@@ -79,16 +79,23 @@ def cut_target(
     *,
     on: str,
     profile_of: Callable[[str], Saw | None] | None = None,
+    preferred_saw: str | None = None,
 ) -> CutTarget:
     """The blade a cut goes on: ``tag``, or the one fitted on ``saw`` (or the only fitted one).
 
-    The blade comes without its totals (area and cuts 0): a write step reads no cuts.
+    ``preferred_saw`` (the shop's configured saw) chooses only when no blade or saw
+    is named and several saws carry blades.  The blade comes without its totals
+    (area and cuts 0): a write step reads no cuts.
 
     A saw used for the first time is copied into the log from ``profile_of(name)``
     (the packaged saws and the user's saws file; asked only then).
     """
-    from sawplan.store.records import ensure_saw, find_saw, fitted_blade
+    from sawplan.store.records import ensure_saw, find_saw, fitted_blade, fitted_on_saws
 
+    if tag is None and saw is None and preferred_saw is not None:
+        fitted = fitted_on_saws(db)
+        if len(fitted) > 1 and preferred_saw.strip().lower() in fitted:
+            saw = preferred_saw
     if tag is None:
         blade, saw_name = fitted_blade(db, saw, totals=False)
     else:
@@ -119,6 +126,7 @@ def record_cut(
     *,
     on: str,
     profile_of: Callable[[str], Saw | None] | None = None,
+    preferred_saw: str | None = None,
 ) -> tuple[int, CutEntry, Blade]:
     """Log a cut on the blade fitted now, in one transaction with the look-up.
 
@@ -130,7 +138,8 @@ def record_cut(
     """
 
     def step() -> tuple[int, CutEntry]:
-        entry = make_entry(cut_target(db, tag, saw, on=on, profile_of=profile_of))
+        target = cut_target(db, tag, saw, on=on, profile_of=profile_of, preferred_saw=preferred_saw)
+        entry = make_entry(target)
         return _insert_cut(db, entry), entry
 
     entry_id, entry = run_write(db, step)

@@ -10,7 +10,7 @@ import difflib
 import math
 
 from sawplan.cutlist.jobfile.lines import TomlLines, Where, located
-from sawplan.cutlist.jobfile.types import MAX_LENGTH_MM
+from sawplan.cutlist.jobfile.types import MAX_LENGTH_MM, MAX_MONEY
 from sawplan.errors import BadDataError, SawplanError, UsageError
 
 
@@ -116,6 +116,10 @@ class JobEntry:
             raise self.fail(err, key)
         if value < 0:
             raise self.fail(BadDataError(f"must not be negative, got {value:g}", field=key), key)
+        high = _money_limit(self.table, key)
+        if value > high:
+            err = BadDataError(f"must be at most {high:,.0f}, got {value:g}", field=key)
+            raise self.fail(err, key)
         return float(value)
 
     def flag(self, key: str) -> bool:
@@ -123,6 +127,15 @@ class JobEntry:
         if not isinstance(value, bool):
             raise self.fail(BadDataError(f"expected true or false, got {value!r}", field=key), key)
         return value
+
+
+def _money_limit(table: str, key: str) -> float:
+    """The field table's upper limit for a money key of a job file (else MAX_MONEY)."""
+    from sawplan.fields import field_for
+
+    name = "job" if table == "[job]" else "stock"
+    rule = field_for(f"{name}.{key}")
+    return rule.high if rule is not None and rule.high is not None else MAX_MONEY
 
 
 def raw_stock_label(item: dict, i: int) -> str:

@@ -47,7 +47,7 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
-from sawplan.cutlist.jobfile.checks import check_parts_have_stock, check_supply, not_enough
+from sawplan.cutlist.jobfile.checks import check_parts_have_stock
 from sawplan.cutlist.jobfile.entry import JobEntry, raw_part_label, raw_stock_label
 from sawplan.cutlist.jobfile.lines import TomlLines, Where, located
 from sawplan.cutlist.jobfile.stock_file import resolve_stock_file, stock_file_entries
@@ -59,7 +59,10 @@ from sawplan.cutlist.jobfile.types import (
     JOB_KEYS,
     MAX_FILE_BYTES,
     MAX_LENGTH_MM,
+    MAX_PARTS,
+    MAX_PIECES,
     PART_KEYS,
+    REMNANT_CREDIT,
     STOCK_KEYS,
     TABLES,
     Job,
@@ -86,10 +89,8 @@ __all__ = [
     "SectionParser",
     "StockLine",
     "Where",
-    "check_supply",
     "load_job",
     "located",
-    "not_enough",
     "parse_job",
     "resolve_stock_file",
     "stock_key",
@@ -153,7 +154,8 @@ def parse_job(
     Checks every key and value, that each part has stock of the same material
     and section (canonical section spec and catalogue key), and that each part
     fits on the longest such bar once trim and grip are taken off.  Whether there
-    is *enough* stock depends on the kerf, so that check is :func:`check_supply`.
+    is *enough* stock on hand is found by planning (a short job is planned and
+    its shortfall listed).
     """
     if parse_section is None:
         from sawplan.sections import parse_section
@@ -251,6 +253,7 @@ def parse_job(
         )
     if not parts:
         raise located(BadDataError("has no [[part]] entries: nothing to cut"), Where(file, ""))
+    _check_size(parts, file)
 
     job_table = data.get("job", {})
     job_lines = {key: lines.key_line("[job]", 0, key) for key in job_table}
@@ -300,6 +303,23 @@ def stock_key(section: Any) -> str:
     return type(section)(section.shape, section.dims_mm).spec()
 
 
+def _check_size(parts: list[PartLine], file: str) -> None:
+    """The largest job accepted: its plan's time and memory are measured in bench/."""
+    pieces = sum(p.count for p in parts)
+    if len(parts) > MAX_PARTS:
+        err = BadDataError(
+            f"has {len(parts):,} [[part]] entries, at most {MAX_PARTS:,} in one job",
+            hint="split it into several jobs",
+        )
+        raise located(err, Where(file, ""))
+    if pieces > MAX_PIECES:
+        err = BadDataError(
+            f"asks for {pieces:,} pieces, at most {MAX_PIECES:,} in one job",
+            hint="split it into several jobs",
+        )
+        raise located(err, Where(file, ""))
+
+
 def _with_field(err: SawplanError, name: str) -> SawplanError:
     if err.field:
         return err
@@ -333,4 +353,16 @@ def _read_header(table: dict, lines: TomlLines, file: str, *, default_name: str)
         customer=entry.text("customer"),
         due=entry.text("due"),
         stock_file=entry.text("stock_file"),
+        remnant_credit=_remnant_credit(entry),
     )
+
+
+def _remnant_credit(entry: JobEntry) -> str:
+    value = entry.text("remnant_credit", default=REMNANT_CREDIT[0])
+    if value not in REMNANT_CREDIT:
+        err = BadDataError(
+            f"expected {' or '.join(repr(v) for v in REMNANT_CREDIT)}, got {value!r}",
+            field="remnant_credit",
+        )
+        raise entry.fail(err, "remnant_credit")
+    return value

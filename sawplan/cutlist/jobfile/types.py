@@ -13,7 +13,7 @@ from sawplan.cutlist.jobfile.lines import Where
 
 JOB_KEYS = (
     "name", "kerf", "trim", "grip", "min_remnant", "saw", "shop_rate", "handling_time",
-    "blade_price", "currency", "customer", "due", "stock_file",
+    "blade_price", "currency", "customer", "due", "stock_file", "remnant_credit",
 )  # fmt: skip
 STOCK_KEYS = (
     "material", "section", "length", "count", "price", "price_per_kg", "heat", "location",
@@ -29,6 +29,11 @@ DEFAULT_MIN_REMNANT_MM = 300.0  # common practice: tails under about a foot are 
 DEFAULT_HANDLING_TIME_MIN = 0.5  # common practice: advance, clamp and unload, per cut
 MAX_LENGTH_MM = 100_000.0  # a 100 m bar is a typing mistake
 MAX_FILE_BYTES = 5_000_000
+MAX_MONEY = 1e9  # a price, rate or value above a billion in any currency is a typing mistake
+# The largest job accepted (its plan's time and memory are measured in bench/bench_limits.py):
+MAX_PIECES = 100_000  # pieces in one job: a cut sheet longer than this is split into jobs
+MAX_PARTS = 2_000  # [[part]] entries in one job
+REMNANT_CREDIT = ("bar-price", "none")  # quote policy for remnants that go back on the rack
 
 
 @dataclass(frozen=True)
@@ -46,6 +51,9 @@ class JobHeader:
     customer: str
     due: str
     stock_file: str = ""  # as written in [job]; its lines are in Job.stock
+    # Quote: "bar-price" credits remnants put back on the rack at their bar's price
+    # per length (the job pays for the length it uses); "none" charges whole bars.
+    remnant_credit: str = "bar-price"
 
 
 @dataclass(frozen=True)

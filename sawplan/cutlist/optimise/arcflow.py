@@ -5,18 +5,22 @@ A bar is a path from position 0 to the capacity of its stock along arcs
 path longest first, which removes most symmetric paths.  The integer program
 (minimise the cost of the flow into the end node, demand rows >= pieces
 ordered, stock rows <= bars on hand) is solved by HiGHS through
-``scipy.optimize.milp``; the flow splits into one path per bar.  Used only when
+highspy; the flow splits into one path per bar.  Used only when
 rounding did not reach the bound and the graph is small (instances where
-rounding fails, such as bars filled exactly by three pieces, have small graphs).
+rounding fails, such as bars filled exactly by three pieces, have small graphs),
+and on a few bars at a time by the closing step (``repair``).  HiGHS gets a
+node limit, so the answer does not depend on the machine's speed; its time
+limit is only the search's safety stop.
 """
 
 from __future__ import annotations
 
-import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 from math import gcd
+from typing import Any
 
+from sawplan.cutlist.optimise.budget import Clock
 from sawplan.cutlist.optimise.problem import Bar, Problem, downsize
 
 
@@ -30,10 +34,11 @@ class ArcFlowResult:
 def solve_arc_flow(
     problem: Problem,
     *,
-    deadline: float,
+    clock: Clock,
     demand: Sequence[int] | None = None,
     limits: Sequence[int | None] | None = None,
     max_arcs: int = 15_000,
+    max_nodes: int = 200,
     cost_cap: float | None = None,
 ) -> ArcFlowResult | None:
     """Optimal plan for ``demand`` (default: the order) from the stock ``limits`` left.
@@ -42,8 +47,6 @@ def solve_arc_flow(
     None when the graph is too large, or no plan is found in time or under the cap.
     """
     import numpy as np
-    from scipy.optimize import Bounds, LinearConstraint, milp
-    from scipy.sparse import coo_matrix
 
     demand = problem.demand if demand is None else demand
     limits = problem.limits if limits is None else limits
@@ -98,37 +101,87 @@ def solve_arc_flow(
             if limits[s] is not None:
                 ub[a] = limits[s]
     n_rows = n_flow_rows + len(items)
-    matrix = coo_matrix((vals, (rows, cols)), shape=(n_rows, n_arcs)).tocsr()
     # Exactly the pieces wanted: a surplus piece can always become unused length.
     wanted = np.array([demand[j] for j in items], dtype=float)
-    constraints = [
-        LinearConstraint(
-            matrix,
-            np.concatenate([np.zeros(n_flow_rows), wanted]),
-            np.concatenate([np.zeros(n_flow_rows), wanted]),
-        )
-    ]
-    if cost_cap is not None:
-        constraints.append(LinearConstraint(cost.reshape(1, -1), -np.inf, cost_cap))
-    remaining = deadline - time.perf_counter()
-    if remaining <= 0.1:
+    row_bounds = np.concatenate([np.zeros(n_flow_rows), wanted])
+    if cost_cap is not None:  # one more row: the plan's cost
+        for a in np.flatnonzero(cost):
+            rows.append(n_rows)
+            cols.append(int(a))
+            vals.append(float(cost[a]))
+    remaining = clock.left()
+    if remaining <= 0.05:
+        clock.expired()
         return None
     # HiGHS checks its time limit only now and then (seen 1 s late): leave a margin.
-    remaining *= 0.5
-    res = milp(
+    status, x = _solve_mip(
         cost,
-        constraints=constraints,
-        integrality=np.ones(n_arcs),
-        bounds=Bounds(np.zeros(n_arcs), ub),
-        options={"time_limit": remaining},
+        (rows, cols, vals),
+        (row_bounds, np.inf if cost_cap is None else cost_cap),
+        ub,
+        time_limit=0.5 * remaining,
+        max_nodes=max_nodes,
     )
-    if res.status == 2:  # infeasible: no plan costs at most the cap
+    if status == "limit" and clock.left() <= 0.5 * remaining + 1e-3:
+        clock.fired = True  # HiGHS stopped on its time limit, not on its node limit
+    if status == "infeasible":  # no plan costs at most the cap
         return ArcFlowResult((), proven_optimal=True, none_under_cap=True)
-    if res.x is None:
+    if x is None:
         return None
-    flow = [int(round(v)) for v in res.x]
+    res_optimal = status == "optimal"
+    flow = [int(round(v)) for v in x]
     bars = _split_paths(all_arcs, flow, sink, demand)
-    return ArcFlowResult(tuple(downsize(problem, bars, limits)), proven_optimal=res.status == 0)
+    return ArcFlowResult(tuple(downsize(problem, bars, limits)), proven_optimal=res_optimal)
+
+
+def _solve_mip(
+    cost: Any,
+    triplets: tuple[list[int], list[int], list[float]],
+    row_bounds: tuple[Any, float],
+    ub: Any,
+    *,
+    time_limit: float,
+    max_nodes: int,
+) -> tuple[str, Any]:
+    """Integer min cost·x, rows fixed at ``row_bounds[0]`` (and a last row, the cost,
+    at most ``row_bounds[1]`` when finite), 0 <= x <= ub, by HiGHS's branch and bound."""
+    import highspy
+    import numpy as np
+
+    from sawplan.cutlist.optimise.highs import new_highs
+
+    rows, cols, vals = (np.asarray(v) for v in triplets)
+    fixed, cap = row_bounds
+    lower = fixed if cap == np.inf else np.concatenate([fixed, [-np.inf]])
+    upper = fixed if cap == np.inf else np.concatenate([fixed, [cap]])
+    n_rows, n_cols = len(lower), len(cost)
+    order = np.lexsort((rows, cols))
+    counts = np.bincount(cols, minlength=n_cols)
+    starts = np.concatenate([[0], np.cumsum(counts)[:-1]]).astype(np.int32)
+    highs = new_highs()
+    highs.setOptionValue("time_limit", float(time_limit))
+    highs.setOptionValue("mip_max_nodes", int(max_nodes))
+    highs.addRows(
+        n_rows, lower.astype(float), upper.astype(float), 0,
+        np.zeros(0, np.int32), np.zeros(0, np.int32), np.zeros(0),
+    )  # fmt: skip
+    highs.addCols(
+        n_cols, np.asarray(cost, float), np.zeros(n_cols), np.asarray(ub, float), len(order),
+        starts, rows[order].astype(np.int32), vals[order].astype(float),
+    )  # fmt: skip
+    highs.changeColsIntegrality(
+        n_cols, np.arange(n_cols, dtype=np.int32),
+        np.full(n_cols, highspy.HighsVarType.kInteger),
+    )  # fmt: skip
+    highs.run()
+    status = highs.getModelStatus()
+    if status == highspy.HighsModelStatus.kInfeasible:
+        return "infeasible", None
+    found = highs.getInfo().primal_solution_status == 2  # a feasible solution is known
+    x = np.asarray(highs.getSolution().col_value) if found else None
+    if status == highspy.HighsModelStatus.kOptimal:
+        return "optimal", x
+    return "limit", x
 
 
 def _item_arcs(

@@ -20,6 +20,7 @@ from sawplan.cutlist.optimise.types import Allowances, Demand, StockType
 from sawplan.errors import BadDataError
 
 LengthText = Callable[[int], str]
+MAX_BAR_PRICE = 1e9  # per bar, in any currency: more is a typing mistake
 
 
 @dataclass(frozen=True)
@@ -37,15 +38,21 @@ def make_instance(
     demand: Sequence[Demand],
     allow: Allowances,
     length_text: LengthText = str,
+    *,
+    allow_short: bool = False,
 ) -> Instance:
-    """Validate and build; raises BadDataError naming the field at fault."""
+    """Validate and build; raises BadDataError naming the field at fault.
+
+    ``allow_short``: a piece longer than any stock is left for the plan to
+    report as not placed instead of being refused.
+    """
     _check_allowances(allow)
     _check_stock(stock)
     _check_demand(demand)
     usable = {s.key: s.length - allow.trim - allow.grip for s in stock}
     longest = max(stock, key=lambda s: usable[s.key])
     for d in demand:
-        if d.length > usable[longest.key]:
+        if d.length > usable[longest.key] and not allow_short:
             raise BadDataError(
                 f"is {length_text(d.length)} long; the longest usable length of stock is "
                 f"{length_text(max(usable[longest.key], 0))} ({longest.key}: "
@@ -70,6 +77,7 @@ def make_instance(
         trim=allow.trim,
         grip=allow.grip,
         min_remnant=allow.min_remnant,
+        remnants=tuple(s.is_remnant for s in kept),
     )
     return Instance(problem, kept, tuple(demand), length_text)
 
@@ -80,12 +88,13 @@ def objective_costs(stock: Sequence[StockType]) -> tuple[float, ...]:
         return ()
     priced = [s.cost for s in stock if not s.is_remnant and s.cost > 0]
     reference = min(priced) if priced else 1.0
-    tie = 1e-3 * reference if priced else 1.0
+    tie = 1e-3 if priced else 1.0
     longest = max(s.length for s in stock)
+    # Scaled by the cheapest price, so the LP sees numbers near 1 whatever the currency.
     return tuple(
         (0.1 * tie * s.length / longest)
         if s.is_remnant
-        else (float(s.cost) + tie * s.length / longest)
+        else (float(s.cost) / reference + tie * s.length / longest)
         for s in stock
     )
 
@@ -134,6 +143,10 @@ def _check_stock(stock: Sequence[StockType]) -> None:
             )
         if not isinstance(s.cost, int | float) or not isfinite(s.cost) or s.cost < 0:
             raise BadDataError(f"cost must be a number >= 0, got {s.cost!r}", field=field)
+        if s.cost > MAX_BAR_PRICE:
+            raise BadDataError(
+                f"cost must be at most {MAX_BAR_PRICE:,.0f} per bar, got {s.cost:g}", field=field
+            )
 
 
 def _check_demand(demand: Sequence[Demand]) -> None:

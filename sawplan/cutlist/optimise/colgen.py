@@ -2,7 +2,7 @@
 
 Master LP:  minimise sum(cost_p x_p)  subject to  sum(a_jp x_p) >= demand_j  for
 every length j,  sum(x_p over fillings of stock s) <= on hand_s  for limited
-stock,  x >= 0.  It is solved with HiGHS through ``scipy.optimize.linprog``;
+stock,  x >= 0.  It is solved with HiGHS (highspy, dual simplex: ``solve_lp``);
 the duals of the demand rows price one bounded knapsack per stock length
 (reduced cost = cost_s - sum(dual_j a_j) + dual of the stock row) and any
 filling of negative reduced cost joins the master.  One artificial column per
@@ -16,16 +16,67 @@ stops as soon as rounding it up can no longer change.
 
 from __future__ import annotations
 
-import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 from math import ceil
 from typing import Any
 
+from sawplan.cutlist.optimise.budget import Clock
 from sawplan.cutlist.optimise.knapsack import solve_bounded_knapsack
 from sawplan.cutlist.optimise.problem import Problem
 
 _ROUND_EPS = 1e-6  # slack when rounding LP values up to whole bars
+
+
+def solve_lp(c: Any, a_ub: Any, b_ub: Any) -> tuple[Any, float, Any]:
+    """min c·x s.t. a_ub·x <= b_ub, x >= 0 by HiGHS's dual simplex (no presolve: these
+    masters are small and dense); returns x, the optimum and the row duals (>= 0)."""
+    import numpy as np
+
+    from sawplan.cutlist.optimise.highs import new_highs, optimal
+
+    n_rows, n_cols = a_ub.shape
+    highs = new_highs()
+    highs.setOptionValue("presolve", "off")
+    highs.setOptionValue("simplex_strategy", 1)  # dual simplex
+    nz = a_ub != 0
+    counts = nz.sum(axis=0)
+    starts = np.concatenate([[0], np.cumsum(counts)[:-1]]).astype(np.int32)
+    rows_t, cols_t = np.nonzero(nz.T)  # column-major order of the nonzeros
+    index = cols_t.astype(np.int32)
+    value = a_ub.T[rows_t, cols_t]
+    highs.addRows(
+        n_rows,
+        np.full(n_rows, -np.inf),
+        b_ub.astype(float),
+        0,
+        np.zeros(0, np.int32),
+        np.zeros(0, np.int32),
+        np.zeros(0),
+    )
+    highs.addCols(
+        n_cols,
+        c.astype(float),
+        np.zeros(n_cols),
+        np.full(n_cols, np.inf),
+        len(index),
+        starts,
+        index,
+        value.astype(float),
+    )
+    highs.run()
+    if highs.getModelStatus() != optimal():
+        highs.setOptionValue("presolve", "on")
+        highs.clearSolver()
+        highs.run()
+    if highs.getModelStatus() != optimal():
+        raise LpFailure(
+            f"master LP not solved: {highs.modelStatusToString(highs.getModelStatus())}"
+        )
+    solution = highs.getSolution()
+    x = np.asarray(solution.col_value)
+    duals = -np.asarray(solution.row_dual)
+    return x, float(highs.getInfo().objective_function_value), duals
 
 
 class LpFailure(RuntimeError):
@@ -67,7 +118,9 @@ class ColumnPool:
         return n
 
     def counts(self, column: int) -> tuple[int, ...]:
-        return tuple(int(round(v)) for v in self._matrix[:, column])
+        import numpy as np
+
+        return tuple(np.rint(self._matrix[:, column]).astype(np.int64).tolist())
 
     @property
     def matrix(self) -> Any:
@@ -99,9 +152,9 @@ def solve_master_lp(
     limits: Sequence[int | None],
     costs: Sequence[float],
     *,
-    deadline: float,
+    clock: Clock,
     bar_cost: float | None = None,
-    max_iterations: int = 5000,
+    max_iterations: int = 400,
     extra_columns: int = 4,
     smoothing: float = 0.8,
     near: float | None = None,
@@ -110,7 +163,8 @@ def solve_master_lp(
 
     ``bar_cost``: when every usable bar costs the same, stop once the bound and
     the master value round up to the same number of bars.  ``near``: stop once
-    the master value is within this much of the bound.  Pricing uses duals
+    the master value is within this much of the bound.  Work is bounded by
+    ``max_iterations``; the clock only stops it in an emergency.  Pricing uses duals
     smoothed towards those of the best bound so far (Wentges 1997), which cuts
     the number of master solves; a smoothed pricing that finds nothing is
     repeated with the master's own duals, so the result is exact.
@@ -128,7 +182,7 @@ def solve_master_lp(
     master = _Master(pool, rows, demand, limits, usable, costs)
     active = [i for i, s in enumerate(pool.stock) if s in usable_set]
     wanted = np.array([max(d, 0) for d in demand], dtype=float)
-    tol = 1e-9 * max(costs)
+    tol = 1e-9 * max(max(costs), 1e-9)
     best_bound = 0.0
     centre: _Duals | None = None
     iterations = 0
@@ -142,7 +196,7 @@ def solve_master_lp(
         tries = [duals] if centre is None else [_blend(centre, duals, smoothing), duals]
         for prices in tries:
             fillings, bound = _price(
-                problem, prices, demand, limits, usable, costs, wanted, extra_columns
+                problem, prices, demand, limits, usable, costs, wanted, extra_columns, z
             )
             if bound > best_bound:
                 best_bound, centre = bound, prices
@@ -156,7 +210,7 @@ def solve_master_lp(
             if new:
                 break
         converged = not new
-        done = converged or time.perf_counter() > deadline or iterations >= max_iterations
+        done = converged or iterations >= max_iterations or clock.expired()
         if bar_cost is not None and _rounds_up_alike(best_bound, z, bar_cost):
             done = True  # the bound already rounds up to the master's bar count
         if near is not None and z - best_bound <= near:
@@ -203,27 +257,51 @@ def _price(
     costs: Sequence[float],
     wanted: Any,
     extra_columns: int,
+    upper: float,
 ) -> tuple[list[tuple[int, tuple[int, ...]]], float]:
-    """Best fillings per stock under ``prices`` and the Farley bound these prices prove."""
+    """Best fillings per stock under ``prices`` and the lower bound these prices prove.
+
+    With every cost positive, Farley's bound; otherwise (free rack remnants
+    in a priced job) the Lagrangian bound of the item prices alone:
+    sum(d_j pi_j) + sum over limited stock of L_s min(0, c_s - K_s) + ``upper``
+    (the master value, above the LP optimum) times min(0, (c_s - K_s) / c_s) over
+    unlimited priced stock, K_s being the best filling's value.  Unlimited free
+    stock gives no bound but 0.
+    """
     capacities = problem.capacities
     bounds = [d if d > 0 else 0 for d in demand]
     top = max(capacities[s] for s in usable)
     table = solve_bounded_knapsack(problem.weights, list(prices.items), bounds, top)
     ratio = 0.0
+    lagrange = float(wanted @ prices.items)
+    worst_unlimited = 0.0
+    free_unlimited = False
     fillings: list[tuple[int, tuple[int, ...]]] = []
     for s in usable:
         stock_price = prices.stock.get(s, 0.0)
-        priced = table.value(capacities[s]) - stock_price
-        ratio = max(ratio, priced / costs[s])
+        value = table.value(capacities[s])
+        priced = value - stock_price
+        if costs[s] > 0:
+            ratio = max(ratio, priced / costs[s])
+        if limits[s] is not None:
+            lagrange += limits[s] * min(0.0, costs[s] - value)
+        elif costs[s] > 0:
+            worst_unlimited = min(worst_unlimited, (costs[s] - value) / costs[s])
+        elif value > 0:
+            free_unlimited = True
         if priced > costs[s]:
             fillings.append((s, table.filling(capacities[s])))
             above = costs[s] + stock_price
             for counts in table.good_fillings(capacities[s], above, extra_columns):
                 fillings.append((s, counts))
-    dual_value = float(wanted @ prices.items) - sum(
-        (limits[s] or 0) * v for s, v in prices.stock.items()
-    )
-    return fillings, dual_value / max(ratio, 1.0)
+    if all(costs[s] > 0 for s in usable):
+        dual_value = float(wanted @ prices.items) - sum(
+            (limits[s] or 0) * v for s, v in prices.stock.items()
+        )
+        return fillings, dual_value / max(ratio, 1.0)
+    if free_unlimited or upper == float("inf"):
+        return fillings, 0.0
+    return fillings, max(lagrange + upper * worst_unlimited, 0.0)
 
 
 class _Master:
@@ -246,13 +324,12 @@ class _Master:
         self.limits = limits
         self.costs = costs
         self.d_rows = np.array([demand[j] for j in rows], dtype=float)
-        self.big = 1e3 * max(max(costs), 1e-9)
+        self.big = 1e3 * max(max(costs), 1e-6)
         self.n_items = len(demand)
         self.keep = max(2 * len(rows), 100)
 
     def solve(self, active: list[int]) -> tuple[Any, float, _Duals]:
         import numpy as np
-        from scipy.optimize import linprog
 
         pool, rows = self.pool, self.rows
         a = pool.matrix[np.ix_(rows, active)] if active else np.zeros((len(rows), 0))
@@ -267,21 +344,14 @@ class _Master:
             blocks.append(e)
             b_ub.append(np.array([self.limits[s] for s in self.limited], dtype=float))
         c = np.concatenate([[self.costs[pool.stock[i]] for i in active], np.full(n_art, self.big)])
+        # HiGHS takes the matrix column-wise: handing it over sparse saves most of the
+        # wrapper's work on masters of a few hundred columns.
         a_ub, b = np.vstack(blocks), np.concatenate(b_ub)
-        # Dual simplex without presolve is fastest on these small dense masters; the
-        # default HiGHS set-up is the second try.
-        res = linprog(
-            c, A_ub=a_ub, b_ub=b, bounds=(0, None), method="highs-ds", options={"presolve": False}
-        )
-        if res.status != 0 or res.x is None:
-            res = linprog(c, A_ub=a_ub, b_ub=b, bounds=(0, None), method="highs")
-        if res.status != 0 or res.x is None:
-            raise LpFailure(f"master LP not solved: {res.message}")
-        marginals = -np.asarray(res.ineqlin.marginals)
+        x, fun, marginals = solve_lp(c, a_ub, b)
         items = np.zeros(self.n_items)
         items[rows] = np.maximum(marginals[: len(rows)], 0.0)
         stock = {s: max(float(marginals[len(rows) + r]), 0.0) for r, s in enumerate(self.limited)}
-        return np.asarray(res.x), float(res.fun), _Duals(items, stock)
+        return x, fun, _Duals(items, stock)
 
     def prune(self, active: list[int], x: Any, duals: _Duals) -> list[int]:
         """Keep the working set small: columns in use and those of least reduced cost."""

@@ -67,13 +67,14 @@ def pack_first_fit_decreasing(
     order = sorted(range(n_items), key=lambda j: -weights[j])
     for j in order:
         w = weights[j]
-        for _ in range(demand[j]):
+        wanted = demand[j]
+        while wanted > 0:
             bar = tree.first_with_room(w)
             if bar < 0:
                 s = _stock_to_open(problem, capacities, left, w)
                 if s is None:
-                    unplaced[j] += 1
-                    continue
+                    unplaced[j] += wanted
+                    break
                 if left[s] is not None:
                     left[s] -= 1
                 bar = tree.count
@@ -81,8 +82,13 @@ def pack_first_fit_decreasing(
                 stock_of.append(s)
                 fill.append([0] * n_items)
                 tree.set(bar, capacities[s])
-            fill[bar][j] += 1
-            tree.set(bar, tree.get(bar) - w)
+            # The first bar with room stays first until it is full, so its copies go in
+            # at once: the same packing as one piece at a time.
+            room = tree.get(bar)
+            take = min(wanted, room // w)
+            fill[bar][j] += take
+            tree.set(bar, room - take * w)
+            wanted -= take
     bars = [(s, tuple(counts)) for s, counts in zip(stock_of, fill, strict=True)]
     return downsize(problem, bars, limits), unplaced
 

@@ -16,10 +16,10 @@ Every move is checked on the plan's score, so the result is never worse.
 
 from __future__ import annotations
 
-import time
 from bisect import bisect_left, insort
 from collections.abc import Sequence
 
+from sawplan.cutlist.optimise.budget import Clock
 from sawplan.cutlist.optimise.problem import Bar, Problem, score
 
 
@@ -61,21 +61,21 @@ class _Plan:
 
 
 def gather_remnants(
-    problem: Problem, bars: Sequence[Bar], *, deadline: float, max_donors: int = 200
+    problem: Problem, bars: Sequence[Bar], *, clock: Clock, max_donors: int = 200
 ) -> list[Bar]:
     """Return ``bars`` with pieces moved so that less length is scrapped (never more)."""
     if problem.min_remnant <= 0 or len(bars) < 2:
         return list(bars)
     plan = _Plan(problem, bars)
-    _fill_scrap(plan, deadline)
-    _gather(plan, deadline, max_donors)
+    _fill_scrap(plan, clock)
+    _gather(plan, clock, max_donors)
     result = plan.bars()
     if score(problem, result).key() <= score(problem, bars).key():
         return result
     return list(bars)
 
 
-def _fill_scrap(plan: _Plan, deadline: float) -> None:
+def _fill_scrap(plan: _Plan, clock: Clock) -> None:
     weights = plan.problem.weights
     holders: list[list[int]] = [[] for _ in weights]  # bars with a kept tail holding item j
     for b, fill in enumerate(plan.fills):
@@ -87,7 +87,7 @@ def _fill_scrap(plan: _Plan, deadline: float) -> None:
         (b for b in range(len(plan.fills)) if plan.scrap(b)), key=lambda b: -plan.room[b]
     )
     for r in receivers:
-        if time.perf_counter() > deadline:
+        if clock.expired():
             return
         for j, w in enumerate(weights):  # longest first
             while w <= plan.room[r] and plan.scrap(r):
@@ -111,12 +111,12 @@ def _holder(plan: _Plan, holders: list[int], j: int, receiver: int) -> int:
     return -1
 
 
-def _gather(plan: _Plan, deadline: float, max_donors: int) -> None:
+def _gather(plan: _Plan, clock: Clock, max_donors: int) -> None:
     weights = plan.problem.weights
     n_bars = len(plan.fills)
     tried = 0
     for donor in sorted(range(n_bars), key=lambda b: -plan.room[b]):
-        if tried >= max_donors or time.perf_counter() > deadline:
+        if tried >= max_donors or clock.expired():
             return
         if not plan.scrap(donor):
             continue

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from operator import mul
 
 Bar = tuple[int, tuple[int, ...]]  # (stock index, copies of each item)
 
@@ -29,6 +30,7 @@ class Problem:
     trim: int
     grip: int
     min_remnant: int
+    remnants: tuple[bool, ...] = ()  # per stock type: a rack remnant on hand (else new stock)
     _sizes: dict[tuple[int, ...], tuple[int, int]] = field(
         default_factory=dict, init=False, repr=False, compare=False, hash=False
     )
@@ -38,12 +40,8 @@ class Problem:
         key = counts if isinstance(counts, tuple) else None
         if key is not None and key in self._sizes:
             return self._sizes[key]
-        n = 0
-        total = 0
-        for c, length in zip(counts, self.lengths, strict=True):
-            if c:
-                n += c
-                total += c * length
+        n = sum(counts)
+        total = sum(map(mul, counts, self.lengths))  # C-level loop: fast on 500-item orders
         if key is not None:
             self._sizes[key] = (n, total)
         return n, total
@@ -111,8 +109,15 @@ class PlanScore:
 
 def score(problem: Problem, bars: Sequence[Bar], unplaced: int = 0) -> PlanScore:
     cost = sum(problem.costs[s] for s, _ in bars)
-    waste = sum(problem.waste(s, counts) for s, counts in bars)
-    cuts = sum(problem.cuts(s, counts) for s, counts in bars)
+    waste = cuts = 0
+    for s, counts in bars:  # the arithmetic of Problem.waste and Problem.cuts, one size() each
+        n, pieces = problem.size(counts)
+        tail = problem.stock_lengths[s] - problem.trim - pieces - max(n - 1, 0) * problem.kerf
+        remnant = max(tail - problem.kerf, 0)
+        kept = remnant if remnant > 0 and remnant >= problem.min_remnant else 0
+        waste += problem.stock_lengths[s] - pieces - kept
+        if n:
+            cuts += (1 if problem.trim > 0 else 0) + n - (0 if tail > 0 else 1)
     return PlanScore(unplaced, cost, waste, cuts)
 
 

@@ -11,17 +11,18 @@ of LP re-solves, and a stop after many re-solves without a better plan).
 After every step the pieces left are packed by first-fit decreasing into a
 complete plan, and the first time they are few, exactly by arc-flow
 (``arcflow``) if its graph is small.  The search ends at the lower bound,
-when the dives run out, or at the deadline.
+when the dives run out (a budget of re-solves, ``budget.Effort``), or when
+the safety clock fires.
 """
 
 from __future__ import annotations
 
-import time
 from collections.abc import Sequence
 from dataclasses import dataclass
 from math import ceil, floor
 
 from sawplan.cutlist.optimise.arcflow import solve_arc_flow
+from sawplan.cutlist.optimise.budget import Clock, Effort
 from sawplan.cutlist.optimise.colgen import ColumnPool, LpFailure, LpOutcome, solve_master_lp
 from sawplan.cutlist.optimise.ffd import pack_first_fit_decreasing
 from sawplan.cutlist.optimise.problem import Bar, Problem, downsize, score
@@ -50,18 +51,6 @@ def reaches_bound(problem: Problem, plan: Incumbent, bound: float, bar_cost: flo
     return cost <= bound + 1e-9 * max(abs(bound), 1.0)
 
 
-@dataclass(frozen=True)
-class Effort:
-    """How hard the rounding search tries (beyond the deadline)."""
-
-    branches: int = 3  # fillings tried at each dive step
-    max_resolves: int = 200  # LP re-solves in all the dives
-    stall_limit: int = 60  # re-solves without a better plan before giving up
-    exact_pieces: int = 400  # try arc-flow on the rest once it is this few pieces...
-    exact_arcs: int = 8_000  # ...and its graph this small...
-    exact_seconds: float = 0.5  # ...for at most this long
-
-
 def round_and_repair(
     pool: ColumnPool,
     first_lp: LpOutcome,
@@ -69,15 +58,16 @@ def round_and_repair(
     *,
     bound: float,
     bar_cost: float | None,
-    deadline: float,
+    clock: Clock,
     effort: Effort = Effort(),
 ) -> Incumbent:
     """Best plan from rounding the LP, diving on the residual and packing the rest."""
-    search = _Search(pool, incumbent, bound, bar_cost, deadline, effort)
+    search = _Search(pool, incumbent, bound, bar_cost, clock, effort)
     start = _State([], list(pool.problem.demand), list(pool.problem.limits))
     lp = first_lp
-    # Round down the first LP once; every dive starts from what is left.
-    while lp.columns and not search.done():
+    # Round down the first LP (at least once, even when the clock has fired: it
+    # costs one first-fit pass); every dive starts from what is left.
+    while lp.columns:
         if not search.round_down(start, lp):
             break
         search.complete(start)
@@ -88,6 +78,17 @@ def round_and_repair(
             return search.best
     search.dive(start, lp)
     return search.best
+
+
+def close_enough(
+    problem: Problem, plan: Incumbent, bound: float, bar_cost: float | None, effort: Effort
+) -> bool:
+    """Several stock types: the plan's cost within ``effort.good_gap`` of the LP bound,
+    where a whole-bar search would chase hundredths of a percent."""
+    if bar_cost is not None or any(plan.unplaced) or bound <= 0:
+        return False
+    cost = sum(problem.costs[s] for s, _ in plan.bars)
+    return cost - bound <= effort.good_gap * cost
 
 
 @dataclass
@@ -109,7 +110,7 @@ class _Search:
         incumbent: Incumbent,
         bound: float,
         bar_cost: float | None,
-        deadline: float,
+        clock: Clock,
         effort: Effort,
     ) -> None:
         self.pool = pool
@@ -118,15 +119,17 @@ class _Search:
         self.best_key = incumbent.key(self.problem)
         self.bound = bound
         self.bar_cost = bar_cost
-        self.deadline = deadline
+        self.clock = clock
         self.effort = effort
         self.exact_tried = False
         self.resolves_left = effort.max_resolves
         self.stalled = 0  # LP re-solves since the best plan last improved
 
     def done(self) -> bool:
-        return time.perf_counter() > self.deadline or reaches_bound(
-            self.problem, self.best, self.bound, self.bar_cost
+        return (
+            self.clock.expired()
+            or reaches_bound(self.problem, self.best, self.bound, self.bar_cost)
+            or close_enough(self.problem, self.best, self.bound, self.bar_cost, self.effort)
         )
 
     def round_down(self, state: _State, lp: LpOutcome) -> bool:
@@ -205,8 +208,9 @@ class _Search:
                 state.demand,
                 state.limits,
                 self.problem.costs,
-                deadline=self.deadline,
+                clock=self.clock,
                 near=near,
+                max_iterations=self.effort.lp_iterations,
             )
         except LpFailure:
             return LpOutcome((), (), float("inf"), float("inf"), False, 0.0, 0)
@@ -223,8 +227,9 @@ class _Search:
             problem,
             demand=state.demand,
             limits=state.limits,
-            deadline=min(self.deadline, time.perf_counter() + self.effort.exact_seconds),
+            clock=self.clock,
             max_arcs=self.effort.exact_arcs,
+            max_nodes=self.effort.exact_nodes,
             cost_cap=self.cost_cap(state),
         )
         if exact is not None and not exact.none_under_cap:
@@ -258,7 +263,7 @@ def _cut(pool: ColumnPool, column: int, state: _State) -> bool:
     s = pool.stock[column]
     if limits[s] is not None and limits[s] <= 0:
         return False
-    counts = tuple(min(n, d) for n, d in zip(pool.counts(column), demand, strict=True))
+    counts = tuple(map(min, pool.counts(column), demand))
     if not any(counts):
         return False
     if limits[s] is not None:

@@ -1,34 +1,44 @@
-"""The search as a whole: FFD plan, column generation, rounding, exact step, polish.
+"""The search as a whole: FFD seed, column generation, rounding, closing step, polish.
 
-1. First-fit decreasing gives a plan at once (and the master's first columns).
+1. First-fit decreasing gives a plan at once (and the master's first columns):
+   a seed, and the answer only if nothing better is found.
 2. Column generation solves the LP and gives the lower bound.
-3. Rounding and repair (``rounding``) look for a plan meeting the bound.
-4. If none is found and the instance is small, the arc-flow integer program.
+3. Rounding and dives (``rounding``) look for a plan meeting the bound.
+4. If the plan is still above the bound, the closing step (``repair``) takes
+   a few bars at a time apart and re-packs them exactly (arc-flow); on a small
+   order the whole order goes to arc-flow first.
 5. Spare length is gathered into keepable remnants (``polish``).
-6. With several stock types, a second LP with every bar costing 1 bounds the bar count.
-If the LP fails or time runs out, the best plan so far (at worst FFD) stands.
+6. The bound is reported in the terms of the objective (``report``): bars with
+   one stock type; material cost (or new-stock length when nothing is priced)
+   with several, from the LP of that cost with the remnants on hand in it.
+Every stage keeps the best plan found so far; the work of each is budgeted
+(``budget.Effort``), and the wall clock only stops the search in an emergency.
 """
 
 from __future__ import annotations
 
-import time
 from dataclasses import dataclass
+from math import ceil
 
 from sawplan.cutlist.optimise.arcflow import solve_arc_flow
+from sawplan.cutlist.optimise.budget import Clock, Effort
 from sawplan.cutlist.optimise.build import Instance
-from sawplan.cutlist.optimise.colgen import ColumnPool, LpFailure, LpOutcome, solve_master_lp
+from sawplan.cutlist.optimise.colgen import ColumnPool, LpFailure, solve_master_lp
 from sawplan.cutlist.optimise.ffd import pack_first_fit_decreasing
 from sawplan.cutlist.optimise.polish import gather_remnants
 from sawplan.cutlist.optimise.problem import Bar, Problem
-from sawplan.cutlist.optimise.report import Bounds, material_bounds
+from sawplan.cutlist.optimise.repair import price_step, repair_plan
+from sawplan.cutlist.optimise.report import Bounds, material_bounds, objective_of, report_costs
 from sawplan.cutlist.optimise.rounding import (
     Incumbent,
+    close_enough,
     reaches_bound,
     round_and_repair,
     same_bar_cost,
 )
 
 _TINY = 1e-6
+_SMALL_ORDER_ARCS = 6_000  # the whole order goes to arc-flow when its graph is this small
 
 
 @dataclass(frozen=True)
@@ -38,17 +48,24 @@ class SearchOutcome:
     bounds: Bounds
     method: str
     proven_optimal: bool
+    stopped_by_time_limit: bool
 
 
-def search_plan(instance: Instance, *, deadline: float) -> SearchOutcome:
-    """Best plan found before ``deadline`` with its lower bounds."""
+def search_plan(instance: Instance, *, clock: Clock, effort: Effort = Effort()) -> SearchOutcome:
+    """Best plan within the work budget (or until ``clock`` fires) with its lower bounds."""
     problem = instance.problem
     first_bars, first_unplaced = pack_first_fit_decreasing(problem)
-    ffd = Incumbent(tuple(first_bars), tuple(first_unplaced))
-    best, method = ffd, "first-fit-decreasing"
+    best = Incumbent(tuple(first_bars), tuple(first_unplaced))
+    method = "first-fit-decreasing"
     bounds = material_bounds(instance)
     bar_cost = same_bar_cost(problem)
     proven = False
+    if not any(best.unplaced) and _meets_report_bound(problem, best.bars, bounds):
+        # FFD already meets the length bound: nothing can be better, no LP needed
+        bars = tuple(
+            gather_remnants(problem, best.bars, clock=clock, max_donors=effort.polish_donors)
+        )
+        return SearchOutcome(bars, best.unplaced, bounds, method, True, clock.fired)
     try:
         pool = _seeded_pool(problem, first_bars)
         lp = solve_master_lp(
@@ -56,34 +73,76 @@ def search_plan(instance: Instance, *, deadline: float) -> SearchOutcome:
             problem.demand,
             problem.limits,
             problem.costs,
-            deadline=deadline,
+            clock=clock,
             bar_cost=bar_cost,
+            max_iterations=effort.lp_iterations,
         )
         objective_bound = max(lp.bound, bounds.objective)
-        bounds = _lp_bounds(problem, pool, lp, bounds, bar_cost)
-        best = round_and_repair(
-            pool, lp, ffd, bound=objective_bound, bar_cost=bar_cost, deadline=deadline
-        )
-        if best is not ffd:
-            method = "column-generation"
-        proven = reaches_bound(problem, best, objective_bound, bar_cost)
         stock_short = lp.shortfall > _TINY
-        if not proven and not stock_short and time.perf_counter() < deadline:
-            exact = solve_arc_flow(problem, deadline=deadline, cost_cap=_cap(problem, best))
-            if exact is not None and not exact.none_under_cap:
-                candidate = Incumbent(exact.bars, (0,) * len(problem.lengths))
-                if candidate.key(problem) < best.key(problem):
-                    best, method = candidate, "arc-flow"
-            if exact is not None:
-                proven = exact.proven_optimal and not any(best.unplaced)
-        if bar_cost is None and not any(best.unplaced):
-            bounds = _bar_count_bound(problem, pool, bounds, deadline)
+        bounds = Bounds(bounds.bars, objective_bound, bounds.cost)
+        if bar_cost is not None and not stock_short:
+            bounds = Bounds(max(lp.bound / bar_cost, bounds.bars), objective_bound, bounds.cost)
+        rounded = round_and_repair(
+            pool, lp, best, bound=objective_bound, bar_cost=bar_cost, clock=clock, effort=effort
+        )
+        if rounded.key(problem) < best.key(problem):
+            best, method = rounded, "column-generation"
+        proven = reaches_bound(problem, best, objective_bound, bar_cost)
+        near = close_enough(problem, best, objective_bound, bar_cost, effort)
+        if not proven and not near and not stock_short and not clock.expired():
+            best, method, proven = _close(problem, best, method, objective_bound, clock, effort)
+        if not stock_short and not clock.expired():
+            bounds = _report_bound(problem, pool, bounds, clock, effort)
     except LpFailure:
         pass
     bars = best.bars
     if not any(best.unplaced):
-        bars = tuple(gather_remnants(problem, bars, deadline=time.perf_counter() + 0.25))
-    return SearchOutcome(bars, best.unplaced, bounds, method, proven)
+        bars = tuple(gather_remnants(problem, bars, clock=clock, max_donors=effort.polish_donors))
+    if not proven and not any(best.unplaced):
+        proven = _meets_report_bound(problem, bars, bounds)
+    return SearchOutcome(bars, best.unplaced, bounds, method, proven, clock.fired)
+
+
+def _close(
+    problem: Problem,
+    best: Incumbent,
+    method: str,
+    bound: float,
+    clock: Clock,
+    effort: Effort,
+) -> tuple[Incumbent, str, bool]:
+    """The exact steps: arc-flow on a small order, then repair rounds on the plan."""
+    bar_cost = same_bar_cost(problem)
+    proven = False
+    exact = solve_arc_flow(
+        problem,
+        clock=clock,
+        max_arcs=_SMALL_ORDER_ARCS,
+        max_nodes=effort.exact_nodes,
+        cost_cap=_cap(problem, best),
+    )
+    if exact is not None and not exact.none_under_cap:
+        candidate = Incumbent(exact.bars, (0,) * len(problem.lengths))
+        if candidate.key(problem) < best.key(problem):
+            best, method = candidate, "arc-flow"
+    # Proof: an optimal plan under the cap is optimal outright; "none under the cap"
+    # proves it only when every bar costs the same (then the cap is one bar less).
+    if exact is not None and exact.proven_optimal and (exact.bars or bar_cost is not None):
+        return best, method, True
+    if reaches_bound(problem, best, bound, bar_cost):
+        return best, method, True
+    if exact is not None and exact.none_under_cap:
+        return best, method, False  # the whole order was searched: no saving of a step
+
+    def good_enough(bars: object) -> bool:
+        return reaches_bound(problem, Incumbent(tuple(bars), best.unplaced), bound, bar_cost)
+
+    repaired = repair_plan(problem, best.bars, clock=clock, effort=effort, good_enough=good_enough)
+    candidate = Incumbent(tuple(repaired), best.unplaced)
+    if candidate.key(problem) < best.key(problem):
+        best, method = candidate, "column-generation + exact repair"
+    proven = reaches_bound(problem, best, bound, bar_cost)
+    return best, method, proven
 
 
 def _seeded_pool(problem: Problem, first_bars: list[Bar]) -> ColumnPool:
@@ -102,41 +161,54 @@ def _seeded_pool(problem: Problem, first_bars: list[Bar]) -> ColumnPool:
     return pool
 
 
-def _lp_bounds(
-    problem: Problem, pool: ColumnPool, lp: LpOutcome, fallback: Bounds, bar_cost: float | None
+def _report_bound(
+    problem: Problem, pool: ColumnPool, bounds: Bounds, clock: Clock, effort: Effort
 ) -> Bounds:
-    """Bounds from the first LP; the bar bound only when all bars cost the same.
+    """Several stock types: the LP of the reported objective and the LP of the bar count.
 
-    The cost is that of the master's solution, scaled by bound / value when column
-    generation stopped before the LP optimum (exact for one stock type).
+    The reported objective is the material cost as priced (rack remnants at the
+    price given, usually nothing) or, with nothing priced, the length of new
+    stock; its LP, remnants on hand included, bounds the plan's figure.
     """
-    cost = sum(
-        problem.prices[pool.stock[c]] * x for c, x in zip(lp.columns, lp.values, strict=True)
-    )
-    if lp.value > 0:
-        cost *= min(lp.bound / lp.value, 1.0)
-    bars = lp.bound / bar_cost if bar_cost else fallback.bars
-    return Bounds(
-        max(bars, fallback.bars), max(lp.bound, fallback.objective), max(cost, fallback.cost)
-    )
-
-
-def _bar_count_bound(problem: Problem, pool: ColumnPool, bounds: Bounds, deadline: float) -> Bounds:
-    """Several stock types: the LP with every bar costing 1 bounds the number of bars."""
-    ones = (1.0,) * len(problem.stock_lengths)
+    if same_bar_cost(problem) is not None:
+        return bounds
     try:
-        lp = solve_master_lp(
-            pool, problem.demand, problem.limits, ones, deadline=deadline, bar_cost=1.0
+        cost = solve_master_lp(
+            pool,
+            problem.demand,
+            problem.limits,
+            report_costs(problem),
+            clock=clock,
+            max_iterations=effort.lp_iterations,
+        )
+        bars = solve_master_lp(
+            pool,
+            problem.demand,
+            problem.limits,
+            (1.0,) * len(problem.stock_lengths),
+            clock=clock,
+            bar_cost=1.0,
+            max_iterations=effort.lp_iterations,
         )
     except LpFailure:
         return bounds
-    return Bounds(max(bounds.bars, lp.bound), bounds.objective, bounds.cost)
+    return Bounds(max(bounds.bars, bars.bound), bounds.objective, max(bounds.cost, cost.bound))
+
+
+def _meets_report_bound(problem: Problem, bars: tuple[Bar, ...], bounds: Bounds) -> bool:
+    """The plan's reported figure equals its bound (bars: ⌈LP⌉; cost or length: the LP)."""
+    if objective_of(problem) == "bars":
+        return len(bars) <= ceil(bounds.bars - _TINY)
+    value = sum(report_costs(problem)[s] for s, _ in bars)
+    return value <= bounds.cost + 1e-9 * max(abs(bounds.cost), 1.0)
 
 
 def _cap(problem: Problem, best: Incumbent) -> float | None:
-    """Most a plan may cost to beat ``best`` (one bar less when all bars cost the same)."""
+    """Most a plan may cost to beat ``best`` by a real step: the smallest difference
+    two bars' prices can make (one bar less when all bars cost the same).  Tie-break
+    tokens (a remnant instead of nothing) are not worth an exact search."""
     if any(best.unplaced):
         return None
     cost = sum(problem.costs[s] for s, _ in best.bars)
-    step = same_bar_cost(problem) or 1e-6 * max(cost, 1.0)
+    step = price_step(problem)
     return cost - step + 1e-6 * step

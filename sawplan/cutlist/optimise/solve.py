@@ -24,8 +24,9 @@ adds up the ``cost`` given for every bar used, remnants included.
 Method: Gilmore-Gomory column generation with a bounded-knapsack pricing step,
 rounding with repeated re-solves of the residual and first-fit decreasing for
 the last pieces, an exact arc-flow integer program when rounding stops short of
-the bound on a small instance, and first-fit decreasing alone as the fallback
-(see ``search``).
+the bound on a small order, a closing step that re-packs a few bars at a time
+exactly, and first-fit decreasing as the seed every later stage must beat
+(see ``search``).  The work is budgeted (``budget``): same input, same plan.
 """
 
 from __future__ import annotations
@@ -33,6 +34,7 @@ from __future__ import annotations
 import time
 from collections.abc import Sequence
 
+from sawplan.cutlist.optimise.budget import Clock, Effort
 from sawplan.cutlist.optimise.build import LengthText, make_instance, shortage_error
 from sawplan.cutlist.optimise.ffd import pack_first_fit_decreasing
 from sawplan.cutlist.optimise.report import Bounds, build_plan, material_bounds
@@ -43,6 +45,7 @@ __all__ = [
     "BarPattern",
     "CutPlan",
     "Demand",
+    "Effort",
     "StockType",
     "first_fit_decreasing",
     "optimise",
@@ -55,31 +58,45 @@ def optimise(
     allow: Allowances = Allowances(),
     *,
     time_limit_s: float = 5.0,
+    deadline: float | None = None,
     length_text: LengthText = str,
+    allow_short: bool = False,
+    effort: Effort | None = None,
 ) -> CutPlan:
     """Cheapest plan cutting every piece ordered from the stock given.
 
-    ``time_limit_s`` bounds the search (the best plan so far is returned; a soft
-    limit: the last LP step, HiGHS and the final polish may add a few tenths);
+    The search is budgeted by work (``effort``), so the same input gives the
+    same plan; ``time_limit_s`` (or an absolute ``deadline`` on
+    ``time.perf_counter()``) is a safety stop: when it fires, the best plan
+    so far is returned and ``stopped_by_time_limit`` says so.
     ``length_text`` formats lengths in error messages (e.g. appends the unit).
-    Raises BadDataError for impossible data, a part no bar can hold, or too
-    little stock on hand.
+    ``allow_short``: when the stock on hand cannot hold every piece, return the
+    plan of what it can hold, the rest in ``CutPlan.unplaced``; otherwise that
+    raises BadDataError, as do impossible data and a part no bar can hold.
     """
     from sawplan.cutlist.optimise.search import search_plan
 
     started = time.perf_counter()
-    instance = make_instance(stock, demand, allow, length_text)
-    if not instance.problem.lengths:
+    if deadline is None:
+        deadline = started + max(time_limit_s, 0.0)
+    instance = make_instance(stock, demand, allow, length_text, allow_short=allow_short)
+    problem = instance.problem
+    if not problem.lengths or not problem.stock_lengths:
+        # nothing to cut, or (only with allow_short) no bar holds any piece
         return build_plan(
             instance,
             [],
             Bounds(0.0, 0.0, 0.0),
             method="none",
             started=started,
-            proven_optimal=True,
+            proven_optimal=not problem.lengths,
+            unplaced=problem.demand if problem.lengths else (),
         )
-    outcome = search_plan(instance, deadline=started + max(time_limit_s, 0.0))
-    if any(outcome.unplaced):
+    # The search stops in time to leave the last sixth of the limit for the polish
+    # and for writing the plan out (neither is interrupted).
+    search_end = started + (deadline - started) * 0.85
+    outcome = search_plan(instance, clock=Clock(search_end), effort=effort or Effort())
+    if any(outcome.unplaced) and not allow_short:
         raise shortage_error(instance, outcome.unplaced)
     return build_plan(
         instance,
@@ -87,7 +104,9 @@ def optimise(
         outcome.bounds,
         method=outcome.method,
         started=started,
-        proven_optimal=outcome.proven_optimal,
+        proven_optimal=outcome.proven_optimal and not any(outcome.unplaced),
+        unplaced=outcome.unplaced,
+        stopped_by_time_limit=outcome.stopped_by_time_limit,
     )
 
 

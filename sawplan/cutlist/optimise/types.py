@@ -73,6 +73,20 @@ class CutPlan:
     cuts: int = 0  # saw cuts in total
     kept_remnant_length: int = 0  # total length of kept remnants
     proven_optimal: bool = False
+    objective: str = "bars"  # "bars" | "cost" | "length"
+    objective_value: float = 0.0
+    objective_bound: float = 0.0
+    unplaced: tuple[tuple[str, int], ...] = ()
+    stopped_by_time_limit: bool = False
+
+    @property
+    def complete(self) -> bool:
+        return not self.unplaced
+
+    @property
+    def gap(self) -> float:
+        """Plan figure less its bound, in the objective's units (0: proven optimal)."""
+        return max(self.objective_value - self.objective_bound, 0.0)
 
     @property
     def bar_count(self) -> int:

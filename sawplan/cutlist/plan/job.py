@@ -16,14 +16,22 @@ from __future__ import annotations
 from collections.abc import Callable
 from typing import Any
 
-from sawplan.cutlist.jobfile.checks import check_supply
 from sawplan.cutlist.jobfile.lines import located
 from sawplan.cutlist.jobfile.types import Job
 from sawplan.cutlist.plan.blades import LifeLookup, blade_life, blades_on_hand
 from sawplan.cutlist.plan.section import RESOLUTION_PER_MM, plan_section
-from sawplan.cutlist.plan.types import BarCut, JobPlan, PieceCut, Remnant, SectionPlan
+from sawplan.cutlist.plan.types import (
+    BarCut,
+    JobPlan,
+    OrderLine,
+    PieceCut,
+    QuoteLine,
+    Remnant,
+    SectionPlan,
+    Shortfall,
+)
 from sawplan.cutlist.sheets.bar_layout import bar_layout
-from sawplan.display import join, say
+from sawplan.display import Q, join, say
 from sawplan.errors import SawplanError
 
 __all__ = [
@@ -34,9 +42,12 @@ __all__ = [
     "CalibrationLookup",
     "JobPlan",
     "LifeLookup",
+    "OrderLine",
     "PieceCut",
+    "QuoteLine",
     "Remnant",
     "SectionPlan",
+    "Shortfall",
     "bar_layout",
     "plan_job",
 ]
@@ -68,6 +79,7 @@ def plan_job(
     life_for: LifeLookup | None = None,
     log_label: str = "no blade log",
     time_limit_s: float = 5.0,
+    deadline: float | None = None,
     confidence: float = CONFIDENCE,
 ) -> JobPlan:
     """Lay out, time, blade and cost ``job`` on ``saw``.
@@ -75,9 +87,21 @@ def plan_job(
     ``calibration_for(saw_name, material_group)`` and ``life_for(material_group)``
     read the blade log (the CLI passes them); without them the model's times and
     the documented default lives (``sawplan.store.default_life``) are used, and the
-    plan's notes say so.
+    plan's notes say so.  ``time_limit_s`` (or an absolute ``deadline`` on
+    ``time.perf_counter()``) bounds the whole plan: each section's optimiser gets
+    a share (by its pieces, at least an equal share of what is left); a tenth
+    is kept for everything after the layouts.
     """
+    import time
+
     from sawplan.cutting import recommend
+
+    now = time.perf_counter()
+    if deadline is None:
+        deadline = now + time_limit_s
+    layouts_end = deadline - 0.1 * max(deadline - now, 0.0)
+    pieces_left = sum(p.count for p in job.parts)
+    groups_left = len(job.groups())
 
     marks = {p.index: _mark(i) for i, p in enumerate(job.parts)}
     sections: list[SectionPlan] = []
@@ -101,14 +125,21 @@ def plan_job(
             raise located(err, where) from None
         kerf_mm = job.header.kerf_mm if job.header.kerf_mm is not None else cut.kerf_mm
         kerf_source = "job file" if job.header.kerf_mm is not None else "recommended blade"
-        check_supply(job, group, kerf_mm)
         if material.group not in lives:
             lives[material.group], log_note = blade_life(material.group, life_for)
             if log_note:
                 notes.append(say("{}: {}", material.group, log_note))
+        group_pieces = sum(p.count for p in job.parts if p.group == group)
+        now = time.perf_counter()
+        # a share by pieces, but at least an equal share of what is left (a
+        # section that finishes early leaves its time to the next)
+        share = max(group_pieces / max(pieces_left, 1), 1 / groups_left)
+        pieces_left -= group_pieces
+        groups_left -= 1
         section_plan, group_bars = plan_section(
             job, group, material, section, cut, factor, n_cal, kerf_mm, kerf_source,
-            lives[material.group], marks, first_bar=len(bars) + 1, time_limit_s=time_limit_s,
+            lives[material.group], marks, first_bar=len(bars) + 1,
+            deadline=now + max(layouts_end - now, 0.0) * share,
         )  # fmt: skip
         sections.append(section_plan)
         bars.extend(group_bars)
@@ -120,7 +151,13 @@ def plan_job(
     area_cm2 = sum(s.cut_area_cm2 for s in sections)
     consumed = sum(s.blades_consumed for s in sections)
     needed, method, life_note = blades_on_hand(sections, lives, consumed, confidence)
-    material_cost = sum(s.material_cost for s in sections)
+    bars_cost = sum(s.material_cost for s in sections)
+    credit = 0.0
+    if h.remnant_credit == "bar-price":
+        credit = sum(b.cost * b.remnant_mm / b.length_mm for b in bars if b.remnant_kept)
+    material_cost = bars_cost - credit
+    shortfalls = tuple(s.shortfall for s in sections if s.shortfall is not None)
+    order_cost = sum(o.count * o.price_each for f in shortfalls for o in f.order)
     saw_cost = (h.shop_rate_per_h or 0.0) * (cut_min + handling_min) / 60.0
     blade_cost = (h.blade_price or 0.0) * consumed
     stock_len = sum(s.stock_length_mm for s in sections)
@@ -146,6 +183,12 @@ def plan_job(
                 )
             )
     notes.append(life_note)
+    if any(s.stopped_by_time_limit for s in sections):
+        late = ", ".join(s.group for s in sections if s.stopped_by_time_limit)
+        notes.append(
+            f"the time limit stopped the optimiser for {late}: the best layout found so far "
+            "is shown with its bound (a longer --time-limit may find a better one)"
+        )
 
     remnants = tuple(
         Remnant(b.bar, b.group, b.remnant_mm, b.heat, b.location, b.remnant_weight_kg)
@@ -170,7 +213,13 @@ def plan_job(
         stock_length_mm=stock_len,
         waste_mm=waste,
         waste_pct=100.0 * waste / stock_len if stock_len else 0.0,
-        total_weight_kg=sum(b.weight_kg for b in bars),
+        complete=not shortfalls,
+        shortfalls=shortfalls,
+        proven_optimal=all(s.proven_optimal for s in sections),
+        stopped_by_time_limit=any(s.stopped_by_time_limit for s in sections),
+        bars_weight_kg=sum(b.weight_kg for b in bars),
+        pieces_weight_kg=sum(p.weight_kg for b in bars for p in b.pieces),
+        remnants_weight_kg=sum(r.weight_kg for r in remnants),
         total_cut_time_min=cut_min,
         total_handling_time_min=handling_min,
         total_time_min=cut_min + handling_min,
@@ -182,14 +231,117 @@ def plan_job(
         blade_forecast_method=method,
         blade_life_source=join("; ", [say("{}: {}", g, src) for g, (_l, src, _f) in lives.items()]),
         material_cost=material_cost,
+        bars_cost=bars_cost,
+        remnant_credit=credit,
+        remnant_policy=h.remnant_credit,
+        order_cost=order_cost,
         saw_cost=saw_cost,
         blade_cost=blade_cost,
         total_cost=material_cost + saw_cost + blade_cost,
+        quote=_quote(
+            bars,
+            remnants,
+            h,
+            (cut_min + handling_min, consumed),
+            (saw_cost, blade_cost),
+            shortfalls,
+            order_cost,
+        ),
         shop_rate_per_h=h.shop_rate_per_h,
         blade_price=h.blade_price,
         notes=tuple(notes),
         cautions=_lift_cautions(bars) + _shape_cautions(job) + CAUTIONS,
     )
+
+
+def _quote(
+    bars: list[BarCut],
+    remnants: tuple[Remnant, ...],
+    h: Any,
+    work: tuple[float, float],
+    costs: tuple[float, float],
+    shortfalls: tuple[Shortfall, ...],
+    order_cost: float,
+) -> tuple[QuoteLine, ...]:
+    """The quote line by line, each naming its basis (amounts in the job's currency)."""
+    minutes, blades = work
+    saw_cost, blade_cost = costs
+    stock_mm = sum(b.length_mm for b in bars)
+    bars_cost = sum(b.cost for b in bars)
+    lines = [
+        QuoteLine(
+            "material: bars",
+            say(
+                "{} bar(s), {}, each at its stock line's price (rack remnants at the price "
+                "given, none: already paid for)",
+                len(bars),
+                Q("bar_length", stock_mm),
+            ),
+            bars_cost,
+        )
+    ]
+    kept = Q("bar_length", sum(r.length_mm for r in remnants))
+    if h.remnant_credit == "bar-price":
+        credit = sum(b.cost * b.remnant_mm / b.length_mm for b in bars if b.remnant_kept)
+        lines.append(
+            QuoteLine(
+                "material: rack credit",
+                say(
+                    "{} remnant(s), {} back on the rack, credited at their bar's price per "
+                    "length (the job pays for the length it uses)",
+                    len(remnants),
+                    kept,
+                ),
+                -credit,
+            )
+        )
+    else:
+        lines.append(
+            QuoteLine(
+                "material: rack credit",
+                say(
+                    '{} remnant(s), {} back on the rack, not credited (remnant_credit = "none": '
+                    "whole bars charged)",
+                    len(remnants),
+                    kept,
+                ),
+                0.0,
+            )
+        )
+    rate = f" at {h.shop_rate_per_h:,.2f}/h" if h.shop_rate_per_h is not None else ""
+    lines.append(
+        QuoteLine(
+            "saw time",
+            say(
+                "{} cutting and handling{}",
+                Q("time", minutes),
+                rate if h.shop_rate_per_h is not None else " (no shop_rate: not charged)",
+            ),
+            saw_cost,
+        )
+    )
+    each = f" at {h.blade_price:,.2f} each" if h.blade_price is not None else ""
+    lines.append(
+        QuoteLine(
+            "blade wear",
+            f"{blades:.3f} blade(s) worn{each}"
+            + ("" if h.blade_price is not None else " (no blade_price: not charged)"),
+            blade_cost,
+        )
+    )
+    total = sum(line.amount for line in lines)
+    lines.append(QuoteLine("total", "the lines above", total))
+    if shortfalls:
+        n = sum(o.count for f in shortfalls for o in f.order)
+        lines.append(
+            QuoteLine(
+                "stock to order (not in the total)",
+                f"{n} whole bar(s) bought for the short sections, at their stock line's price; "
+                "their cutting is not quoted until the plan is complete",
+                order_cost,
+            )
+        )
+    return tuple(lines)
 
 
 def _lift_cautions(bars: list[BarCut]) -> tuple[str, ...]:

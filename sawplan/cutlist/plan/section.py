@@ -4,6 +4,11 @@ Time: time per cut (cutting model, × the blade log's calibration factor for
 this saw and material group when there is one) × cuts, plus the handling and
 indexing time per cut.  The optimiser works in whole 0.1 mm; lengths are
 rounded against the plan (see ``_up`` and ``_down``).
+
+Short stock: the optimiser lays out what the bars on hand can hold; the pieces
+left over are planned a second time, by the same optimiser, on the group's
+lengths of new stock as many as needed (stock lines with count 0 are lengths
+to buy), and those bars are the order list.
 """
 
 from __future__ import annotations
@@ -13,7 +18,7 @@ from typing import Any
 
 from sawplan.cutlist.jobfile.lines import located
 from sawplan.cutlist.jobfile.types import Job
-from sawplan.cutlist.plan.types import BarCut, SectionPlan
+from sawplan.cutlist.plan.types import BarCut, OrderLine, SectionPlan, Shortfall
 from sawplan.cutlist.sheets.bar_layout import bar_cost, bar_cut
 from sawplan.display import Q, say
 from sawplan.errors import SawplanError
@@ -36,27 +41,21 @@ def plan_section(
     marks: dict[int, str],
     *,
     first_bar: int,
-    time_limit_s: float,
+    deadline: float,
 ) -> tuple[SectionPlan, list[BarCut]]:
-    """The group's plan and its bars (numbered from ``first_bar``), from the optimiser's layout."""
-    from sawplan.cutlist.optimise.solve import Allowances, Demand, StockType, optimise
+    """The group's plan and its bars (numbered from ``first_bar``), from the optimiser's layout.
+
+    ``deadline`` (on ``time.perf_counter()``) is the optimiser's safety stop.
+    """
+    from sawplan.cutlist.optimise.solve import Allowances, Demand, optimise
 
     h = job.header
     kg_per_m = mass_per_length_kg_m(section.area_mm2, material.density_kg_m3)
-    stock = [s for s in job.stock if s.group == group and s.count != 0]
+    lines = [s for s in job.stock if s.group == group]
+    stock = [s for s in lines if s.count != 0]
     parts = [p for p in job.parts if p.group == group]
-    by_stock = {f"S{s.index}": s for s in stock}
+    by_stock = {f"S{s.index}": s for s in lines}
     by_part = {f"P{p.index}": p for p in parts}
-    stock_types = [
-        StockType(
-            key=key,
-            length=_down(s.length_mm),
-            count=s.count,
-            cost=bar_cost(s, kg_per_m),
-            is_remnant=s.remnant,
-        )
-        for key, s in by_stock.items()
-    ]
     demand = [Demand(key=key, length=_up(p.length_mm), count=p.count) for key, p in by_part.items()]
     allow = Allowances(
         kerf=_up(kerf_mm),
@@ -64,22 +63,32 @@ def plan_section(
         grip=_up(h.grip_mm),
         min_remnant=_up(h.min_remnant_mm),
     )
-    try:
-        result = optimise(
-            stock_types,
-            demand,
-            allow,
-            time_limit_s=time_limit_s,
-            length_text=lambda units: f"{units / RESOLUTION_PER_MM:g} mm",
-        )
-    except SawplanError as err:  # e.g. too few bars for the layout, though enough length
-        raise located(err, job.where(stock[0])) from None
-
     # material and section, its sizes shown again in the display units (a Phrase)
     label = say("{} {}", material.key, Q("section", section))
+    length_text = _length_text
+    try:
+        result = (
+            optimise(
+                _stock_types(stock, kg_per_m),
+                demand,
+                allow,
+                deadline=deadline,
+                length_text=length_text,
+                allow_short=True,
+            )
+            if stock
+            else None
+        )
+        unplaced = dict(result.unplaced) if result is not None else {d.key: d.count for d in demand}
+        shortfall = (
+            _order(label, lines, by_part, unplaced, allow, kg_per_m, deadline) if unplaced else None
+        )
+    except SawplanError as err:
+        raise located(err, job.where(lines[0])) from None
+    layout = result.bars if result is not None else ()
     time_per_cut = cut.cut_time_min
     bars: list[BarCut] = []
-    for i, pattern in enumerate(result.bars):
+    for i, pattern in enumerate(layout):
         s = by_stock[pattern.stock_key]
         pieces = [by_part[k] for k in pattern.pieces]
         bars.append(
@@ -94,7 +103,7 @@ def plan_section(
     waste = max(stock_len - made - kept, 0.0)
     area_cm2 = cuts * section.area_mm2 / 100.0
     life_cm2, life_source, _fit = life
-    lp_bound = int(math.ceil(result.lp_bound_bars - 1e-9))
+    lp_bound = int(math.ceil(result.lp_bound_bars - 1e-9)) if result is not None else 0
     warnings = tuple(cut.warnings)
     steps = tuple(cut.breakin)
     plan = SectionPlan(
@@ -115,8 +124,15 @@ def plan_section(
         bars_used=len(bars),
         lp_bound_bars=lp_bound,
         gap_bars=len(bars) - lp_bound,
-        method=str(result.method),
-        solve_seconds=float(result.solve_seconds),
+        method=str(result.method) if result is not None else "none",
+        solve_seconds=float(result.solve_seconds) if result is not None else 0.0,
+        objective=_objective(result),
+        objective_value=_in_mm(result, result.objective_value if result else 0.0),
+        objective_bound=_in_mm(result, result.objective_bound if result else 0.0),
+        gap=_in_mm(result, result.gap if result else 0.0),
+        proven_optimal=bool(result is not None and result.proven_optimal and not shortfall),
+        stopped_by_time_limit=bool(result is not None and result.stopped_by_time_limit),
+        shortfall=shortfall,
         stock_length_mm=stock_len,
         waste_mm=waste,
         waste_pct=100.0 * waste / stock_len if stock_len else 0.0,
@@ -145,6 +161,94 @@ def plan_section(
         breakin_cuts=float(sum(step.cuts for step in steps)),
     )
     return plan, bars
+
+
+def _stock_types(stock: list, kg_per_m: float) -> list:
+    from sawplan.cutlist.optimise.solve import StockType
+
+    return [
+        StockType(
+            key=f"S{s.index}",
+            length=_down(s.length_mm),
+            count=s.count,
+            cost=bar_cost(s, kg_per_m),
+            is_remnant=s.remnant,
+        )
+        for s in stock
+    ]
+
+
+def _length_text(units: int) -> str:
+    return f"{units / RESOLUTION_PER_MM:g} mm"
+
+
+def _objective(result: Any) -> str:
+    return "bars" if result is None else str(result.objective)
+
+
+def _in_mm(result: Any, value: float) -> float:
+    """The optimiser's figures in the plan's units: length objectives in mm, else as they are."""
+    if result is not None and result.objective == "length":
+        return value / RESOLUTION_PER_MM
+    return float(value)
+
+
+def _order(
+    label: str,
+    lines: list,
+    by_part: dict,
+    unplaced: dict[str, int],
+    allow: Any,
+    kg_per_m: float,
+    deadline: float,
+) -> Shortfall:
+    """What to buy to finish the section: the same optimiser on the lengths of new stock.
+
+    Orderable: every new-stock length of the group (lines with count 0 are
+    lengths to buy), as many as needed; with only rack remnants in the job, the
+    longest of them.
+    """
+    from dataclasses import replace
+
+    from sawplan.cutlist.optimise.solve import Demand, optimise
+
+    new = [s for s in lines if not s.remnant]
+    basis = "new-stock lengths of the job, cheapest plan"
+    if not new:
+        new = [max(lines, key=lambda s: s.length_mm)]
+        basis = "no new-stock length in the job: ordered at the longest rack remnant's length"
+    seen: dict[float, Any] = {}
+    for s in sorted(new, key=lambda s: (s.length_mm, s.index)):
+        seen.setdefault(s.length_mm, s)
+    buyable = [replace(s, count=None, remnant=False) for s in seen.values()]
+    demand = [
+        Demand(key=key, length=_up(by_part[key].length_mm), count=n) for key, n in unplaced.items()
+    ]
+    plan = optimise(
+        _stock_types(buyable, kg_per_m),
+        demand,
+        allow,
+        deadline=deadline,
+        length_text=_length_text,
+    )
+    counts: dict[str, int] = {}
+    for bar in plan.bars:
+        counts[bar.stock_key] = counts.get(bar.stock_key, 0) + 1
+    by_key = {f"S{s.index}": s for s in buyable}
+    order = tuple(
+        OrderLine(
+            label, n, by_key[key].length_mm, bar_cost(by_key[key], kg_per_m), by_key[key].index
+        )
+        for key, n in sorted(counts.items(), key=lambda kv: by_key[kv[0]].length_mm)
+    )
+    pieces = tuple((by_part[key].name, n) for key, n in unplaced.items())
+    return Shortfall(
+        group=label,
+        pieces=pieces,
+        order=order,
+        length_mm=sum(o.count * o.length_mm for o in order),
+        note=basis,
+    )
 
 
 # Lengths off the 0.1 mm grid (inch sizes: a 0.063 in kerf is 1.6002 mm) are

@@ -56,6 +56,37 @@ class BarCut:
 
 
 @dataclass(frozen=True)
+class OrderLine:
+    """Bars to buy to finish a short section: ``count`` × ``length_mm``."""
+
+    group: str
+    count: int
+    length_mm: float
+    price_each: float  # from the job's stock line of that length (0 when unpriced)
+    stock_entry: int  # the [[stock]] entry whose length and price are ordered
+
+
+@dataclass(frozen=True)
+class Shortfall:
+    """A section the stock on hand cannot finish: what is not planned and what to buy."""
+
+    group: str
+    pieces: tuple[tuple[str, int], ...]  # (part name, pieces not planned)
+    order: tuple[OrderLine, ...]
+    length_mm: float  # total length of the bars to order
+    note: str  # how the order was chosen
+
+
+@dataclass(frozen=True)
+class QuoteLine:
+    """One line of the quote: what it charges, on what basis, and the amount."""
+
+    item: str
+    basis: str
+    amount: float
+
+
+@dataclass(frozen=True)
 class SectionPlan:
     """One material and section: the optimiser's result, blade settings, time and cost."""
 
@@ -78,6 +109,13 @@ class SectionPlan:
     gap_bars: int
     method: str
     solve_seconds: float
+    objective: str  # what the gap is measured in: "bars", "cost" or "length" (mm of new stock)
+    objective_value: float
+    objective_bound: float  # LP bound of the same problem, rack remnants included (bars: ⌈LP⌉)
+    gap: float  # objective_value - objective_bound
+    proven_optimal: bool
+    stopped_by_time_limit: bool  # the wall clock, not the work budget, ended the search
+    shortfall: Shortfall | None  # stock on hand too short: pieces not planned, bars to order
     stock_length_mm: float
     waste_mm: float
     waste_pct: float
@@ -139,7 +177,13 @@ class JobPlan:
     stock_length_mm: float
     waste_mm: float
     waste_pct: float
-    total_weight_kg: float
+    complete: bool  # every piece planned (else see shortfalls; the CLI exits 8)
+    shortfalls: tuple[Shortfall, ...]
+    proven_optimal: bool  # every section's plan equals its bound
+    stopped_by_time_limit: bool
+    bars_weight_kg: float  # the bars to fetch from the rack
+    pieces_weight_kg: float  # the pieces to ship
+    remnants_weight_kg: float  # the remnants to put back on the rack
     total_cut_time_min: float  # saw in the cut
     total_handling_time_min: float
     total_time_min: float
@@ -150,10 +194,15 @@ class JobPlan:
     blade_confidence: float
     blade_forecast_method: str
     blade_life_source: str
-    material_cost: float
+    material_cost: float  # charged to the job: bars less the rack credit (see quote)
+    bars_cost: float  # whole bars at their price
+    remnant_credit: float  # remnants back on the rack at their bar's price per length
+    remnant_policy: str  # "bar-price" or "none" ([job] remnant_credit)
+    order_cost: float  # bars to order for the shortfall (not in total_cost)
     saw_cost: float
     blade_cost: float
     total_cost: float
+    quote: tuple[QuoteLine, ...]
     shop_rate_per_h: float | None
     blade_price: float | None
     notes: tuple[str, ...]

@@ -9,11 +9,20 @@ the last cut is made, and what is left is the remnant.  A bar filled exactly
 
 from __future__ import annotations
 
+from functools import lru_cache
 from typing import Any
 
 from sawplan.cutlist.jobfile.types import PartLine, StockLine
 from sawplan.cutlist.plan.types import BarCut, PieceCut
 from sawplan.display import Q, say
+
+
+@lru_cache(maxsize=4096)
+def _assess(mass_kg: float, shape: str, length_mm: float, width_mm: float) -> Any:
+    """Handling of one piece; pieces of a part are alike, so each is assessed once."""
+    from sawplan.piece_handling import Piece, assess_piece
+
+    return assess_piece(mass_kg, Piece(shape, length_mm, width_mm))
 
 
 def bar_layout(
@@ -59,10 +68,9 @@ def bar_cut(
     Handling goes by weight, shape and length (``sawplan.piece_handling``): a
     light bar of several metres is still a lift for two.
     """
-    from sawplan.piece_handling import Piece, assess_piece
 
     def handling(mass_kg: float, length_mm: float):
-        return assess_piece(mass_kg, Piece(section.shape, length_mm, section.width_mm))
+        return _assess(mass_kg, section.shape, length_mm, section.width_mm)
 
     spans, trim_cut, last_cut, rem_start, remnant = bar_layout(
         s.length_mm, [p.length_mm for p in parts], kerf_mm, trim_mm

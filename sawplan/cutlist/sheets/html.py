@@ -19,6 +19,7 @@ from sawplan.cutlist.sheets.text import (
     breakin_text,
     forecast_text,
     piece_rows,
+    short_banner,
 )
 from sawplan.display import Display, UnitSystem, as_display, fmt_money, fmt_number
 
@@ -72,6 +73,9 @@ def render_html(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> str:
     e = escape
     body = [
         f"<h1>Cut sheet: {e(plan.job)}</h1>",
+        f'<p class="warn"><strong>{e(short_banner(plan, d))}</strong></p>'
+        if not plan.complete
+        else "",
         _facts(plan, d),
         "<h2>Blade and settings per section</h2>",
         _sections_table(plan, d),
@@ -102,7 +106,14 @@ def _facts(plan, d: Display) -> str:
     rows += [
         ("Material", materials),
         ("Saw", plan.saw),
-        ("Bars", f"{plan.bars_used} (LP bound {plan.lp_bound_bars}, gap {plan.gap_bars})"),
+        (
+            "Bars",
+            f"{plan.bars_used}"
+            + (" (proven optimal)" if plan.proven_optimal and plan.complete else ""),
+        ),
+        ("Bars to fetch", d.fmt("mass", plan.bars_weight_kg)),
+        ("Pieces to ship", d.fmt("mass", plan.pieces_weight_kg)),
+        ("Remnants to rack", d.fmt("mass", plan.remnants_weight_kg)),
         ("Pieces / cuts", f"{plan.pieces} / {plan.cuts}"),
         ("Waste", f"{plan.waste_pct:.1f} % of {d.bar_length(plan.stock_length_mm)}"),
         (
@@ -312,7 +323,6 @@ def _remnants(plan, d: Display) -> str:
 
 def _quote(plan, d: Display) -> str:
     c = plan.currency
-    rate = f" at {fmt_money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
     rows = [
         ("Area cut", d.fmt("area", plan.cut_area_cm2 * 100, 4)),
         ("Blades worn by this job", f"{fmt_number(plan.blades_consumed, 2)}"),
@@ -321,10 +331,10 @@ def _quote(plan, d: Display) -> str:
             f"{plan.blades_needed} ({forecast_text(plan)})",
         ),
         ("Blade life", d.text(plan.blade_life_source)),
-        ("Material", fmt_money(plan.material_cost, c)),
-        (f"Saw time {d.fmt('time', plan.total_time_min)}{rate}", fmt_money(plan.saw_cost, c)),
-        ("Blade wear", fmt_money(plan.blade_cost, c)),
-        ("Quoted total", fmt_money(plan.total_cost, c)),
+        *(
+            (f"{q.item.capitalize()} ({d.text(q.basis)})", fmt_money(q.amount, c))
+            for q in plan.quote
+        ),
     ]
     body = "".join(f"<tr><th>{escape(k)}</th><td>{escape(v)}</td></tr>" for k, v in rows)
     return f"<table>{body}</table>"

@@ -169,16 +169,78 @@ def render_plan(
     """The terminal report: summary, sections, cut sheet, drawings, blades, quote, cautions."""
     d = as_display(units)
     blocks = [
+        short_banner(plan, d),
         _header(plan, d),
         _sections(plan, d),
         _cut_table(plan, d),
         _drawings(plan, d, width),
         _remnants(plan, d),
+        order_list(plan, d),
         _blades(plan, d),
         _quote(plan, d),
         _notes(plan, d),
     ]
     return "\n\n".join(b for b in blocks if b)
+
+
+def short_banner(plan, d: Display) -> str:
+    """The first thing on a short plan's sheet: it is not the whole job."""
+    if plan.complete:
+        return ""
+    missing = sum(n for f in plan.shortfalls for _, n in f.pieces)
+    bars = sum(o.count for f in plan.shortfalls for o in f.order)
+    return (
+        f"SHORT: stock on hand does not finish the job. {missing} piece(s) are not planned; "
+        f"order {bars} bar(s) (ORDER LIST below, or `sawplan plan JOBFILE --order`)."
+    )
+
+
+def order_list(plan, d: Display) -> str:
+    """What to buy to finish a short job, and the pieces that wait for it."""
+    from sawplan.render import table
+
+    if plan.complete:
+        return ""
+    rows = []
+    for f in plan.shortfalls:
+        waiting = ", ".join(f"{name} ×{n}" for name, n in f.pieces)
+        for i, o in enumerate(f.order):
+            rows.append([
+                d.text(f.group) if i == 0 else "", o.count, d.bar_length(o.length_mm),
+                fmt_money(o.price_each * o.count, plan.currency), waiting if i == 0 else "",
+            ])  # fmt: skip
+    text = table(
+        ["material and section", "bars", "length", "cost", "pieces not planned"],
+        rows,
+        align="lrrrl",
+        title="ORDER LIST (bars to buy to finish the job)",
+    )
+    notes = [f"  {d.text(f.group)}: {f.note}" for f in plan.shortfalls]
+    return text + "\n" + "\n".join(notes)
+
+
+def bound_text(s, d: Display, currency: str) -> str:
+    """A section's plan against its bound, in the objective's own terms."""
+    if s.objective == "bars":
+        text = f"{s.bars_used} bars, ⌈LP⌉ {s.lp_bound_bars}"
+    elif s.objective == "cost":
+        text = (
+            f"material {fmt_money(s.objective_value, currency)}, LP bound "
+            f"{fmt_money(s.objective_bound, currency)} (rack remnants in the LP)"
+        )
+    else:
+        text = (
+            f"new stock {d.bar_length(s.objective_value)}, LP bound "
+            f"{d.bar_length(s.objective_bound)} (rack remnants in the LP)"
+        )
+    if s.proven_optimal and s.objective_value > s.objective_bound + 1e-9:
+        return text + ": proven optimal (the exact integer program; no whole-bar plan is cheaper)"
+    if s.proven_optimal:
+        return text + ": proven optimal"
+    if s.objective == "bars":
+        return text + f": {s.gap_bars} bar(s) above the bound"
+    share = 100.0 * s.gap / s.objective_value if s.objective_value else 0.0
+    return text + f": gap {share:.2f} %"
 
 
 def _header(plan, d: Display) -> str:
@@ -193,15 +255,17 @@ def _header(plan, d: Display) -> str:
         ("saw", plan.saw),
         (
             "bars",
-            f"{plan.bars_used} (LP bound {plan.lp_bound_bars}, gap {plan.gap_bars}); "
-            f"{plan.pieces} pieces, {plan.cuts} cuts",
+            f"{plan.bars_used}; {plan.pieces} pieces, {plan.cuts} cuts"
+            + ("; proven optimal" if plan.proven_optimal and plan.complete else ""),
         ),
         (
             "waste",
             f"{plan.waste_pct:.1f} % ({d.bar_length(plan.waste_mm)} of "
             f"{d.bar_length(plan.stock_length_mm)})",
         ),
-        ("weight", d.fmt("mass", plan.total_weight_kg)),
+        ("bars to fetch", d.fmt("mass", plan.bars_weight_kg)),
+        ("pieces to ship", d.fmt("mass", plan.pieces_weight_kg)),
+        ("remnants to rack", d.fmt("mass", plan.remnants_weight_kg)),
         (
             "time",
             f"{d.fmt('time', plan.total_time_min)}: {d.fmt('time', plan.total_cut_time_min)} cutting + "
@@ -242,6 +306,7 @@ def _sections(plan, d: Display) -> str:
             f"  {label}: {s.designation}; kerf from the {s.kerf_source}; "
             f"{s.tooth_set} set; limited by {s.governing_limit}; optimiser {s.method}"
         )
+        extra.append(f"  {label}: {bound_text(s, d, plan.currency)}")
         if s.breakin_cuts:
             extra.append(f"  {label}: {breakin_text(s, d)}")
         extra += [f"  {label}: warning: {d.text(w)}" for w in s.warnings]
@@ -360,16 +425,8 @@ def forecast_text(plan) -> str:
 def _quote(plan, d: Display) -> str:
     from sawplan.render import key_values
 
-    c = plan.currency
-    rate = f" at {fmt_money(plan.shop_rate_per_h, c)}/h" if plan.shop_rate_per_h is not None else ""
-    share = ""
-    if plan.blade_price is not None:
-        share = f" ({fmt_number(plan.blades_consumed, 2)} × {fmt_money(plan.blade_price, c)})"
     pairs = [
-        ("material", fmt_money(plan.material_cost, c)),
-        (f"saw time {d.fmt('time', plan.total_time_min)}{rate}", fmt_money(plan.saw_cost, c)),
-        (f"blade wear{share}", fmt_money(plan.blade_cost, c)),
-        ("total", fmt_money(plan.total_cost, c)),
+        (f"{q.item} ({d.text(q.basis)})", fmt_money(q.amount, plan.currency)) for q in plan.quote
     ]
     return key_values(pairs, title="QUOTE")
 
@@ -392,6 +449,8 @@ def render_markdown(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> st
     """A Markdown cut sheet: the same content as the HTML sheet, drawings as text."""
     d = as_display(units)
     out = [f"# Cut sheet: {_md(plan.job)}", ""]
+    if not plan.complete:
+        out += [f"**{_md(short_banner(plan, d))}**", ""]
     head = [("file", plan.file), ("saw", plan.saw)]
     if plan.customer:
         head.insert(0, ("customer", plan.customer))
@@ -432,6 +491,8 @@ def render_markdown(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> st
             )
             out.append(f"| end | {d.span(b.remnant_start_mm, b.length_mm)} | {what} | | |")
         out += ["", f"Bar weight {d.fmt('mass', b.weight_kg)}: **{b.handling}**.", ""]
+    if not plan.complete:
+        out += ["## Order list", "", "```", order_list(plan, d), "```", ""]
     out += ["## Blades and quote", "", "```", _blades(plan, d), "", _quote(plan, d), "```", ""]
     out += ["## Notes and cautions", ""]
     out += [f"- {_md(d.text(n))}" for n in plan.notes]
