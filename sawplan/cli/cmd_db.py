@@ -8,11 +8,11 @@ import typer
 
 from sawplan.cli.options import DbOpt, command, opt
 
-HELP = """Move the blade log between a file and a PostgreSQL server; upgrade its schema.
+HELP = """Move the blade log to or from a PostgreSQL server, and upgrade it.
 
 \b
 Examples:
-  sawplan db copy --from blade-log.sqlite --to postgresql://office@saw-server/sawplan
+  sawplan db copy --from shop-log.sqlite --to postgresql://office@saw-server/sawplan
   sawplan db upgrade --db postgresql://office@saw-server/sawplan
 """
 
@@ -25,7 +25,7 @@ changed (an old log file is upgraded first, with a backup).
 
 \\b
 Examples:
-  sawplan db copy --from blade-log.sqlite --to postgresql://office@saw-server/sawplan
+  sawplan db copy --from shop-log.sqlite --to postgresql://office@saw-server/sawplan
   sawplan db copy --from postgresql://office@saw-server/sawplan --to copy.sqlite
 """
 

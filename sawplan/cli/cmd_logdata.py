@@ -35,7 +35,7 @@ Examples:
   sawplan import old-shop-csv --db new-log.sqlite
 """
 
-BACKUP_HELP = """Copy the whole blade log into one FILE, safely while others use it.
+BACKUP_HELP = """Copy the blade log into one FILE, safely while others use it.
 
 A log file is copied with SQLite's online backup: one consistent log file.
 A PostgreSQL log is written with the server's own pg_dump when it is

@@ -8,8 +8,14 @@
 - ``records``: rows read and written.
 - ``stats`` / ``reports``: lives, calibration and forecasts for ``sawplan.life``.
 - ``exchange``: CSV export/import; ``backup``: one portable file;
-  ``transfer``: ``db copy`` with per-table checksums; ``safety``: damage checks,
-  rolling backups, restore; ``perms``: file modes.
+  ``transfer``: ``db copy`` with per-table checksums; ``health``: ``check`` and
+  ``restore``; ``safety``: damage checks, rolling backups, leftovers;
+  ``perms``: file modes.
+
+A command (or the station) opens the log with ``connect(db)`` and passes the
+open ``Log`` to the row functions (``records``): every write runs as one step
+through ``run_write``, e.g. ``record_cut`` looks up the fitted blade and writes
+the cut in one transaction.
 
 What other commands use (every function takes ``--db``'s value, ``None`` for the default)::
 
