@@ -8,7 +8,7 @@ import typer
 
 from sawplan.cli.options import DbOpt, command, opt
 
-HELP = """Move the blade log to or from a PostgreSQL server, and upgrade it.
+HELP = """Move the blade log to and from PostgreSQL; upgrade its schema.
 
 \b
 Examples:
