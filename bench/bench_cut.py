@@ -1,8 +1,10 @@
-"""Time of the cutting model through a 180 mm round of 1045 on the mid-size saw.
+"""Time of the cutting model through a 180 mm round of 1045 and a 3×4 bundle of tubes.
 
-Goal: one integration (time through the section for one pitch) under 5 ms.
-Also shown: sampling the chord profile, evaluating one blade, and a full
-recommendation (every catalogue pitch).  Run: python bench/bench_cut.py
+Goals: one integration (time through the section for one pitch) under 5 ms on
+the round; the bundle's integration, chord profile included (parse, sample,
+integrate), under 10 ms.  Also shown: evaluating one blade, and full
+recommendations (every catalogue pitch; the bundle also against one tube cut
+alone).  Run: python bench/bench_cut.py
 """
 
 from __future__ import annotations
@@ -21,6 +23,8 @@ from sawplan.sections import parse_section
 
 GOAL_MS = 5.0
 MATERIAL, SECTION = "1045", "round 180mm"  # a heavy solid: the most chord samples
+BUNDLE_GOAL_MS = 10.0
+BUNDLE = "tube 60mm 3mm --bundle 3x4"
 
 
 def per_call_ms(fn: Callable[[], object], rounds: int = 7, calls: int = 50) -> float:
@@ -80,6 +84,28 @@ def main() -> int:
     print(
         f"integration through a {SECTION}: {worst_integration:.3f} ms (goal < {GOAL_MS:g} ms) {flag}"
     )
+    tube = load_catalogue().get("1018")
+    bundle_plan = make_plan(
+        tube,
+        parse_section(BUNDLE),
+        saw,
+        dry=False,
+        blade_material="bi-metal",
+        band_speed_m_min=None,
+        calibration=1.0,
+    )
+    four_six = parse_pitch("4/6")
+
+    def fresh_bundle_integration() -> object:
+        section = parse_section(BUNDLE)
+        return integrate(four_six, sample(section), bundle_plan.base, constant_feed=constant)
+
+    bundle_ms = per_call_ms(fresh_bundle_integration)
+    print(f"{'bundle 3x4 tubes: parse + sample + integrate':42s} {bundle_ms:7.3f} ms")
+    rec_ms = per_call_ms(lambda: recommend(tube, parse_section(BUNDLE), saw), rounds=3, calls=5)
+    print(f"{'recommend bundle 3x4 (with single tube)':42s} {rec_ms:7.3f} ms")
+    flag = "ok" if bundle_ms < BUNDLE_GOAL_MS else "SLOW"
+    print(f"bundle integration: {bundle_ms:.3f} ms (goal < {BUNDLE_GOAL_MS:g} ms) {flag}")
     return 0
 
 

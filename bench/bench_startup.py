@@ -57,6 +57,11 @@ def main() -> int:
             base,
         ),
         (
+            "sawplan cut 1018 tube 60mm 3mm --bundle 3x4",
+            sawplan + ["cut", "1018", "tube", "60mm", "3mm", "--bundle", "3x4"],
+            base,
+        ),
+        (
             "sawplan log cut 4140 round 60mm --time 1min",
             sawplan + ["log", "cut", "4140", "round", "60mm", "--time", "1min"],
             base_log,

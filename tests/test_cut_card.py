@@ -40,3 +40,25 @@ def test_a_calibrated_card_names_the_models_feed_only_as_the_model():
     setting = float(FEED.findall(card)[0].split()[0])
     model = float(FEED.search(calibration).group(0).split()[0])
     assert setting == pytest.approx(model / 0.97, rel=0.01)
+
+
+@pytest.mark.parametrize(
+    ("args", "units", "setting"),
+    [
+        # 10 mm/min as typed; 10 / 25.4 = 0.3937 in/min (1 in = 25.4 mm exactly), 3 digits
+        pytest.param(("304", "round", "250mm", "--saw", "large-column", "--feed", "10mm/min"),
+                     "metric", "10.0 mm/min", id="constant-metric"),
+        pytest.param(("304", "round", "250mm", "--saw", "large-column", "--feed", "10mm/min"),
+                     "us", "0.394 in/min", id="constant-us"),
+        # a gravity head: the setting first, then what its force lets it average
+        pytest.param(("1018", "flat", "4in", "0.5in", "--saw", "small-horizontal", "--feed",
+                      "1.5in/min"), "us", "1.50 in/min", id="gravity-us"),
+    ],
+)  # fmt: skip
+def test_a_set_down_feed_is_stated_once_as_typed(cli, args, units, setting):
+    out = cli("cut", *args, "--units", units).out
+    card = out.split("\n\n", 1)[1]  # after the comparison with the recommendation
+    down = [line for line in card.splitlines() if line.startswith("Down-feed")]
+    assert len(down) == 1 and down[0].startswith(f"Down-feed   set {setting}")
+    why = card.split("Why", 1)[1].split("\nBreak-in", 1)[0].split("\nWarnings", 1)[0]
+    assert not FEED.search(why), "the explanation repeats a down-feed"

@@ -61,6 +61,55 @@ READ = [
     pytest.param("plan {jobs}/billet-slices.toml --run cost --db {db}", id="plan-run-cost"),
 ]
 
+# The cut card's own sentences, each with a word that shows the case was reached: a
+# bundle against single cuts, a better way to lay the work, a cut that will not
+# progress, a down-feed set by the operator (constant and gravity heads), band speeds
+# over and under the recommendation, walls too thin for the pitch given.
+CUT_CASES = [
+    pytest.param("cut 1018 tube 60mm 3mm --bundle 3x4", "Bundle      bundling", id="bundle-faster"),
+    pytest.param(
+        "cut 1018 flat 100mm 10mm --saw small-horizontal --bundle 1x3",
+        "one at a time is faster",
+        id="bundle-slower",
+    ),
+    pytest.param(
+        "cut 1018 square 40mm --bundle 2x2 --saw small-horizontal",
+        "about the same",
+        id="bundle-same",
+    ),
+    pytest.param("cut A36 ibeam 8in 5.25in 0.23in 0.4in", "Orient      laid", id="orientation"),
+    pytest.param(
+        "cut 17-4PH round 7in --saw small-horizontal --pitch 14 --chart",
+        "will not cut",
+        id="stalled",
+    ),
+    pytest.param("cut 4140 round 7in --feed 3in/min", "overfill the gullets", id="feed-over"),
+    pytest.param(
+        "cut 1018 flat 4in 0.5in --saw small-horizontal --feed 40mm/min",
+        "head's force cannot push",
+        id="feed-gravity",
+    ),
+    pytest.param(
+        "cut 4140 round 7in --pitch 2/3 --band-speed 300ft/min", "the teeth last", id="over-speed"
+    ),
+    pytest.param(
+        "cut A36 channel 6in 2in 0.2in 0.32in --band-speed 40m/min", "% under", id="under-speed"
+    ),
+    pytest.param(
+        "cut 304 tube 2in 0.065in --pitch 3/4", "a finer pitch such as", id="too-few-teeth"
+    ),
+]
+
+
+@pytest.mark.parametrize("units", ["us", "metric"])
+@pytest.mark.parametrize(("template", "marker"), CUT_CASES)
+def test_cut_sentences_speak_one_unit_system(template, marker, units, cli):
+    result = cli(*template.split(), "--units", units)
+    assert result.code == 0, result.err
+    assert marker in result.out  # the case under test was reached
+    _check(result.out, units)
+
+
 # Commands that write, in order, on a copy of the log: a new blade's life so far.
 WRITE = (
     "blade add X-1 --pitch 4/6 --blade-width 27mm --blade-thickness 0.9mm --blade-length 3660mm --db {db}",

@@ -28,7 +28,10 @@ HELP = """Choose the blade, band speed and feed for one cut, and time it.
 
 Without --pitch it recommends a pitch, tooth form and set for the section;
 with it, it says what that blade will do instead (time, what limits it, what
-goes wrong) beside the recommendation.
+goes wrong) beside the recommendation.  --band-speed and --feed plan the cut
+as set on the saw and say what it costs in blade wear.  Bundles are timed per
+piece against single cuts; sections that can lie another way say so when it
+saves time or blade.
 
 \b
 Examples:
@@ -37,6 +40,7 @@ Examples:
   sawplan cut 1045 square 80mm --pitch 4/6
   sawplan cut 4140 round 5-1/2in --units us --fractions
   sawplan cut 6061-T6 tube 60mm 3mm --bundle 3x4 --json
+  sawplan cut 4140 round 7in --pitch 2/3 --band-speed 300ft/min
   sawplan cut 4140 round 150mm --economics --shop-rate 75 --chart
 
 Estimates only: the saw maker's manual and the blade maker's data govern.
@@ -59,7 +63,10 @@ def cut_command(
         str | None, opt("pitch", help="Evaluate this pitch, e.g. 3/4 or 6.")
     ] = None,
     band_speed: Annotated[
-        str | None, opt("band_speed", help="Run at this band speed, e.g. 60m/min (with --pitch).")
+        str | None, opt("band_speed", help="Run at this band speed, e.g. 60m/min or 200ft/min.")
+    ] = None,
+    feed: Annotated[
+        str | None, opt("feed", help="Run at this down-feed, e.g. 25mm/min or 1in/min.")
     ] = None,
     dry: Annotated[bool, opt("dry")] = False,
     blade_material: Annotated[str, opt("blade_material", show_default=True)] = "bi-metal",
@@ -85,40 +92,38 @@ def cut_command(
 ) -> None:
     from sawplan.charts import cut_chart
     from sawplan.cli.cut_view import render_cut
-    from sawplan.cutting import compare, recommend
+    from sawplan.cutting import check_fits, compare, recommend
     from sawplan.errors import UsageError
+    from sawplan.fields import parse
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
-    from sawplan.saws import check_capacity, get_saw, load_saws
+    from sawplan.saws import get_saw, load_saws
     from sawplan.sections import parse_section
     from sawplan.store.lookup import BladeLog
-    from sawplan.units import to_core
 
     if blade_material not in ("bi-metal", "carbon", "carbide"):
         raise UsageError(
             f"expected bi-metal, carbon or carbide, got {blade_material!r}", field="blade-material"
         )
-    if band_speed is not None and blade_tpi is None:
-        raise UsageError(
-            "give --pitch with --band-speed (the blade on the saw)", field="band-speed"
-        )
     mat = load_catalogue(materials_file).get(material)
     sec = parse_section(section, orientation=orient, bundle=bundle, nest=nest)
     log = BladeLog(db)
     the_saw = get_saw(saw, saws_file, extra=log.saws())
-    check_capacity(the_saw, sec, load_saws(saws_file, log.saws()).values())
+    check_fits(the_saw, sec, load_saws(saws_file, log.saws()).values())
     calibration, calibration_n = log.calibration(the_saw.name, mat.group) or (1.0, 0)
     kw = {"dry": dry, "blade_material": blade_material, "calibration": calibration}
+    if band_speed is not None:
+        kw["band_speed_m_min"] = parse("band_speed", band_speed)
+    if feed is not None:
+        kw["feed_mm_min"] = parse("feed", feed)
     summary = None
-    if blade_tpi is None:
+    if blade_tpi is None and band_speed is None and feed is None:
         result = recommend(mat, sec, the_saw, **kw)
     else:
-        if band_speed is not None:
-            kw["band_speed_m_min"] = to_core(band_speed, "speed", field="band-speed")
         comparison = compare(mat, sec, the_saw, blade_tpi, **kw)
         result, summary = comparison.chosen, comparison.summary
     econ = times = choice = None
-    if economics:
+    if economics and not result.stalled:  # a cut that does not progress has no cost per cut
         from sawplan.cli.cut_economics import (
             ShopFigures,
             blade_choice_for_cut,
@@ -133,7 +138,9 @@ def cut_command(
         )
         econ, (times, _fit) = economics_of_cut(result, mat, sec, the_saw, log, figures, dry=dry)
         choice = blade_choice_for_cut(result, mat, sec, the_saw, log, figures, dry=dry)
-    elif any(v is not None for v in (shop_rate, handling_time, change_time, blade_price)):
+    elif not economics and any(
+        v is not None for v in (shop_rate, handling_time, change_time, blade_price)
+    ):
         raise UsageError(
             "the shop's rates and prices are for the cost per cut",
             field="economics",
@@ -155,6 +162,9 @@ def cut_command(
         print(d.text(summary))
         print()
     print(render_cut(result, d, section_label=d.section(sec), calibration_cuts=calibration_n))
+    if economics and result.stalled:
+        print()
+        print("No cost per cut: the cut does not progress.")
     if econ is not None:
         from sawplan.cli.economics_view import render_economics
 
@@ -167,7 +177,7 @@ def cut_command(
             print(render_blade_choice(choice, d))
     if chart:
         print()
-        print(cut_chart(result, d))
+        print(cut_chart(result, d) if result.profile else "No chart: the cut does not progress.")
         if econ is not None:
             from sawplan.charts import speed_cost_chart
 

@@ -29,7 +29,7 @@ from sawplan.cli.options import (
     opt,
     saw_opt,
 )
-from sawplan.display import Display, fmt_number, fmt_plain
+from sawplan.display import Display, fmt_number, fmt_plain, say
 
 HELP = """Log what the blades cut and what happened to them.
 
@@ -145,7 +145,7 @@ def log_cut_command(
                 mat, sec, target.saw, target.blade, dry=dry, speed_m_min=speed_m_min
             )
             if predicted is None:
-                notes.append(f"no model time: {why}")
+                notes.append(say("no model time: {}", why))
             else:
                 predicted *= cuts
         return CutEntry(
@@ -241,6 +241,8 @@ def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float |
         )
     except SawplanError as err:
         return None, err.one_line()
+    if result.stalled:
+        return None, result.stall_reason
     return result.cut_time_model_min, None
 
 

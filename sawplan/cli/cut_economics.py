@@ -122,8 +122,9 @@ def _fit(part: Any) -> Any:
 def _economics(result: Any, mat: Any, sec: Any, saw: Any, part: Any, figures: ShopFigures,
                *, dry: bool, pitch: str) -> tuple[Any, Any, Any]:  # fmt: skip
     """One pitch's cut at three speeds, with the life of the blades in ``part``."""
-    from sawplan.cutting import evaluate
+    from sawplan.cutting import cut_time_min
     from sawplan.cutting.cut_cost import cut_economics, speed_time_of
+    from sawplan.errors import BadDataError
 
     fit = _fit(part)
     prices = [p for p in part.prices if p is not None and p > 0] if part is not None else []
@@ -131,10 +132,12 @@ def _economics(result: Any, mat: Any, sec: Any, saw: Any, part: Any, figures: Sh
     span = (saw.band_speed_min_m_min, saw.band_speed_max_m_min)
 
     def time_at(v: float) -> float:
-        r = evaluate(mat, sec, saw, pitch, dry=dry, band_speed_m_min=v,
-                     blade_material=result.blade_material,
-                     calibration=result.calibration_factor)  # fmt: skip
-        return r.cut_time_min
+        t = cut_time_min(mat, sec, saw, pitch, dry=dry, band_speed_m_min=v,
+                         blade_material=result.blade_material,
+                         calibration=result.calibration_factor)  # fmt: skip
+        if t is None:
+            raise BadDataError(f"{pitch} will not cut {sec.label()} on {saw.name}", field="pitch")
+        return t
 
     times = speed_time_of(time_at, span, _time_source(result))
     recommended = result.band_speed_m_min

@@ -7,6 +7,38 @@ from typing import Any
 from sawplan.display import Display, UnitSystem, as_display, fmt_percent
 
 
+def _time_line(r: Any, d: Display) -> str:
+    from sawplan.cutting.explain import LIMIT_WORDS
+
+    if r.cut_time_min is None:
+        return f"Time        {d.text(r.stall_reason)}"
+    share = dict(r.limit_shares).get(r.governing_limit, 1.0)
+    time = f"Time {d.fmt('time', r.cut_time_min)} per cut"
+    if r.pieces > 1:
+        time += f" ({d.fmt('time', r.time_per_piece_min)} per piece)"
+    return (
+        f"Rate        {d.fmt('rate', r.cutting_rate_mm2_min)}   {time}   "
+        f"Limit {LIMIT_WORDS[r.governing_limit]} ({fmt_percent(share)} of the cut)"
+    )
+
+
+def _feed_line(r: Any, d: Display) -> str:
+    """The card's one down-feed: the setting, or a force-fed head's average and slowest."""
+    if r.cut_time_min is None:
+        return "Down-feed   —"
+    if r.feed_given:
+        text = f"Down-feed   set {d.fmt('feed', r.feed_set_mm_min)}"
+        if r.feed_type != "constant" and r.feed_mm_min < r.feed_set_mm_min * 0.99:
+            text += f", {d.fmt('feed', r.feed_mm_min)} average where the head's force holds it back"
+        return text
+    if r.feed_type == "constant":
+        return f"Down-feed   set {d.fmt('feed', r.feed_set_mm_min)}"
+    return (
+        f"Down-feed   {d.fmt('feed', r.feed_mm_min)} average, "
+        f"{d.fmt('feed', r.feed_set_mm_min)} at the slowest depth"
+    )
+
+
 def render_cut(
     r: Any,
     units: UnitSystem | Display,
@@ -14,9 +46,8 @@ def render_cut(
     section_label: str | None = None,
     calibration_cuts: int = 0,
 ) -> str:
-    """The operator's card: blade, speed, feed, time, why, warnings, break-in."""
-    from sawplan.cutting.explain import LIMIT_WORDS
-
+    """The operator's card: blade, speed, feed, time, why, bundle, orientation, warnings,
+    break-in."""
     d = as_display(units)
     lines = [f"{r.material} · {section_label or r.section} · saw {r.saw} ({r.feed_type} feed)"]
     blade = f"{r.pitch_label} TPI, {r.tooth_form} teeth, {r.tooth_set} set ({r.blade_material})"
@@ -27,20 +58,8 @@ def render_cut(
     if r.dry:
         speed += "  dry"
     lines.append(f"Band speed  {speed}")
-    if r.feed_type == "constant":
-        feed = f"set {d.fmt('feed', r.feed_set_mm_min)}"
-    else:
-        feed = (
-            f"{d.fmt('feed', r.feed_mm_min)} average, "
-            f"{d.fmt('feed', r.feed_set_mm_min)} at the slowest depth"
-        )
-    lines.append(f"Down-feed   {feed}")
-    share = dict(r.limit_shares).get(r.governing_limit, 1.0)
-    lines.append(
-        f"Rate        {d.fmt('rate', r.cutting_rate_mm2_min)}   "
-        f"Time {d.fmt('time', r.cut_time_min)} per cut   "
-        f"Limit {LIMIT_WORDS[r.governing_limit]} ({fmt_percent(share)} of the cut)"
-    )
+    lines.append(_feed_line(r, d))
+    lines.append(_time_line(r, d))
     for i, text in enumerate(r.explanation):
         lines.append(("Why         " if i == 0 else "            ") + d.text(text))
     if calibration_cuts:
@@ -48,7 +67,12 @@ def render_cut(
             f"            (calibration from {calibration_cuts:,} logged cuts on this saw and "
             "material group)"
         )
-    for i, text in enumerate(r.warnings):
+    if r.bundle is not None:
+        lines.append(f"Bundle      {d.text(r.bundle.why)}")
+    if r.better_orientation:
+        lines.append(f"Orient      {d.text(r.better_orientation)}")
+    warnings = [w for w in r.warnings if w != r.stall_reason]
+    for i, text in enumerate(warnings):
         lines.append(("Warnings    ! " if i == 0 else "            ! ") + d.text(text))
     if r.breakin:
         steps = [

@@ -42,7 +42,7 @@ def render_logged(entry, sec, mat, blade, units: UnitSystem | Display, notes: li
         measured = d.fmt("time", entry.time_min)
         model = d.fmt("time", entry.predicted_time_min)
         lines.append(f"  time measured {measured}, model {model}")
-    lines += [f"  note: {n}" for n in notes]
+    lines += [f"  note: {d.text(n)}" for n in notes]
     return "\n".join(lines)
 
 

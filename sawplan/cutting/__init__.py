@@ -1,5 +1,5 @@
 """Cutting physics: blade pitch, tooth form and set, band speed, feed, time per cut,
-blade mechanics and break-in (reference: sawing-model.md §1–6).
+blade mechanics and break-in (docs/pitch.md, docs/feed-and-time.md).
 
 Pure core: the only files read are the packaged tables.
 """
@@ -19,16 +19,24 @@ from sawplan.cutting.mechanics import (
     wheel_ratio_warning,
 )
 from sawplan.cutting.pitch import Pitch, catalogue, parse_pitch
-from sawplan.cutting.plan import material_bite_mm
-from sawplan.cutting.recommend import compare, evaluate, recommend
-from sawplan.cutting.result import Comparison, CutResult, ProfilePoint
+from sawplan.cutting.plan import check_fits, material_bite_mm
+from sawplan.cutting.recommend import compare, cut_time_min, evaluate, recommend
+from sawplan.cutting.result import (
+    BundleVerdict,
+    Comparison,
+    CutResult,
+    OrientationOption,
+    ProfilePoint,
+)
 from sawplan.cutting.speed import BandSpeed, band_speed, width_factor
 
 __all__ = [
     "BandSpeed",
     "BreakinStep",
+    "BundleVerdict",
     "Comparison",
     "CutResult",
+    "OrientationOption",
     "Pitch",
     "ProfilePoint",
     "band_speed",
@@ -36,7 +44,9 @@ __all__ = [
     "blade_length_mm",
     "breakin_schedule",
     "catalogue",
+    "check_fits",
     "compare",
+    "cut_time_min",
     "evaluate",
     "flex_cycles_per_min",
     "gauge_elongation_mm",

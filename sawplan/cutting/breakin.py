@@ -1,4 +1,4 @@
-"""Break-in of a new blade (reference §6, common practice).
+"""Break-in of a new blade (common practice).
 
 A new blade runs at normal band speed with a reduced feed — about half (three
 quarters on hard alloys) — raised step by step over the first few hundred cm²

@@ -1,15 +1,28 @@
-"""Plain-language lines for a planned cut: why this pitch, what goes wrong.
+"""Plain-language lines for a planned cut: why this pitch, what its neighbours would do.
 
 Kept apart from the physics so the wording can change without touching it.
+Warnings are in ``warnings``; bundles, orientations and off-recommendation
+speeds and feeds in ``advice``.
 """
 
 from __future__ import annotations
 
 from sawplan.cutting import constants as K
-from sawplan.cutting.mechanics import wheel_ratio_warning
-from sawplan.cutting.pitch import catalogue
-from sawplan.cutting.plan import Candidate, Plan, SectionLike, pool, thin_wall, thinnest_length_mm
-from sawplan.display import Phrase, Q, fmt_percent, fmt_ratio, join, say
+from sawplan.cutting.choice import Choice, beyond_window, pool
+from sawplan.cutting.plan import Candidate, Plan, SectionLike, single_solid
+from sawplan.cutting.words import (
+    Phrase,
+    change,
+    feed,
+    fmt_ratio,
+    join,
+    say,
+    share,
+    speed,
+    time,
+    width,
+)
+from sawplan.cutting.words import length as mm
 
 LIMIT_WORDS = {
     "material": "the material's bite",
@@ -17,28 +30,27 @@ LIMIT_WORDS = {
     "tooth": "tooth strength",
     "power": "motor power",
     "force": "head force",
+    "set": "the down-feed as set",
 }
 SHORT_WHY = {
     "gullet": "gullets full",
-    "material": "bite held by the material, wider tooth spacing",
+    "material": "bite held by the material",
     "power": "motor-limited",
     "force": "head force spread over the teeth",
     "tooth": "tooth strength",
+    "set": "the down-feed as set",
 }
-CLIP_NOTICE = 1.03  # a speed held back by under 3 % is not worth a warning
 
 
-def where_thinnest(section: SectionLike) -> Phrase:
-    if section.min_wall_mm is not None:
-        return say("the {} wall", Q("length", section.min_wall_mm))
-    return say("the {} width", Q("length", section.max_chord_mm))
-
-
-def widest_chord(section: SectionLike) -> Phrase:
-    return say("the {} widest chord", Q("length", section.max_chord_mm))
+def thinnest_text(section: SectionLike) -> Phrase:
+    """Where the three-tooth rule is read, in words."""
+    if single_solid(section):
+        return say("the {} widest chord", mm(section.max_chord_mm))
+    return say("the {} of metal at the thinnest depth", mm(section.thinnest_chord_mm))
 
 
 def ratio_text(ratio: float) -> str:
+    """'1.4× slower', 'about as fast', 'over ten times faster'."""
     if ratio >= 1.05:
         return f"{fmt_ratio(ratio)} slower"
     if ratio > 1 / 1.05:
@@ -46,237 +58,161 @@ def ratio_text(ratio: float) -> str:
     return f"{fmt_ratio(1 / ratio)} faster"
 
 
-def _teeth_text(cand: Candidate, section: SectionLike) -> Phrase:
-    if section.is_solid:
+def teeth_text(cand: Candidate, section: SectionLike) -> Phrase:
+    if single_solid(section):
         teeth = f"{cand.teeth_thinnest:.1f}" if cand.too_few else f"{cand.teeth_widest:.0f}"
-        return say("{} teeth in {}", teeth, widest_chord(section))
-    return say("{} teeth in {}", f"{cand.teeth_thinnest:.1f}", where_thinnest(section))
+        return say("{} teeth in the {} widest chord", teeth, mm(section.max_chord_mm))
+    return say("{} teeth over {}", f"{cand.teeth_thinnest:.1f}", thinnest_text(section))
 
 
-def why_chosen(cand: Candidate, section: SectionLike) -> Phrase:
+def limit_text(cand: Candidate) -> str:
     run = cand.run
-    share = dict(run.limit_shares).get(run.governing_limit, 0.0)
-    limit = f"{LIMIT_WORDS[run.governing_limit]} sets the feed for {fmt_percent(share)} of the cut"
-    teeth = _teeth_text(cand, section)
-    label = cand.pitch.label
-    if cand.allowed:
-        return say("{} cuts fastest within the tooth-count rules ({}); {}", label, teeth, limit)
-    if cand.too_few:
-        return say("{}: the finest pitch, still only {}; {}", label, teeth, limit)
-    return say("{}: the coarsest pitch, {}; {}", label, teeth, limit)
+    part = dict(run.limit_shares).get(run.governing_limit, 0.0)
+    return f"{LIMIT_WORDS[run.governing_limit]} sets the feed for {share(part)} of the cut"
 
 
-def neighbour_line(side: str, cand: Candidate, chosen: Candidate, section: SectionLike) -> Phrase:
-    label = f"{side} {cand.pitch.label}"
-    if cand.too_few:
-        teeth = f"{cand.teeth_thinnest:.1f}"
-        return say("{}: only {} teeth in {}", label, teeth, where_thinnest(section))
-    if cand.too_many:
-        teeth = f"{cand.teeth_widest:.0f}"
-        return say("{}: {} teeth in {} (over about 24)", label, teeth, widest_chord(section))
-    why = SHORT_WHY[cand.run.governing_limit]
-    if cand.run.rubbing_share > 0.05:
-        why += ", teeth rub"
+def why_chosen(choice: Choice, plan: Plan) -> Phrase:
+    """The first 'Why' line of a recommendation."""
+    cand, section = choice.chosen, plan.section
+    label, teeth = cand.pitch.label, teeth_text(cand, section)
+    if cand.stalled:
+        return say("{}: the coarsest pitch, and the head still cannot load its teeth", label)
+    limit = limit_text(cand)
+    chart = choice.chart
+    avg = say("the {} average width of cut", width(choice.width_of_cut_mm or 0.0))
+    if choice.how == "fastest":
+        if cand.allowed:
+            return say("{} cuts fastest within the tooth-count rules ({}); {}", label, teeth, limit)
+        if cand.too_few:
+            return say("{}: the finest pitch, still only {}; {}", label, teeth, limit)
+        return say("{}: the coarsest pitch, {}; {}", label, teeth, limit)
+    assert chart is not None
+    if choice.how == "chart":
+        return say(
+            "{}: the pitch for {} (metal area ÷ blade travel, as the trade reads tube, sections "
+            "and bundles), {}; {}",
+            label, avg, teeth, limit,
+        )  # fmt: skip
+    if choice.how == "near-chart":
+        side = "finer" if cand.pitch.tpi_mean > chart.pitch.tpi_mean else "coarser"
+        return say(
+            "{}: one step {} than the {} read off {} (metal area ÷ blade travel), and faster "
+            "here; {}; {}",
+            label, side, chart.pitch.label, avg, teeth, limit,
+        )  # fmt: skip
+    if choice.how == "finer-for-teeth":
+        return say(
+            "{}: {} reads off {} but leaves {} teeth over {}; {} keeps {}; {}",
+            label, chart.pitch.label, avg, f"{chart.teeth_thinnest:.1f}", thinnest_text(section),
+            label, f"{cand.teeth_thinnest:.1f}", limit,
+        )  # fmt: skip
+    if choice.how == "coarser-for-rubbing":
+        return say(
+            "{}: coarser than the {} read off {}, whose bite sits under the rubbing floor "
+            "across {} of the metal; {}; {}",
+            label, chart.pitch.label, avg, share(chart.run.rubbing_share), teeth, limit,
+        )  # fmt: skip
+    if choice.how == "thin-walls":
+        return say(
+            "{}: the finest pitch made for this blade; no pitch keeps 3 teeth over {} ({} "
+            "here); {}",
+            label, thinnest_text(section), f"{cand.teeth_thinnest:.1f}", limit,
+        )  # fmt: skip
     return say(
-        "{}: {}, {}", label, why, ratio_text(cand.run.cut_time_min / chosen.run.cut_time_min)
-    )
+        "{}: the pitch nearest the {} read off {} that keeps 3 teeth and bites above the "
+        "rubbing floor, {}; {}",
+        label, chart.pitch.label, avg, teeth, limit,
+    )  # fmt: skip
 
 
-def neighbours(chosen: Candidate, cands: list[Candidate], section: SectionLike) -> Phrase | None:
+def neighbour_line(
+    side: str, cand: Candidate, chosen: Candidate, section: SectionLike, far: str = ""
+) -> Phrase | str:
+    label = f"{side} {cand.pitch.label}"
+    if cand.stalled:
+        return f"{label}: will not cut (the head cannot load its teeth)"
+    if cand.too_few:
+        return say(
+            "{}: only {} teeth over {}", label, f"{cand.teeth_thinnest:.1f}", thinnest_text(section)
+        )
+    if cand.too_many:
+        most = K.number("bite", "max_teeth_widest_chord")
+        return say(
+            "{}: {} teeth in the {} widest chord (over about {})",
+            label, f"{cand.teeth_widest:.0f}", mm(section.max_chord_mm), f"{most:.0f}",
+        )  # fmt: skip
+    why = SHORT_WHY[cand.run.governing_limit]
+    if cand.run.governing_limit == "material" and side == "coarser":
+        why += ", wider tooth spacing"
+    if cand.rubs_most:
+        why += f", teeth rub across {share(cand.run.rubbing_share)} of the metal"
+    elif cand.run.rubbing_share > 0.05:
+        why += ", teeth rub"
+    if chosen.stalled:
+        return f"{label}: {why}"
+    ratio = cand.time / chosen.time
+    return f"{label}: {why}, {ratio_text(ratio)}{far if ratio < 1 else ''}"
+
+
+def neighbours(choice: Choice, cands: list[Candidate], section: SectionLike) -> Phrase | None:
     """What the next finer and next coarser pitch of the same family would do."""
-    family = [c for c in pool(cands, solid=section.is_solid) if c.pitch.kind == chosen.pitch.kind]
+    chosen = choice.chosen
+    solid = single_solid(section)
+    family = [c for c in pool(cands, solid=solid) if c.pitch.kind == chosen.pitch.kind]
     if not any(c.pitch.same_teeth(chosen.pitch) for c in family):
         family = cands
     ordered = sorted(family, key=lambda c: (c.pitch.tpi_mean, c.pitch.tpi_coarse))
     i = next(k for k, c in enumerate(ordered) if c.pitch.same_teeth(chosen.pitch))
     parts = []
-    if i + 1 < len(ordered):
-        parts.append(neighbour_line("finer", ordered[i + 1], chosen, section))
-    if i > 0:
-        parts.append(neighbour_line("coarser", ordered[i - 1], chosen, section))
+    for side, k in (("finer", i + 1), ("coarser", i - 1)):
+        if not 0 <= k < len(ordered):
+            continue
+        cand = ordered[k]
+        far = ""
+        if choice.chart is not None and beyond_window(choice, cand, cands):
+            far = f", but more than a step from the {choice.chart.pitch.label} the trade reads here"
+        parts.append(neighbour_line(side, cand, chosen, section, far))
     return join("; ", parts) if parts else None
-
-
-def _coarser_keeps_three_teeth(plan: Plan, cand: Candidate) -> bool:
-    length = thinnest_length_mm(plan.section)
-    need = K.number("bite", "min_teeth")
-    return any(p.tpi_mean < cand.pitch.tpi_mean and p.teeth_in(length) >= need for p in catalogue())
-
-
-def _tooth_count_warnings(plan: Plan, cand: Candidate) -> list[str]:
-    section = plan.section
-    need = K.number("bite", "min_teeth")
-    out: list[str] = []
-    if thin_wall(section):
-        out.append(
-            say(
-                "walls under {} cannot hold {} teeth even with the finest pitch: wavy set, "
-                "light feed, support the work close to the cut",
-                Q("length", K.number("bite", "thin_wall_mm")),
-                f"{need:.0f}",
-            )
-        )
-    elif cand.too_few:
-        out.append(
-            say(
-                "only {} teeth of {} in {} (fewer than {}): teeth can snag and strip; "
-                "use a finer pitch",
-                f"{cand.teeth_thinnest:.1f}",
-                cand.pitch.label,
-                where_thinnest(section),
-                f"{need:.0f}",
-            )
-        )
-    if cand.too_many:
-        most = K.number("bite", "max_teeth_widest_chord")
-        out.append(
-            say(
-                "{} teeth in {} (over about {}): gullets pack; a coarser pitch cuts faster",
-                f"{cand.teeth_widest:.0f}",
-                widest_chord(section),
-                f"{most:.0f}",
-            )
-        )
-    return out
-
-
-def _rubbing_warnings(plan: Plan, cand: Candidate) -> list[str]:
-    run = cand.run
-    if run.rubbing_share <= 0.0:
-        return []
-    head = say(
-        "tooth bite falls to {}, under the {} rubbing floor, for {} of the cut: "
-        "teeth rub instead of cutting",
-        Q("bite", run.min_bite_mm, 2),
-        Q("bite", plan.base.rubbing_floor_mm, 2),
-        fmt_percent(run.rubbing_share),
-    )
-    if _coarser_keeps_three_teeth(plan, cand):
-        out: list[str] = [say("{}; coarser pitch needed", head)]
-    else:
-        out = [
-            say(
-                "{}; a coarser pitch would leave fewer than 3 teeth in {}, so expect a slow "
-                "cut across the {} chord",
-                head,
-                where_thinnest(plan.section),
-                Q("length", plan.section.max_chord_mm),
-            )
-        ]
-    if plan.material.work_hardens:
-        out.append(
-            f"rubbing work-hardens {plan.material.key}: keep the feed up and never let the "
-            "blade dwell in the cut"
-        )
-    return out
-
-
-def _limit_warnings(plan: Plan, cand: Candidate) -> list[str]:
-    run, saw = cand.run, plan.saw
-    shares = dict(run.limit_shares)
-    out = []
-    material_mm = plan.base.material_bite_mm
-    if shares.get("gullet", 0.0) > 0.5 and run.bite_mean_mm < 0.5 * material_mm:
-        out.append(
-            say(
-                "gullets overloaded: chips fill them at a {} bite, under half the {} the "
-                "material takes",
-                Q("bite", run.bite_mean_mm, 2),
-                Q("bite", material_mm, 2),
-            )
-        )
-    if shares.get("power", 0.0) > 0.2:
-        out.append(
-            say(
-                "power-limited for {} of the cut: {} at the blade ({} motor × {})",
-                fmt_percent(shares["power"]),
-                Q("power", saw.cutting_power_w),
-                Q("power", saw.motor_power_w),
-                f"{saw.drive_efficiency:g}",
-            )
-        )
-    if shares.get("force", 0.0) > 0.2:
-        out.append(
-            say(
-                "head force {} is shared by up to {} teeth: it sets the feed for {} of the cut",
-                Q("force", saw.head_force_n),
-                f"{cand.teeth_widest:.0f}",
-                fmt_percent(shares["force"]),
-            )
-        )
-    if run.stalled:
-        out.append(
-            "the head force is too low for the teeth to bite at the widest chord: "
-            "add force or use a coarser pitch"
-        )
-    return out
-
-
-def _speed_warning(plan: Plan) -> list[str]:
-    s = plan.speed
-    if not s.clipped:
-        return []
-    wanted = s.base_m_min * s.width_factor * s.blade_factor * s.coolant_factor
-    held = s.band_speed_m_min
-    if max(wanted, held) / min(wanted, held) < CLIP_NOTICE:
-        return []
-    which = "highest" if s.clipped == "max" else "lowest"
-    return [
-        say(
-            "band speed held at the saw's {} {} (the cut wants {})",
-            which,
-            Q("speed", held),
-            Q("speed", wanted),
-        )
-    ]
-
-
-def warnings(plan: Plan, cand: Candidate) -> list[str]:
-    out = _tooth_count_warnings(plan, cand)
-    width = plan.saw.blade_width_mm
-    if cand.pitch.source != "given" and not cand.pitch.fits_blade(width):
-        out.append(
-            say(
-                "{} is not usually made in a {} wide blade (made {} to {}, memory)",
-                cand.pitch.label,
-                Q("length", width),
-                Q("length", cand.pitch.min_blade_width_mm),
-                Q("length", cand.pitch.max_blade_width_mm),
-            )
-        )
-    out += _rubbing_warnings(plan, cand)
-    out += _limit_warnings(plan, cand)
-    out += _speed_warning(plan)
-    wheel = wheel_ratio_warning(plan.saw.blade_thickness_mm, plan.saw.wheel_diameter_mm)
-    if wheel:
-        out.append(wheel)
-    return out
 
 
 def speed_line(plan: Plan) -> Phrase:
     s = plan.speed
     if s.given:
-        return say("band speed {} as given", Q("speed", s.band_speed_m_min))
-    parts: list[str] = [say("{} for {}", Q("speed", s.base_m_min), plan.material.key)]
+        return say(
+            "band speed {} as given (recommended {})",
+            speed(s.band_speed_m_min),
+            speed(s.recommended_m_min),
+        )
+    parts: list[Phrase | str] = [say("{} for {}", speed(s.base_m_min), plan.material.key)]
     if abs(s.width_factor - 1) > 0.005:
         parts.append(
             say(
                 "{} for a {} mean width of cut",
-                fmt_percent(s.width_factor - 1, signed=True),
-                Q("length", s.width_of_cut_mm, 3),
+                change(s.width_factor - 1),
+                width(s.width_of_cut_mm),
             )
         )
     if s.blade_factor != 1:
-        parts.append(f"{fmt_percent(s.blade_factor - 1, signed=True)} {plan.blade_material} blade")
+        parts.append(f"{change(s.blade_factor - 1)} {plan.blade_material} blade")
     if s.coolant_factor != 1:
-        parts.append(f"{fmt_percent(s.coolant_factor - 1, signed=True)} dry")
+        parts.append(f"{change(s.coolant_factor - 1)} dry")
     if s.clipped:
         parts.append(f"held to the saw's {'highest' if s.clipped == 'max' else 'lowest'} speed")
-    return say("band speed {}: {}", Q("speed", s.band_speed_m_min), join(", ", parts))
+    return say("band speed {}: {}", speed(s.band_speed_m_min), join(", ", parts))
 
 
-def feed_line(plan: Plan) -> str:
-    """Why the down-feed on the card is what it is (the card alone carries its value)."""
+def feed_line(plan: Plan, cand: Candidate) -> Phrase | str:
+    """Why the down-feed on the card is what it is; the card's Down-feed line alone
+    carries the setting (and a gravity head's average), so this line repeats neither."""
+    if cand.stalled:
+        return f"{plan.saw.feed_type} feed: the head cannot load the teeth, so it does not advance"
+    if plan.set_feed_mm_min is not None:
+        if plan.saw.force_limited:
+            return (
+                f"down-feed as given; the {plan.saw.feed_type} head holds it where its force "
+                "allows and slows where it does not"
+            )
+        return "down-feed as given"
     if plan.saw.force_limited:
         return (
             f"{plan.saw.feed_type} feed follows the chord: the head slows where the chord is "
@@ -287,11 +223,11 @@ def feed_line(plan: Plan) -> str:
 
 def calibration_line(plan: Plan, cand: Candidate) -> Phrase:
     """The shop's time factor, with the model's own time and down-feed before it."""
-    run = cand.run
-    feed = "" if plan.saw.force_limited else say(", {} down-feed", Q("feed", run.feed_set_mm_min))
+    own = plan.saw.force_limited or plan.set_feed_mm_min is not None  # no model feed to name
+    model_feed = "" if own else say(", {} down-feed", feed(cand.run.feed_set_mm_min))
     return say(
         "time × {} shop calibration (model {}{})",
         f"{plan.calibration:.2f}",
-        Q("time", run.cut_time_min),
-        feed,
+        time(cand.time),
+        model_feed,
     )

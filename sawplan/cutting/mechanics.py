@@ -1,4 +1,4 @@
-"""Blade mechanics: bending over the wheels, tension, length and flex cycles (reference §5).
+"""Blade mechanics: bending over the wheels, tension, length and flex cycles.
 
 A band bends to the wheel radius twice per circuit; the outer fibre sees
 σ = E·t/D.  Thin blades on large wheels last longer, which is why the ratio of
@@ -27,7 +27,7 @@ def _check_positive(**values: float) -> None:
 def bending_stress_mpa(
     thickness_mm: float, wheel_diameter_mm: float, *, pitch_diameter: bool = False
 ) -> float:
-    """σ_b = E·t/D (beam theory, reference §5).
+    """σ_b = E·t/D (beam theory).
 
     By default D is the wheel diameter, as in the handbook formula; with
     ``pitch_diameter`` the neutral-axis diameter D + t is used, which gives a

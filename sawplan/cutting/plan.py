@@ -1,15 +1,14 @@
-"""Setting up a cut and scoring each candidate pitch (reference §1–4).
+"""Setting up a cut and scoring each candidate pitch (docs/pitch.md, docs/feed-and-time.md).
 
 A plan fixes what does not depend on the pitch — band speed, kerf, the
 material bite, the chord samples — so every pitch of the catalogue can be
-scored with plain arithmetic.  The pick is the fastest pitch that keeps at
-least three teeth in the thinnest wall (solids: across the widest chord) and,
-on solids, at most about 24 teeth in the widest chord.
+scored with plain arithmetic.  ``choice`` picks among the scored pitches.
 """
 
 from __future__ import annotations
 
 import math
+from collections.abc import Iterable
 from dataclasses import dataclass, replace
 from typing import Protocol
 
@@ -17,6 +16,7 @@ from sawplan.cutting import constants as K
 from sawplan.cutting.feed import CutConditions, FeedIntegral, Quadrature, integrate, sample
 from sawplan.cutting.mechanics import kerf_mm
 from sawplan.cutting.pitch import Pitch, catalogue, parse_pitch
+from sawplan.cutting.ploughing import min_chip_thickness_mm
 from sawplan.cutting.speed import BandSpeed, band_speed
 from sawplan.cutting.teeth import TeethChoice, choose_teeth
 from sawplan.errors import BadDataError
@@ -40,6 +40,7 @@ class SectionLike(Protocol):
     width_mm: float
     max_chord_mm: float
     mean_chord_mm: float
+    thinnest_chord_mm: float
     min_wall_mm: float | None
     is_solid: bool
     pieces: int
@@ -63,6 +64,7 @@ class Plan:
     blade_material: str
     calibration: float
     notes: tuple[str, ...]
+    set_feed_mm_min: float | None = None  # a down-feed the operator chose
 
 
 @dataclass(frozen=True)
@@ -70,18 +72,31 @@ class Candidate:
     pitch: Pitch
     teeth: TeethChoice
     run: FeedIntegral
-    teeth_thinnest: float
-    teeth_widest: float
+    teeth_thinnest: float  # coarse-pitch teeth over the whole chord at its thinnest depth
+    teeth_widest: float  # mean-pitch teeth in the widest chord
     too_few: bool
     too_many: bool
 
     @property
+    def stalled(self) -> bool:
+        return self.run.stalled
+
+    @property
     def allowed(self) -> bool:
-        return not (self.too_few or self.too_many)
+        return not (self.too_few or self.too_many or self.stalled)
+
+    @property
+    def rubs_most(self) -> bool:
+        """Bite under the rubbing floor over most of the metal cut."""
+        return self.run.rubbing_share > K.number("bite", "rubbing_most_share")
+
+    @property
+    def time(self) -> float:
+        return self.run.cut_time_min
 
 
 def material_bite_mm(material: MaterialLike) -> float:
-    """h_mat = A′_ref·p_ref / (W_ref·V_ref): the bite the handbook rate implies (reference §4)."""
+    """h_mat = A′_ref·p_ref / (W_ref·V_ref): the bite the handbook rate implies (derived)."""
     p_ref = parse_pitch(str(K.value("bite", "reference_pitch"))).spacing_mean_mm
     w_ref = K.number("bite", "reference_width_mm")
     rate_mm2_min = material.cutting_rate_cm2_min * 100.0
@@ -89,8 +104,40 @@ def material_bite_mm(material: MaterialLike) -> float:
 
 
 def rubbing_floor_mm() -> float:
-    """h_min = ratio × cutting-edge radius (reference §4)."""
-    return K.number("bite", "edge_radius_mm") * K.number("bite", "min_chip_ratio")
+    """h_min = ratio × cutting-edge radius (minimum chip thickness)."""
+    return min_chip_thickness_mm(
+        K.number("bite", "edge_radius_mm"), K.number("bite", "min_chip_ratio")
+    )
+
+
+def check_fits(saw: Saw, section: SectionLike, alternatives: Iterable[Saw] | None = None) -> None:
+    """BadDataError when the work does not fit the saw; a bundle names the largest that does,
+    one piece the saws that take it (``alternatives``, as for ``saws.check_capacity``)."""
+    if section.pieces > 1:
+        from sawplan.sections import largest_bundle
+
+        fits = (
+            section.width_mm <= saw.capacity_rect_w_mm + 1e-9
+            and section.height_mm <= saw.capacity_rect_h_mm + 1e-9
+        )
+        if not fits:
+            largest = largest_bundle(section, saw.capacity_rect_w_mm, saw.capacity_rect_h_mm)
+            rows, cols = getattr(section, "bundle_rows", 0), getattr(section, "bundle_cols", 0)
+            what = f"a {rows}×{cols} bundle" if rows else "the bundle"
+            tail = "; not even one piece fits"
+            if largest:
+                tail = f"; the largest bundle that fits is {largest[0]}×{largest[1]}"
+                keep = (min(rows, largest[0]), min(cols, largest[1]))
+                if rows and keep != largest and keep != (rows, cols):
+                    tail += f" ({keep[0]}×{keep[1]} keeps to your rows and columns)"
+            raise BadDataError(
+                f"{what} is {section.width_mm:.4g} wide × {section.height_mm:.4g} mm high, over "
+                f"the {saw.name} capacity of {saw.capacity_rect_w_mm:g} × "
+                f"{saw.capacity_rect_h_mm:g} mm (wide × high){tail}",
+                field="bundle",
+                hint=f"--bundle {largest[0]}x{largest[1]}" if largest else None,
+            )
+    check_capacity(saw, section, alternatives)
 
 
 def make_plan(
@@ -102,11 +149,14 @@ def make_plan(
     blade_material: str,
     band_speed_m_min: float | None,
     calibration: float,
+    set_feed_mm_min: float | None = None,
 ) -> Plan:
     ok = isinstance(calibration, int | float) and math.isfinite(calibration) and calibration > 0
     if not ok:
         raise BadDataError(f"must be a positive factor, got {calibration!r}", field="calibration")
-    check_capacity(saw, section)
+    if set_feed_mm_min is not None and not (math.isfinite(set_feed_mm_min) and set_feed_mm_min > 0):
+        raise BadDataError(f"must be a positive down-feed, got {set_feed_mm_min!r}", field="feed")
+    check_fits(saw, section)
     notes: list[str] = []
     if not saw.coolant and not dry:
         dry = True
@@ -135,6 +185,7 @@ def make_plan(
         head_force_n=saw.head_force_n if saw.force_limited else None,
         thrust_n_mm2=thrust,
         plough_force_n=thrust * kerf * K.number("bite", "plough_depth_mm"),
+        removal_floor=K.number("plough", "removal_floor"),
     )
     return Plan(
         material=material,
@@ -147,7 +198,13 @@ def make_plan(
         blade_material=blade_material,
         calibration=float(calibration),
         notes=tuple(notes),
+        set_feed_mm_min=set_feed_mm_min,
     )
+
+
+def single_solid(section: SectionLike) -> bool:
+    """One solid bar: the solids' reading of the tooth-count rules applies."""
+    return section.is_solid and section.pieces == 1
 
 
 def thin_wall(section: SectionLike) -> bool:
@@ -155,29 +212,45 @@ def thin_wall(section: SectionLike) -> bool:
     return wall is not None and wall < K.number("bite", "thin_wall_mm")
 
 
-def thinnest_length_mm(section: SectionLike) -> float:
-    """Where the three-tooth rule is checked: the thinnest wall, or a solid's widest chord."""
-    wall = section.min_wall_mm
-    return wall if wall is not None else section.max_chord_mm
+def score(
+    plan: Plan,
+    pitch: Pitch,
+    *,
+    quad: Quadrature | None = None,
+    thinnest_mm: float | None = None,
+    widest_mm: float | None = None,
+    solid: bool | None = None,
+    set_feed: bool = True,
+) -> Candidate:
+    """Tooth counts, tooth form and the time through the section for one pitch.
 
-
-def score(plan: Plan, pitch: Pitch) -> Candidate:
-    """Tooth counts, tooth form and the time through the section for one pitch."""
+    The keywords score the pitch on another chord profile (the average width
+    of cut read as a solid, ``choice.chart_pitch``).
+    """
     section = plan.section
-    thinnest = pitch.teeth_in(thinnest_length_mm(section))
-    widest = pitch.teeth_in(section.max_chord_mm, coarse=False)
+    thinnest_mm = section.thinnest_chord_mm if thinnest_mm is None else thinnest_mm
+    widest_mm = section.max_chord_mm if widest_mm is None else widest_mm
+    solid = single_solid(section) if solid is None else solid
+    thinnest = pitch.teeth_in(thinnest_mm)
+    widest = pitch.teeth_in(widest_mm, coarse=False)
     teeth = choose_teeth(
         plan.material.group,
         pitch,
-        is_solid=section.is_solid,
-        widest_chord_mm=section.max_chord_mm,
+        is_solid=solid,
+        widest_chord_mm=widest_mm,
         fewest_teeth=thinnest,
-        thin_wall=thin_wall(section),
+        thin_wall=thin_wall(section) and quad is None,
     )
     cond = replace(plan.base, gullet_factor=teeth.gullet_factor)
-    run = integrate(pitch, plan.quad, cond, constant_feed=not plan.saw.force_limited)
+    run = integrate(
+        pitch,
+        plan.quad if quad is None else quad,
+        cond,
+        constant_feed=not plan.saw.force_limited,
+        set_feed_mm_min=plan.set_feed_mm_min if set_feed else None,
+    )
     too_few = thinnest < K.number("bite", "min_teeth")
-    too_many = section.is_solid and widest > K.number("bite", "max_teeth_widest_chord")
+    too_many = solid and widest > K.number("bite", "max_teeth_widest_chord")
     return Candidate(pitch, teeth, run, thinnest, widest, too_few, too_many)
 
 
@@ -185,38 +258,3 @@ def available(saw: Saw) -> list[Pitch]:
     """Catalogue pitches made in the saw's blade width (all of them if none is)."""
     fits = [p for p in catalogue() if p.fits_blade(saw.blade_width_mm)]
     return fits or list(catalogue())
-
-
-def pool(cands: list[Candidate], *, solid: bool) -> list[Candidate]:
-    """Variable pitches for solids (as in the MH31 width-of-cut pairs), all for walls."""
-    if solid:
-        variable = [c for c in cands if c.pitch.kind == "variable" and c.allowed]
-        if variable:
-            return [c for c in cands if c.pitch.kind == "variable"]
-    return cands
-
-
-def pick(cands: list[Candidate], *, work_hardens: bool, solid: bool) -> Candidate:
-    """The fastest pitch within the tooth-count rules.
-
-    Variable pitches damp vibration, so on walled sections a constant pitch must
-    be clearly faster; among pitches nearly as fast the coarsest wins (bigger
-    gullets, longer life — more so on work-hardening materials).  When no pitch
-    meets the rules: the finest for thin walls and small solids, the coarsest
-    for very wide solids.
-    """
-    cands = pool(cands, solid=solid)
-    allowed = [c for c in cands if c.allowed]
-    if allowed:
-        penalty = K.number("bite", "constant_pitch_penalty")
-
-        def weighted(c: Candidate) -> float:
-            return c.run.cut_time_min * (1.0 if c.pitch.kind == "variable" else penalty)
-
-        best = min(weighted(c) for c in allowed)
-        name = "similar_time_ratio_work_hardening" if work_hardens else "similar_time_ratio"
-        near = [c for c in allowed if weighted(c) <= best * K.number("bite", name)]
-        return min(near, key=lambda c: (c.pitch.tpi_mean, weighted(c)))
-    if any(c.too_few for c in cands):
-        return max(cands, key=lambda c: (c.pitch.tpi_coarse, c.pitch.tpi_fine))
-    return min(cands, key=lambda c: (c.pitch.tpi_mean, c.run.cut_time_min))

@@ -1,5 +1,6 @@
 """Band speed: the material's handbook speed corrected for width of cut,
-blade material and coolant, then held inside the saw's speed range (reference §3).
+blade material and coolant, then held inside the saw's speed range (MH31
+band-saw table and footnotes; docs/feed-and-time.md).
 """
 
 from __future__ import annotations
@@ -34,6 +35,24 @@ class BandSpeed:
     width_of_cut_mm: float
     clipped: str | None  # "min" | "max" when the saw's range held the speed, else None
     given: bool = False
+    recommended_m_min: float = 0.0  # what sawplan would run on this saw (clipped to its range)
+
+    @property
+    def off_ratio(self) -> float:
+        """Given speed ÷ recommended speed (1 when the speed was not given)."""
+        return self.band_speed_m_min / self.recommended_m_min if self.recommended_m_min else 1.0
+
+    def outside_band(self) -> str | None:
+        """ "above" or "below" when a given speed is off the recommendation by more than the
+        band a speed chart is read to (``speed.recommended_band_percent``)."""
+        if not self.given:
+            return None
+        band = K.number("speed", "recommended_band_percent") / 100.0
+        if self.off_ratio > 1.0 + band:
+            return "above"
+        if self.off_ratio < 1.0 - band:
+            return "below"
+        return None
 
 
 def width_factor(width_mm: float) -> float:
@@ -87,18 +106,24 @@ def band_speed(
     w = width_factor(width_of_cut_mm)
     b = blade_factor(blade_material)
     c = K.number("speed", "dry_factor") if dry else 1.0
-    if given_m_min is not None:
-        if not (speed_min_m_min <= given_m_min <= speed_max_m_min):
-            raise BadDataError(
-                f"the saw runs {speed_min_m_min:g}-{speed_max_m_min:g} m/min, "
-                f"got {given_m_min:.3g} m/min",
-                field="band-speed",
-            )
-        return BandSpeed(given_m_min, base_m_min, w, b, c, width_of_cut_mm, None, given=True)
     speed = base_m_min * w * b * c
     clipped = None
     if speed > speed_max_m_min:
         speed, clipped = speed_max_m_min, "max"
     elif speed < speed_min_m_min:
         speed, clipped = speed_min_m_min, "min"
-    return BandSpeed(speed, base_m_min, w, b, c, width_of_cut_mm, clipped)
+    if given_m_min is not None:
+        if not (math.isfinite(given_m_min) and speed_min_m_min <= given_m_min <= speed_max_m_min):
+            ft = 1000.0 / 304.8
+            raise BadDataError(
+                f"the saw runs {speed_min_m_min:g}-{speed_max_m_min:g} m/min "
+                f"({speed_min_m_min * ft:.0f}-{speed_max_m_min * ft:.0f} ft/min), "
+                f"got {given_m_min:.3g} m/min ({given_m_min * ft:.3g} ft/min)",
+                field="band-speed",
+                hint=f"sawplan recommends {speed:.0f} m/min for this cut",
+            )
+        return BandSpeed(
+            given_m_min, base_m_min, w, b, c, width_of_cut_mm, None, given=True,
+            recommended_m_min=speed,
+        )  # fmt: skip
+    return BandSpeed(speed, base_m_min, w, b, c, width_of_cut_mm, clipped, recommended_m_min=speed)

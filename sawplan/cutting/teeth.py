@@ -27,7 +27,7 @@ class TeethChoice:
 
     @property
     def gullet_factor(self) -> float:
-        """c in A_g = c·p² for this form (reference §2)."""
+        """c in A_g = c·p² for this form (memory; data/cutting_constants.toml)."""
         return K.number("gullet", f"c_{self.tooth_form}")
 
 
@@ -67,10 +67,10 @@ def choose_teeth(
         )
     min_teeth = K.number("bite", "min_teeth")
     if thin_wall or fewest_teeth < min_teeth:
-        where = "the widest chord" if is_solid else "the thinnest wall"
+        where = "the widest chord" if is_solid else "the metal at the thinnest depth"
         tooth_set, set_why = (
             "wavy",
-            f"wavy set: with {fewest_teeth:.1f} teeth in {where}, groups of teeth share each bite",
+            f"wavy set: with {fewest_teeth:.1f} teeth over {where}, groups of teeth share each bite",
         )
     elif soft:
         tooth_set, set_why = "alternate", "alternate set: a free-cutting set for soft material"

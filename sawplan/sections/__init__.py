@@ -8,7 +8,14 @@ help text.
 from __future__ import annotations
 
 from sawplan.sections.parse import parse_bundle, parse_section, split_sizes
-from sawplan.sections.section import MAX_BUNDLE_SIDE, NESTABLE, Section, canonical_shape
+from sawplan.sections.section import (
+    MAX_BUNDLE_SIDE,
+    NESTABLE,
+    Section,
+    canonical_shape,
+    largest_bundle,
+    orientation_words,
+)
 from sawplan.sections.shapes import MAX_SIZE_MM, SHAPES, ShapeInfo, canonical_orientation
 
 __all__ = [
@@ -20,6 +27,8 @@ __all__ = [
     "ShapeInfo",
     "canonical_orientation",
     "canonical_shape",
+    "largest_bundle",
+    "orientation_words",
     "parse_bundle",
     "parse_section",
     "split_sizes",

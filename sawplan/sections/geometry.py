@@ -277,22 +277,76 @@ class ChordProfile:
             best = max(best, ws[k], self._golden(i, lo, hi))
         return best
 
+    def thinnest_wall(self, per_piece: int = 16) -> float | None:
+        """The least W(y) where the blade crosses walls, or None for a solid-like profile.
+
+        Where W(y) rises from zero — the blade entering over a tangent or a
+        corner, at the top, the bottom, or between touching rows of a bundle —
+        the chord is only passing through; those ramps are left out.  What is
+        left is where teeth must span the walls: both walls at a tube's
+        equator, a channel's two flanges, an I-beam's web, a face on the top.
+        When the ramps meet (a round, a square on its corner) nothing is left.
+        """
+        ys: list[float] = []
+        ws: list[float] = []
+        for i in range(len(self.breaks) - 1):
+            a, b = self.breaks[i], self.breaks[i + 1]
+            for k in range(per_piece + 1):
+                y = a + (b - a) * k / per_piece
+                w = self._piece(i, y)
+                if ys and y == ys[-1] and abs(w - ws[-1]) <= 1e-12 * max(w, 1.0):
+                    continue  # the same point seen from the next piece
+                ys.append(y)
+                ws.append(w)
+        tol = 1e-9 * max(max(ws, default=0.0), 1.0)
+        ramp = [w <= tol for w in ws]
+        for start, zero in enumerate(list(ramp)):
+            if not zero:
+                continue
+            j = start + 1
+            while j < len(ws) and ws[j] > ws[j - 1] + tol:
+                ramp[j] = True
+                j += 1
+            j = start - 1
+            while j >= 0 and ws[j] > ws[j + 1] + tol:
+                ramp[j] = True
+                j -= 1
+        left = [k for k in range(len(ws)) if not ramp[k]]
+        if not left:
+            return None
+        k = min(left, key=ws.__getitem__)
+        best = ws[k]
+        # refine a minimum inside a piece where circles bend W (a tube's equator)
+        i = min(bisect_right(self.breaks, ys[k]) - 1, len(self.breaks) - 2)
+        if self._circles[i]:
+            lo = max(ys[k - 1] if k > 0 else ys[k], self.breaks[i])
+            hi = min(ys[k + 1] if k + 1 < len(ys) else ys[k], self.breaks[i + 1])
+            if hi > lo:
+                tol = 1e-12 * max(self.height, 1.0)
+                best = min(best, -_golden_max(lambda y: -self._piece(i, y), lo, hi, tol))
+        return best
+
     def _golden(self, i: int, lo: float, hi: float) -> float:
-        x1 = hi - _GOLDEN * (hi - lo)
-        x2 = lo + _GOLDEN * (hi - lo)
-        f1, f2 = self._piece(i, x1), self._piece(i, x2)
-        for _ in range(80):
-            if hi - lo <= 1e-12 * max(self.height, 1.0):
-                break
-            if f1 < f2:
-                lo, x1, f1 = x1, x2, f2
-                x2 = lo + _GOLDEN * (hi - lo)
-                f2 = self._piece(i, x2)
-            else:
-                hi, x2, f2 = x2, x1, f1
-                x1 = hi - _GOLDEN * (hi - lo)
-                f1 = self._piece(i, x1)
-        return max(f1, f2)
+        return _golden_max(lambda y: self._piece(i, y), lo, hi, 1e-12 * max(self.height, 1.0))
+
+
+def _golden_max(f: Callable[[float], float], lo: float, hi: float, tol: float) -> float:
+    """Largest f on [lo, hi] for a unimodal f (golden-section search)."""
+    x1 = hi - _GOLDEN * (hi - lo)
+    x2 = lo + _GOLDEN * (hi - lo)
+    f1, f2 = f(x1), f(x2)
+    for _ in range(80):
+        if hi - lo <= tol:
+            break
+        if f1 < f2:
+            lo, x1, f1 = x1, x2, f2
+            x2 = lo + _GOLDEN * (hi - lo)
+            f2 = f(x2)
+        else:
+            hi, x2, f2 = x2, x1, f1
+            x1 = hi - _GOLDEN * (hi - lo)
+            f1 = f(x1)
+    return max(f1, f2)
 
 
 def _merged_breaks(parts: list[Part], height: float) -> tuple[float, ...]:

@@ -52,6 +52,12 @@ _PHRASES = {
 }
 
 
+def orientation_words(shape: str, orientation: str) -> str:
+    """How a person says an orientation of a shape: 'on edge', 'in a vee', 'web down'."""
+    phrases = _PHRASES.get(orientation, {})
+    return phrases.get(shape, phrases.get("", "on a flat"))
+
+
 def canonical_shape(word: str) -> str | None:
     """The catalogue name ``word`` stands for, or None."""
     key = word.strip().lower().replace("_", "-")
@@ -183,8 +189,23 @@ class Section:
 
     @property
     def mean_chord_mm(self) -> float:
-        """Area / height: the W a constant-rate cut averages over."""
+        """Area / height: the average width of cut (metal area ÷ blade travel)."""
         return self.area_mm2 / self.height_mm
+
+    @cached_property
+    def thinnest_chord_mm(self) -> float:
+        """Metal on the blade's line where the teeth span the least of it.
+
+        Counted over the whole chord: both walls at a round tube's equator, the
+        two side walls of a box section, every column of a bundle.  Entry and
+        exit over a tangent or a corner are passing moments, not walls, and
+        are left out; a single solid bar is counted at its widest chord (the
+        trade's reading of the three-tooth rule for solids).
+        """
+        if self.is_solid and self.pieces == 1:
+            return self.max_chord_mm
+        thinnest = self._profile.thinnest_wall()
+        return self.max_chord_mm if thinnest is None else thinnest
 
     @property
     def min_wall_mm(self) -> float | None:
@@ -217,17 +238,35 @@ class Section:
 
         if not (0.0 <= y_mm <= self.height_mm):
             return ()
-        parts = self._placed[0]
+        eps = 1e-9 * max(self.height_mm, 1.0)
+        parts = self._parts_near(y_mm, 2 * eps)
         runs = tuple(b - a for a, b in metal_runs(parts, y_mm))
         chord = self.chord_mm(y_mm)
         if abs(sum(runs) - chord) > 1e-9 * max(chord, 1.0):
             # on a horizontal face W(y) takes the side the teeth touch: do the same
-            eps = 1e-9 * max(self.height_mm, 1.0)
             for y in (y_mm - eps, y_mm + eps):
                 side = tuple(b - a for a, b in metal_runs(parts, y))
                 if abs(sum(side) - chord) < abs(sum(runs) - chord):
                     runs = side
         return runs
+
+    @cached_property
+    def _by_depth(self) -> tuple[tuple[float, ...], tuple[tuple[float, float, Part], ...]]:
+        """Parts sorted by the depth of their top, with their depth extents (for runs_mm)."""
+        placed = []
+        for part in self._placed[0]:
+            _x0, top, _x1, bottom = part.figure.bounds()
+            placed.append((top, bottom, part))
+        placed.sort(key=lambda t: t[0])
+        return tuple(t[0] for t in placed), tuple(placed)
+
+    def _parts_near(self, y_mm: float, slack: float) -> list[Part]:
+        """The parts whose depth extent reaches depth y (a bundle cuts one row at a time)."""
+        tops, placed = self._by_depth
+        from bisect import bisect_right
+
+        end = bisect_right(tops, y_mm + slack)
+        return [part for top, bottom, part in placed[:end] if bottom >= y_mm - slack]
 
     def longest_run_mm(self, y_mm: float) -> float:
         """The longest single stretch of metal at depth y (0 outside the section)."""
@@ -278,8 +317,7 @@ class Section:
         if system is not None:
             text += " in" if us else " mm"
         if len(SHAPES[self.shape].orientations) > 1:
-            phrases = _PHRASES.get(self.orientation, {})
-            text += " " + phrases.get(self.shape, phrases.get("", "on a flat"))
+            text += " " + orientation_words(self.shape, self.orientation)
         if self.pieces > 1:
             text += f", bundle {self.bundle_rows}×{self.bundle_cols}" + (
                 " nested" if self.nested else ""
@@ -304,3 +342,27 @@ class Section:
             "mean_chord_mm": self.mean_chord_mm,
             "min_wall_mm": self.min_wall_mm,
         }
+
+
+def largest_bundle(section: Section, width_mm: float, height_mm: float) -> tuple[int, int] | None:
+    """The most rows × columns of ``section``'s pieces that fit a width × height opening.
+
+    Grid bundles stack whole pieces; nested rounds sit D·√3/2 apart in rows
+    shifted by half a diameter (as ``Section`` lays them).  None when not even
+    one piece fits.
+    """
+    one = Section(section.shape, section.dims_mm, section.orientation)
+    w, h = one.width_mm, one.height_mm
+    slack = 1e-9
+    if w > width_mm + slack or h > height_mm + slack:
+        return None
+    if not (section.nested and section.shape in NESTABLE):
+        rows = int(height_mm / h + slack)
+        cols = int(width_mm / w + slack)
+        return min(rows, MAX_BUNDLE_SIDE), min(cols, MAX_BUNDLE_SIDE)
+    d = section.dims_mm[0]
+    rows = 1 + int((height_mm - d) / (d * math.sqrt(3.0) / 2.0) + slack)
+    cols = int((width_mm - d / 2) / d + slack) if rows > 1 else int(width_mm / d + slack)
+    if cols < 1:  # the half-diameter shift does not fit: one row, no nesting needed
+        rows, cols = 1, int(width_mm / d + slack)
+    return min(rows, MAX_BUNDLE_SIDE), min(cols, MAX_BUNDLE_SIDE)

@@ -32,7 +32,7 @@ from sawplan.cutlist.plan.types import (
 )
 from sawplan.cutlist.sheets.bar_layout import bar_layout
 from sawplan.display import Q, join, say
-from sawplan.errors import SawplanError
+from sawplan.errors import BadDataError, SawplanError
 
 __all__ = [
     "CAUTIONS",
@@ -120,7 +120,9 @@ def plan_job(
             if found is not None:
                 factor, n_cal = float(found[0]), int(found[1])
         try:
-            cut = recommend(material, section, saw, calibration=factor)
+            cut = recommend(material, section, saw, calibration=factor, extras=False)
+            if cut.stalled:
+                raise BadDataError(f"{cut.stall_reason} on saw {saw.name}", field="saw")
         except SawplanError as err:
             raise located(err, where) from None
         kerf_mm = job.header.kerf_mm if job.header.kerf_mm is not None else cut.kerf_mm
