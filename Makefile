@@ -5,7 +5,7 @@ BIN := $(VENV)/bin
 STAMP := $(VENV)/.installed
 TEST_STAMP := $(VENV)/.installed-test
 
-.PHONY: demo test lint bench clean browser readme
+.PHONY: demo test lint bench clean browser postgres readme
 
 $(BIN)/python:
 	$(PY) -m venv $(VENV)
@@ -22,7 +22,7 @@ $(TEST_STAMP): pyproject.toml | $(BIN)/python
 demo: $(STAMP)
 	$(BIN)/python demo/run_demo.py
 
-test: $(TEST_STAMP) browser
+test: $(TEST_STAMP) browser postgres
 	$(BIN)/python -m pytest
 
 # The job-sheet test prints through headless Chromium (Debian's package). Install
@@ -34,6 +34,18 @@ browser:
 	    (apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq chromium >/dev/null) \
 	      || echo "chromium could not be installed: the browser test will be skipped"; \
 	  else echo "chromium not installed: the browser test will be skipped"; fi; }
+
+# The blade-log tests run on PostgreSQL too: on the server at 127.0.0.1:5432 when one
+# answers, else on a private one the tests start from Debian's postgresql binaries.
+# Install those when neither is there and we may; otherwise those tests skip and say why.
+postgres:
+	@ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1 \
+	  || $(PY) -c "import socket; socket.create_connection(('127.0.0.1', 5432), 2)" 2>/dev/null \
+	  || { if [ "$$(id -u)" = 0 ] && command -v apt-get >/dev/null 2>&1; then \
+	    echo "installing postgresql for the blade-log tests (Debian package)"; \
+	    (apt-get update -qq && DEBIAN_FRONTEND=noninteractive apt-get install -y -qq postgresql >/dev/null) \
+	      || echo "postgresql could not be installed: the PostgreSQL tests will be skipped"; \
+	  else echo "no PostgreSQL server or binaries: the PostgreSQL tests will be skipped"; fi; }
 
 lint: $(TEST_STAMP)
 	$(BIN)/ruff check sawplan tests bench demo

@@ -101,8 +101,8 @@ def build(path: Path) -> int:
             }
         )
     with connect(path) as db, write_transaction(db):
-        db["blades"].insert_all(blades, batch_size=1000)
-        db["cuts"].insert_all(cuts, batch_size=2000)
+        db.insert_many("blades", blades)
+        db.insert_many("cuts", cuts)
     return len(cuts)
 
 

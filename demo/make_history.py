@@ -199,7 +199,7 @@ def build(db_path: str | Path = DEFAULT_DB, *, seed: int = SEED) -> HistorySumma
         for saw in saws.values():
             add_saw(db, saw, added_on="2025-11-24")
         saw_ids = {
-            name: int(db.execute("SELECT id FROM saws WHERE name = ?", [name]).fetchone()[0])
+            name: int(db.scalar("SELECT id FROM saws WHERE name = :name", {"name": name}))
             for name in saws
         }
         _buy_trial_lot(db, state)
@@ -211,14 +211,13 @@ def build(db_path: str | Path = DEFAULT_DB, *, seed: int = SEED) -> HistorySumma
             for saw_name in saws:
                 _stop_trial_if_over(db, state, on_saw, saw_name, day)
                 _work_day(db, state, model, on_saw, saw_name, saw_ids[saw_name], day, catalogue)
-        blades = int(db.execute("SELECT COUNT(*) FROM blades").fetchone()[0])
-        retired = int(
-            db.execute("SELECT COUNT(*) FROM blades WHERE status = 'retired'").fetchone()[0]
-        )
+        blades = int(db.scalar("SELECT COUNT(*) FROM blades"))
+        retired = int(db.scalar("SELECT COUNT(*) FROM blades WHERE status = 'retired'"))
         fitted_trial = int(
-            db.execute(
-                "SELECT COUNT(*) FROM blades WHERE lot = ? AND status != 'new'", [TRIAL_LOT]
-            ).fetchone()[0]
+            db.scalar(
+                "SELECT COUNT(*) FROM blades WHERE lot = :lot AND status <> 'new'",
+                {"lot": TRIAL_LOT},
+            )
         )
     return HistorySummary(
         db_path=db_path,

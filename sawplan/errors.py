@@ -22,6 +22,7 @@ class ExitCode(IntEnum):
     DAMAGED = 6
     STORAGE = 7
     PLAN_INCOMPLETE = 8  # not an error: the plan is printed, but stock on hand is short
+    SERVER = 9
 
 
 class SawplanError(Exception):
@@ -76,3 +77,9 @@ class StorageError(SawplanError, OSError):
     """The disk refused: full, read-only, locked too long."""
 
     exit_code = ExitCode.STORAGE
+
+
+class ServerError(SawplanError):
+    """The database server cannot be reached, or refuses the login."""
+
+    exit_code = ExitCode.SERVER

@@ -81,3 +81,46 @@ def demo_tree(tmp_path_factory):
     spec.loader.exec_module(module)
     module.build(root / "demo" / "out" / "demo-log.sqlite")
     return root
+
+
+# --- the blade log on both engines ------------------------------------------------------
+
+
+@pytest.fixture(scope="session")
+def pg_database():
+    """The URL of a PostgreSQL database made for this test run (see tests/pg_server.py)."""
+    import pg_server
+
+    try:
+        with pg_server.server() as admin, pg_server.scratch_database(admin) as url:
+            yield url
+    except RuntimeError as err:
+        if "no postgresql binaries" in str(err).lower():
+            pytest.skip(str(err))
+        raise
+
+
+@pytest.fixture(
+    params=[
+        pytest.param("sqlite", id="sqlite"),
+        pytest.param("postgresql", id="postgresql"),
+    ]
+)
+def log_db(request, tmp_path):
+    """``--db`` of a new, empty blade log: a file, then a PostgreSQL database (its own schema)."""
+    if request.param == "sqlite":
+        yield str(tmp_path / "blade-log.sqlite")
+        return
+    import pg_server
+
+    with pg_server.scratch_schema(request.getfixturevalue("pg_database")) as url:
+        yield url
+
+
+@pytest.fixture
+def pg_log(request):
+    """``--db`` of a new, empty blade log on PostgreSQL only."""
+    import pg_server
+
+    with pg_server.scratch_schema(request.getfixturevalue("pg_database")) as url:
+        yield url

@@ -15,6 +15,7 @@ import io
 import os
 import shlex
 import shutil
+import sqlite3
 import subprocess
 import sys
 from pathlib import Path
@@ -96,7 +97,36 @@ def shop(tmp_path_factory) -> Path:
         f"{header}\n{row_1018.replace('1018,', 'shop-1018,', 1)}\n", encoding="utf-8"
     )
     (root / "usb").mkdir()
+    # backups for the restore examples: a copy on the stick and an automatic one
+    ok("backup", str(root / "usb" / "blade-log-2024-06-30.sqlite"))
+    (root / "home" / "backups").mkdir()
+    shutil.copyfile(
+        root / "usb" / "blade-log-2024-06-30.sqlite",
+        root / "home" / "backups" / "blade-log-schema3-20240630-120000-000000.sqlite",
+    )
+    from sawplan.store.backup import write_export_zip
+    from sawplan.store.location import parse_location
+
+    write_export_zip(parse_location(str(root / "shop-log.sqlite")), root / "shop-log.zip")
+    conn = sqlite3.connect(root / "old-log.sqlite")  # a log an earlier release wrote
+    conn.executescript((HERE / "data" / "legacy" / "blade-log-schema1.sql").read_text("utf-8"))
+    conn.close()
     return root
+
+
+# The help's example server stands for a real PostgreSQL log (tests/pg_server.py): empty
+# for the examples that fill one, else holding the shop's log.
+SERVER = "postgresql://office@saw-server/sawplan"
+
+
+def _server_log(example: str, folder: Path, request) -> str:
+    url = request.getfixturevalue("pg_log")
+    fills = f"--to {SERVER}" in example or example.startswith("sawplan restore")
+    if not fills:
+        from sawplan.store.transfer import copy_log
+
+        copy_log(folder / "shop-log.sqlite", url)
+    return url
 
 
 def _run_example(example: str, folder: Path, monkeypatch) -> tuple[int, str, str]:
@@ -109,9 +139,11 @@ def _run_example(example: str, folder: Path, monkeypatch) -> tuple[int, str, str
 
 
 @pytest.mark.parametrize("example", EXAMPLES, ids=EXAMPLES)
-def test_every_help_example_runs(shop, tmp_path, monkeypatch, example):
+def test_every_help_example_runs(shop, tmp_path, monkeypatch, request, example):
     folder = tmp_path / "shop"
     shutil.copytree(shop, folder)
+    if SERVER in example:
+        example = example.replace(SERVER, _server_log(example, folder, request))
     code, out, err = _run_example(example, folder, monkeypatch)
     assert code == 0, f"`{example}` exits {code}: {err}"
     assert out.strip() or "wrote" in err, f"`{example}` printed nothing"

@@ -1,25 +1,27 @@
-"""The blade log's storage: schema and migrations, refusal of foreign files, rows, lives.
+"""The blade log's storage on both engines: schema, refusal of foreign logs, rows, lives.
 
-External checks: sqlite-utils' own record of applied migrations
-(``Migrations.applied``), SQLite's ``PRAGMA`` values and ``iterdump``, closed-form
-areas (πd²/4), and the definitions of censoring (reference §7) and of the
-median (Python's ``statistics``).
+Every test that takes ``log_db`` runs twice: on a SQLite file and on a
+PostgreSQL database (``tests/conftest.py``).  External checks: the rows and
+tables as the engine's own driver reads them (``tests/logrows.py``), SQLite's
+``PRAGMA`` values, closed-form areas (πd²/4), the definitions of censoring
+(reference §7) and of the median (Python's ``statistics``).
 """
 
 from __future__ import annotations
 
 import math
-import sqlite3
 import statistics
 
 import pytest
+import sqlalchemy.exc
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from logrows import execute, is_server, snapshot
 
 from sawplan.errors import BadDataError, ConflictError, DamagedFileError, NotFoundError
 from sawplan.saws import load_saws
 from sawplan.store import calibration_factor, connect, life_for, saws_from_db
-from sawplan.store.db import open_log, schema_version
+from sawplan.store.db import open_log, schema_version, write_transaction
 from sawplan.store.records import (
     BladeSpec,
     CutEntry,
@@ -27,12 +29,13 @@ from sawplan.store.records import (
     add_blade,
     fit_blade,
     get_blade,
+    list_cuts,
     log_cut,
     log_event,
     remove_blade,
     retire_blade,
 )
-from sawplan.store.schema import APPLICATION_ID, MIGRATION_NAMES, MIGRATION_SET, migrations
+from sawplan.store.schema import APPLICATION_ID, HEAD, REVISIONS, TABLE_NAMES, VERSION_TABLE
 from sawplan.store.stats import blade_lives
 
 ROUND_60_MM2 = math.pi * 60.0**2 / 4.0  # closed form πd²/4
@@ -55,76 +58,34 @@ def cut(blade_id: int, area: float = ROUND_60_MM2, **kw) -> CutEntry:
     return CutEntry(**(base | kw))
 
 
-def dump(path) -> list[str]:
-    conn = sqlite3.connect(path)
-    try:
-        return list(conn.iterdump())
-    finally:
-        conn.close()
-
-
 # --- opening, schema, migrations ------------------------------------------------------------
 
 
-def test_new_log_is_marked_and_migrated(tmp_path):
-    path = tmp_path / "log.sqlite"
-    with connect(path) as db:
-        applied = [m.name for m in migrations().applied(db)]
-        assert applied == list(MIGRATION_NAMES)  # sqlite-utils' own record
-        assert schema_version(db) == len(MIGRATION_NAMES)
-        assert db.conn.execute("PRAGMA application_id").fetchone()[0] == APPLICATION_ID
-        assert db.conn.execute("PRAGMA journal_mode").fetchone()[0] == "wal"
-        assert db.conn.execute("PRAGMA foreign_keys").fetchone()[0] == 1
-        assert {"saws", "blades", "fittings", "cuts", "events"} <= set(db.table_names())
+def test_new_log_is_marked_and_migrated(log_db):
+    with connect(log_db) as db:
+        assert schema_version(db) == len(REVISIONS)
+    tables = snapshot(log_db)
+    assert set(TABLE_NAMES) <= set(tables)
+    assert tables[VERSION_TABLE] == [(HEAD,)]  # Alembic's record: the newest revision
+    if not is_server(log_db):
+        import sqlite3
+
+        conn = sqlite3.connect(log_db)
+        try:
+            assert conn.execute("PRAGMA application_id").fetchone()[0] == APPLICATION_ID
+            assert conn.execute("PRAGMA user_version").fetchone()[0] == len(REVISIONS)
+            assert conn.execute("PRAGMA journal_mode").fetchone()[0] == "wal"
+        finally:
+            conn.close()
 
 
-def test_first_schema_upgrades_and_keeps_every_row(tmp_path):
-    """A log made by migration 1 only opens cleanly and keeps its rows."""
-    from sqlite_utils import Database
-
-    path = tmp_path / "old.sqlite"
-    old = Database(sqlite3.connect(path, isolation_level=None))
-    migrations().apply(old, stop_before=MIGRATION_NAMES[1])
-    old.execute(f"PRAGMA application_id = {APPLICATION_ID}")
-    old.execute("PRAGMA user_version = 1")
-    old["saws"].insert({"name": "old saw", "kind": "horizontal", "source": "blade log"})
-    old["blades"].insert(
-        {"tag": "B-1", "width_mm": 27.0, "thickness_mm": 0.9, "tpi_coarse": 3.0, "tpi_fine": 4.0}
-    )
-    old["fittings"].insert({"blade_id": 1, "saw_id": 1, "fitted_on": "2024-01-02"})
-    for i in range(5):
-        old["cuts"].insert(
-            {"blade_id": 1, "saw_id": 1, "cut_on": "2024-01-03", "material": "304",
-             "material_group": "austenitic-stainless", "section": "round 60mm",
-             "area_mm2": ROUND_60_MM2, "pieces": 1, "count": i + 1, "time_min": 3.0}
-        )  # fmt: skip
-    old["events"].insert({"blade_id": 1, "happened_on": "2024-01-04", "kind": "stall"})
-    before = {t: list(old.query(f"SELECT * FROM {t} ORDER BY id")) for t in old.table_names()}
-    assert "heat" not in old["cuts"].columns_dict
-    old.close()
-
-    with connect(path) as db:
-        assert schema_version(db) == len(MIGRATION_NAMES)
-        assert [m.name for m in migrations().applied(db)] == list(MIGRATION_NAMES)
-        for table, rows in before.items():
-            if table == "_sqlite_migrations":
-                continue
-            after = list(db.query(f"SELECT * FROM {table} ORDER BY id"))
-            assert len(after) == len(rows)
-            for old_row, new_row in zip(rows, after, strict=True):
-                assert {k: new_row[k] for k in old_row} == old_row
-        assert {"heat", "predicted_time_min"} <= set(db["cuts"].columns_dict)
-        assert get_blade(db, "B-1").area_mm2 == pytest.approx(ROUND_60_MM2 * 5)
-
-
-def test_opening_twice_changes_nothing(tmp_path):
-    path = tmp_path / "log.sqlite"
-    with connect(path) as db:
+def test_opening_twice_changes_nothing(log_db):
+    with connect(log_db) as db:
         add_blade(db, spec("B-1"), added_on="2024-01-01")
-    first = dump(path)
-    with connect(path):
+    first = snapshot(log_db)
+    with connect(log_db):
         pass
-    assert dump(path) == first
+    assert snapshot(log_db) == first
 
 
 @pytest.mark.parametrize(
@@ -135,7 +96,7 @@ def test_opening_twice_changes_nothing(tmp_path):
             lambda p: p.write_bytes(b"SQLite format 3\x00" + b"\xff" * 200), id="damaged header"
         ),
         pytest.param(
-            lambda p: sqlite3.connect(p).executescript("CREATE TABLE orders (id INTEGER);"),
+            lambda p: execute(p, "CREATE TABLE orders (id INTEGER)"),
             id="another program's database",
         ),
     ],
@@ -150,42 +111,40 @@ def test_foreign_files_are_refused_untouched(tmp_path, make):
     assert path.read_bytes() == before
 
 
-def test_newer_schema_is_refused(tmp_path):
-    path = tmp_path / "log.sqlite"
-    with connect(path) as db:
-        db["_sqlite_migrations"].insert(
-            {"migration_set": MIGRATION_SET, "name": "m003_from_the_future", "applied_at": "2030"}
-        )
-        db.execute(f"PRAGMA user_version = {len(MIGRATION_NAMES) + 1}")
+def test_another_applications_database_is_refused_untouched(pg_log):
+    execute(pg_log, "CREATE TABLE orders (id integer PRIMARY KEY, item text)")
+    before = snapshot(pg_log)
+    with pytest.raises(DamagedFileError, match="another application's tables"):
+        open_log(pg_log)
+    assert snapshot(pg_log) == before
+
+
+def test_newer_schema_is_refused(log_db):
+    with connect(log_db):
+        pass
+    execute(log_db, f"UPDATE {VERSION_TABLE} SET version_num = '9001'")
+    if not is_server(log_db):
+        execute(log_db, f"PRAGMA user_version = {len(REVISIONS) + 1}")
+    before = snapshot(log_db)
     with pytest.raises(DamagedFileError, match="newer sawplan"):
-        open_log(path)
+        open_log(log_db)
+    assert snapshot(log_db) == before
 
 
-def test_unknown_migration_with_old_version_is_refused(tmp_path):
-    """The migrations table, not only user_version, decides what a newer schema is."""
-    path = tmp_path / "log.sqlite"
-    with connect(path) as db:
-        db["_sqlite_migrations"].insert(
-            {"migration_set": MIGRATION_SET, "name": "m003_from_the_future", "applied_at": "2030"}
-        )
-        db.execute("PRAGMA user_version = 1")
-    with pytest.raises(DamagedFileError, match="newer sawplan"):
-        open_log(path)
-
-
-def test_reading_a_missing_log_creates_nothing(tmp_path):
-    path = tmp_path / "nothing-here.sqlite"
-    assert saws_from_db(path) == []
-    assert calibration_factor(path, "any saw", "carbon-steel") is None
-    assert not path.exists()
+def test_reading_a_missing_log_creates_nothing(log_db):
+    assert saws_from_db(log_db) == []
+    assert calibration_factor(log_db, "any saw", "carbon-steel") is None
+    with connect(log_db, create=False) as db:
+        assert list_cuts(db) == []
+    assert set(snapshot(log_db)) == set()  # no file; no table in the empty database
 
 
 # --- blades, fittings, cuts, events -----------------------------------------------------------
 
 
 @pytest.fixture
-def db(tmp_path):
-    with connect(tmp_path / "log.sqlite") as database:
+def db(log_db):
+    with connect(log_db) as database:
         yield database
 
 
@@ -199,8 +158,8 @@ def test_fitting_takes_the_old_blade_off_the_saw(db):
     assert get_blade(db, "B-1").status == "removed"
     assert get_blade(db, "B-2").saw == "mid-production"
     # the database itself allows one open fitting per saw
-    with pytest.raises(sqlite3.IntegrityError):
-        db["fittings"].insert({"blade_id": 1, "saw_id": 1, "fitted_on": "2024-01-06"})
+    with pytest.raises(sqlalchemy.exc.IntegrityError), write_transaction(db):
+        db.insert("fittings", {"blade_id": 1, "saw_id": 1, "fitted_on": "2024-01-06"})
 
 
 def test_retired_blade_takes_no_cuts_or_events(db):
@@ -208,14 +167,14 @@ def test_retired_blade_takes_no_cuts_or_events(db):
     blade = get_blade(db, "B-1")
     log_cut(db, cut(blade.id))
     retire_blade(db, "B-1", "dull", on="2024-02-01")
-    before = db.execute("SELECT COUNT(*) FROM cuts").fetchone()[0]
+    before = db.scalar("SELECT COUNT(*) FROM cuts")
     with pytest.raises(ConflictError):
         log_cut(db, cut(blade.id))
     with pytest.raises(ConflictError):
         log_event(db, EventEntry("B-1", "stall", "2024-02-02"))
     with pytest.raises(ConflictError):
         retire_blade(db, "B-1", "weld", on="2024-02-03")
-    assert db.execute("SELECT COUNT(*) FROM cuts").fetchone()[0] == before
+    assert db.scalar("SELECT COUNT(*) FROM cuts") == before
 
 
 def test_failure_event_retires_the_blade(db):
@@ -236,34 +195,39 @@ def test_failure_event_retires_the_blade(db):
         pytest.param(lambda db: fit_blade(db, "B-1", "no such saw", on="2024-01-02"), NotFoundError, id="unknown saw"),
     ],
 )  # fmt: skip
-def test_bad_requests_write_nothing(db, call, error):
+def test_bad_requests_write_nothing(db, log_db, call, error):
     add_blade(db, spec("B-1"), added_on="2024-01-01")
-    tables = ("blades", "fittings", "saws", "events", "cuts")
-    before = [list(db.query(f"SELECT * FROM {t}")) for t in tables]
+    before = snapshot(log_db)
     with pytest.raises(error):
         call(db)
-    assert [list(db.query(f"SELECT * FROM {t}")) for t in tables] == before
+    assert snapshot(log_db) == before
 
 
-def test_a_cut_row_is_small(db):
+def test_a_cut_row_is_small(tmp_path):
     """A typical cut entry stays well under 300 bytes of record (table + indexes on disk: bench)."""
-    add_blade(db, spec("B-1"), added_on="2024-01-01")
-    log_cut(
-        db,
-        cut(
-            1,
-            time_min=3.25,
-            predicted_time_min=3.1,
-            band_speed_m_min=60.0,
-            job="J-2291",
-            heat="H77812",
-        ),
-    )
+    import sqlite3
+
+    path = tmp_path / "log.sqlite"
+    with connect(path) as db:
+        add_blade(db, spec("B-1"), added_on="2024-01-01")
+        log_cut(
+            db,
+            cut(
+                1,
+                time_min=3.25,
+                predicted_time_min=3.1,
+                band_speed_m_min=60.0,
+                job="J-2291",
+                heat="H77812",
+            ),
+        )
+    conn = sqlite3.connect(path)
+    columns = [r[1] for r in conn.execute("PRAGMA table_info(cuts)")]
     # SQLite's own record size of the row, summed over its columns
-    columns = [c for c in db["cuts"].columns_dict]
-    size = db.execute(
+    size = conn.execute(
         f"SELECT {' + '.join(f'COALESCE(LENGTH(CAST({c} AS BLOB)), 0)' for c in columns)} FROM cuts"
     ).fetchone()[0]
+    conn.close()
     assert size < 200
 
 
@@ -318,7 +282,7 @@ def test_calibration_needs_three_cuts_and_is_the_median_ratio(db):
     pairs = [(3.3, 3.0), (2.0, 2.5), (4.4, 4.0)]
     for actual, model in pairs[:2]:
         log_cut(db, cut(1, saw_id=1, time_min=actual, predicted_time_min=model))
-    path = db.conn.execute("PRAGMA database_list").fetchone()[2]
+    path = db.location.url or db.location.path
     assert calibration_factor(path, "mid-production", "austenitic-stainless") is None
     log_cut(db, cut(1, saw_id=1, time_min=pairs[2][0], predicted_time_min=pairs[2][1]))
     factor, n = calibration_factor(path, "MID-production", "austenitic-stainless")

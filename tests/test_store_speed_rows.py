@@ -39,8 +39,8 @@ def _cut(db, blade_id, speed, *, group="austenitic-stainless", on="2024-03-04", 
     )
 
 
-def test_rows_carry_each_cut_at_its_speed_in_order(tmp_path):
-    path = tmp_path / "log.sqlite"
+def test_rows_carry_each_cut_at_its_speed_in_order(log_db):
+    path = log_db
     with connect(path) as db:
         a = _blade(db, "A1")
         b = _blade(db, "B1", tpi_coarse=4.0, tpi_fine=6.0, price=75.0)
@@ -62,8 +62,8 @@ def test_rows_carry_each_cut_at_its_speed_in_order(tmp_path):
     assert rows.blade_types[0] != rows.blade_types[1]
 
 
-def test_cut_without_speed_takes_the_blades_mean_and_blade_without_any_is_left_out(tmp_path):
-    path = tmp_path / "log.sqlite"
+def test_cut_without_speed_takes_the_blades_mean_and_blade_without_any_is_left_out(log_db):
+    path = log_db
     with connect(path) as db:
         a = _blade(db, "A1")
         quiet = _blade(db, "Q1")

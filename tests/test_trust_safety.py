@@ -32,7 +32,6 @@ from pathlib import Path
 import pytest
 
 from sawplan.store import safety
-from sawplan.store.schema import APPLICATION_ID, MIGRATION_NAMES, migrations
 
 CUT_COLUMNS = ["blade", "saw", "cut_on", "material", "material_group", "section", "area_mm2",
                "pieces", "count", "band_speed_m_min", "feed_mm_min", "feed_setting", "time_min",
@@ -365,7 +364,8 @@ def test_damage_is_found_when_opening_for_writing(big_log, cli, monkeypatch):
     )
     err = one_line(cli(*args, "--db", str(big_log)), 6)
     assert "is damaged" in err and "nothing was written" in err
-    assert f"copy {newer} over blade-log.sqlite" in err  # the newest backup, by name
+    assert f"restore the newest good backup {newer}" in err  # the newest backup, by name
+    assert "sawplan restore --force" in err
     assert big_log.read_bytes() == before
 
 
@@ -395,67 +395,9 @@ def test_the_routine_check_runs_about_once_in_n_opens(monkeypatch):
     assert expected - spread < runs < expected + spread
 
 
-# --- rolling backups before a schema upgrade -----------------------------------------------
-
-
-def make_first_schema_log(path: Path, tag: str = "B-1") -> list[tuple]:
-    """A log as the first sawplan release wrote it (migration 1 only), with rows."""
-    from sqlite_utils import Database
-
-    path.unlink(missing_ok=True)
-    old = Database(sqlite3.connect(path, isolation_level=None))
-    migrations().apply(old, stop_before=MIGRATION_NAMES[1])
-    old.execute(f"PRAGMA application_id = {APPLICATION_ID}")
-    old.execute("PRAGMA user_version = 1")
-    old["blades"].insert(
-        {"tag": tag, "width_mm": 27.0, "thickness_mm": 0.9, "tpi_coarse": 3.0, "tpi_fine": 4.0}
-    )
-    rows = list(old.execute("SELECT * FROM blades"))
-    old.close()
-    return rows
-
-
-def test_an_upgrade_keeps_a_backup_of_the_old_log(tmp_path, cli):
-    log = tmp_path / "blade-log.sqlite"
-    rows = make_first_schema_log(log)
-    assert cli("blade", "list", "--db", str(log)).code == 0  # opening upgrades it
-    backups = safety.backups_of(log)
-    assert [b.parent.name for b in backups] == ["backups"]
-    conn = sqlite3.connect(backups[0])
-    try:
-        assert conn.execute("PRAGMA user_version").fetchone()[0] == 1  # the log as it was
-        assert conn.execute("SELECT * FROM blades").fetchall() == rows
-        assert [r[0] for r in conn.execute("PRAGMA integrity_check")] == ["ok"]
-    finally:
-        conn.close()
-    assert sqlite3.connect(log).execute("PRAGMA user_version").fetchone()[0] == len(MIGRATION_NAMES)
-
-
-def test_only_the_newest_three_upgrade_backups_are_kept(tmp_path, cli):
-    log = tmp_path / "blade-log.sqlite"
-    for n in range(5):
-        make_first_schema_log(log, tag=f"B-{n}")
-        assert cli("blade", "list", "--db", str(log)).code == 0
-    backups = safety.backups_of(log)
-    assert len(backups) == safety.BACKUPS_KEPT == 3
-    tags = [sqlite3.connect(b).execute("SELECT tag FROM blades").fetchone()[0] for b in backups]
-    assert tags == ["B-2", "B-3", "B-4"]
-
-
-def test_no_upgrade_without_a_backup(tmp_path, cli):
-    log = tmp_path / "blade-log.sqlite"
-    make_first_schema_log(log)
-    (tmp_path / "backups").write_text("a file where the folder should be", encoding="utf-8")
-    before = dump(log)
-    err = one_line(cli("blade", "list", "--db", str(log)), 7)
-    assert "could not back up" in err and "nothing was changed" in err
-    assert dump(log) == before
-    assert sqlite3.connect(log).execute("PRAGMA user_version").fetchone()[0] == 1
-
-
 def test_the_restore_advice_names_no_backup_when_there_is_none(tmp_path):
     hint = safety.restore_hint(tmp_path / "blade-log.sqlite")
-    assert "sawplan backup" in hint and "no automatic backups" in hint
+    assert "sawplan backup" in hint and "no sound automatic backups" in hint
 
 
 @pytest.fixture(autouse=True)

@@ -45,6 +45,9 @@ COMMANDS: dict[str, str] = {
     "export": "sawplan.cli.cmd_logdata",
     "import": "sawplan.cli.cmd_logdata",
     "backup": "sawplan.cli.cmd_logdata",
+    "check": "sawplan.cli.cmd_logdata",
+    "restore": "sawplan.cli.cmd_logdata",
+    "db": "sawplan.cli.cmd_db",
     "config": "sawplan.cli.cmd_config",
 }
 COMMAND_MODULES = tuple(dict.fromkeys(COMMANDS.values()))

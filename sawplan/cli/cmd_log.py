@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from typing import Annotated, Any
+from typing import Annotated
 
 import typer
 
@@ -115,7 +115,7 @@ def log_cut_command(
     from sawplan.sections import parse_section
     from sawplan.store import connect
     from sawplan.store.dates import parse_day
-    from sawplan.store.records import CutEntry, get_blade, log_cut
+    from sawplan.store.records import CutEntry, record_cut
 
     mat = load_catalogue(materials_file).get(material)
     if saws_file is not None:  # read (and check) a --saws file even when the log has the saw
@@ -136,22 +136,21 @@ def log_cut_command(
     feed_mm_min, feed_setting = parse_feed(feed)
     on = parse_day(date)
     notes: list[str] = []
-    with connect(db) as database:
-        shop_saw = config.get("saw") if blade is None and saw is None else None
-        target, saw_id, saw_obj = resolve_target(database, blade, shop_saw or saw, saws_file, on,
-                                                 only_if_several=shop_saw is not None)  # fmt: skip
+
+    def entry_for(target) -> CutEntry:
+        notes.clear()  # the step may run again after a conflict with another station
         predicted = None
-        if area is None and saw_obj is not None:
+        if area is None and target.saw is not None:
             predicted, why = predict_minutes(
-                mat, sec, saw_obj, target, dry=dry, speed_m_min=speed_m_min
+                mat, sec, target.saw, target.blade, dry=dry, speed_m_min=speed_m_min
             )
             if predicted is None:
                 notes.append(say("no model time: {}", why))
             else:
                 predicted *= cuts
-        entry = CutEntry(
-            blade_id=target.id,
-            saw_id=saw_id,
+        return CutEntry(
+            blade_id=target.blade.id,
+            saw_id=target.saw_id,
             cut_on=on,
             material=mat.key,
             material_group=mat.group,
@@ -169,8 +168,18 @@ def log_cut_command(
             heat=heat,
             note=note,
         )
-        entry_id = log_cut(database, entry)
-        after = get_blade(database, target.tag)
+
+    def profile_of(name: str):
+        from sawplan.saws import load_saws
+
+        return load_saws(saws_file).get(name.strip().lower())
+
+    # the shop's configured saw only chooses between several saws that carry blades
+    shop_saw = config.get("saw") if blade is None and saw is None else None
+    with connect(db) as database:
+        entry_id, entry, after = record_cut(
+            database, blade, saw, entry_for, on=on, profile_of=profile_of, preferred_saw=shop_saw
+        )
     if json_out:
         result = LoggedCut(entry_id, after.tag, after.saw, after.area_mm2, tuple(notes), entry)
         print(to_json(result, kind="logged-cut"))
@@ -212,55 +221,6 @@ def parse_feed(text: str | None) -> tuple[float | None, str | None]:
         return parse("feed", text), None
     positive(setting, field="feed setting", what="above 0")  # a dial setting is a number
     return None, text.strip()
-
-
-def resolve_target(
-    database: Any,
-    tag: str | None,
-    saw: str | None,
-    saws_file: Any,
-    on: str,
-    *,
-    only_if_several: bool = False,
-):
-    """The blade the cut was made with, the saw's row id, and the saw's profile.
-
-    ``only_if_several``: ``saw`` is the shop's configured saw, used only to choose
-    between several saws that carry blades.
-    """
-    from sawplan.errors import ConflictError
-    from sawplan.saws import load_saws
-    from sawplan.store.records import (
-        ensure_saw,
-        find_saw,
-        fitted_blade,
-        fitted_on_saws,
-        get_blade,
-    )
-
-    if only_if_several and saw is not None:
-        fitted = fitted_on_saws(database)
-        if len(fitted) < 2 or saw.strip().lower() not in fitted:
-            saw = None
-    if tag is None:
-        target, saw_name = fitted_blade(database, saw)
-    else:
-        target = get_blade(database, tag)
-        if target.status == "retired":
-            raise ConflictError(
-                f"blade {target.tag} was retired on {target.retired_on}; no more cuts can be logged on it",
-                field="blade",
-            )
-        if saw is not None and target.saw is not None and target.saw.lower() != saw.strip().lower():
-            raise ConflictError(
-                f"blade {target.tag} is fitted on {target.saw}, not {saw}", field="saw"
-            )
-        saw_name = target.saw or saw
-    if saw_name is None:
-        return target, None, None
-    profile = find_saw(database, saw_name) or load_saws(saws_file).get(saw_name.strip().lower())
-    saw_id, _ = ensure_saw(database, saw_name, profile, on=on)
-    return target, saw_id, find_saw(database, saw_name)
 
 
 def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float | None):

@@ -1,20 +1,31 @@
-"""The blade log: a local SQLite record of saws, blades, fittings, cuts and events.
+"""The blade log: saws, blades, fittings, cuts and events, in SQLite or PostgreSQL.
 
-- ``db``: where the log lives (``--db``, ``SAWPLAN_DB``, per-user default),
-  opening, schema checks, ``BEGIN IMMEDIATE`` transactions.
-- ``schema``: sqlite-utils recorded migrations.
+- ``location``: where the log lives (``--db`` file or ``postgresql://`` URL,
+  ``SAWPLAN_DB``, the config file, the per-user default); passwords masked.
+- ``engine`` / ``db``: connections, opening, transactions with retries.
+- ``schema`` / ``upgrade`` / ``migrations/``: the tables and their one
+  migration history (Alembic), for both engines.
 - ``records``: rows read and written.
 - ``stats`` / ``reports``: lives, calibration and forecasts for ``sawplan.life``.
-- ``exchange``: CSV export/import and backup.
+- ``exchange``: CSV export/import; ``backup``: one portable file;
+  ``transfer``: ``db copy`` with per-table checksums; ``health``: ``check`` and
+  ``restore``; ``safety``: damage checks, rolling backups, leftovers;
+  ``perms``: file modes.
 
-What other commands use (every function takes the log's path, ``None`` for the default)::
+A command (or the station) opens the log with ``connect(db)`` and passes the
+open ``Log`` to the row functions (``records``): every write runs as one step
+through ``run_write``, e.g. ``record_cut`` looks up the fitted blade and writes
+the cut in one transaction.
+
+What other commands use (every function takes ``--db``'s value, ``None`` for the default)::
 
     saws_from_db(db_path) -> list[Saw]                     # for load_saws(extra=...)
     calibration_factor(db_path, saw_name, material_group)  # -> (factor, cuts) | None
     life_for(db_path, material_group)                      # -> LifeBasis(fit | None, default, ...)
     forecast_job(db_path, {material_group: area_cm2})      # -> JobForecast
 
-sqlite_utils (and with it pandas) is imported only when a log is opened.
+SQLAlchemy is imported only when a log is opened (``sawplan cut`` reads an
+up-to-date SQLite log through ``sqlite3`` alone), Alembic only to change a schema.
 """
 
 from __future__ import annotations
@@ -22,7 +33,16 @@ from __future__ import annotations
 import os
 from typing import TYPE_CHECKING, Any
 
-from sawplan.store.db import connect, default_db_path, open_log, resolve_db_path, write_transaction
+from sawplan.store.db import (
+    connect,
+    default_db_path,
+    open_log,
+    read_snapshot,
+    resolve_db,
+    resolve_db_path,
+    run_write,
+    write_transaction,
+)
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.saws import Saw
@@ -63,7 +83,10 @@ __all__ = [
     "forecast_job",
     "life_for",
     "open_log",
+    "read_snapshot",
+    "resolve_db",
     "resolve_db_path",
+    "run_write",
     "saws_from_db",
     "write_transaction",
 ]

@@ -1,8 +1,9 @@
 """Blade and fitting rows: what a blade is, which saw carries it, how it ended.
 
-Every write runs in one ``BEGIN IMMEDIATE`` transaction (``write_transaction``)
-so a check ("is this blade retired?") and the write it guards cannot be split
-by another process.
+Every write is one step run by ``run_write`` (``BEGIN IMMEDIATE`` on SQLite,
+SERIALIZABLE and run again after a conflict on PostgreSQL), so a check ("is
+this blade retired?") and the write it guards cannot be split by another
+process or station.
 """
 
 from __future__ import annotations
@@ -14,7 +15,7 @@ from typing import TYPE_CHECKING, Any
 
 from sawplan.display import Q, join, say
 from sawplan.errors import BadDataError, ConflictError, NotFoundError, UsageError
-from sawplan.store.db import write_transaction
+from sawplan.store.db import run_write
 from sawplan.store.fields import (
     BLADE_STATUSES,
     WELDED,
@@ -27,9 +28,8 @@ from sawplan.store.fields import (
 from sawplan.store.saw_rows import saw_row_id
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database
-
     from sawplan.saws import Saw
+    from sawplan.store.db import Log as Database
 
 
 @dataclass(frozen=True)
@@ -115,6 +115,14 @@ FROM blades b
 LEFT JOIN fittings f ON f.blade_id = b.id AND f.removed_on IS NULL
 LEFT JOIN saws s ON s.id = f.saw_id
 """
+# Without the totals: what a write step needs (it must not read the blade's cuts, or two
+# stations logging on one blade would conflict on PostgreSQL for nothing).
+_BLADE_ONLY_QUERY = """
+SELECT b.*, s.name AS saw, 0.0 AS area_mm2, 0 AS cuts
+FROM blades b
+LEFT JOIN fittings f ON f.blade_id = b.id AND f.removed_on IS NULL
+LEFT JOIN saws s ON s.id = f.saw_id
+"""
 _BLADE_FIELDS = tuple(f.name for f in dataclasses.fields(Blade))
 
 
@@ -147,16 +155,23 @@ def add_blade(db: Database, spec: BladeSpec, *, added_on: str) -> Blade:
         row[key] = clean_text(row[key], field=key)
     row.update(tag=tag, status="new", added_on=added_on)
     row["blade_material"] = row["blade_material"] or "bi-metal"
-    with write_transaction(db):
+
+    def step() -> None:
         if _find_blade_row(db, tag) is not None:
             raise ConflictError(f"blade {tag} is already in the log", field="tag")
-        db["blades"].insert(row)
+        db.insert("blades", row)
+
+    run_write(db, step)
     return get_blade(db, tag)
 
 
-def get_blade(db: Database, tag: str) -> Blade:
-    """One blade by tag (case-insensitive); unknown tags get a suggestion."""
-    rows = list(db.query(_BLADE_QUERY + " WHERE b.tag = ? COLLATE NOCASE", [tag.strip()]))
+def get_blade(db: Database, tag: str, *, totals: bool = True) -> Blade:
+    """One blade by tag (case-insensitive); unknown tags get a suggestion.
+
+    ``totals=False`` leaves the area and number of cuts at 0 (no read of its cuts).
+    """
+    sql = _BLADE_QUERY if totals else _BLADE_ONLY_QUERY
+    rows = db.query(sql + " WHERE lower(b.tag) = lower(:tag)", {"tag": tag.strip()})
     if rows:
         return _blade(rows[0])
     tags = [r["tag"] for r in db.query("SELECT tag FROM blades")]
@@ -169,12 +184,14 @@ def list_blades(db: Database, *, status: str | None = None) -> list[Blade]:
     """All blades (or those of one status), in the order they were added."""
     if status is not None and status not in BLADE_STATUSES:
         raise UsageError(f"must be one of {', '.join(BLADE_STATUSES)}", field="status")
-    where, params = ("", []) if status is None else (" WHERE b.status = ?", [status])
+    where, params = (
+        ("", {}) if status is None else (" WHERE b.status = :status", {"status": status})
+    )
     return [_blade(r) for r in db.query(_BLADE_QUERY + where + " ORDER BY b.id", params)]
 
 
 def _find_blade_row(db: Database, tag: str) -> dict[str, Any] | None:
-    rows = list(db.query("SELECT * FROM blades WHERE tag = ? COLLATE NOCASE", [tag.strip()]))
+    rows = db.query("SELECT * FROM blades WHERE lower(tag) = lower(:tag)", {"tag": tag.strip()})
     return rows[0] if rows else None
 
 
@@ -207,7 +224,8 @@ def fit_blade(
     if tension_mpa is not None:
         positive(tension_mpa, "tension")
     how = clean_text(break_in_how, field="break-in-how")
-    with write_transaction(db):
+
+    def step() -> FitOutcome:
         blade = existing_blade_row(db, tag)
         if blade["status"] == "retired":
             raise ConflictError(f"blade {blade['tag']} was retired on {blade['retired_on']}")
@@ -222,7 +240,8 @@ def fit_blade(
         other = _open_fitting(db, saw_id=saw_id)
         if other is not None:
             displaced = _close_fitting(db, other, on)["tag"]
-        db["fittings"].insert(
+        db.insert(
+            "fittings",
             {
                 "blade_id": blade["id"],
                 "saw_id": saw_id,
@@ -230,20 +249,25 @@ def fit_blade(
                 "tension_mpa": tension_mpa,
                 "break_in": None if break_in is None else int(break_in),
                 "break_in_how": how,
-            }
+            },
         )
-        db["blades"].update(blade["id"], {"status": "fitted"})
-    return FitOutcome(blade["tag"], saw_label, on, displaced, moved_from)
+        db.update("blades", blade["id"], {"status": "fitted"})
+        return FitOutcome(blade["tag"], saw_label, on, displaced, moved_from)
+
+    return run_write(db, step)
 
 
 def remove_blade(db: Database, tag: str, *, on: str) -> str:
     """Take a fitted blade off its saw (unworn: it stays a censored life). Returns the saw."""
-    with write_transaction(db):
+
+    def step() -> str:
         blade = existing_blade_row(db, tag)
         fitting = _open_fitting(db, blade_id=blade["id"])
         if fitting is None:
             raise ConflictError(f"blade {blade['tag']} is not fitted (it is {blade['status']})")
         return str(_close_fitting(db, fitting, on)["saw"])
+
+    return run_write(db, step)
 
 
 def retire_blade(
@@ -257,7 +281,10 @@ def retire_blade(
 ) -> Blade:
     """End a blade's life with a failure mode; records a ``failure`` event."""
     code = check_failure_mode(cause, field="cause")
-    with write_transaction(db):
+    where = clean_text(location, field="location")
+    text = clean_text(note, field="note")
+
+    def step() -> None:
         blade = existing_blade_row(db, tag)
         if blade["status"] == "retired":
             raise ConflictError(
@@ -266,29 +293,34 @@ def retire_blade(
         fitting = _open_fitting(db, blade_id=blade["id"])
         if fitting is not None:
             _close_fitting(db, fitting, on)
-        db["blades"].update(
-            blade["id"], {"status": "retired", "retired_on": on, "retire_cause": code}
+        db.update(
+            "blades", blade["id"], {"status": "retired", "retired_on": on, "retire_cause": code}
         )
-        db["events"].insert(
+        db.insert(
+            "events",
             {
                 "blade_id": blade["id"],
                 "happened_on": on,
                 "kind": "failure",
                 "mode": code,
-                "location": clean_text(location, field="location"),
-                "note": clean_text(note, field="note"),
-            }
+                "location": where,
+                "note": text,
+            },
         )
+
+    run_write(db, step)
     return get_blade(db, tag)
 
 
-def fitted_blade(db: Database, saw_name: str | None = None) -> tuple[Blade, str]:
+def fitted_blade(
+    db: Database, saw_name: str | None = None, *, totals: bool = True
+) -> tuple[Blade, str]:
     """The blade on ``saw_name``, or the only fitted blade when no saw is named."""
     sql = (
         "SELECT b.tag, s.name AS saw FROM fittings f JOIN blades b ON b.id = f.blade_id "
         "JOIN saws s ON s.id = f.saw_id WHERE f.removed_on IS NULL"
     )
-    rows = list(db.query(sql + " ORDER BY s.name"))
+    rows = sorted(db.query(sql), key=lambda r: r["saw"])  # the same order on every engine
     if saw_name is not None:
         rows = [r for r in rows if r["saw"].lower() == saw_name.strip().lower()]
         if not rows:
@@ -310,7 +342,7 @@ def fitted_blade(db: Database, saw_name: str | None = None) -> tuple[Blade, str]
             field="blade",
             hint="give --saw NAME or --blade TAG",
         )
-    return get_blade(db, rows[0]["tag"]), rows[0]["saw"]
+    return get_blade(db, rows[0]["tag"], totals=totals), rows[0]["saw"]
 
 
 def fitted_on_saws(db: Database) -> dict[str, str]:
@@ -323,12 +355,10 @@ def fitted_on_saws(db: Database) -> dict[str, str]:
 
 
 def fittings_of(db: Database, blade_id: int) -> list[dict[str, Any]]:
-    return list(
-        db.query(
-            "SELECT f.*, s.name AS saw FROM fittings f JOIN saws s ON s.id = f.saw_id "
-            "WHERE f.blade_id = ? ORDER BY f.id",
-            [blade_id],
-        )
+    return db.query(
+        "SELECT f.*, s.name AS saw FROM fittings f JOIN saws s ON s.id = f.saw_id "
+        "WHERE f.blade_id = :blade_id ORDER BY f.id",
+        {"blade_id": blade_id},
     )
 
 
@@ -344,9 +374,9 @@ def _open_fitting(
     db: Database, *, blade_id: int | None = None, saw_id: int | None = None
 ) -> dict[str, Any] | None:
     if blade_id is not None:
-        rows = list(db.query(_OPEN_FITTING + " AND f.blade_id = ?", [blade_id]))
+        rows = db.query(_OPEN_FITTING + " AND f.blade_id = :id", {"id": blade_id})
     else:
-        rows = list(db.query(_OPEN_FITTING + " AND f.saw_id = ?", [saw_id]))
+        rows = db.query(_OPEN_FITTING + " AND f.saw_id = :id", {"id": saw_id})
     return rows[0] if rows else None
 
 
@@ -362,9 +392,9 @@ def _close_fitting(db: Database, fitting: dict[str, Any], on: str) -> dict[str, 
             f"{on} is before blade {fitting['tag']} was fitted ({fitting['fitted_on']})",
             field="date",
         )
-    db["fittings"].update(fitting["id"], {"removed_on": on})
+    db.update("fittings", fitting["id"], {"removed_on": on})
     db.execute(
-        "UPDATE blades SET status = 'removed' WHERE id = ? AND status = 'fitted'",
-        [fitting["blade_id"]],
+        "UPDATE blades SET status = 'removed' WHERE id = :id AND status = 'fitted'",
+        {"id": fitting["blade_id"]},
     )
     return fitting

@@ -10,9 +10,8 @@ from sawplan.display import Q, say
 from sawplan.store.records import Blade, cuts_of, events_of, fittings_of, get_blade
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database
-
     from sawplan.life import WearCurve
+    from sawplan.store.db import Log as Database
 
 SHOWN_CUTS = 20  # the table shows the latest entries; JSON and CSV carry all
 

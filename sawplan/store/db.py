@@ -1,385 +1,463 @@
-"""Opening the blade log: where it lives, connection settings, schema checks, transactions.
+"""Opening the blade log on either engine, reading it, and writing it in transactions.
 
-The log is one SQLite file used through sqlite-utils.  Each command opens it,
-does its work inside one transaction and closes it, so several terminals (or
-a saw-side tablet and the office) can write at once: WAL lets readers work
-beside one writer, ``BEGIN IMMEDIATE`` takes the write lock before reading
-what it will change, and a 30 s busy timeout makes a second writer wait
-instead of failing (with a short retry for the few cases where SQLite says
-"busy" without waiting).
+The log is a SQLite file (one PC) or a PostgreSQL database (a shop with
+several saws, stations and an office), named by ``--db`` (``location``).
+Each command opens it, does its work in transactions and closes it.  Every
+store function takes the open ``Log`` and speaks the same SQL to both
+engines: plain SQL text with named parameters (``:tag``) for reads, and
+SQLAlchemy Core tables (``schema``) for inserts and updates; every user
+value is a bound parameter.
 
-A file is accepted only when it is a sawplan log (``PRAGMA application_id``
-says so) or an empty database; a log written by a newer sawplan (more
-migrations than this one knows) is refused rather than damaged.  Before a
-schema upgrade the log is checked and copied into ``backups/`` beside it
-(``safety``); a damaged file is reported with the newest backup to restore.
+Writes go through ``run_write`` (or the ``write_transaction`` block): on
+SQLite one ``BEGIN IMMEDIATE`` transaction, on PostgreSQL one SERIALIZABLE
+transaction run again when the server reports a serialization failure or a
+deadlock, so no row is lost or written twice however many stations write.
+
+A SQLite file is accepted only when it is a sawplan log (``PRAGMA
+application_id``) or empty; a PostgreSQL database only when it holds a
+sawplan schema or no tables.  Older logs are upgraded (``upgrade``); a log
+written by a newer sawplan is refused rather than damaged.
 """
 
 from __future__ import annotations
 
 import contextlib
 import os
+import random
 import sqlite3
 import time
-from collections.abc import Iterator
+from collections.abc import Callable, Iterator, Mapping, Sequence
 from contextlib import contextmanager
+from functools import lru_cache
 from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING, Any, TypeVar
 
-from sawplan.errors import DamagedFileError, StorageError, UsageError
-from sawplan.store.schema import APPLICATION_ID, MIGRATION_NAMES, MIGRATION_SET, migrations
+from sawplan.errors import SawplanError, UsageError
+from sawplan.store import engine as engines
+from sawplan.store.location import (
+    ENV_VAR,
+    FILE_NAME,
+    LogLocation,
+    default_db_path,
+    resolve_db,
+)
+from sawplan.store.schema import REVISIONS
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database
+    from sqlalchemy import Connection, Engine
 
-ENV_VAR = "SAWPLAN_DB"
-FILE_NAME = "blade-log.sqlite"
-BUSY_TIMEOUT_S = 30.0
-BUSY_RETRIES = 5  # for "busy" answers SQLite gives without waiting (lock upgrades, recovery)
+T = TypeVar("T")
+BUSY_TIMEOUT_S = engines.BUSY_TIMEOUT_S
+
+__all__ = [
+    "ENV_VAR",
+    "FILE_NAME",
+    "Log",
+    "connect",
+    "default_db_path",
+    "open_log",
+    "read_snapshot",
+    "resolve_db",
+    "resolve_db_path",
+    "run_write",
+    "schema_version",
+    "write_transaction",
+]
 
 
-def default_db_path() -> Path:
-    """The per-user blade log: ``user_data_dir() / "blade-log.sqlite"``."""
-    from sawplan.paths import user_data_dir
+class Rows:
+    """Rows of one statement, already fetched (the transaction that read them is over)."""
 
-    return user_data_dir() / FILE_NAME
+    def __init__(self, rows: Sequence[Any], rowcount: int = -1) -> None:
+        self._rows = list(rows)
+        self.rowcount = rowcount
+
+    def fetchone(self) -> Any:
+        return self._rows[0] if self._rows else None
+
+    def fetchall(self) -> list[Any]:
+        return list(self._rows)
+
+    def scalar(self) -> Any:
+        return self._rows[0][0] if self._rows else None
+
+    def __iter__(self) -> Iterator[Any]:
+        return iter(self._rows)
 
 
-def resolve_db_path(db: str | os.PathLike[str] | None = None) -> Path:
-    """``--db`` wins, then env ``SAWPLAN_DB``, then the per-user default."""
-    if db is not None and str(db) != "":
-        return Path(db).expanduser()
-    env = os.environ.get(ENV_VAR, "")
-    if env:
-        return Path(env).expanduser()
-    return default_db_path()
+@lru_cache(maxsize=512)
+def _text(sql: str):
+    from sqlalchemy import text
+
+    return text(sql)
+
+
+class Log:
+    """An open blade log on SQLite or PostgreSQL: one connection, used by one command."""
+
+    light = False
+    upgraded: Any = None  # what opening it upgraded (``upgrade.UpgradeOutcome``), if anything
+
+    def __init__(self, location: LogLocation, engine: Engine, conn: Connection) -> None:
+        self.location = location
+        self.engine = engine
+        self.conn = conn
+        self.dialect = engine.dialect.name  # "sqlite" | "postgresql"
+
+    @property
+    def path(self) -> Path | None:
+        """The log file (None for a server or an in-memory log)."""
+        return self.location.path if self.location.kind == "sqlite" else None
+
+    @property
+    def in_transaction(self) -> bool:
+        return self.conn.in_transaction()
+
+    # --- reading -------------------------------------------------------------------
+
+    def query(self, sql: str, params: Mapping[str, Any] | None = None) -> list[dict[str, Any]]:
+        """Rows as dicts; ``sql`` uses named parameters (``:tag``)."""
+        return self._run(_text(sql), params, lambda r: [dict(m) for m in r.mappings()])
+
+    def execute(self, sql: str, params: Mapping[str, Any] | None = None) -> Rows:
+        """Any statement; rows (if any) come back as tuples."""
+        return self._run(
+            _text(sql), params, lambda r: Rows(r.all() if r.returns_rows else [], r.rowcount)
+        )
+
+    def scalar(self, sql: str, params: Mapping[str, Any] | None = None) -> Any:
+        return self.execute(sql, params).scalar()
+
+    def bulk_rows(self, sql: str) -> list[tuple[Any, ...]]:
+        """Every row of a query without parameters, as the driver's own tuples.
+
+        For the big reads statistics make (10⁵ cuts): no per-row wrapping.  It
+        runs in the open transaction, if any.
+        """
+        driver = self.conn.connection.dbapi_connection
+        if not self.conn.in_transaction() and self.dialect == "sqlite":
+            with self.conn.begin():  # one snapshot for the whole read
+                return self._fetch(driver, sql)
+        return self._fetch(driver, sql)
+
+    @staticmethod
+    def _fetch(driver: Any, sql: str) -> list[tuple[Any, ...]]:
+        cursor = driver.cursor()
+        try:
+            cursor.execute(sql)
+            return [tuple(r) for r in cursor.fetchall()]
+        finally:
+            cursor.close()
+
+    # --- writing -------------------------------------------------------------------
+
+    def insert(self, table: str, row: Mapping[str, Any]) -> int:
+        """Insert one row; returns its id."""
+        from sawplan.store.schema import table as table_of
+
+        statement = table_of(table).insert().values(**row)
+        return int(self._run(statement, None, lambda r: r.inserted_primary_key[0]))
+
+    def insert_many(self, table: str, rows: Sequence[Mapping[str, Any]]) -> int:
+        """Insert rows in batches (every row with the same keys); returns how many."""
+        from sawplan.store.schema import table as table_of
+
+        if not rows:
+            return 0
+        keys = list(dict.fromkeys(k for row in rows for k in row))
+        shaped = [{k: row.get(k) for k in keys} for row in rows]
+        statement = table_of(table).insert()
+        for start in range(0, len(shaped), 5000):
+            self._run(statement, shaped[start : start + 5000], lambda r: None)
+        return len(shaped)
+
+    def update(self, table: str, row_id: int, values: Mapping[str, Any]) -> None:
+        from sawplan.store.schema import table as table_of
+
+        t = table_of(table)
+        self._run(t.update().where(t.c.id == row_id).values(**values), None, lambda r: None)
+
+    def close(self) -> None:
+        with contextlib.suppress(Exception):
+            if self.conn.in_transaction():
+                self.conn.rollback()
+        with contextlib.suppress(Exception):
+            self.conn.close()
+        with contextlib.suppress(Exception):
+            self.engine.dispose()
+
+    def _run(self, statement: Any, params: Any, take: Callable[[Any], T]) -> T:
+        if self.conn.in_transaction():
+            return take(self.conn.execute(statement, params))
+        with self.conn.begin():
+            return take(self.conn.execute(statement, params))
 
 
 class LightLog:
-    """Just enough of sqlite-utils' ``Database`` for read-only queries.
+    """Just enough of ``Log`` for read-only queries on an up-to-date SQLite file.
 
-    ``sawplan cut`` only asks the log for its saws and calibration; importing
-    sqlite_utils would pull in pandas and triple its start-up.
+    ``sawplan cut`` only asks the log for its saws and calibration; loading
+    SQLAlchemy would cost more than the rest of the command.  The SQL text is
+    the same the full store runs (named parameters work in ``sqlite3`` too).
     """
 
-    def __init__(self, conn: sqlite3.Connection) -> None:
-        self.conn = conn
+    light = True
+    dialect = "sqlite"
 
-    def execute(self, sql: str, params: Any = ()) -> sqlite3.Cursor:
-        return self.conn.execute(sql, params)
+    def __init__(self, location: LogLocation, conn: sqlite3.Connection) -> None:
+        self.location = location
+        self.raw = conn
 
-    def query(self, sql: str, params: Any = ()) -> Iterator[dict[str, Any]]:
-        cursor = self.conn.execute(sql, params)
+    @property
+    def path(self) -> Path | None:
+        return self.location.path
+
+    @property
+    def in_transaction(self) -> bool:
+        return self.raw.in_transaction
+
+    def query(self, sql: str, params: Mapping[str, Any] | None = None) -> list[dict[str, Any]]:
+        cursor = self.raw.execute(sql, dict(params or {}))
         keys = [d[0] for d in cursor.description]
-        for row in cursor:
-            yield dict(zip(keys, row, strict=True))
+        return [dict(zip(keys, row, strict=True)) for row in cursor]
+
+    def execute(self, sql: str, params: Mapping[str, Any] | None = None) -> Rows:
+        cursor = self.raw.execute(sql, dict(params or {}))
+        return Rows(cursor.fetchall(), cursor.rowcount)
+
+    def scalar(self, sql: str, params: Mapping[str, Any] | None = None) -> Any:
+        return self.execute(sql, params).scalar()
+
+    def bulk_rows(self, sql: str) -> list[tuple[Any, ...]]:
+        return self.raw.execute(sql).fetchall()
 
     def close(self) -> None:
-        self.conn.close()
+        self.raw.close()
+
+
+AnyLog = Log | LightLog
+
+
+# --- opening -------------------------------------------------------------------------------
+
+
+def resolve_db_path(db: str | os.PathLike[str] | LogLocation | None = None) -> Path:
+    """The log file for commands that only work on a file (a server URL is refused)."""
+    location = resolve_db(db)
+    if location.kind != "sqlite" or location.path is None:
+        raise UsageError(
+            f"this needs a blade log file, not {location.label}",
+            field="db",
+            hint="give --db FILE",
+        )
+    return location.path
 
 
 def open_log(
-    db: str | os.PathLike[str] | None = None, *, create: bool = True, light: bool = False
-) -> Database:
-    """Open (creating or upgrading as needed) the blade log and return a sqlite-utils Database.
+    db: str | os.PathLike[str] | LogLocation | None = None,
+    *,
+    create: bool = True,
+    light: bool = False,
+) -> Log:
+    """Open (creating or upgrading as needed) the blade log.
 
-    With ``create=False`` a missing file is not made: an empty in-memory log
-    stands in, so read-only questions ("which saws are logged?") answer
-    "none" without leaving files behind.  Opening with
-    ``create=True`` (for writing) runs a routine integrity check now and then
-    (``safety.ROUTINE_CHECK_ONE_IN``).  ``":memory:"`` gives a private
+    With ``create=False`` (reading) a missing file or an empty server database
+    is not made: an empty in-memory log stands in, so read-only questions
+    ("which saws are logged?") answer "none" and leave nothing behind.
+    Opening a file with ``create=True`` (for writing) first checks it for
+    damage (``safety.write_check``).  ``":memory:"`` gives a private
     in-memory log (tests).
     """
-    if db is not None and str(db) == ":memory:":
-        return _memory_log()
-    path = resolve_db_path(db)
+    from sawplan.store import upgrade
+
+    location = resolve_db(db)
+    if location.kind == "memory":
+        return memory_log()
+    if location.is_server:
+        return upgrade.open_server(location, create=create)
+    path = location.path
+    assert path is not None
     if path.is_dir():
         raise UsageError(f"{path} is a folder; give a file name", field="db")
     if not path.exists():
         if not create:
-            return _memory_log()
-        try:
-            path.parent.mkdir(parents=True, exist_ok=True)
-        except OSError as err:
-            raise StorageError(
-                f"cannot create the folder {path.parent}: {err.strerror or err}", field="db"
-            ) from None
+            return memory_log()
+        from sawplan.store.perms import create_log_file
+
+        create_log_file(path)
+    else:
+        from sawplan.store.safety import refuse_known_damage
+
+        refuse_known_damage(path)
     try:
-        conn = _connect_file(path)
+        raw = _connect_file(path)
     except sqlite3.Error as err:
-        raise _damaged(err, path) from None
+        raise engines.sqlite_error(err, path) from None
     try:
-        if light and not create:
-            app_id, version = _retry_busy(lambda: _header(conn))
-            if app_id == APPLICATION_ID and version == len(MIGRATION_NAMES):
-                conn.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
-                return LightLog(conn)  # type: ignore[return-value]
-        return _prepare(conn, path, writing=create)
-    except BaseException:
-        conn.close()
-        raise
-
-
-@contextmanager
-def connect(
-    db: str | os.PathLike[str] | None = None, *, create: bool = True, light: bool = False
-) -> Iterator[Database]:
-    """``with connect(path) as db:`` — open the log and always close it.
-
-    SQLite errors raised inside become sawplan errors that name the file:
-    corruption a ``DamagedFileError`` with the newest backup to restore, a
-    full or read-only disk a ``StorageError`` (the open transaction is rolled
-    back, so nothing was written).
-    """
-    database = open_log(db, create=create, light=light)
-    path = _path_of(database)
-    try:
-        yield database
+        header = engines.retry_busy(lambda: upgrade.sqlite_header(raw))
     except sqlite3.DatabaseError as err:
-        if isinstance(err, sqlite3.IntegrityError | sqlite3.ProgrammingError):
-            raise  # a broken rule or a bug, not the file's fault
-        _rollback(database.conn)
-        raise _damaged(err, path, opened=True) from None
-    finally:
-        with contextlib.suppress(sqlite3.Error):
-            database.close()
+        raw.close()
+        raise engines.sqlite_error(err, path) from None
+    if light and not create and upgrade.is_current(*header):
+        raw.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
+        return LightLog(location, raw)  # type: ignore[return-value]
+    return upgrade.open_file(location, raw, header, writing=create)
 
 
-@contextmanager
-def write_transaction(db: Database) -> Iterator[Database]:
-    """One write transaction taken with ``BEGIN IMMEDIATE``: all of it or none.
+def memory_log() -> Log:
+    """A private in-memory log holding the newest schema and no rows."""
+    from sawplan.store.schema import metadata
 
-    The write lock is taken before the first read, so checks made inside
-    ("is this blade fitted?") still hold when the rows are written.  Inside,
-    sqlite-utils' own ``atomic()`` blocks become savepoints.
-    """
-    conn = db.conn
-    if conn.in_transaction:  # nested use: a savepoint inside the open transaction
-        with db.atomic():
-            yield db
-        return
-    begin_immediate(conn)
-    try:
-        yield db
-        conn.execute("COMMIT")  # a full disk may refuse even this; then nothing is kept
-    except BaseException:
-        _rollback(conn)
-        raise
+    conn = sqlite3.connect(":memory:", isolation_level=None)
+    log = sqlite_log(LogLocation("memory"), lambda: conn)
+    with log.conn.begin():
+        metadata().create_all(log.conn)
+    return log
 
 
-def begin_immediate(conn: sqlite3.Connection) -> None:
-    """``BEGIN IMMEDIATE``, retried briefly when SQLite answers "busy" without waiting."""
-    for attempt in range(BUSY_RETRIES):
-        try:
-            conn.execute("BEGIN IMMEDIATE")
-            return
-        except sqlite3.OperationalError as err:
-            if not is_busy(err) or attempt == BUSY_RETRIES - 1:
-                raise
-            time.sleep(0.02 * (attempt + 1))
-
-
-def is_busy(err: sqlite3.Error) -> bool:
-    text = str(err).lower()
-    return "locked" in text or "busy" in text
-
-
-def schema_version(db: Database) -> int:
-    """How many migrations this log has applied (kept in ``PRAGMA user_version``)."""
-    return int(db.conn.execute("PRAGMA user_version").fetchone()[0])
-
-
-# --- internals -----------------------------------------------------------------
+def sqlite_log(location: LogLocation, creator: Callable[[], sqlite3.Connection]) -> Log:
+    engine = engines.sqlite_engine(creator)
+    return Log(location, engine, engine.connect())
 
 
 def _connect_file(path: Path) -> sqlite3.Connection:
     """The one place a log file is opened (tests wrap it to simulate a full or read-only disk)."""
-    return sqlite3.connect(path, timeout=BUSY_TIMEOUT_S, isolation_level=None)
+    return engines.connect_sqlite_file(path)
 
 
-def _memory_log() -> Database:
-    conn = sqlite3.connect(":memory:", isolation_level=None)
-    return _prepare(conn, None, writing=False)
+@contextmanager
+def connect(
+    db: str | os.PathLike[str] | LogLocation | None = None,
+    *,
+    create: bool = True,
+    light: bool = False,
+) -> Iterator[Log]:
+    """``with connect(where) as db:`` — open the log and always close it.
 
-
-def _path_of(database: Database) -> Path | None:
-    rows = database.conn.execute("PRAGMA database_list").fetchall()
-    name = next((r[2] for r in rows if r[1] == "main"), "")
-    return Path(name) if name else None
-
-
-def _rollback(conn: sqlite3.Connection) -> None:
-    if conn.in_transaction:
-        with contextlib.suppress(sqlite3.Error):
-            conn.execute("ROLLBACK")
-
-
-def _prepare(conn: sqlite3.Connection, path: Path | None, *, writing: bool) -> Database:
-    from sqlite_utils import Database
-
-    from sawplan.store import safety
-
-    where = str(path) if path is not None else "memory"
-    try:
-        app_id, version = _retry_busy(lambda: _header(conn))
-        current = app_id == APPLICATION_ID and version == len(MIGRATION_NAMES)
-        if not current:  # read-only checks first: a foreign file is left exactly as it was
-            _check_identity(conn, app_id, version, where)
-        db = Database(conn, execute_plugins=False, recursive_triggers=False)
-        conn.execute("PRAGMA foreign_keys = ON")
-        conn.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
-        if (
-            path is not None and writing
-        ):  # reading leaves the file as it is (a backup stays one file)
-            _retry_busy(lambda: _use_wal(conn))
-            if current and safety.routine_check_due():
-                safety.check_integrity(conn, path)
-        if not current:
-            _migrate(db, where, path)
-    except sqlite3.DatabaseError as err:
-        raise _damaged(err, path) from None
-    return db
-
-
-def _retry_busy(step):
-    for attempt in range(BUSY_RETRIES):
-        try:
-            return step()
-        except sqlite3.OperationalError as err:
-            if not is_busy(err) or attempt == BUSY_RETRIES - 1:
-                raise
-            time.sleep(0.02 * (attempt + 1))
-    return None  # pragma: no cover
-
-
-def _header(conn: sqlite3.Connection) -> tuple[int, int]:
-    """Application id and schema version; reading them fails on a non-database file."""
-    app_id = int(conn.execute("PRAGMA application_id").fetchone()[0])
-    version = int(conn.execute("PRAGMA user_version").fetchone()[0])
-    return app_id, version
-
-
-def _use_wal(conn: sqlite3.Connection) -> None:
-    mode = str(conn.execute("PRAGMA journal_mode").fetchone()[0]).lower()
-    if mode != "wal":
-        conn.execute("PRAGMA journal_mode = WAL")
-    conn.execute(
-        "PRAGMA synchronous = NORMAL"
-    )  # safe in WAL; a power cut loses at most the last cut
-
-
-def _check_identity(conn: sqlite3.Connection, app_id: int, version: int, where: str) -> None:
-    """Refuse files that are not a sawplan log, or come from a newer sawplan."""
-    if app_id == 0:
-        tables = [
-            r[0]
-            for r in conn.execute(
-                "SELECT name FROM sqlite_master WHERE type = 'table' AND name NOT LIKE 'sqlite_%'"
-            )
-        ]
-        if tables:
-            raise DamagedFileError(
-                f"{where} is an SQLite database but not a sawplan blade log "
-                f"(it holds tables {', '.join(sorted(tables)[:5])})",
-                field="db",
-                hint="give --db a new file name, or the path of your blade log",
-            )
-    elif app_id != APPLICATION_ID:
-        raise DamagedFileError(
-            f"{where} belongs to another program (application id {app_id:#x})",
-            field="db",
-            hint="give --db a new file name, or the path of your blade log",
-        )
-    if version > len(MIGRATION_NAMES):
-        raise _newer(where, version)
-
-
-def _migrate(db: Database, where: str, path: Path | None) -> None:
-    """Apply pending migrations under the write lock (two first runs may race).
-
-    A log that already holds a schema is checked and copied into ``backups/``
-    first; if that fails nothing is upgraded.
+    Database errors raised inside become sawplan errors that name the log:
+    SQLite corruption a ``DamagedFileError`` with the newest backup to
+    restore, a full or read-only disk a ``StorageError``, a lost server a
+    ``ServerError`` (an open transaction is rolled back: nothing was written).
     """
-    from sawplan.store import safety
-
-    conn = db.conn
-    begin_immediate(conn)
+    database = open_log(db, create=create, light=light)
     try:
-        app_id, version = _header(conn)  # re-read: another process may have done it
-        if not (app_id == APPLICATION_ID and version == len(MIGRATION_NAMES)):
-            _check_identity(conn, app_id, version, where)
-            plan = migrations()
-            applied = [m.name for m in plan.applied(db)]
-            unknown = [name for name in applied if name not in MIGRATION_NAMES]
-            if unknown:
-                raise _newer(where, len(applied))
-            if path is not None and applied:
-                safety.check_integrity(conn, path)
-                safety.backup_before_upgrade(path, from_version=len(applied))
-            plan.apply(db)
-            conn.execute(f"PRAGMA application_id = {APPLICATION_ID}")
-            conn.execute(f"PRAGMA user_version = {len(MIGRATION_NAMES)}")
-        conn.execute("COMMIT")
-    except BaseException:
-        _rollback(conn)
+        yield database
+    except SawplanError:
         raise
+    except Exception as err:
+        mapped = translate(err, database.location)
+        if mapped is None:
+            raise
+        raise mapped from None
+    finally:
+        database.close()
 
 
-def _newer(where: str, version: int) -> DamagedFileError:
-    return DamagedFileError(
-        f"{where} was written by a newer sawplan (schema {version}, this one knows "
-        f"{len(MIGRATION_NAMES)} in set {MIGRATION_SET!r})",
-        field="db",
-        hint="upgrade sawplan to use it; nothing was changed",
-    )
+def translate(err: BaseException, location: LogLocation) -> SawplanError | None:
+    """A database error as a sawplan error (None: a broken rule or a bug, shown as such)."""
+    orig = getattr(err, "orig", None) or err
+    if isinstance(orig, sqlite3.IntegrityError | sqlite3.ProgrammingError):
+        return None
+    if isinstance(orig, sqlite3.DatabaseError):
+        return engines.sqlite_error(orig, location.path, opened=True)
+    if location.is_server and _is_driver_error(err):
+        state = engines.sqlstate(err) or ""
+        if state.startswith("23") or state.startswith("42"):
+            return None  # a broken rule or a bug in the SQL
+        return engines.server_error(err, location)
+    return None
 
 
-def _damaged(err: sqlite3.Error, path: Path | None, *, opened: bool = False) -> Exception:
-    """An SQLite error as the sawplan error a user can act on, naming the file.
+def _is_driver_error(err: BaseException) -> bool:
+    from sqlalchemy.exc import DBAPIError
 
-    ``opened``: the file was already accepted as a sawplan log, so corruption
-    can only be damage.
+    return isinstance(err, DBAPIError) or type(err).__module__.startswith("psycopg")
+
+
+# --- transactions ----------------------------------------------------------------------------
+
+
+@contextmanager
+def begin(db: Log, isolation: str, *, read_only: bool = False) -> Iterator[Any]:
+    """The outermost transaction at ``isolation`` on PostgreSQL (plain BEGIN on SQLite).
+
+    A server connection sits in autocommit between transactions, so a single
+    read costs one round trip; psycopg then opens a transaction with one
+    ``BEGIN ISOLATION LEVEL ...``.
     """
-    from sawplan.store.safety import restore_hint
+    conn = db.conn
+    if db.dialect == "postgresql":
+        conn.execution_options(isolation_level=isolation, postgresql_readonly=read_only)
+    try:
+        with conn.begin() as transaction:
+            yield transaction
+    finally:
+        if db.dialect == "postgresql":
+            conn.execution_options(isolation_level="AUTOCOMMIT", postgresql_readonly=False)
 
-    where = str(path) if path is not None else "the blade log"
-    text = " ".join(str(err).split()).lower()
-    if "malformed" in text and opened:
-        return DamagedFileError(
-            f"{where} is damaged (SQLite: {text}); nothing was written",
-            field="db",
-            hint=restore_hint(path),
-        )
-    if "not a database" in text or "malformed" in text or "encrypted" in text:
-        return DamagedFileError(
-            f"{where} is damaged or not a sawplan blade log ({text}); nothing was written",
-            field="db",
-            hint=f"check the file given to --db or SAWPLAN_DB; if it is your log, "
-            f"{restore_hint(path)}",
-        )
-    if is_busy(err):
-        return StorageError(
-            f"{where} stayed busy in another program for {BUSY_TIMEOUT_S:.0f} s; "
-            "nothing was written",
-            field="db",
-            hint="try again in a moment",
-        )
-    if "readonly" in text or "read-only" in text:
-        return StorageError(
-            f"{where} is read-only; nothing was written",
-            field="db",
-            hint="check the file's permissions and the disk, or give --db another file",
-        )
-    if "disk is full" in text or "database or disk is full" in text:
-        return StorageError(
-            f"the disk holding {where} is full; nothing was written",
-            field="db",
-            hint="free some space and try again",
-        )
-    if "unable to open" in text:
-        return StorageError(
-            f"cannot open {where} ({text})",
-            field="db",
-            hint="check that its folder exists and may be written",
-        )
-    return StorageError(f"{where}: {text}", field="db")
+
+@contextmanager
+def write_transaction(db: Log) -> Iterator[Log]:
+    """One write transaction: all of it or none (nested use: a savepoint).
+
+    SQLite takes the write lock before the first read (``BEGIN IMMEDIATE``);
+    PostgreSQL runs it SERIALIZABLE.  This block runs once; ``run_write``
+    runs a step again after a serialization failure.  A full disk may refuse
+    even the COMMIT; then nothing is kept.
+    """
+    if db.light:
+        raise UsageError("this log was opened for reading only", field="db")
+    conn = db.conn
+    if conn.in_transaction():
+        with conn.begin_nested():
+            yield db
+        return
+    conn.info["write"] = True  # the SQLite begin hook says BEGIN IMMEDIATE
+    try:
+        with begin(db, "SERIALIZABLE"):
+            yield db
+    finally:
+        conn.info.pop("write", None)
+
+
+def run_write(db: Log, step: Callable[[], T]) -> T:
+    """Run ``step`` in one write transaction; again when the server says another writer
+    got in the way (for up to ``BUSY_TIMEOUT_S``, as SQLite waits for its lock).
+    Inside an open transaction it is a savepoint."""
+    if db.in_transaction:
+        with write_transaction(db):
+            return step()
+    deadline = time.monotonic() + BUSY_TIMEOUT_S
+    attempt = 0
+    while True:
+        try:
+            with write_transaction(db):
+                return step()
+        except Exception as err:
+            if not engines.is_retryable(err) or time.monotonic() > deadline:
+                raise
+            time.sleep(random.uniform(0.0, min(0.5, 0.005 * 2**attempt)))  # jittered back-off
+            attempt += 1
+
+
+@contextmanager
+def read_snapshot(db: AnyLog) -> Iterator[AnyLog]:
+    """Several reads that see one moment of the log (an export, a report); writes nothing."""
+    if db.light or db.in_transaction:
+        yield db
+        return
+    with begin(db, "REPEATABLE READ", read_only=True) as transaction:
+        try:
+            yield db
+        finally:
+            transaction.rollback()
+
+
+def schema_version(db: AnyLog) -> int:
+    """How many migrations this log has applied (1 for the first schema)."""
+    from sawplan.store.schema import VERSION_TABLE
+
+    if db.dialect == "sqlite":
+        return int(db.scalar("PRAGMA user_version"))
+    revision = db.scalar(f"SELECT version_num FROM {VERSION_TABLE}")
+    return REVISIONS.index(revision) + 1 if revision in REVISIONS else len(REVISIONS) + 1

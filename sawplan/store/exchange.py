@@ -9,7 +9,9 @@ and every value comes back as it was.
 
 Import checks every row of every file before writing anything, then writes
 all rows in one transaction: all rows or none, and each error names its file,
-row and column.
+row and column.  On a SQLite file the whole log is checked (``PRAGMA
+integrity_check``) before the import commits.  A folder or a ``.zip`` of the
+CSV files (what ``sawplan backup`` writes for a server log) is read alike.
 """
 
 from __future__ import annotations
@@ -17,7 +19,6 @@ from __future__ import annotations
 import csv
 import math
 import os
-import sqlite3
 from dataclasses import dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
@@ -27,16 +28,15 @@ from sawplan.errors import (
     ConflictError,
     NotFoundError,
     SawplanError,
-    StorageError,
     UsageError,
 )
-from sawplan.store.db import connect, resolve_db_path, write_transaction
+from sawplan.store.db import read_snapshot, run_write
+from sawplan.store.fields import whole_number
 from sawplan.store.records import BLADE_STATUSES, EVENT_KINDS, WELDED
-from sawplan.store.safety import copy_verified
 from sawplan.store.schema import SAW_PROFILE_COLUMNS
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database
+    from sawplan.store.db import Log as Database
 
 # column kinds: text, real, int, flag (0/1), day (ISO date); "!" marks a required column
 _SAW_KINDS = {
@@ -153,8 +153,7 @@ def export_csv(
     out.mkdir(parents=True, exist_ok=True)
     counts: dict[str, int] = {}
     texts: dict[str, str] = {}
-    db.conn.execute("BEGIN")  # one consistent snapshot of every table
-    try:
+    with read_snapshot(db):  # one consistent moment of every table
         for table, columns in TABLES.items():
             rows = [
                 [_export_cell(row.get(c), columns[c]) for c in columns]
@@ -162,8 +161,8 @@ def export_csv(
             ]
             counts[table] = len(rows)
             texts[table] = to_csv(list(columns), rows)
-    finally:
-        db.conn.execute("COMMIT")
+    for leftover in out.glob("*.csv.tmp"):  # left by a killed export
+        leftover.unlink(missing_ok=True)
     for table, text in texts.items():
         _write_atomic(out / f"{table}.csv", text)
     return TransferResult(str(out), counts)
@@ -188,8 +187,15 @@ def _write_atomic(path: Path, text: str) -> None:
 
 
 def import_csv(db: Database, folder: str | os.PathLike[str]) -> TransferResult:
-    """Read a folder written by ``export_csv`` into the log: all rows or none."""
+    """Read a folder (or zip) written by ``export_csv`` into the log: all rows or none."""
+    import tempfile
+
     src = Path(folder)
+    if src.is_file() and zipfile_like(src):
+        with tempfile.TemporaryDirectory(prefix="sawplan-import-") as tmp:
+            unpack_export(src, Path(tmp))
+            result = import_csv(db, tmp)
+        return TransferResult(str(src), result.rows)
     if not src.is_dir():
         raise NotFoundError(f"no folder {src}", field="folder")
     present = [t for t in TABLES if (src / f"{t}.csv").is_file()]
@@ -198,9 +204,50 @@ def import_csv(db: Database, folder: str | os.PathLike[str]) -> TransferResult:
             f"{src} holds none of {', '.join(f'{t}.csv' for t in TABLES)}", field="folder"
         )
     parsed = {t: _read_table(src / f"{t}.csv", t) if t in present else [] for t in TABLES}
-    with write_transaction(db):
+
+    def step() -> dict[str, int]:
         counts = _write_all(db, parsed)
-    return TransferResult(str(src), counts)
+        _check_before_commit(db)
+        return counts
+
+    return TransferResult(str(src), run_write(db, step))
+
+
+def _check_before_commit(db: Database) -> None:
+    """The full integrity check of a SQLite file, inside the import's transaction."""
+    if db.dialect != "sqlite" or db.path is None:
+        return
+    from sawplan.store.safety import check_integrity
+
+    check_integrity(db.conn.connection.dbapi_connection, db.path, full=True)
+
+
+EXPORT_MEMBERS = tuple(f"{t}.csv" for t in TABLES)
+MAX_MEMBER_BYTES = 2_000_000_000  # a CSV in an export zip; far above any shop's log
+
+
+def zipfile_like(path: Path) -> bool:
+    try:
+        with path.open("rb") as handle:
+            return handle.read(4) == b"PK\x03\x04"
+    except OSError:
+        return False
+
+
+def unpack_export(archive: Path, into: Path) -> None:
+    """The export CSVs of a zip, and nothing else (no paths, no other names, size-capped)."""
+    import zipfile
+
+    try:
+        with zipfile.ZipFile(archive) as zf:
+            for info in zf.infolist():
+                if info.filename not in EXPORT_MEMBERS:
+                    continue
+                if info.file_size > MAX_MEMBER_BYTES:
+                    raise BadDataError(f"{info.filename} is too large", field=archive.name)
+                (into / info.filename).write_bytes(zf.read(info))
+    except zipfile.BadZipFile as err:
+        raise BadDataError(f"is not a readable zip ({err})", field=archive.name) from None
 
 
 Row = tuple[int, dict[str, Any]]  # (data row number, values)
@@ -244,6 +291,7 @@ def _convert_row(
 ) -> dict[str, Any]:
     from sawplan.store.dates import check_stored_day
 
+    table = name.rsplit(".", 1)[0]  # "cuts.csv" -> cuts
     out: dict[str, Any] = {}
     for column, kind in columns.items():
         cell = raw.get(column)
@@ -254,12 +302,15 @@ def _convert_row(
             if kind == "text":
                 value: Any = text[1:] if text.startswith("'") else text
                 value = value if value.strip() else None
+                if value is not None and any(ord(c) < 32 or 127 <= ord(c) < 160 for c in value):
+                    # sawplan never stores them (a NUL is not even text to PostgreSQL)
+                    raise BadDataError("must not hold control characters")
             elif text.strip() == "":
                 value = None
             elif kind == "real":
                 value = _number(text, float)
             elif kind == "int":
-                value = _number(text, int)
+                value = whole_number(_number(text, int), f"{table}.{column}")
             elif kind == "flag":
                 value = _flag(text)
             else:
@@ -313,6 +364,8 @@ def _required_saw_fields() -> list[str]:
 
 def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
     """Check references and rules against the log, then insert; any error rolls all back."""
+    from sqlalchemy.exc import IntegrityError
+
     from sawplan.store.records import check_failure_mode, row_to_saw
 
     saw_ids = {r["name"].lower(): (r["id"], r) for r in db.query("SELECT * FROM saws")}
@@ -339,7 +392,7 @@ def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
             row_to_saw(row)  # the profile must make a valid saw for `sawplan cut`
         except SawplanError as err:
             raise _row_error("saws.csv", number, err.field or "profile", err.message) from None
-        saw_ids[key] = (db["saws"].insert(row).last_pk, row)
+        saw_ids[key] = (db.insert("saws", row), row)
         counts["saws"] += 1
 
     for number, row in parsed["blades"]:
@@ -354,7 +407,7 @@ def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
                 row["retire_cause"] = check_failure_mode(row["retire_cause"], field="retire_cause")
             except SawplanError as err:
                 raise _row_error(*where, "retire_cause", err.message) from None
-        blade_ids[row["tag"].lower()] = db["blades"].insert(row).last_pk
+        blade_ids[row["tag"].lower()] = db.insert("blades", row)
         counts["blades"] += 1
 
     open_blades: set[int] = set()
@@ -392,11 +445,10 @@ def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
 
     try:
         for table, rows in (("fittings", fittings), ("cuts", cuts), ("events", events)):
-            if rows:
-                db[table].insert_all(rows, batch_size=500)
-            counts[table] = len(rows)
-    except sqlite3.IntegrityError as err:
-        raise BadDataError(f"the rows break a rule of the log ({err})", field="import") from None
+            counts[table] = db.insert_many(table, rows)
+    except IntegrityError as err:
+        rule = " ".join(str(err.orig).split())[:120]
+        raise BadDataError(f"the rows break a rule of the log ({rule})", field="import") from None
     return counts
 
 
@@ -429,50 +481,3 @@ def _resolve(
 def _one_of(where: tuple[str, int], column: str, value: str, allowed: tuple[str, ...]) -> None:
     if value not in allowed:
         raise _row_error(*where, column, f"must be one of {', '.join(allowed)}, got {value!r}")
-
-
-# --- backup ------------------------------------------------------------------------------
-
-
-@dataclass(frozen=True)
-class BackupResult:
-    source: str
-    backup: str
-    bytes: int
-
-
-def backup(
-    db_path: str | os.PathLike[str] | None, dest: str | os.PathLike[str], *, overwrite: bool = False
-) -> BackupResult:
-    """Copy the live log to one self-contained file with SQLite's online backup API.
-
-    Other programs may keep writing meanwhile; the copy is a consistent
-    snapshot, checked with ``PRAGMA quick_check``.  The file appears only when
-    complete and sound (written beside, then renamed).
-    """
-    source = resolve_db_path(db_path)
-    target = Path(dest).expanduser()
-    if not source.exists():
-        raise NotFoundError(f"no blade log at {source}", field="db")
-    if target.exists() and target.resolve() == source.resolve():
-        raise UsageError("the backup cannot be the log itself", field="file")
-    if target.is_dir():
-        raise UsageError(f"{target} is a folder; give a file name", field="file")
-    if target.exists() and not overwrite:
-        raise ConflictError(f"{target} exists", field="file", hint="add --force to replace it")
-    target.parent.mkdir(parents=True, exist_ok=True)
-    with connect(source, create=False):  # refuses files that are not a sawplan log
-        pass
-    try:
-        size = copy_verified(source, target)
-    except sqlite3.Error as err:
-        from sawplan.store.db import _damaged
-
-        if "full" in str(err).lower():  # the copy's disk, not the log's
-            raise StorageError(
-                f"the disk holding {target} is full; no backup was written",
-                field="file",
-                hint="free some space or give another place",
-            ) from None
-        raise _damaged(err, source) from None
-    return BackupResult(str(source), str(target), size)

@@ -64,3 +64,18 @@ def positive(value: float, field: str) -> None:
     """Refuse zero, negative and non-finite numbers."""
     if not (isinstance(value, int | float) and math.isfinite(value) and value > 0):
         raise BadDataError(f"must be above 0, got {value!r}", field=field)
+
+
+def whole_number(value: object, name: str) -> int:
+    """A whole number inside the range the field table gives ``name`` (a field's key, or
+    "TABLE.column"),
+    checked before any database sees it (SQLite stores 64-bit integers, PostgreSQL's
+    ``integer`` 32-bit ones); one line naming the field otherwise."""
+    from sawplan import fields
+
+    rule = fields.FIELDS.get(name) or fields.field_for(name)
+    if rule is None:  # a column without a rule of its own: what every engine stores
+        rule = fields.Field(name, name.rsplit(".", 1)[-1], low=0, high=2**31 - 1, integer=True)
+    if isinstance(value, bool) or not isinstance(value, int):
+        raise BadDataError(f"expected a whole number, got {value!r}", field=rule.words)
+    return fields.check_count(rule, value)

@@ -17,15 +17,18 @@ class BladeLog:
     default lives, and says so.
     """
 
-    def __init__(self, db: Path | None):
+    def __init__(self, db: str | Path | None):
         from sawplan.errors import UsageError
-        from sawplan.store import resolve_db_path
+        from sawplan.store.location import resolve_db
 
-        self.path = resolve_db_path(db)
-        if self.path.is_dir():
-            raise UsageError(f"{self.path} is a folder; give a file name", field="db")
-        self.exists = self.path.is_file()
-        self.label = f"blade log {self.path}" if self.exists else "no blade log"
+        self.path = resolve_db(db)  # a file, or a server (which is asked, never created)
+        if self.path.kind == "sqlite" and self.path.path is not None:
+            if self.path.path.is_dir():
+                raise UsageError(f"{self.path} is a folder; give a file name", field="db")
+            self.exists = self.path.path.is_file()
+        else:
+            self.exists = self.path.kind != "memory"
+        self.label = f"blade log {self.path.label}" if self.exists else "no blade log"
 
     def calibration(self, saw_name: str, material_group: str):
         if not self.exists:

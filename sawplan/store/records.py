@@ -22,13 +22,16 @@ from sawplan.store.blade_rows import (
 )
 from sawplan.store.cut_rows import (
     CutEntry,
+    CutTarget,
     EventEntry,
     cut_row,
+    cut_target,
     cuts_of,
     events_of,
     list_cuts,
     log_cut,
     log_event,
+    record_cut,
 )
 from sawplan.store.fields import (
     BLADE_STATUSES,
@@ -55,6 +58,7 @@ __all__ = [
     "Blade",
     "BladeSpec",
     "CutEntry",
+    "CutTarget",
     "EventEntry",
     "FitOutcome",
     "add_blade",
@@ -62,6 +66,7 @@ __all__ = [
     "check_failure_mode",
     "clean_text",
     "cut_row",
+    "cut_target",
     "cuts_of",
     "ensure_saw",
     "events_of",
@@ -78,6 +83,7 @@ __all__ = [
     "log_event",
     "logged_saws",
     "pitch_label",
+    "record_cut",
     "remove_blade",
     "retire_blade",
     "row_to_saw",

@@ -27,8 +27,6 @@ from sawplan.errors import BadDataError, UsageError
 from sawplan.store.stats import BladeLife, blade_lives, timed_cuts, unused_retired
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database
-
     from sawplan.life import (
         BladeCost,
         EarlyFailureWarning,
@@ -36,6 +34,7 @@ if TYPE_CHECKING:  # pragma: no cover
         ModeRanking,
         WeibullFit,
     )
+    from sawplan.store.db import Log as Database
 
 IN2_CM2 = 6.4516  # 1 in² = 6.4516 cm² exactly (1 in = 2.54 cm)
 DEFAULT_CONFIDENCE = 0.9

@@ -1,13 +1,20 @@
-"""Keeping years of shop records safe: integrity checks and rolling backups.
+"""Keeping years of shop records safe: damage checks, rolling backups, leftovers.
 
-- A routine ``PRAGMA quick_check`` runs on about one opening for writing in
-  ``ROUTINE_CHECK_ONE_IN`` (chosen at random, so no counter has to be written
-  to the log), always before a schema upgrade, on every backup copy, and
-  whenever SQLite itself reports corruption.  A damaged log is refused before
-  anything is written to it, and the message names the newest backup.
+- Every opening of a log file for writing runs ``PRAGMA quick_check`` first
+  (a few ms per MB; logs over ``QUICK_CHECK_MAX_BYTES`` are checked on about
+  one opening in ``ROUTINE_CHECK_ONE_IN``), and refuses a file that damage was
+  seen in before (the marker ``<log>.damaged``, left by any command that met
+  damage, and refused by every command but ``check`` and ``restore`` until a
+  backup is restored or ``sawplan check`` finds the file sound).  A damaged log is never written to, and the message names the
+  newest backup that passes the check.
+- The full ``PRAGMA integrity_check`` (which also finds index rows that do not
+  match their table) runs on ``sawplan check``, before every schema upgrade
+  and inside every import, before it commits.
 - Before each schema upgrade the log is copied with SQLite's online backup
   into ``backups/`` beside it, as ``<name>-schema<N>-<time>.sqlite``; the
-  newest ``BACKUPS_KEPT`` copies of each log are kept.
+  newest ``BACKUPS_KEPT`` copies of each log are kept.  A copy is written as
+  ``*.partial`` and renamed when complete and sound; partial files left by a
+  killed run are removed by the next one and never count as backups.
 """
 
 from __future__ import annotations
@@ -21,10 +28,12 @@ from pathlib import Path
 
 from sawplan.errors import DamagedFileError, StorageError
 
-ROUTINE_CHECK_ONE_IN = 25  # quick_check reads the whole file: a few ms per MB
+ROUTINE_CHECK_ONE_IN = 25  # for logs too big to check on every write
+QUICK_CHECK_MAX_BYTES = 32_000_000  # about 250,000 cuts; quick_check reads it in ~0.1 s
 BACKUPS_KEPT = 3
 BACKUP_FOLDER = "backups"
-_PROBLEMS_SHOWN = 3
+PARTIAL = ".partial"
+DAMAGE_MARK = ".damaged"
 
 
 def routine_check_due() -> bool:
@@ -32,10 +41,15 @@ def routine_check_due() -> bool:
     return ROUTINE_CHECK_ONE_IN <= 1 or random.randrange(ROUTINE_CHECK_ONE_IN) == 0
 
 
-def integrity_problems(conn: sqlite3.Connection) -> list[str]:
-    """What ``PRAGMA quick_check`` finds (empty: the file is sound)."""
+def integrity_problems(conn: sqlite3.Connection, *, full: bool = False) -> list[str]:
+    """What SQLite's check finds (empty: the file is sound).
+
+    ``full``: ``integrity_check``, which also compares every index with its
+    table; otherwise ``quick_check`` (page structure and records only).
+    """
+    pragma = "PRAGMA integrity_check(3)" if full else "PRAGMA quick_check(3)"  # 3 problems shown
     try:
-        rows = conn.execute(f"PRAGMA quick_check({_PROBLEMS_SHOWN})").fetchall()
+        rows = conn.execute(pragma).fetchall()
     except sqlite3.DatabaseError as err:
         if "locked" in str(err).lower() or "busy" in str(err).lower():
             raise
@@ -46,15 +60,66 @@ def integrity_problems(conn: sqlite3.Connection) -> list[str]:
     return [f for f in found if not f.startswith("***")] or found  # "*** in database main ***"
 
 
-def check_integrity(conn: sqlite3.Connection, path: Path) -> None:
-    """Refuse a damaged log before anything is written to it."""
-    problems = integrity_problems(conn)
+def check_integrity(conn: sqlite3.Connection, path: Path, *, full: bool = False) -> None:
+    """Refuse a damaged log before anything is written to it (and remember the damage)."""
+    problems = integrity_problems(conn, full=full)
     if problems:
-        raise DamagedFileError(
-            f"{path} is damaged (SQLite's check: {problems[0][:80]}); nothing was written",
-            field="db",
-            hint=restore_hint(path),
-        )
+        mark_damaged(path, problems[0])
+        raise damaged(path, f"SQLite's check: {problems[0][:80]}")
+
+
+def refuse_known_damage(path: Path) -> None:
+    """Refuse a log that a command found damaged, until it is restored or checked sound."""
+    mark = damage_mark(path)
+    if mark.exists():
+        raise damaged(path, f"damage was found earlier: {_read_mark(mark)}")
+
+
+def write_check(conn: sqlite3.Connection, path: Path) -> None:
+    """The check every opening for writing makes: no known damage, and a quick_check."""
+    refuse_known_damage(path)
+    try:
+        size = path.stat().st_size
+    except OSError:
+        size = 0
+    if size <= QUICK_CHECK_MAX_BYTES or routine_check_due():
+        check_integrity(conn, path)
+
+
+def damaged(path: Path | None, what: str) -> DamagedFileError:
+    return DamagedFileError(
+        f"{path} is damaged ({what}); nothing was written",
+        field="db",
+        hint=restore_hint(path),
+    )
+
+
+def damage_mark(log: Path) -> Path:
+    return log.with_name(log.name + DAMAGE_MARK)
+
+
+def mark_damaged(log: Path | None, what: str) -> None:
+    """Remember that ``log`` is damaged, so no later write trusts it until it is restored."""
+    if log is None:
+        return
+    with contextlib.suppress(OSError):
+        damage_mark(log).write_text(f"{what[:200]}\n", encoding="utf-8")
+
+
+def clear_damage_mark(log: Path) -> None:
+    with contextlib.suppress(OSError):
+        damage_mark(log).unlink()
+
+
+def _read_mark(mark: Path) -> str:
+    try:
+        text = " ".join(mark.read_text(encoding="utf-8", errors="replace").split())
+    except OSError:
+        text = ""
+    return text[:80] or "see `sawplan check`"
+
+
+# --- backups ---------------------------------------------------------------------------
 
 
 def backups_dir(log: Path) -> Path:
@@ -63,7 +128,7 @@ def backups_dir(log: Path) -> Path:
 
 
 def backups_of(log: Path) -> list[Path]:
-    """This log's automatic backups, oldest first (their names sort by time)."""
+    """This log's automatic backups, oldest first (their names sort by time); never partials."""
     folder = backups_dir(log)
     try:
         found = [p for p in folder.glob(f"{log.stem}-schema*.sqlite") if p.is_file()]
@@ -77,19 +142,38 @@ def newest_backup(log: Path) -> Path | None:
     return found[-1] if found else None
 
 
+def newest_good_backup(log: Path) -> Path | None:
+    """The newest automatic backup that passes SQLite's quick check."""
+    for candidate in reversed(backups_of(log)):
+        if sound_file(candidate):
+            return candidate
+    return None
+
+
+def sound_file(path: Path) -> bool:
+    """Does ``path`` open as SQLite and pass its quick check (read-only, nothing written)?"""
+    try:
+        conn = sqlite3.connect(f"file:{path.resolve()}?mode=ro", uri=True, timeout=5.0)
+    except sqlite3.Error:
+        return False
+    try:
+        return not integrity_problems(conn)
+    except sqlite3.Error:
+        return False
+    finally:
+        conn.close()
+
+
 def restore_hint(log: Path | None) -> str:
-    """What to do about a damaged log, naming the newest backup when there is one."""
+    """What to do about a damaged log, naming the newest good backup when there is one."""
     if log is None:
         return "restore a backup made with `sawplan backup`"
-    newest = newest_backup(log)
+    newest = newest_good_backup(log)
     if newest is not None:
-        return (
-            f"restore the newest backup: copy {newest} over {log.name} "
-            "(or a newer copy made with `sawplan backup`)"
-        )
+        return f"restore the newest good backup {newest}: sawplan restore --force --db {log}"
     return (
-        f"restore your newest copy made with `sawplan backup` over {log.name} "
-        f"(no automatic backups in {backups_dir(log)})"
+        f"restore your newest copy made with `sawplan backup`: sawplan restore FILE --force "
+        f"--db {log} (no sound automatic backups in {backups_dir(log)})"
     )
 
 
@@ -97,14 +181,19 @@ def backup_before_upgrade(log: Path, *, from_version: int) -> Path:
     """Copy the log into ``backups/`` before its schema changes; keep the newest few.
 
     Called with the write lock held, so the copy (read through a second
-    connection, as WAL allows) is exactly the log being upgraded.  Any failure
-    is a ``StorageError`` and the upgrade does not happen.
+    connection, as WAL allows) is exactly the log being upgraded, and no
+    other upgrade of this log runs: partial copies left in the folder by a
+    killed upgrade are removed first.  Any failure is a ``StorageError`` and
+    the upgrade does not happen.
     """
+    from sawplan.store.perms import make_folder
+
     folder = backups_dir(log)
     stamp = dt.datetime.now().strftime("%Y%m%d-%H%M%S-%f")
     target = folder / f"{log.stem}-schema{from_version}-{stamp}.sqlite"
     try:
-        folder.mkdir(parents=True, exist_ok=True)
+        make_folder(folder)
+        remove_partials(folder, f"{log.stem}-schema*")
         copy_verified(log, target)
     except (OSError, sqlite3.Error) as err:
         raise StorageError(
@@ -119,17 +208,44 @@ def backup_before_upgrade(log: Path, *, from_version: int) -> Path:
     return target
 
 
+def partial_of(target: Path) -> Path:
+    return target.with_name(target.name + PARTIAL)
+
+
+def remove_partials(folder: Path, pattern: str) -> list[Path]:
+    """Delete ``pattern*.partial`` files (and their journals) left by killed runs."""
+    gone = []
+    with contextlib.suppress(OSError):
+        for leftover in folder.glob(f"{pattern}{PARTIAL}*"):
+            with contextlib.suppress(OSError):
+                leftover.unlink()
+                gone.append(leftover)
+    return gone
+
+
+def remove_partial(target: Path) -> None:
+    """Delete the partial copy of ``target`` and the journal files SQLite kept beside it."""
+    tmp = partial_of(target)
+    for suffix in ("", "-journal", "-wal", "-shm"):
+        with contextlib.suppress(OSError):
+            Path(f"{tmp}{suffix}").unlink()
+
+
 def copy_verified(source: Path, target: Path) -> int:
     """A consistent one-file copy of ``source``, checked, then renamed into place.
 
     Uses SQLite's online backup (other programs may keep writing); the copy
-    is written beside ``target`` and renamed only when complete and sound.
-    Returns its size in bytes.
+    is written beside ``target`` as ``*.partial`` (a partial left by a killed
+    run is replaced) and renamed only when complete and sound.  Returns its
+    size in bytes.
     """
-    tmp = target.with_name(target.name + ".partial")
-    tmp.unlink(missing_ok=True)
+    from sawplan.store.perms import create_log_file, secure
+
+    tmp = partial_of(target)
+    remove_partial(target)
     src = sqlite3.connect(source, timeout=30.0)
     try:
+        create_log_file(tmp)
         out = sqlite3.connect(tmp)
         try:
             src.backup(out)
@@ -144,10 +260,10 @@ def copy_verified(source: Path, target: Path) -> int:
                 field="db",
                 hint=restore_hint(source),
             )
+        secure(tmp)
         os.replace(tmp, target)
     except BaseException:
-        with contextlib.suppress(OSError):
-            tmp.unlink()
+        remove_partial(target)
         raise
     finally:
         src.close()

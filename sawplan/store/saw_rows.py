@@ -6,14 +6,13 @@ import dataclasses
 from typing import TYPE_CHECKING, Any
 
 from sawplan.errors import ConflictError, NotFoundError, UsageError
-from sawplan.store.db import write_transaction
+from sawplan.store.db import run_write
 from sawplan.store.fields import MAX_TEXT, clean_text
 from sawplan.store.schema import SAW_PROFILE_COLUMNS
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database
-
     from sawplan.saws import Saw
+    from sawplan.store.db import Log as Database
 
 
 def saw_to_row(saw: Saw) -> dict[str, Any]:
@@ -46,7 +45,8 @@ def add_saw(db: Database, saw: Saw, *, added_on: str, replace: bool = False) -> 
     row = saw_to_row(saw) | {"name": name, "added_on": added_on}
     row["notes"] = clean_text(row.get("notes"), field="notes", limit=MAX_TEXT["note"])
     row["source"] = clean_text(row.get("source"), field="source") or "blade log"
-    with write_transaction(db):
+
+    def step() -> None:
         existing = _find_saw_row(db, name)
         if existing is not None and not replace:
             raise ConflictError(
@@ -55,10 +55,11 @@ def add_saw(db: Database, saw: Saw, *, added_on: str, replace: bool = False) -> 
                 hint="add --replace to update its profile",
             )
         if existing is not None:
-            row.pop("added_on")
-            db["saws"].update(existing["id"], row)
+            db.update("saws", existing["id"], {k: v for k, v in row.items() if k != "added_on"})
         else:
-            db["saws"].insert(row)
+            db.insert("saws", row)
+
+    run_write(db, step)
 
 
 def logged_saws(db: Database) -> list[Saw]:
@@ -71,7 +72,7 @@ def find_saw(db: Database, name: str) -> Saw | None:
 
 
 def _find_saw_row(db: Database, name: str) -> dict[str, Any] | None:
-    rows = list(db.query("SELECT * FROM saws WHERE name = ? COLLATE NOCASE", [name.strip()]))
+    rows = db.query("SELECT * FROM saws WHERE lower(name) = lower(:name)", {"name": name.strip()})
     return rows[0] if rows else None
 
 
@@ -80,8 +81,7 @@ def ensure_saw(db: Database, name: str, profile: Saw | None, *, on: str) -> tupl
     row = _find_saw_row(db, name)
     if row is not None:  # the common case: no write, no lock
         return int(row["id"]), str(row["name"])
-    with write_transaction(db):
-        return saw_row_id(db, name, profile, on=on)
+    return run_write(db, lambda: saw_row_id(db, name, profile, on=on))
 
 
 def saw_row_id(db: Database, name: str, profile: Saw | None, *, on: str) -> tuple[int, str]:
@@ -96,4 +96,4 @@ def saw_row_id(db: Database, name: str, profile: Saw | None, *, on: str) -> tupl
             hint="see `sawplan saw list` or add it: sawplan saw add",
         )
     new = saw_to_row(profile) | {"added_on": on}
-    return int(db["saws"].insert(new).last_pk), profile.name
+    return db.insert("saws", new), profile.name

@@ -1,13 +1,21 @@
-"""The blade log's schema, built and upgraded by sqlite-utils' recorded migrations.
+"""The blade log's tables (SQLAlchemy Core) and the names of its migration history.
 
-Every migration is registered once, in order, in the set ``sawplan-blade-log``
-and recorded in ``_sqlite_migrations`` when applied; ``PRAGMA user_version``
-mirrors the count so opening an up-to-date log costs two pragma reads.
-Never edit a migration that has shipped: add a new one at the end.
+The tables are declared here once, for the program's reads and writes; the
+migration history in ``migrations/versions/`` (Alembic) builds them step by
+step on SQLite and PostgreSQL alike.  A test checks with Alembic's
+``compare_metadata`` that the migrated schema equals these tables on both
+engines.  Never edit a migration that has shipped: add one at the end and
+append its id to ``REVISIONS``.
 
 Numbers are SI (or the program's core units) and every numeric column carries
-its unit in its name.  Tables are STRICT so a wrong type is refused at once.
-Dates are ISO text (``YYYY-MM-DD``).
+its unit in its name.  On SQLite the tables are STRICT, so a wrong type is
+refused at once; on PostgreSQL the column types do that.  Dates are ISO text
+(``YYYY-MM-DD``).  Tags and saw names are unique whatever their case
+(``lower()`` expression indexes, the same on both engines).
+
+Logs written before the move to Alembic (sqlite-utils' recorded migrations
+``m001_initial`` and ``m002_cut_traceability``) are adopted at the revision
+they match and upgraded from there (``sawplan.store.upgrade``).
 """
 
 from __future__ import annotations
@@ -16,11 +24,20 @@ from functools import lru_cache
 from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database, Migrations
+    from sqlalchemy import MetaData
 
-MIGRATION_SET = "sawplan-blade-log"
-APPLICATION_ID = 0x53415750  # "SAWP": marks the file as a sawplan blade log
-MIGRATION_NAMES: tuple[str, ...] = ("m001_initial", "m002_cut_traceability")
+APPLICATION_ID = 0x53415750  # "SAWP": marks a SQLite file as a sawplan blade log
+VERSION_TABLE = "sawplan_schema"  # Alembic's version table, named so no other program shares it
+# Alembic revision ids, oldest first.  A SQLite log also keeps the count in
+# PRAGMA user_version, so opening an up-to-date file costs two pragma reads.
+REVISIONS: tuple[str, ...] = ("0001", "0002", "0003")
+HEAD = REVISIONS[-1]
+# the sqlite-utils history of the first releases: its names map onto REVISIONS[0:2]
+LEGACY_SET = "sawplan-blade-log"
+LEGACY_NAMES: tuple[str, ...] = ("m001_initial", "m002_cut_traceability")
+LEGACY_TABLE = "_sqlite_migrations"
+
+TABLE_NAMES = ("saws", "blades", "fittings", "cuts", "events")  # parents before children
 
 # Profile columns of a saw (``sawplan.saws.Saw`` fields with units), in table order.
 SAW_PROFILE_COLUMNS: dict[str, type] = {
@@ -44,130 +61,135 @@ SAW_PROFILE_COLUMNS: dict[str, type] = {
 }
 
 
-def create_first_schema(db: Database) -> None:
-    """Migration 1: saws, blades, fittings, cuts, events."""
-    db["saws"].create(
-        {"id": int, "name": str, **SAW_PROFILE_COLUMNS, "source": str, "added_on": str},
-        pk="id",
-        not_null={"name", "source"},
-        defaults={"source": "blade log"},
-        strict=True,
-    )
-    db.execute("CREATE UNIQUE INDEX saws_name ON saws (name COLLATE NOCASE)")
-    db["blades"].create(
-        {
-            "id": int,
-            "tag": str,
-            "blade_material": str,
-            "grade": str,
-            "width_mm": float,
-            "thickness_mm": float,
-            "length_mm": float,
-            "tpi_coarse": float,
-            "tpi_fine": float,
-            "tooth_form": str,
-            "tooth_set": str,
-            "supplier": str,
-            "lot": str,
-            "price": float,
-            "bought_on": str,
-            "welded": str,
-            "status": str,
-            "retired_on": str,
-            "retire_cause": str,
-            "notes": str,
-            "added_on": str,
-        },
-        pk="id",
-        not_null={"tag", "status", "blade_material", "width_mm", "thickness_mm", "tpi_coarse"},
-        defaults={"status": "new", "blade_material": "bi-metal"},
-        strict=True,
-    )
-    db.execute("CREATE UNIQUE INDEX blades_tag ON blades (tag COLLATE NOCASE)")
-    db["fittings"].create(
-        {
-            "id": int,
-            "blade_id": int,
-            "saw_id": int,
-            "fitted_on": str,
-            "removed_on": str,
-            "tension_mpa": float,
-            "break_in": int,
-            "break_in_how": str,
-        },
-        pk="id",
-        not_null={"blade_id", "saw_id", "fitted_on"},
-        foreign_keys=[("blade_id", "blades", "id"), ("saw_id", "saws", "id")],
-        strict=True,
-    )
-    db["fittings"].create_index(["blade_id"])
-    # at most one open fitting per blade and per saw, guarded by the database itself
-    db.execute(
-        "CREATE UNIQUE INDEX fittings_open_blade ON fittings (blade_id) WHERE removed_on IS NULL"
-    )
-    db.execute(
-        "CREATE UNIQUE INDEX fittings_open_saw ON fittings (saw_id) WHERE removed_on IS NULL"
-    )
-    db["cuts"].create(
-        {
-            "id": int,
-            "blade_id": int,
-            "saw_id": int,
-            "cut_on": str,
-            "material": str,
-            "material_group": str,
-            "section": str,
-            "area_mm2": float,
-            "pieces": int,
-            "count": int,
-            "band_speed_m_min": float,
-            "feed_mm_min": float,
-            "feed_setting": str,
-            "time_min": float,
-            "coolant": int,
-            "job": str,
-            "note": str,
-        },
-        pk="id",
-        not_null={"blade_id", "cut_on", "material", "section", "area_mm2", "pieces", "count"},
-        foreign_keys=[("blade_id", "blades", "id"), ("saw_id", "saws", "id")],
-        strict=True,
-    )
-    db["cuts"].create_index(["blade_id"])
-    db["events"].create(
-        {
-            "id": int,
-            "blade_id": int,
-            "happened_on": str,
-            "kind": str,
-            "mode": str,
-            "location": str,
-            "teeth": int,
-            "note": str,
-        },
-        pk="id",
-        not_null={"blade_id", "happened_on", "kind"},
-        foreign_keys=[("blade_id", "blades", "id")],
-        strict=True,
-    )
-    db["events"].create_index(["blade_id"])
+def real_type():
+    """A double-precision float: REAL on SQLite (STRICT accepts it), DOUBLE PRECISION elsewhere."""
+    import sqlalchemy as sa
+    from sqlalchemy.dialects import sqlite
+
+    return sa.Double().with_variant(sqlite.REAL(), "sqlite")
 
 
-def add_cut_traceability(db: Database) -> None:
-    """Migration 2: heat/lot number and model-predicted time on cuts; calibration index."""
-    cuts = db["cuts"]
-    cuts.add_column("heat", str)
-    cuts.add_column("predicted_time_min", float)
-    cuts.create_index(["saw_id", "material_group"])
+def column_type(kind: type):
+    import sqlalchemy as sa
+
+    return {str: sa.Text, int: sa.Integer}[kind]() if kind is not float else real_type()
 
 
 @lru_cache(maxsize=1)
-def migrations() -> Migrations:
-    """The registered migration set (built on first use: sqlite_utils is heavy to import)."""
-    from sqlite_utils import Migrations
+def metadata() -> MetaData:
+    """The tables at the newest revision (built on first use: SQLAlchemy is heavy to import)."""
+    import sqlalchemy as sa
 
-    plan = Migrations(MIGRATION_SET)
-    steps = (create_first_schema, add_cut_traceability)
-    for name, step in zip(MIGRATION_NAMES, steps, strict=True):
-        plan(name=name)(step)
-    return plan
+    md = sa.MetaData()
+    real = real_type
+    strict = {"sqlite_strict": True}
+
+    def col(name: str, kind, *args, **kw) -> sa.Column:
+        return sa.Column(name, kind() if callable(kind) else kind, *args, **kw)
+
+    saws = sa.Table(
+        "saws",
+        md,
+        sa.Column("id", sa.Integer, primary_key=True),
+        col("name", sa.Text, nullable=False),
+        *(col(name, column_type(kind)) for name, kind in SAW_PROFILE_COLUMNS.items()),
+        col("source", sa.Text, nullable=False, server_default="blade log"),
+        col("added_on", sa.Text),
+        **strict,
+    )
+    blades = sa.Table(
+        "blades",
+        md,
+        sa.Column("id", sa.Integer, primary_key=True),
+        col("tag", sa.Text, nullable=False),
+        col("blade_material", sa.Text, nullable=False, server_default="bi-metal"),
+        col("grade", sa.Text),
+        col("width_mm", real, nullable=False),
+        col("thickness_mm", real, nullable=False),
+        col("length_mm", real),
+        col("tpi_coarse", real, nullable=False),
+        col("tpi_fine", real),
+        *(col(name, sa.Text) for name in ("tooth_form", "tooth_set", "supplier", "lot")),
+        col("price", real),
+        *(col(name, sa.Text) for name in ("bought_on", "welded")),
+        col("status", sa.Text, nullable=False, server_default="new"),
+        *(col(name, sa.Text) for name in ("retired_on", "retire_cause", "notes", "added_on")),
+        **strict,
+    )
+    fittings = sa.Table(
+        "fittings",
+        md,
+        sa.Column("id", sa.Integer, primary_key=True),
+        col("blade_id", sa.Integer, sa.ForeignKey("blades.id"), nullable=False),
+        col("saw_id", sa.Integer, sa.ForeignKey("saws.id"), nullable=False),
+        col("fitted_on", sa.Text, nullable=False),
+        col("removed_on", sa.Text),
+        col("tension_mpa", real),
+        col("break_in", sa.Integer),
+        col("break_in_how", sa.Text),
+        **strict,
+    )
+    cuts = sa.Table(
+        "cuts",
+        md,
+        sa.Column("id", sa.Integer, primary_key=True),
+        col("blade_id", sa.Integer, sa.ForeignKey("blades.id"), nullable=False),
+        col("saw_id", sa.Integer, sa.ForeignKey("saws.id")),
+        col("cut_on", sa.Text, nullable=False),
+        col("material", sa.Text, nullable=False),
+        col("material_group", sa.Text),
+        col("section", sa.Text, nullable=False),
+        col("area_mm2", real, nullable=False),
+        col("pieces", sa.Integer, nullable=False),
+        col("count", sa.Integer, nullable=False),
+        col("band_speed_m_min", real),
+        col("feed_mm_min", real),
+        col("feed_setting", sa.Text),
+        col("time_min", real),
+        col("coolant", sa.Integer),
+        col("job", sa.Text),
+        col("note", sa.Text),
+        col("heat", sa.Text),
+        col("predicted_time_min", real),
+        **strict,
+    )
+    events = sa.Table(
+        "events",
+        md,
+        sa.Column("id", sa.Integer, primary_key=True),
+        col("blade_id", sa.Integer, sa.ForeignKey("blades.id"), nullable=False),
+        col("happened_on", sa.Text, nullable=False),
+        col("kind", sa.Text, nullable=False),
+        col("mode", sa.Text),
+        col("location", sa.Text),
+        col("teeth", sa.Integer),
+        col("note", sa.Text),
+        **strict,
+    )
+    open_only = {
+        "sqlite_where": sa.text("removed_on IS NULL"),
+        "postgresql_where": sa.text("removed_on IS NULL"),
+    }
+    sa.Index("saws_name", sa.func.lower(saws.c.name), unique=True)
+    sa.Index("blades_tag", sa.func.lower(blades.c.tag), unique=True)
+    sa.Index("idx_fittings_blade_id", fittings.c.blade_id)
+    sa.Index("fittings_open_blade", fittings.c.blade_id, unique=True, **open_only)
+    sa.Index("fittings_open_saw", fittings.c.saw_id, unique=True, **open_only)
+    sa.Index("idx_cuts_blade_id", cuts.c.blade_id)
+    sa.Index("idx_cuts_saw_id_material_group", cuts.c.saw_id, cuts.c.material_group)
+    sa.Index("idx_events_blade_id", events.c.blade_id)
+    return md
+
+
+def table(name: str):
+    """One table of ``metadata()`` by name."""
+    return metadata().tables[name]
+
+
+def ident(name: str) -> str:
+    """A table or column name of the log, checked: the only names SQL text may interpolate."""
+    if name in TABLE_NAMES or name == VERSION_TABLE:
+        return name
+    if any(name in t.columns for t in metadata().tables.values()):
+        return name
+    raise ValueError(f"not a name in the blade log's schema: {name!r}")

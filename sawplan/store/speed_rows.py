@@ -18,12 +18,12 @@ from sawplan.store.fields import pitch_label
 from sawplan.store.stats import blade_type_of
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database
+    from sawplan.store.db import Log as Database
 
 
 # the two filters, and the two queries for each (no value is ever spliced in: bound parameters)
 _ALL = "area_mm2 > 0"
-_GROUP = "area_mm2 > 0 AND blade_id IN (SELECT blade_id FROM cuts WHERE material_group = ?)"
+_GROUP = "area_mm2 > 0 AND blade_id IN (SELECT blade_id FROM cuts WHERE material_group = :group)"
 _CUTS_SQL = {
     w: "SELECT blade_id, area_mm2, time_min, band_speed_m_min FROM cuts WHERE "
     + w
@@ -107,7 +107,7 @@ def speed_life_rows(db: Database, material_group: str | None = None) -> SpeedLif
     """
     import numpy as np
 
-    where, params = (_ALL, []) if material_group is None else (_GROUP, [material_group])
+    where, params = (_ALL, {}) if material_group is None else (_GROUP, {"group": material_group})
     rows = db.execute(_CUTS_SQL[where], params).fetchall()
     cols = np.array(rows, dtype=float).reshape(-1, 4)  # None → NaN
     blade_id = cols[:, 0].astype(np.int64)
@@ -115,7 +115,10 @@ def speed_life_rows(db: Database, material_group: str | None = None) -> SpeedLif
     speed = cols[:, 3]
     logged = np.isfinite(speed) & (speed > 0)
     dominant: dict[int, tuple[str | None, float]] = {}
-    for bid, group, total in db.execute(_GROUPS_SQL[where], params):
+    # the group a blade cut most area of; on a tie the first by name, on every engine
+    for bid, group, total in sorted(
+        db.execute(_GROUPS_SQL[where], params), key=lambda r: str(r[1])
+    ):
         if bid not in dominant or total > dominant[bid][1]:
             dominant[bid] = (group, total)
     top = int(blade_id.max()) + 1 if len(blade_id) else 1

@@ -8,12 +8,13 @@ retired tells nothing about life and is left out.
 
 from __future__ import annotations
 
+import math
 from collections import defaultdict
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, NamedTuple
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sqlite_utils import Database
+    from sawplan.store.db import Log as Database
 
 from sawplan.display import Q, join, say
 from sawplan.store.records import pitch_label
@@ -41,24 +42,31 @@ def blade_type_of(row: dict) -> str:
     return join(" ", [p for p in parts if p])
 
 
+_AREAS_SQL = "SELECT blade_id, material_group, area_mm2 FROM cuts"
+
+
 def blade_lives(db: Database, *, include_unused_failures: bool = False) -> list[BladeLife]:
     """Every blade that is a life observation, in the order blades were added.
 
     Retired blades that never cut anything are left out unless
     ``include_unused_failures`` (a zero life cannot enter a Weibull fit).
     """
-    by_group: dict[int, dict[str | None, float]] = defaultdict(dict)
-    for blade_id, group, area in db.execute(
-        "SELECT blade_id, material_group, SUM(area_mm2) FROM cuts GROUP BY blade_id, material_group"
-    ):
-        by_group[blade_id][group] = float(area)
+    # Summed here, exactly (math.fsum), not by the database: SUM adds in whatever order
+    # the engine scans, so SQLite and PostgreSQL could differ in the last digit.
+    areas: dict[int, dict[str | None, list[float]]] = defaultdict(lambda: defaultdict(list))
+    for blade_id, group, area in db.bulk_rows(_AREAS_SQL):
+        areas[blade_id][group].append(area)
+    by_group = {
+        blade_id: {g: math.fsum(groups[g]) for g in sorted(groups, key=str)}
+        for blade_id, groups in areas.items()
+    }
     lives = []
     for row in db.query(
         "SELECT id, tag, blade_material, grade, width_mm, thickness_mm, tpi_coarse, tpi_fine, "
         "price, status, retire_cause FROM blades ORDER BY id"
     ):
         groups = by_group.get(row["id"], {})
-        area_cm2 = sum(groups.values()) / 100.0
+        area_cm2 = math.fsum(a for g in areas.get(row["id"], {}).values() for a in g) / 100.0
         failed = row["status"] == "retired"
         if area_cm2 <= 0.0 and not (failed and include_unused_failures):
             continue
@@ -102,6 +110,19 @@ class TimedCut(NamedTuple):
 
 
 CALIBRATION_WINDOW = 200
+# "= :x" never matches NULL, so a cut without a saw or a group has its own query
+_TIMED = (
+    "SELECT time_min, predicted_time_min FROM cuts WHERE {} AND time_min > 0 "
+    "AND predicted_time_min > 0 ORDER BY id DESC LIMIT :latest"
+)
+_TIMED_SQL = {
+    (saw_null, group_null): _TIMED.format(
+        ("saw_id IS NULL" if saw_null else "saw_id = :saw_id")
+        + (" AND material_group IS NULL" if group_null else " AND material_group = :material_group")
+    )
+    for saw_null in (False, True)
+    for group_null in (False, True)
+}
 
 
 def timed_cuts(
@@ -129,10 +150,8 @@ def timed_cuts(
     out: list[TimedCut] = []
     for saw_id, group in sorted(pairs, key=lambda p: (str(names.get(p[0])), str(p[1]))):
         rows = db.execute(
-            "SELECT time_min, predicted_time_min FROM cuts WHERE saw_id IS ? AND "
-            "material_group IS ? AND time_min > 0 AND predicted_time_min > 0 "
-            "ORDER BY id DESC LIMIT ?",
-            [saw_id, group, latest],
+            _TIMED_SQL[saw_id is None, group is None],
+            {"saw_id": saw_id, "material_group": group, "latest": latest},
         ).fetchall()
         name = names.get(saw_id)
         out += [TimedCut(name, group, t, p) for t, p in reversed(rows)]
