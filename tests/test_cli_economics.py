@@ -165,3 +165,75 @@ def test_plan_run_must_be_a_known_speed(cli):
     assert r.code in (2, 3)
     assert "run speed" in r.err
     assert "recommended, cost" in r.err or "recommended" in r.err
+
+
+# --- the log's summary kept in the user's cache folder (sawplan.cli.log_life) ----------
+
+
+def _economics(cli, path):
+    r = cli("cut", "4140", "round", "60mm", "--economics", "--db", str(path), "--json")
+    assert r.code == 0, r.err
+    return json.loads(r.out)
+
+
+def _count_reads(monkeypatch):
+    from sawplan.store.lookup import BladeLog
+
+    reads = []
+    original = BladeLog.speed_rows
+
+    def counted(self, material_group=None):
+        reads.append(material_group)
+        return original(self, material_group)
+
+    monkeypatch.setattr(BladeLog, "speed_rows", counted)
+    return reads
+
+
+def test_the_kept_summary_is_used_while_the_log_is_unchanged(cli, speed_log, monkeypatch):
+    reads = _count_reads(monkeypatch)
+    first = _economics(cli, speed_log)
+    assert reads == ["alloy-steel"]
+    again = _economics(cli, speed_log)
+    assert reads == ["alloy-steel"]  # not read again
+    assert again == first  # and nothing in the answer differs
+    import os
+
+    from sawplan.cli.log_life import cache_folder
+
+    files = list((cache_folder() / "log-life").glob("*.json"))
+    assert len(files) == 1
+    assert files[0].stat().st_mode & 0o777 == 0o600  # private, like the log
+    assert "58.0" in files[0].read_text() and "T000" not in files[0].read_text()  # no rows
+    assert os.environ["SAWPLAN_HOME"] in str(files[0])  # never the user's own cache in tests
+
+
+def test_a_change_to_the_log_is_seen(cli, tmp_path, monkeypatch):
+    import shutil
+
+    from sawplan.store import connect
+    from sawplan.store.records import retire_blade
+
+    path = tmp_path / "log.sqlite"
+    write_blades(path, "M42", "T", 300, 17)
+    reads = _count_reads(monkeypatch)
+    before = _economics(cli, path)
+    with connect(path) as db:  # a running blade wears out: one more failure, same cuts
+        retire_blade(db, "T040", "dull", on="2025-04-01")
+    after = _economics(cli, path)
+    assert reads == ["alloy-steel", "alloy-steel"]
+    assert after["economics"]["life"] != before["economics"]["life"]
+    # the same as working it out afresh, with nothing kept
+    from sawplan.cli.log_life import cache_folder
+
+    shutil.rmtree(cache_folder())
+    assert _economics(cli, path) == after
+
+
+def test_a_damaged_cache_file_is_worked_out_again(cli, speed_log):
+    from sawplan.cli.log_life import cache_folder
+
+    first = _economics(cli, speed_log)
+    for kept in (cache_folder() / "log-life").glob("*.json"):
+        kept.write_text("{ not json", encoding="utf-8")
+    assert _economics(cli, speed_log) == first

@@ -2,15 +2,18 @@
 
 Every figure says where it comes from: given on the command line, the job
 file, the blade log, or a default (common practice).  The log is read only
-through the store (``BladeLog.speed_rows``); the fit, the costs and the speeds
-are the core's (``sawplan.life.speed_life``, ``sawplan.cutting.cut_cost``).
+through the store (``BladeLog.speed_rows``), summed up once per log state
+(``sawplan.cli.log_life``, kept in the user's cache folder); the fit, the costs
+and the speeds are the core's (``sawplan.life.speed_life``,
+``sawplan.cutting.cut_cost``).
 """
 
 from __future__ import annotations
 
-import statistics
 from dataclasses import dataclass
 from typing import Any
+
+from sawplan.cli.log_life import LogLife, group_life
 
 DEFAULT_SHOP_RATE_PER_H = 60.0  # a round figure to be replaced by the shop's own
 DEFAULT_CHANGE_MIN = 15.0  # common practice: off, on, tension, track and break in a blade
@@ -31,7 +34,7 @@ class ShopFigures:
     job_blade_price: float | None = None
 
 
-def cost_inputs(figures: ShopFigures, log_prices: list[float]) -> Any:
+def cost_inputs(figures: ShopFigures, price_median: float | None, priced_blades: int) -> Any:
     """The four money and time figures, each with its source."""
     from sawplan.cutlist.jobfile.types import DEFAULT_HANDLING_TIME_MIN
     from sawplan.cutting.cut_cost import CostInputs, Sourced
@@ -45,65 +48,41 @@ def cost_inputs(figures: ShopFigures, log_prices: list[float]) -> Any:
             return Sourced(float(log), log_words or "blade log")
         return Sourced(default, DEFAULT_SOURCE.format(option=option))
 
-    price_log = statistics.median(log_prices) if log_prices else None
-    price_words = f"blade log: median price of {len(log_prices)} blades"
+    price_words = f"blade log: median price of {priced_blades} blades"
     return CostInputs(
         rate_per_h=pick(figures.shop_rate_per_h, figures.job_rate_per_h, None,
                         DEFAULT_SHOP_RATE_PER_H, "--shop-rate"),
         handling_min=pick(figures.handling_min, figures.job_handling_min, None,
                           DEFAULT_HANDLING_TIME_MIN, "--handling-time (common practice)"),
-        blade_price=pick(figures.blade_price, figures.job_blade_price, price_log,
+        blade_price=pick(figures.blade_price, figures.job_blade_price, price_median,
                          DEFAULT_BLADE_PRICE, "--price", price_words),
         change_min=pick(figures.change_min, None, None, DEFAULT_CHANGE_MIN,
                         "--change-time (common practice)"),
     )  # fmt: skip
 
 
-def group_fit(rows: Any, material_group: str, confidence: float = 0.9) -> Any:
-    """Fit life against speed over the group's blades (None without a log)."""
-    from sawplan.life.speed_life import fit_speed_life
-
-    if rows is None:
-        return None
-    part = rows.only(material_group=material_group)
-    return fit_speed_life(
-        part.blade, part.area_cm2, part.speed_m_min, part.failed, confidence=confidence
-    )
-
-
-def _per_blade(blade: Any, area: Any, blades: int) -> Any:
-    import numpy as np
-
-    return np.bincount(blade, weights=area, minlength=blades)
-
-
-def life_for_cut(part: Any, fit: Any, material_group: str, blade_material: str,
+def life_for_cut(life: LogLife | None, material_group: str, blade_material: str,
                  recommended_m_min: float) -> Any:  # fmt: skip
     """The relation: the fit, else the published exponent anchored on these blades' life.
 
-    ``part`` is the log's rows for the blades in question (None without a log).
+    ``life`` sums up the log's blades in question (None without a log).
     """
     from sawplan.cutting.life_basis import life_relation
-    from sawplan.life.weibull import fit_weibull
     from sawplan.store.reports import default_life
 
-    weibull = None
-    if part is not None and part.tags and not (fit is not None and fit.fitted):
-        lives = [float(x) for x in _per_blade(part.blade, part.area_cm2, len(part.tags))]
-        weibull = fit_weibull(lives, part.failed)
-    if weibull is not None and weibull.fitted:
-        anchor_life = weibull.mean_life_cm2
-        words = f"the log's mean blade life (Weibull, {weibull.n} blades)"
+    if life is not None and life.weibull_life_cm2 is not None:
+        anchor_life = life.weibull_life_cm2
+        words = f"the log's mean blade life (Weibull, {life.weibull_blades} blades)"
     else:
         d = default_life(material_group)
         anchor_life, words = d.life_cm2, f"the default life ({d.source})"
-    if part is not None and len(part.area_cm2):
-        anchor_speed = float((part.area_cm2 * part.speed_m_min).sum() / part.area_cm2.sum())
+    if life is not None and life.mean_speed_m_min is not None:
+        anchor_speed = life.mean_speed_m_min
         where = "at the mean logged band speed"
     else:
         anchor_speed, where = recommended_m_min, "assumed run at the recommended band speed"
     return life_relation(
-        fit,
+        None if life is None else life.fit,
         blade_material=blade_material,
         anchor_life_cm2=anchor_life,
         anchor_speed_m_min=anchor_speed,
@@ -111,24 +90,18 @@ def life_for_cut(part: Any, fit: Any, material_group: str, blade_material: str,
     )
 
 
-def _fit(part: Any) -> Any:
-    from sawplan.life.speed_life import fit_speed_life
-
-    if part is None:
-        return None
-    return fit_speed_life(part.blade, part.area_cm2, part.speed_m_min, part.failed)
-
-
-def _economics(result: Any, mat: Any, sec: Any, saw: Any, part: Any, figures: ShopFigures,
-               *, dry: bool, pitch: str) -> tuple[Any, Any, Any]:  # fmt: skip
-    """One pitch's cut at three speeds, with the life of the blades in ``part``."""
+def _economics(result: Any, mat: Any, sec: Any, saw: Any, life: LogLife | None,
+               figures: ShopFigures, *, dry: bool, pitch: str) -> tuple[Any, Any, Any]:  # fmt: skip
+    """One pitch's cut at three speeds, with the life of the blades ``life`` sums up."""
     from sawplan.cutting import cut_time_min
     from sawplan.cutting.cut_cost import cut_economics, speed_time_of
     from sawplan.errors import BadDataError
 
-    fit = _fit(part)
-    prices = [p for p in part.prices if p is not None and p > 0] if part is not None else []
-    inputs = cost_inputs(figures, prices)
+    fit = None if life is None else life.fit
+    if life is None:
+        inputs = cost_inputs(figures, None, 0)
+    else:
+        inputs = cost_inputs(figures, life.price_median, life.priced_blades)
     span = (saw.band_speed_min_m_min, saw.band_speed_max_m_min)
 
     def time_at(v: float) -> float:
@@ -141,8 +114,8 @@ def _economics(result: Any, mat: Any, sec: Any, saw: Any, part: Any, figures: Sh
 
     times = speed_time_of(time_at, span, _time_source(result))
     recommended = result.band_speed_m_min
-    life = life_for_cut(part, fit, mat.group, result.blade_material, recommended)
-    econ = cut_economics(result.area_mm2, recommended, times, life, inputs, span)
+    relation = life_for_cut(life, mat.group, result.blade_material, recommended)
+    econ = cut_economics(result.area_mm2, recommended, times, relation, inputs, span)
     return econ, times, fit
 
 
@@ -156,11 +129,11 @@ def _time_source(result: Any) -> str:
 def economics_of_cut(result: Any, mat: Any, sec: Any, saw: Any, log: Any,
                      figures: ShopFigures, *, dry: bool) -> tuple[Any, Any]:  # fmt: skip
     """The cut's economics at three speeds (life from all the group's blades), and its times."""
-    rows = log.speed_rows(mat.group)
-    part = rows.only(material_group=mat.group) if rows is not None else None
+    life = group_life(log, mat.group)
     econ, times, fit = _economics(
-        result, mat, sec, saw, part, figures, dry=dry, pitch=result.pitch_label
-    )
+        result, mat, sec, saw, None if life is None else life.group, figures, dry=dry,
+        pitch=result.pitch_label,
+    )  # fmt: skip
     return econ, (times, fit)
 
 
@@ -170,17 +143,12 @@ def blade_choice_for_cut(result: Any, mat: Any, sec: Any, saw: Any, log: Any,
     from sawplan.cutting.blade_choice import BladeOption, choose_blade
     from sawplan.errors import SawplanError
 
-    rows = log.speed_rows(mat.group)
-    if rows is None:
-        return None
-    group = rows.only(material_group=mat.group)
-    types = sorted(set(group.blade_types))
-    if len(types) < 2:
+    life = group_life(log, mat.group)
+    if life is None or len(life.types) < 2:
         return None
     options, not_costed = [], []
-    for blade_type in types:
-        part = group.only(blade_type=blade_type)
-        pitch = part.pitches[0]
+    for blade_type, part in life.types.items():
+        pitch = part.pitch
         try:
             econ, _times, fit = _economics(result, mat, sec, saw, part, figures, dry=dry,
                                            pitch=pitch)  # fmt: skip
