@@ -151,6 +151,21 @@ def fit_weibull(
     return model.result(shape, confidence, n, censored)
 
 
+def quantile_interval(
+    lives_cm2: Sequence[float], failed: Sequence[bool], fit: WeibullFit, p: float
+) -> tuple[float, float]:
+    """Profile-likelihood bounds (at the fit's confidence) of the ``p`` life of a fit.
+
+    ``lives_cm2`` and ``failed`` are the data ``fit`` came from; the median's
+    interval (p = 0.5) tells whether a lot's lives are surely shorter than others'.
+    """
+    lives, flags = _check_inputs(lives_cm2, failed, fit.confidence)
+    if not 0.0 < p < 1.0:
+        raise BadDataError(f"must be between 0 and 1 (exclusive), got {p}", field="p")
+    model = _Model(lives, flags)
+    return model.quantile_ci(fit.shape, p, model.target(fit.shape, fit.confidence))
+
+
 def _check_inputs(
     lives_cm2: Sequence[float], failed: Sequence[bool], confidence: float
 ) -> tuple[list[float], list[bool]]:
@@ -252,13 +267,31 @@ class _Model:
         return -float(res.fun)
 
     # -- result -----------------------------------------------------------------
-    def result(self, shape: float, confidence: float, n: int, censored: int) -> WeibullFit:
+    def target(self, shape: float, confidence: float) -> float:
+        """The profile log-likelihood at the edge of the ``confidence`` interval."""
         from scipy.special import chdtri  # χ² quantile without importing scipy.stats (≈0.4 s)
 
+        drop = float(chdtri(1, 1.0 - confidence)) / 2.0
+        return self.loglik(shape, self.log_scale_u(shape)) - drop
+
+    def quantile_ci(self, shape: float, p: float, target: float) -> tuple[float, float]:
+        """Profile-likelihood bounds of the life by which a fraction ``p`` has failed."""
+        c = math.log(-math.log1p(-p))
+        log_t = self.log_scale_u(shape) + c / shape
+        log_shape = math.log(shape)
+
+        def prof(v: float) -> float:
+            return self.profile_quantile(v, c, log_shape)
+
+        return (
+            math.exp(_bound(prof, log_t, target, -1) + self.log_ref),
+            math.exp(_bound(prof, log_t, target, +1) + self.log_ref),
+        )
+
+    def result(self, shape: float, confidence: float, n: int, censored: int) -> WeibullFit:
         log_eta_u = self.log_scale_u(shape)
         ll_max = self.loglik(shape, log_eta_u)
-        drop = float(chdtri(1, 1.0 - confidence)) / 2.0
-        target = ll_max - drop
+        target = self.target(shape, confidence)
 
         log_shape = math.log(shape)
         shape_ci = (
@@ -267,16 +300,7 @@ class _Model:
         )
 
         def quantile_ci(p: float) -> tuple[float, float]:
-            c = math.log(-math.log1p(-p))
-            log_t = log_eta_u + c / shape
-
-            def prof(v: float) -> float:
-                return self.profile_quantile(v, c, log_shape)
-
-            return (
-                math.exp(_bound(prof, log_t, target, -1) + self.log_ref),
-                math.exp(_bound(prof, log_t, target, +1) + self.log_ref),
-            )
+            return self.quantile_ci(shape, p, target)
 
         se_log_shape, se_log_scale = self.log_param_se(shape, log_eta_u)
         scale = math.exp(log_eta_u + self.log_ref)

@@ -1,0 +1,112 @@
+"""How each retired blade's life ended, judged against its type's expected life.
+
+The judgement itself is ``sawplan.life.end_of_life``; this module finds what it
+needs in the log: the lives of the blades of each type retired worn out, the
+censored fit of each type, and the reference's typical range for the material
+group a blade cut most (``reports.default_life``).  ``sawplan life``, ``blade
+show`` and ``blade retire`` all judge through ``with_ends``/``retirement``, so
+they agree.
+"""
+
+from __future__ import annotations
+
+from collections import defaultdict
+from collections.abc import Sequence
+from dataclasses import dataclass, replace
+from typing import TYPE_CHECKING
+
+from sawplan.display import say
+from sawplan.store.stats import BladeLife, blade_lives
+
+if TYPE_CHECKING:  # pragma: no cover
+    from sawplan.life.end_of_life import EndOfLife, ExpectedLife
+    from sawplan.store.db import Log as Database
+    from sawplan.store.records import Blade
+
+
+class ExpectedLives:
+    """The expected life of each blade type in a set of lives, worked out on first use."""
+
+    def __init__(self, lives: Sequence[BladeLife], confidence: float = 0.9):
+        self.confidence = confidence
+        self.by_type: dict[str, list[BladeLife]] = defaultdict(list)
+        for b in lives:
+            self.by_type[b.blade_type].append(b)
+        self.cache: dict[str, ExpectedLife | None] = {}
+
+    def of_type(self, blade_type: str) -> ExpectedLife | None:
+        """From the type's worn-out blades, else the type's fit; None when neither tells."""
+        from sawplan.life import fit_weibull
+        from sawplan.life.end_of_life import WORN_OUT, expected_from_fit, expected_from_worn_out
+
+        if blade_type not in self.cache:
+            blades = self.by_type.get(blade_type, [])
+            found = expected_from_worn_out([b.area_cm2 for b in blades if b.mode == WORN_OUT])
+            if found is None and blades:
+                fit = fit_weibull(
+                    [b.area_cm2 for b in blades], [b.failed for b in blades], self.confidence
+                )
+                found = expected_from_fit(fit)
+            self.cache[blade_type] = found
+        return self.cache[blade_type]
+
+    def of(self, blade_type: str, material_group: str | None) -> ExpectedLife:
+        """The type's expected life, else the reference's typical range for the group."""
+        from sawplan.life.end_of_life import expected_from_reference
+        from sawplan.store.reports import default_life
+
+        found = self.of_type(blade_type)
+        if found is not None:
+            return found
+        default = default_life(material_group)
+        source = say(
+            "the typical life of {} blades, {}; low confidence until the log holds "
+            "3 worn-out blades of this type",
+            default.material_group,
+            default.source,
+        )
+        return expected_from_reference(default.low_cm2, default.high_cm2, source)
+
+
+def with_ends(lives: Sequence[BladeLife], confidence: float = 0.9) -> list[BladeLife]:
+    """The lives with each retired blade's end judged (worn out or a failure)."""
+    from sawplan.life.end_of_life import TOOTH_WEAR, end_of_life
+
+    expected = ExpectedLives(lives, confidence)
+    out = []
+    for b in lives:
+        if not b.failed:
+            out.append(b)
+            continue
+        # only the words of tooth wear need the expected life to be judged
+        rng = expected.of(b.blade_type, b.material_group) if b.mode in TOOTH_WEAR else None
+        out.append(replace(b, end=end_of_life(b.mode, b.area_cm2, rng)))
+    return out
+
+
+@dataclass(frozen=True)
+class Retirement:
+    """A retired blade and how its life ended, against its type's expected life."""
+
+    blade: Blade
+    end: EndOfLife
+
+
+def end_of(db: Database, blade: Blade, confidence: float = 0.9) -> EndOfLife | None:
+    """How a retired blade's life ended (None for a blade not retired)."""
+    from sawplan.life.end_of_life import end_of_life
+
+    if blade.status != "retired":
+        return None
+    lives = blade_lives(db, include_unused_failures=True)
+    mine = next((b for b in lives if b.tag == blade.tag), None)
+    group = mine.material_group if mine is not None else None
+    rng = ExpectedLives(lives, confidence).of(blade.blade_type, group)
+    return end_of_life(blade.retire_cause, blade.area_mm2 / 100.0, rng)
+
+
+def retirement(db: Database, blade: Blade) -> Retirement:
+    """What ``sawplan blade retire`` reports after retiring ``blade``."""
+    end = end_of(db, blade)
+    assert end is not None, "the blade was just retired"
+    return Retirement(blade, end)
