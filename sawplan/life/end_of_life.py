@@ -74,12 +74,12 @@ def expected_from_worn_out(lives_cm2: Sequence[float]) -> ExpectedLife | None:
     lives = [float(x) for x in lives_cm2 if x > 0]
     if len(lives) < MIN_WORN_OUT:
         return None
-    fit = fit_weibull(lives, [True] * len(lives))
+    fit = fit_weibull(lives, [True] * len(lives), life_bounds=False)
     if isinstance(fit, WeibullFit):
         low, high = fit.quantile_cm2(LOW_P), fit.quantile_cm2(HIGH_P)
     else:  # no spread to fit: the lives themselves are the range
         low, high = min(lives), max(lives)
-    source = say("{} blades of this type retired worn out", len(lives))
+    source = say("{} other blades of this type retired worn out", len(lives))
     return ExpectedLife(low, high, "worn-out blades", len(lives), source)
 
 
@@ -87,7 +87,7 @@ def expected_from_fit(fit: WeibullFit | WeibullNotFitted | None) -> ExpectedLife
     """The middle 90 % of a blade type's censored fit, unless the type surely fails early."""
     if not isinstance(fit, WeibullFit) or fit.early_failures_confirmed():
         return None
-    source = say("the Weibull fit of {} blades of this type", fit.n)
+    source = say("the Weibull fit of {} other blades of this type", fit.n)
     return ExpectedLife(
         fit.quantile_cm2(LOW_P), fit.quantile_cm2(HIGH_P), "blade type fit", fit.n, source
     )
@@ -129,7 +129,7 @@ def end_of_life(mode: str | None, life_cm2: float, expected: ExpectedLife | None
 def _position(
     life_cm2: float, expected: ExpectedLife | None
 ) -> Literal["below", "within", "above"] | None:
-    if expected is None or not math.isfinite(life_cm2):
+    if expected is None or not math.isfinite(life_cm2) or life_cm2 <= 0:
         return None
     if life_cm2 < expected.low_cm2:
         return "below"
@@ -147,6 +147,8 @@ def _verdict(
     """``worn out at the end of a normal life: 25,400 cm², within the expected …``, and
     what a recorded word counts as when the life says otherwise."""
     area = Q("area", life_cm2 * 100.0)
+    if life_cm2 <= 0:
+        return say("{}: retired before cutting anything (no life to count)", name)
     if expected is None or position is None:
         return say("{} after {} (no expected life of its type to compare with)", name, area)
     where = {"below": "below", "within": "within", "above": "beyond"}[position]

@@ -90,7 +90,8 @@ def _judge(
     everyone: Sequence[LotBlade],
     confidence: float,
 ) -> SuspectLot | None:
-    fit = fit_weibull([b.area_cm2 for b in members], [b.failed for b in members], confidence)
+    lives, flags = [b.area_cm2 for b in members], [b.failed for b in members]
+    fit = fit_weibull(lives, flags, confidence, life_bounds=False)
     if not isinstance(fit, WeibullFit):
         return None
     blade_type = Counter(b.blade_type for b in members).most_common(1)[0][0]
@@ -98,20 +99,19 @@ def _judge(
         b for b in everyone if b.blade_type == blade_type and (b.lot, b.supplier) != (lot, supplier)
     ]
     others_fit = (
-        fit_weibull([b.area_cm2 for b in others], [b.failed for b in others], confidence)
+        fit_weibull(
+            [b.area_cm2 for b in others], [b.failed for b in others], confidence, life_bounds=False
+        )
         if others
         else None
     )
     others_median = others_fit.median_life_cm2 if isinstance(others_fit, WeibullFit) else None
-    median_ci = quantile_interval(
-        [b.area_cm2 for b in members], [b.failed for b in members], fit, 0.5
-    )
     fails_early = fit.early_failures_confirmed()
-    far_below = (
-        others_median is not None
-        and fit.median_life_cm2 < FAR_BELOW * others_median
-        and median_ci[1] < others_median
-    )
+    short = others_median is not None and fit.median_life_cm2 < FAR_BELOW * others_median
+    if not (fails_early or short):
+        return None
+    median_ci = quantile_interval(lives, flags, fit, 0.5)  # slow: only for a lot in question
+    far_below = short and others_median is not None and median_ci[1] < others_median
     if not (fails_early or far_below):
         return None
     days = sorted({b.bought_on for b in members if b.bought_on})

@@ -114,7 +114,11 @@ class WeibullNotFitted:
 
 
 def fit_weibull(
-    lives_cm2: Sequence[float], failed: Sequence[bool], confidence: float = 0.9
+    lives_cm2: Sequence[float],
+    failed: Sequence[bool],
+    confidence: float = 0.9,
+    *,
+    life_bounds: bool = True,
 ) -> WeibullFit | WeibullNotFitted:
     """Fit a 2-parameter Weibull to blade lives with right-censoring.
 
@@ -122,6 +126,8 @@ def fit_weibull(
     when it is still fitted or was removed unworn (its life is at least that).
     Returns ``WeibullNotFitted`` with a reason when there are fewer than two
     failures or the failures give no spread to estimate a shape from.
+    ``life_bounds=False`` skips the profile bounds of η and B10 (NaN), the slow
+    part, for callers that need the fit and the shape's interval only.
     """
     lives, flags = _check_inputs(lives_cm2, failed, confidence)
     n = len(lives)
@@ -148,7 +154,7 @@ def fit_weibull(
         return WeibullNotFitted(
             n, d, censored, "lives nearly identical; shape too large to estimate", mean_fail
         )
-    return model.result(shape, confidence, n, censored)
+    return model.result(shape, confidence, n, censored, life_bounds=life_bounds)
 
 
 def quantile_interval(
@@ -288,7 +294,9 @@ class _Model:
             math.exp(_bound(prof, log_t, target, +1) + self.log_ref),
         )
 
-    def result(self, shape: float, confidence: float, n: int, censored: int) -> WeibullFit:
+    def result(
+        self, shape: float, confidence: float, n: int, censored: int, *, life_bounds: bool = True
+    ) -> WeibullFit:
         log_eta_u = self.log_scale_u(shape)
         ll_max = self.loglik(shape, log_eta_u)
         target = self.target(shape, confidence)
@@ -300,6 +308,8 @@ class _Model:
         )
 
         def quantile_ci(p: float) -> tuple[float, float]:
+            if not life_bounds:
+                return (math.nan, math.nan)
             return self.quantile_ci(shape, p, target)
 
         se_log_shape, se_log_scale = self.log_param_se(shape, log_eta_u)

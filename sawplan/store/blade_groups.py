@@ -12,10 +12,14 @@ from __future__ import annotations
 import difflib
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
 
 from sawplan.display import join, say
 from sawplan.errors import NotFoundError, UsageError
 from sawplan.store.stats import BladeLife
+
+if TYPE_CHECKING:  # pragma: no cover
+    from sawplan.store.db import Log as Database
 
 # the words are the choices of the field ``group_by`` (sawplan/fields.py)
 GROUP_KEYS: dict[str, Callable[[BladeLife], str]] = {
@@ -117,16 +121,27 @@ def blade_choice(
     return choice
 
 
-def choose(lives: Sequence[BladeLife], choice: BladeChoice) -> list[BladeLife]:
-    """The blades of the chosen lots and suppliers; names not in the log are refused."""
+def check_choice(db: Database, choice: BladeChoice) -> None:
+    """Refuse a lot or supplier no blade of the log has, listing the closest ones."""
     if not choice.chosen:
-        return list(lives)
-    lots = {b.lot.lower(): b.lot for b in lives if b.lot}
-    suppliers = {b.supplier.lower(): b.supplier for b in lives if b.supplier}
+        return
+    lots: dict[str, str] = {}
+    suppliers: dict[str, str] = {}
+    for lot, supplier in db.execute("SELECT lot, supplier FROM blades ORDER BY id"):
+        if lot:
+            lots.setdefault(lot.lower(), lot)
+        if supplier:
+            suppliers.setdefault(supplier.lower(), supplier)
     for name in (*choice.lots, *choice.without_lots):
         _known(name, lots, "lot", "--group-by lot")
     for name in choice.suppliers:
         _known(name, suppliers, "supplier", "--group-by supplier")
+
+
+def choose(lives: Sequence[BladeLife], choice: BladeChoice) -> list[BladeLife]:
+    """The blades of the chosen lots and suppliers (names checked by ``check_choice``)."""
+    if not choice.chosen:
+        return list(lives)
     keep = {n.strip().lower() for n in choice.lots}
     drop = {n.strip().lower() for n in choice.without_lots}
     who = {n.strip().lower() for n in choice.suppliers}

@@ -25,45 +25,54 @@ if TYPE_CHECKING:  # pragma: no cover
 
 
 class ExpectedLives:
-    """The expected life of each blade type in a set of lives, worked out on first use."""
+    """The expected life of each blade type in a set of lives, worked out on first use.
+
+    A blade is judged against the other blades of its type (``leave_out``), so a
+    short life does not widen the very range it is compared with.
+    """
 
     def __init__(self, lives: Sequence[BladeLife], confidence: float = 0.9):
         self.confidence = confidence
         self.by_type: dict[str, list[BladeLife]] = defaultdict(list)
         for b in lives:
             self.by_type[b.blade_type].append(b)
-        self.cache: dict[str, ExpectedLife | None] = {}
+        self.cache: dict[tuple[str, str | None], ExpectedLife | None] = {}
 
-    def of_type(self, blade_type: str) -> ExpectedLife | None:
+    def of_type(self, blade_type: str, leave_out: str | None = None) -> ExpectedLife | None:
         """From the type's worn-out blades, else the type's fit; None when neither tells."""
         from sawplan.life import fit_weibull
         from sawplan.life.end_of_life import WORN_OUT, expected_from_fit, expected_from_worn_out
 
-        if blade_type not in self.cache:
-            blades = self.by_type.get(blade_type, [])
+        key = (blade_type, leave_out)
+        if key not in self.cache:
+            blades = [b for b in self.by_type.get(blade_type, []) if b.tag != leave_out]
             found = expected_from_worn_out([b.area_cm2 for b in blades if b.mode == WORN_OUT])
             if found is None and blades:
                 fit = fit_weibull(
-                    [b.area_cm2 for b in blades], [b.failed for b in blades], self.confidence
+                    [b.area_cm2 for b in blades],
+                    [b.failed for b in blades],
+                    self.confidence,
+                    life_bounds=False,
                 )
                 found = expected_from_fit(fit)
-            self.cache[blade_type] = found
-        return self.cache[blade_type]
+            self.cache[key] = found
+        return self.cache[key]
 
-    def of(self, blade_type: str, material_group: str | None) -> ExpectedLife:
+    def of(
+        self, blade_type: str, material_group: str | None, leave_out: str | None = None
+    ) -> ExpectedLife:
         """The type's expected life, else the reference's typical range for the group."""
         from sawplan.life.end_of_life import expected_from_reference
         from sawplan.store.reports import default_life
 
-        found = self.of_type(blade_type)
+        found = self.of_type(blade_type, leave_out)
         if found is not None:
             return found
         default = default_life(material_group)
         source = say(
-            "the typical life of {} blades, {}; low confidence until the log holds "
-            "3 worn-out blades of this type",
+            "the reference's typical life for {} (memory; low confidence until the log "
+            "holds 3 other worn-out blades of this type)",
             default.material_group,
-            default.source,
         )
         return expected_from_reference(default.low_cm2, default.high_cm2, source)
 
@@ -79,7 +88,8 @@ def with_ends(lives: Sequence[BladeLife], confidence: float = 0.9) -> list[Blade
             out.append(b)
             continue
         # only the words of tooth wear need the expected life to be judged
-        rng = expected.of(b.blade_type, b.material_group) if b.mode in TOOTH_WEAR else None
+        wear = b.mode in TOOTH_WEAR
+        rng = expected.of(b.blade_type, b.material_group, b.tag) if wear else None
         out.append(replace(b, end=end_of_life(b.mode, b.area_cm2, rng)))
     return out
 
@@ -98,10 +108,10 @@ def end_of(db: Database, blade: Blade, confidence: float = 0.9) -> EndOfLife | N
 
     if blade.status != "retired":
         return None
-    lives = blade_lives(db, include_unused_failures=True)
+    lives = blade_lives(db)  # a blade that cut nothing has no life to compare
     mine = next((b for b in lives if b.tag == blade.tag), None)
     group = mine.material_group if mine is not None else None
-    rng = ExpectedLives(lives, confidence).of(blade.blade_type, group)
+    rng = ExpectedLives(lives, confidence).of(blade.blade_type, group, blade.tag)
     return end_of_life(blade.retire_cause, blade.area_mm2 / 100.0, rng)
 
 

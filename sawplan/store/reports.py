@@ -212,9 +212,10 @@ def life_basis(
     choice: BladeChoice | None = None,
 ) -> LifeBasis:
     """The log's life for a material group, from the chosen blades (lots, suppliers)."""
-    from sawplan.store.blade_groups import BladeChoice, choose
+    from sawplan.store.blade_groups import BladeChoice, check_choice, choose
 
     choice = choice or BladeChoice()
+    check_choice(db, choice)
     everyone = blade_lives(db)
     lives = choose(everyone, choice)
     if material_group is not None:
@@ -265,7 +266,9 @@ def _dominant_lot(
         return None, None, None
     count, lot = max(shares, key=lambda s: s[0])
     rest = [b for b in lives if (b.lot, b.supplier) != (lot.lot, lot.supplier)]
-    without = fit_weibull([b.area_cm2 for b in rest], [b.failed for b in rest], confidence)
+    without = fit_weibull(
+        [b.area_cm2 for b in rest], [b.failed for b in rest], confidence, life_bounds=False
+    )
     verdict = "fails early" if lot.fails_early else "dies far younger than its type's other lots"
     warning = say(
         "{} {} (`sawplan life` names it) and holds {} of the {} blades behind this life; "
