@@ -284,12 +284,13 @@ def chart_modes_command(
     from sawplan.charts import modes_chart, modes_rows
     from sawplan.life import rank_failure_modes
     from sawplan.store import connect
+    from sawplan.store.life_ends import with_ends
     from sawplan.store.stats import blade_lives
 
     with connect(db, create=False) as database:
-        ranking = rank_failure_modes(
-            [b.mode for b in blade_lives(database, include_unused_failures=True) if b.failed]
-        )
+        lives = with_ends(blade_lives(database, include_unused_failures=True))
+    # failures only: a blade worn out at the end of a normal life did not fail
+    ranking = rank_failure_modes([b.failure_mode for b in lives if b.failed and b.is_failure])
     if emit_rows(*modes_rows(ranking), "failure-modes", json_out, csv_out):
         return
     print(modes_chart(ranking, width=width, colorless=colorless()))
@@ -330,7 +331,7 @@ def register(app: typer.Typer) -> None:
     sub = group(app, "chart", CHART_HELP)
     command(sub, "wear", _sub("Wear curve of one blade: cutting rate against area cut.", "chart wear B-017", "chart wear B-017 --csv"))(chart_wear_command)  # fmt: skip
     command(sub, "weibull", _sub("Weibull plot of blade lives, running blades counted.", "chart weibull", "chart weibull --json"))(chart_weibull_command)  # fmt: skip
-    command(sub, "modes", _sub("Retired blades by failure mode.", "chart modes", "chart modes --csv"))(chart_modes_command)  # fmt: skip
+    command(sub, "modes", _sub("Failed blades by failure mode (worn-out blades left out).", "chart modes", "chart modes --csv"))(chart_modes_command)  # fmt: skip
     command(sub, "cost", _sub("Cost per area cut by blade type.", "chart cost", "chart cost --units us --json"))(chart_cost_command)  # fmt: skip
 
 

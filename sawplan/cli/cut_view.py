@@ -92,6 +92,8 @@ def render_cut(
 
 def _count(n: int, word: str) -> str:
     """``1 cut``, ``4,390 cuts``, ``200 timed log entries``."""
+    from sawplan.display import fmt_count
+
     if n == 1:
         return f"1 {word}"
-    return f"{n:,} " + (word[:-1] + "ies" if word.endswith("y") else word + "s")
+    return fmt_count(n) + " " + (word[:-1] + "ies" if word.endswith("y") else word + "s")

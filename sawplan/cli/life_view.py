@@ -5,7 +5,7 @@ from __future__ import annotations
 import sys
 from typing import Any
 
-from sawplan.display import Display, as_display, fmt_money, fmt_number, fmt_percent
+from sawplan.display import Display, as_display, fmt_count, fmt_money, fmt_number, fmt_percent
 from sawplan.units import UnitSystem
 
 
@@ -99,7 +99,7 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
     if r.costs_missing:
         lines.append("  no cost yet for " + "; ".join(d.text(m) for m in r.costs_missing))
     if r.calibration:
-        rows = [[c.saw or "(no saw)", c.material_group or "—", c.entries, c.cuts,
+        rows = [[c.saw or "(no saw)", c.material_group or "—", fmt_count(c.entries), fmt_count(c.cuts),
                  "—" if c.factor is None else f"{c.factor:.2f}",
                  "" if c.low is None else f"{c.low:.2f}-{c.high:.2f}",
                  "in use" if c.factor is not None else f"needs {c.needed} entries"]

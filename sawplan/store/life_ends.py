@@ -35,7 +35,8 @@ class ExpectedLives:
         self.confidence = confidence
         self.by_type: dict[str, list[BladeLife]] = defaultdict(list)
         for b in lives:
-            self.by_type[b.blade_type].append(b)
+            if b.area_cm2 > 0:  # a blade that cut nothing tells nothing about life
+                self.by_type[b.blade_type].append(b)
         self.cache: dict[tuple[str, str | None], ExpectedLife | None] = {}
 
     def of_type(self, blade_type: str, leave_out: str | None = None) -> ExpectedLife | None:
