@@ -77,8 +77,10 @@ def shop(tmp_path_factory) -> Path:
         assert code == 0, (args, err)
 
     ok("saw", "add", "bay 2", "--like", "mid-production")
-    for tag, pitch, supplier, lot in (("B-017", "3/4", "east depot", "E2604"),
-                                      ("B-009", "4/6", "west depot", "T-3309")):
+    for tag, pitch, supplier, lot in (
+        ("B-017", "3/4", "east depot", "E2604"),
+        ("B-009", "4/6", "west depot", "T-3309"),
+    ):
         ok("blade", "add", tag, "--pitch", pitch, "--blade-width", "27mm",
            "--blade-thickness", "0.9mm", "--price", "60", "--supplier", supplier,
            "--lot", lot)  # fmt: skip

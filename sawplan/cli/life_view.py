@@ -88,7 +88,7 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
             )
         if modes.unrecorded:
             lines.append(f"  {modes.unrecorded} retired blade(s) without a recorded mode")
-    lines += _worn_out_lines(r.worn_out)
+    lines += _worn_out_lines(r.worn_out_blades)
     if r.costs:
         per = d.label("large_area")
         rows = [[d.text(c.blade_type), fmt_money(c.price), area_number(d, c.life_cm2), c.life_method,

@@ -51,7 +51,7 @@ class ExpectedLife:
     high_cm2: float
     basis: Basis
     blades: int  # blades behind the range (0 for the reference)
-    source: str  # where it comes from, in words
+    source: str  # where it comes from, in words: "from 6 other blades of this type ..."
 
 
 @dataclass(frozen=True)
@@ -79,7 +79,7 @@ def expected_from_worn_out(lives_cm2: Sequence[float]) -> ExpectedLife | None:
         low, high = fit.quantile_cm2(LOW_P), fit.quantile_cm2(HIGH_P)
     else:  # no spread to fit: the lives themselves are the range
         low, high = min(lives), max(lives)
-    source = say("{} other blades of this type retired worn out", len(lives))
+    source = say("from {} other blades of this type retired worn out", len(lives))
     return ExpectedLife(low, high, "worn-out blades", len(lives), source)
 
 
@@ -87,7 +87,7 @@ def expected_from_fit(fit: WeibullFit | WeibullNotFitted | None) -> ExpectedLife
     """The middle 90 % of a blade type's censored fit, unless the type surely fails early."""
     if not isinstance(fit, WeibullFit) or fit.early_failures_confirmed():
         return None
-    source = say("the Weibull fit of {} other blades of this type", fit.n)
+    source = say("from the Weibull fit of {} other blades of this type", fit.n)
     return ExpectedLife(
         fit.quantile_cm2(LOW_P), fit.quantile_cm2(HIGH_P), "blade type fit", fit.n, source
     )
@@ -155,9 +155,7 @@ def _verdict(
     span = say(
         "{} to {}", Q("area", expected.low_cm2 * 100.0), Q("area", expected.high_cm2 * 100.0)
     )
-    compared = say(
-        "{}, {} the expected {} of its type (from {})", area, where, span, expected.source
-    )
+    compared = say("{}, {} the expected {} of its type ({})", area, where, span, expected.source)
     if code == EARLY_DULL and counted == WORN_OUT:
         return say(
             "retired as dull after {}: the teeth wore down over a normal life, so it counts as "

@@ -71,8 +71,8 @@ class ExpectedLives:
             return found
         default = default_life(material_group)
         source = say(
-            "the reference's typical life for {} (memory; low confidence until the log "
-            "holds 3 other worn-out blades of this type)",
+            "the reference's typical life for {}, recalled from memory: low confidence until "
+            "the log holds 3 other worn-out blades of this type",
             default.material_group,
         )
         return expected_from_reference(default.low_cm2, default.high_cm2, source)

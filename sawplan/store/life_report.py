@@ -41,7 +41,7 @@ class LifeReport:
     group_by: str | None
     groups: tuple[GroupLife, ...]
     failure_modes: ModeRanking  # failures only: worn-out blades are counted in ``worn_out``
-    worn_out: WornOut
+    worn_out_blades: WornOut
     early_failure: EarlyFailureWarning | None
     suspect_lots: tuple[SuspectLot, ...]
     costs: tuple[BladeCost, ...]
@@ -91,7 +91,7 @@ def life_report(
         group_keys=keys,
         groups=groups,
         failure_modes=rank_failure_modes([b.failure_mode for b in failures]),
-        worn_out=_worn_out(lives),
+        worn_out_blades=_worn_out(lives),
         early_failure=overall.early_failure,
         suspect_lots=lots_to_name(lives, confidence),
         costs=costs,
