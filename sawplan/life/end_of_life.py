@@ -74,7 +74,7 @@ def expected_from_worn_out(lives_cm2: Sequence[float]) -> ExpectedLife | None:
     lives = [float(x) for x in lives_cm2 if x > 0]
     if len(lives) < MIN_WORN_OUT:
         return None
-    fit = fit_weibull(lives, [True] * len(lives), life_bounds=False)
+    fit = fit_weibull(lives, [True] * len(lives), bounds="none")
     if isinstance(fit, WeibullFit):
         low, high = fit.quantile_cm2(LOW_P), fit.quantile_cm2(HIGH_P)
     else:  # no spread to fit: the lives themselves are the range

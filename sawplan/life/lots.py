@@ -91,7 +91,7 @@ def _judge(
     confidence: float,
 ) -> SuspectLot | None:
     lives, flags = [b.area_cm2 for b in members], [b.failed for b in members]
-    fit = fit_weibull(lives, flags, confidence, life_bounds=False)
+    fit = fit_weibull(lives, flags, confidence, bounds="shape")
     if not isinstance(fit, WeibullFit):
         return None
     blade_type = Counter(b.blade_type for b in members).most_common(1)[0][0]
@@ -100,7 +100,7 @@ def _judge(
     ]
     others_fit = (
         fit_weibull(
-            [b.area_cm2 for b in others], [b.failed for b in others], confidence, life_bounds=False
+            [b.area_cm2 for b in others], [b.failed for b in others], confidence, bounds="none"
         )
         if others
         else None

@@ -118,7 +118,7 @@ def fit_weibull(
     failed: Sequence[bool],
     confidence: float = 0.9,
     *,
-    life_bounds: bool = True,
+    bounds: Literal["all", "shape", "none"] = "all",
 ) -> WeibullFit | WeibullNotFitted:
     """Fit a 2-parameter Weibull to blade lives with right-censoring.
 
@@ -126,8 +126,9 @@ def fit_weibull(
     when it is still fitted or was removed unworn (its life is at least that).
     Returns ``WeibullNotFitted`` with a reason when there are fewer than two
     failures or the failures give no spread to estimate a shape from.
-    ``life_bounds=False`` skips the profile bounds of η and B10 (NaN), the slow
-    part, for callers that need the fit and the shape's interval only.
+    ``bounds="shape"`` skips the profile bounds of η and B10 (NaN), the slow
+    part, for callers that need the fit and the shape's interval only;
+    ``bounds="none"`` skips the shape's too, for point estimates alone.
     """
     lives, flags = _check_inputs(lives_cm2, failed, confidence)
     n = len(lives)
@@ -154,7 +155,7 @@ def fit_weibull(
         return WeibullNotFitted(
             n, d, censored, "lives nearly identical; shape too large to estimate", mean_fail
         )
-    return model.result(shape, confidence, n, censored, life_bounds=life_bounds)
+    return model.result(shape, confidence, n, censored, bounds=bounds)
 
 
 def quantile_interval(
@@ -295,20 +296,28 @@ class _Model:
         )
 
     def result(
-        self, shape: float, confidence: float, n: int, censored: int, *, life_bounds: bool = True
+        self,
+        shape: float,
+        confidence: float,
+        n: int,
+        censored: int,
+        *,
+        bounds: Literal["all", "shape", "none"] = "all",
     ) -> WeibullFit:
         log_eta_u = self.log_scale_u(shape)
         ll_max = self.loglik(shape, log_eta_u)
         target = self.target(shape, confidence)
 
         log_shape = math.log(shape)
-        shape_ci = (
-            math.exp(_bound(lambda v: self.profile_shape(math.exp(v)), log_shape, target, -1)),
-            math.exp(_bound(lambda v: self.profile_shape(math.exp(v)), log_shape, target, +1)),
-        )
+        shape_ci = (math.nan, math.nan)
+        if bounds != "none":
+            shape_ci = (
+                math.exp(_bound(lambda v: self.profile_shape(math.exp(v)), log_shape, target, -1)),
+                math.exp(_bound(lambda v: self.profile_shape(math.exp(v)), log_shape, target, +1)),
+            )
 
         def quantile_ci(p: float) -> tuple[float, float]:
-            if not life_bounds:
+            if bounds != "all":
                 return (math.nan, math.nan)
             return self.quantile_ci(shape, p, target)
 

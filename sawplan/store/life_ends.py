@@ -24,11 +24,16 @@ if TYPE_CHECKING:  # pragma: no cover
     from sawplan.store.records import Blade
 
 
+LEAVE_OUT_BELOW = 30  # blades of a type; from here on each blade is judged against them all
+
+
 class ExpectedLives:
     """The expected life of each blade type in a set of lives, worked out on first use.
 
     A blade is judged against the other blades of its type (``leave_out``), so a
-    short life does not widen the very range it is compared with.
+    short life does not widen the very range it is compared with; in a type of
+    ``LEAVE_OUT_BELOW`` blades or more one life hardly moves the range, and the
+    type's one range serves every blade (one fit, not one per blade).
     """
 
     def __init__(self, lives: Sequence[BladeLife], confidence: float = 0.9):
@@ -44,6 +49,8 @@ class ExpectedLives:
         from sawplan.life import fit_weibull
         from sawplan.life.end_of_life import WORN_OUT, expected_from_fit, expected_from_worn_out
 
+        if len(self.by_type.get(blade_type, [])) >= LEAVE_OUT_BELOW:
+            leave_out = None
         key = (blade_type, leave_out)
         if key not in self.cache:
             blades = [b for b in self.by_type.get(blade_type, []) if b.tag != leave_out]
@@ -53,7 +60,7 @@ class ExpectedLives:
                     [b.area_cm2 for b in blades],
                     [b.failed for b in blades],
                     self.confidence,
-                    life_bounds=False,
+                    bounds="shape",
                 )
                 found = expected_from_fit(fit)
             self.cache[key] = found

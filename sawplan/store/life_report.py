@@ -149,7 +149,7 @@ def _costs(lives: Sequence[BladeLife], confidence: float) -> tuple[tuple, tuple[
             continue
         price = _median(prices)
         fit = fit_weibull(
-            [b.area_cm2 for b in blades], [b.failed for b in blades], confidence, life_bounds=False
+            [b.area_cm2 for b in blades], [b.failed for b in blades], confidence, bounds="none"
         )
         costs.append(blade_cost_per_area(blade_type, price, fit=fit, lives_cm2=failed))
     return rank_blade_costs(costs), tuple(missing)

@@ -267,7 +267,7 @@ def _dominant_lot(
     count, lot = max(shares, key=lambda s: s[0])
     rest = [b for b in lives if (b.lot, b.supplier) != (lot.lot, lot.supplier)]
     without = fit_weibull(
-        [b.area_cm2 for b in rest], [b.failed for b in rest], confidence, life_bounds=False
+        [b.area_cm2 for b in rest], [b.failed for b in rest], confidence, bounds="none"
     )
     verdict = "fails early" if lot.fails_early else "dies far younger than its type's other lots"
     warning = say(
