@@ -25,17 +25,8 @@ def test_calibration_counts_entries_and_the_cuts_they_hold(cli, log_db):
         return result
 
     ok("saw", "add", "bay 2", "--like", "mid-production")
-    ok(
-        "blade",
-        "add",
-        "B-1",
-        "--pitch",
-        "4/6",
-        "--blade-width",
-        "27mm",
-        "--blade-thickness",
-        "0.9mm",
-    )
+    ok("blade", "add", "B-1", "--pitch", "4/6", "--blade-width", "27mm",
+       "--blade-thickness", "0.9mm")  # fmt: skip
     ok("blade", "fit", "B-1", "--saw", "bay 2", "--date", "10 days ago")
     batches = [(10, "12min"), (15, "20min"), (20, "25min")]
     for n, time in batches:
