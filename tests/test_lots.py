@@ -89,7 +89,8 @@ def lot_log(log_db):
     return log_db, lives
 
 
-def test_the_bad_lot_is_named_with_supplier_and_purchase_date(lot_log):
+def test_the_bad_lot_is_named_and_every_lots_fit_matches_scipy(lot_log, cli):
+    """One log, both engines: the lot screen, the per-lot fits, and the text."""
     from sawplan.store.life_report import life_report
 
     db_path, lives = lot_log
@@ -104,9 +105,11 @@ def test_the_bad_lot_is_named_with_supplier_and_purchase_date(lot_log):
     assert bad.shape == pytest.approx(shape, rel=0.01)
     # its median is far below the other lots' of its blade type, and is said so
     assert bad.far_below and bad.others_blades == 24
+    check_lot_fits(lot_log, cli)
+    check_life_text(lot_log, cli)
 
 
-def test_every_lots_fit_matches_scipys_censored_fit(lot_log, cli):
+def check_lot_fits(lot_log, cli) -> None:
     db_path, lives = lot_log
     result = cli("life", "--group-by", "lot", "--json", "--db", str(db_path))
     assert result.code == 0, result.err
@@ -119,7 +122,8 @@ def test_every_lots_fit_matches_scipys_censored_fit(lot_log, cli):
         assert groups[lot]["failed"] == sum(f for _x, f in pairs)
 
 
-def test_life_text_names_the_lot_and_groups_two_keys_at_once(lot_log, cli):
+def check_life_text(lot_log, cli) -> None:
+    """The lot is named in the text; two keys at once; the saw it cut most on."""
     db_path, lives = lot_log
     result = cli("life", "--group-by", "supplier,lot", "--db", str(db_path))
     assert result.code == 0, result.err
@@ -132,7 +136,15 @@ def test_life_text_names_the_lot_and_groups_two_keys_at_once(lot_log, cli):
     assert sum(g["blades"] for g in by_saw["groups"]) == sum(len(v) for v in lives.values())
 
 
-def test_worn_out_blades_are_wear_in_the_fit_and_left_out_of_the_failure_table(lot_log, cli):
+def test_worn_out_blades_forecasts_and_bad_choices(lot_log, cli):
+    """One log, both engines: worn-out blades in the fit and the table, the forecast's
+    choice of blades, and refused choices."""
+    check_worn_out(lot_log, cli)
+    check_forecast(lot_log, cli)
+    check_bad_choices(cli, lot_log[0])
+
+
+def check_worn_out(lot_log, cli) -> None:
     db_path, lives = lot_log
     data = json.loads(cli("life", "--json", "--db", str(db_path)).out)
     worn = sum(f for lot in ("E-101", "E-102") for _x, f in lives[lot])
@@ -152,7 +164,8 @@ def test_worn_out_blades_are_wear_in_the_fit_and_left_out_of_the_failure_table(l
     assert "failures of wear" in text and "worn out at the end of a normal life" in text
 
 
-def test_forecast_names_the_dominant_early_failing_lot_and_can_leave_it_out(lot_log, cli):
+def check_forecast(lot_log, cli) -> None:
+    """The dominant early-failing lot is named; it can be left out, or lots chosen."""
     db_path, _lives = lot_log
     base = ("forecast", "--area", "5m2", "--db", str(db_path))
     mixed = json.loads(cli(*base, "--json").out)
@@ -168,23 +181,24 @@ def test_forecast_names_the_dominant_early_failing_lot_and_can_leave_it_out(lot_
     assert "WARNING lot W-77 (west depot, bought 2024-01-05)" in text
 
 
-@pytest.mark.parametrize(
-    ("args", "code", "words"),
-    [
-        pytest.param(("life", "--group-by", "lots"), 2, ["blade-type, material-group, lot, supplier, saw", "did you mean lot?"], id="unknown key"),
-        pytest.param(("life", "--group-by", "lot,saw,supplier"), 2, ["one or two"], id="three keys"),
-        pytest.param(("forecast", "--area", "5m2", "--lot", "W-78"), 4, ["no lot 'W-78'", "W-77"], id="lot not in the log"),
-        pytest.param(("forecast", "--area", "5m2", "--supplier", "east depo"), 4, ["no supplier 'east depo'", "east depot"], id="supplier not in the log"),
-        pytest.param(("forecast", "--area", "5m2", "--lot", "W-77", "--without-lot", "W-77"), 2, ["both chosen"], id="chosen and left out"),
-    ],
-)  # fmt: skip
-def test_bad_choices_list_what_the_log_holds(lot_log, cli, args, code, words):
-    db_path, _lives = lot_log
-    result = cli(*args, "--db", str(db_path))
-    assert result.code == code, result.err
-    assert len(result.err.strip().splitlines()) == 1
-    for w in words:
-        assert w in result.err
+BAD_CHOICES = [
+    (("life", "--group-by", "lots"), 2, ["blade-type, material-group, lot, supplier, saw", "did you mean lot?"]),
+    (("life", "--group-by", "lot,saw,supplier"), 2, ["one or two"]),
+    (("forecast", "--area", "5m2", "--lot", "W-78"), 4, ["no lot 'W-78'", "W-77"]),
+    (("forecast", "--area", "5m2", "--supplier", "east depo"), 4, ["no supplier 'east depo'", "east depot"]),
+    (("forecast", "--area", "5m2", "--lot", "W-77", "--without-lot", "W-77"), 2, ["both chosen"]),
+]  # fmt: skip
+
+
+def check_bad_choices(cli, db_path) -> None:
+    """Unknown group-by keys list the valid ones; lots and suppliers not in the log the
+    closest ones it holds: one line, exit 2 (usage) or 4 (not found)."""
+    for args, code, words in BAD_CHOICES:
+        result = cli(*args, "--db", str(db_path))
+        assert result.code == code, (args, result.err)
+        assert len(result.err.strip().splitlines()) == 1, args
+        for w in words:
+            assert w in result.err, (args, w)
 
 
 def test_a_short_lived_lot_is_named_even_when_it_wears_out(tmp_path):
