@@ -113,9 +113,12 @@ PH_CAMPAIGN = [
 ]
 DAILY_AREA_CM2 = {"pivot-bay": 700.0, "auto-bay": 2600.0, "column-bay": 1500.0}
 
-# Failure modes of worn-out blades (invented shares; common-practice causes in data/).
+# How blades end after a life of wear (invented shares; common-practice causes in data/):
+# mostly retired worn out, some retired "dull" at a normal life (sawplan counts those as
+# worn out too), and some break at the end of their life.
 WEAR_MODES = (
-    ("dull", 0.55),
+    ("worn-out", 0.45),
+    ("dull", 0.10),
     ("crooked", 0.14),
     ("body-crack", 0.12),
     ("weld", 0.07),

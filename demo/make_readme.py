@@ -77,9 +77,13 @@ def tour(trial_blade: str) -> list[tuple[str, str]]:
         ),
         (
             "A year of the shop's blade log (invented by `demo/make_history.py`). Life "
-            "is the area a blade cut; blades still running count as censored. A Weibull "
+            "is the area a blade cut; blades still running count as censored. A blade "
+            "retired worn out (or dull) within its type's expected life ended normally: "
+            "a failure of wear in the fit, never in the failure table. A Weibull "
             "shape β below 1 means blades die early, which points to set-up rather than "
-            "wear — here the M51 trial lot that was fitted without a break-in:",
+            "wear — here the M51 trial lot that was fitted without a break-in, named "
+            "with its supplier and purchase date; the calibration counts timed entries "
+            "and the cuts they hold:",
             f"sawplan life --group-by blade-type --db {DB}",
         ),
         (
@@ -92,8 +96,13 @@ def tour(trial_blade: str) -> list[tuple[str, str]]:
         ),
         (
             "Blades to have on the shelf for 2 m² of 304, at 90 % confidence, from the "
-            "log's own fit:",
+            "log's own fit — where the trial lot holds nearly half of the blades:",
             f"sawplan forecast --area 2m2 --material 304 --db {DB}",
+        ),
+        (
+            "The lot is no longer bought, so leave it out (`--lot` and `--supplier` "
+            "choose blades the same way, in `forecast` and in `plan`):",
+            f"sawplan forecast --area 2m2 --material 304 --without-lot T-3309 --db {DB}",
         ),
     ]
 

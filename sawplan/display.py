@@ -235,6 +235,11 @@ def fmt_number(v: float, digits: int = 3) -> str:
     return f"{v:,.{decimals}f}"
 
 
+def fmt_count(n: int) -> str:
+    """A whole count with thousands separators: ``4,390`` (cuts, entries, blades)."""
+    return f"{int(n):,}"
+
+
 def fmt_plain(v: float, digits: int = 3) -> str:
     """:func:`fmt_number` without trailing zeros, for axis ticks: 20, 0.75, 1,000."""
     return _strip(fmt_number(v, digits))

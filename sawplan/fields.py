@@ -265,6 +265,9 @@ _TABLE: tuple[Field, ...] = (
           names=("blades.supplier",)),
     Field("lot", "lot number", "--lot", placeholder="TEXT", help="Supplier's lot number.",
           dimension="text", high=60, why=_SHORT_TEXT, names=("blades.lot",)),
+    Field("without_lot", "lot left out", "--without-lot", placeholder="TEXT",
+          help="Leave this lot's blades out of the blade life (repeat for more).",
+          dimension="text", high=60, why=_SHORT_TEXT),
     Field("blade_price", "blade price", "--price", placeholder="AMOUNT",
           help="Price paid for the blade, in your currency.", low=0, high=1_000_000,
           why="a band costs from a few to a few thousand in any common currency, yen included; "
@@ -285,7 +288,8 @@ _TABLE: tuple[Field, ...] = (
           help="How, in a few words.", dimension="text", high=120, why=_LINE,
           names=("fittings.break_in_how",)),
     Field("failure", "failure", "--failure", "-f", "WORD",
-          "The failure that ended the blade, e.g. stripped, weld, dull.",
+          "How the blade ended: worn-out (a normal life of wear) or the failure, e.g. "
+          "stripped, weld, dull.",
           names=("blades.retire_cause", "events.mode")),
     Field("location", "where on the blade", "--location", placeholder="TEXT",
           help="Where on the blade, e.g. gullet, weld.", dimension="text", high=120, why=_LINE,
@@ -334,9 +338,10 @@ _TABLE: tuple[Field, ...] = (
     Field("limit", "entries to show", "--limit", placeholder="N",
           help="Newest entries to show (0: all).", low=0, high=1_000_000_000, integer=True,
           why="a log never holds a billion entries"),
-    Field("group_by", "grouping", "--group-by", placeholder="WORD",
-          help="Also fit each blade-type or material-group.",
-          choices=("blade-type", "material-group")),
+    Field("group_by", "grouping", "--group-by", placeholder="WORD[,WORD]",
+          help="Also fit each group of blades: blade-type, material-group, lot, supplier or saw; "
+               "two at once joined by a comma, e.g. blade-type,lot.",
+          choices=("blade-type", "material-group", "lot", "supplier", "saw")),
     Field("group", "material group", "--group", "-g", "WORD",
           help="Only this material group, e.g. tool-steel."),
     # -- statistics and planning

@@ -160,3 +160,20 @@ def test_make_demo_shows_the_plan_the_quote_and_blade_life(tmp_path, capsys, mon
     assert (out_dir / "demo-log.sqlite").is_file()
     assert list(home.iterdir()) == []
     assert os.environ["SAWPLAN_HOME"] == str(home)  # restored after the demo
+
+
+def test_the_trial_lot_is_named_and_the_forecast_says_it_weighs_on_the_life(demo_log, cli):
+    """The demo shows the bad lot named with its supplier and purchase date (issue 13)."""
+    path, _ = demo_log
+    life = json.loads(cli("life", "--json", "--db", str(path)).out)
+    named = {lot["lot"]: lot for lot in life["suspect_lots"]}
+    assert set(named) == {history.TRIAL_LOT}  # the monthly lots that wear out are not named
+    trial = named[history.TRIAL_LOT]
+    bought = (history.TRIAL[0] - dt.timedelta(days=7)).isoformat()  # make_history buys it then
+    assert (trial["supplier"], trial["bought_on"]) == ("west depot", bought)
+    assert trial["shape_ci"][1] < 1.0
+    forecast = json.loads(
+        cli("forecast", "--area", "2m2", "--material", "304", "--json", "--db", str(path)).out
+    )
+    assert forecast["lot_named"] == history.TRIAL_LOT
+    assert forecast["blades_needed_without_lot"] < forecast["blades_needed"]

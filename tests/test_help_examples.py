@@ -77,9 +77,13 @@ def shop(tmp_path_factory) -> Path:
         assert code == 0, (args, err)
 
     ok("saw", "add", "bay 2", "--like", "mid-production")
-    for tag, pitch in (("B-017", "3/4"), ("B-009", "4/6")):
+    for tag, pitch, supplier, lot in (
+        ("B-017", "3/4", "east depot", "E2604"),
+        ("B-009", "4/6", "west depot", "T-3309"),
+    ):
         ok("blade", "add", tag, "--pitch", pitch, "--blade-width", "27mm",
-           "--blade-thickness", "0.9mm", "--price", "60")  # fmt: skip
+           "--blade-thickness", "0.9mm", "--price", "60", "--supplier", supplier,
+           "--lot", lot)  # fmt: skip
     ok("blade", "fit", "B-017", "--saw", "mid-production", "--date", "30 days ago")
     ok("log", "cut", "304", "round", "60mm", "--cuts", "5", "--time", "12min", "--date",
        "20 days ago")  # fmt: skip

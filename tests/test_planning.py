@@ -353,7 +353,7 @@ def test_calibration_from_the_log_scales_the_cut_time(catalogue, saw):
     assert (s.calibration_factor, s.calibration_n) == (1.5, 4)
     assert s.cut_time_min == pytest.approx(1.5 * base.sections[0].cut_time_min)
     assert calibrated.total_cut_time_min == pytest.approx(1.5 * base.total_cut_time_min)
-    assert any("× 1.50 from 4 logged cut(s)" in n for n in calibrated.notes)
+    assert any("× 1.50 from 4 timed log entries" in n for n in calibrated.notes)
 
 
 def test_blade_life_fit_from_the_log_is_used(catalogue, saw):

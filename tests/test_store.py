@@ -166,14 +166,14 @@ def test_retired_blade_takes_no_cuts_or_events(db):
     add_blade(db, spec("B-1"), added_on="2024-01-01")
     blade = get_blade(db, "B-1")
     log_cut(db, cut(blade.id))
-    retire_blade(db, "B-1", "dull", on="2024-02-01")
+    retire_blade(db, "B-1", "dull", on="2024-03-05")
     before = db.scalar("SELECT COUNT(*) FROM cuts")
     with pytest.raises(ConflictError):
         log_cut(db, cut(blade.id))
     with pytest.raises(ConflictError):
-        log_event(db, EventEntry("B-1", "stall", "2024-02-02"))
+        log_event(db, EventEntry("B-1", "stall", "2024-03-06"))
     with pytest.raises(ConflictError):
-        retire_blade(db, "B-1", "weld", on="2024-02-03")
+        retire_blade(db, "B-1", "weld", on="2024-03-07")
     assert db.scalar("SELECT COUNT(*) FROM cuts") == before
 
 
@@ -247,7 +247,7 @@ def test_a_blade_life_is_the_sum_of_its_entries(entries, retire):
         for count, per_cut in entries:
             log_cut(db, cut(1, area=count * per_cut, count=count))
         if retire:
-            retire_blade(db, "B-1", "dull", on="2024-02-01")
+            retire_blade(db, "B-1", "dull", on="2024-03-05")
         (life,) = blade_lives(db)
         blade = get_blade(db, "B-1")
     assert blade.cuts == sum(n for n, _ in entries)
@@ -266,8 +266,8 @@ def test_lives_are_failures_or_censored(db):
     fit_blade(db, "B-2", "mid-production", on="2024-01-02", saw_profile=saw)
     for blade_id, n in ((1, 3), (2, 2), (3, 1)):
         log_cut(db, cut(blade_id, area=ROUND_60_MM2 * n, count=n))
-    remove_blade(db, "B-2", on="2024-01-03")
-    retire_blade(db, "B-1", "stripped", on="2024-01-04")
+    remove_blade(db, "B-2", on="2024-03-05")
+    retire_blade(db, "B-1", "stripped", on="2024-03-05")
     lives = {b.tag: b for b in blade_lives(db)}
     assert set(lives) == {"B-1", "B-2", "B-3"}  # B-4 has cut nothing: no information
     assert lives["B-1"].failed and lives["B-1"].mode == "stripped"
@@ -285,8 +285,8 @@ def test_calibration_needs_three_cuts_and_is_the_median_ratio(db):
     path = db.location.url or db.location.path
     assert calibration_factor(path, "mid-production", "austenitic-stainless") is None
     log_cut(db, cut(1, saw_id=1, time_min=pairs[2][0], predicted_time_min=pairs[2][1]))
-    factor, n = calibration_factor(path, "MID-production", "austenitic-stainless")
-    assert n == 3
+    factor, n, cuts = calibration_factor(path, "MID-production", "austenitic-stainless")
+    assert n == 3 and cuts == 3  # three entries of one cut each
     assert factor == pytest.approx(statistics.median(a / p for a, p in pairs))  # median of ratios
     assert calibration_factor(path, "mid-production", "carbon-steel") is None
 

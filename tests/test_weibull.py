@@ -313,6 +313,7 @@ def test_failure_mode_table_has_the_reference_modes():
     # reference §7 table (common practice)
     table = failure_modes()
     assert list(table) == [
+        "worn-out",  # the normal end of a life: wear, no failure and no causes
         "stripped",
         "dull",
         "body-crack",
@@ -324,7 +325,9 @@ def test_failure_mode_table_has_the_reference_modes():
     assert "heavy feed on entry" in table["stripped"].causes
     assert "over-tension" in table["body-crack"].causes
     assert "worn back-up bearings" in table["back-crack"].causes
-    assert all("§7" in m.source for m in table.values())
+    assert all("§7" in m.source for m in table.values() if m.is_failure)
+    assert table["worn-out"].kind == "wear" and table["worn-out"].causes == ()
+    assert all(m.kind == "failure" and m.causes for c, m in table.items() if c != "worn-out")
     with pytest.raises(BadDataError):
         failure_mode("melted")
 

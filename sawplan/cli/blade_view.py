@@ -78,6 +78,8 @@ def render_history(h: Any, units: UnitSystem | Display) -> str:
     ]
     if b.status == "retired":
         pairs.append(("retired", f"{b.retired_on}: {b.retire_cause}"))
+        if h.end is not None:
+            pairs.append(("life", d.text(h.end.verdict)))
     made = [x for x in (b.supplier, f"lot {b.lot}" if b.lot else None, f"bought {b.bought_on}" if b.bought_on else None,
                         _WELDED_TEXT.get(b.welded or "")) if x]  # fmt: skip
     if made:
@@ -180,3 +182,22 @@ def blade_table(blades: list[Any], d: Display) -> tuple[list[str], list[list[Any
         for b in blades
     ]
     return headers, rows
+
+
+def render_retirement(r: Any, on: str, units: UnitSystem | Display) -> str:
+    """What ``blade retire`` prints: how the life ended, against its type's expected life."""
+    d = as_display(units)
+    b, end = r.blade, r.end
+    cuts = "1 cut" if b.cuts == 1 else f"{b.cuts:,} cuts"
+    lines = [
+        f"retired blade {b.tag} ({on}) after {d.fmt('area', b.area_mm2)} in {cuts}: {end.name}",
+        f"  {d.text(end.verdict)}",
+    ]
+    if end.kind == "wear":
+        lines.append(
+            "  the Weibull fit counts it as a failure of wear; the failure table and the "
+            "early-failure warnings leave it out"
+        )
+    elif end.causes:
+        lines.append("  usual causes (common practice): " + "; ".join(end.causes))
+    return "\n".join(lines)

@@ -80,13 +80,18 @@ Examples:
   sawplan blade remove B-017 --date yesterday
 """
 
-RETIRE_HELP = """Retire a blade for good, with the failure that ended it.
+RETIRE_HELP = """Retire a blade for good: worn out, or the failure that ended it.
 
---failure is one of: stripped, body-crack, back-crack, weld, dull, crooked,
-chips-welded. A retired blade counts as a failure in the life statistics.
+--failure is worn-out (the teeth wore down over a normal life) or one of the
+failures: stripped, body-crack, back-crack, weld, dull, crooked,
+chips-welded. The area the blade cut is compared with the expected life of
+its blade type: worn-out or dull within that range is normal wear, below it
+the teeth dulled early (a failure, with its usual causes). In the Weibull
+fit every retired blade counts, a worn-out one as a failure of wear.
 
 \b
 Examples:
+  sawplan blade retire B-017 --failure worn-out
   sawplan blade retire B-017 --failure dull
   sawplan blade retire B-009 --failure body-crack --location "gullet, 40 cm from weld"
 """
@@ -253,19 +258,17 @@ def blade_retire_command(
     fractions: FractionsOpt = False,
     db: DbOpt = None,
 ) -> None:
-    from sawplan.life.failure_modes import failure_mode
+    from sawplan.cli.blade_view import render_retirement
     from sawplan.store import connect
     from sawplan.store.dates import parse_day
+    from sawplan.store.life_ends import retirement
     from sawplan.store.records import retire_blade
 
     on = parse_day(date)
     with connect(db) as database:
         blade = retire_blade(database, tag, cause, on=on, location=location, note=note)
-    mode = failure_mode(blade.retire_cause or cause)
-    area = Display(units, fractions).fmt("area", blade.area_mm2)
-    cuts = "1 cut" if blade.cuts == 1 else f"{blade.cuts:,} cuts"
-    print(f"retired blade {blade.tag} ({on}) after {area} in {cuts}: {mode.name}")
-    print("usual causes (common practice): " + "; ".join(mode.causes))
+        ended = retirement(database, blade)
+    print(render_retirement(ended, on, Display(units, fractions)))
 
 
 def blade_list_command(

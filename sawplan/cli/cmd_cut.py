@@ -110,7 +110,8 @@ def cut_command(
     log = BladeLog(db)
     the_saw = get_saw(saw, saws_file, extra=log.saws())
     check_fits(the_saw, sec, load_saws(saws_file, log.saws()).values())
-    calibration, calibration_n = log.calibration(the_saw.name, mat.group) or (1.0, 0)
+    found = log.calibration(the_saw.name, mat.group)
+    calibration = found.factor if found else 1.0
     kw = {"dry": dry, "blade_material": blade_material, "calibration": calibration}
     if band_speed is not None:
         kw["band_speed_m_min"] = parse("band_speed", band_speed)
@@ -149,7 +150,12 @@ def cut_command(
     if json_out:
         from sawplan.render import jsonable
 
-        payload = {**jsonable(result), "comparison": summary, "calibration_cuts": calibration_n}
+        payload = {
+            **jsonable(result),
+            "comparison": summary,
+            "calibration_entries": found.entries if found else 0,
+            "calibration_cuts": found.cuts if found else 0,
+        }
         if econ is not None:
             payload["economics"] = jsonable(econ)
             payload["blade_choice"] = jsonable(choice) if choice is not None else None
@@ -161,7 +167,7 @@ def cut_command(
     if summary:
         print(d.text(summary))
         print()
-    print(render_cut(result, d, section_label=d.section(sec), calibration_cuts=calibration_n))
+    print(render_cut(result, d, section_label=d.section(sec), calibration=found))
     if economics and result.stalled:
         print()
         print("No cost per cut: the cut does not progress.")

@@ -25,9 +25,12 @@ from sawplan.cli.options import (
     DbOpt,
     FractionsOpt,
     JsonOpt,
+    LotChoiceOpt,
     MaterialsFileOpt,
+    SupplierChoiceOpt,
     TagArg,
     UnitsOpt,
+    WithoutLotOpt,
     command,
     group,
     opt,
@@ -39,15 +42,22 @@ LIFE_HELP = """Blade life from the log: Weibull fit, failure modes, costs.
 
 Also the cost per area cut and the cut-time calibration per saw.
 
-Life is the area a blade cut. Retired blades are failures; blades still on a
-saw or removed unworn count as "at least this long" (censored), so the fit
-does not understate life. A shape below 1 means blades fail early, which
-points to set-up (break-in, tension, guides) rather than wear.
+Life is the area a blade cut. Retired blades are failures in the fit (a
+blade worn out at the end of a normal life is a failure of wear); blades
+still on a saw or removed unworn count as "at least this long" (censored),
+so the fit does not understate life. A shape below 1 means blades fail early,
+which points to set-up (break-in, tension, guides) rather than wear. The
+failure table and the early-failure warnings count failures only, and a lot
+whose blades fail early is named with its supplier and purchase date.
+
+--group-by fits each blade-type, material-group, lot, supplier or saw on its
+own, or two at once: --group-by blade-type,lot.
 
 \b
 Examples:
   sawplan life
   sawplan life --group-by blade-type
+  sawplan life --group-by supplier,lot
   sawplan life --group-by material-group --json
   sawplan life --chart
 """
@@ -56,12 +66,16 @@ FORECAST_HELP = """How many blades a job needs: area to cut against blade life.
 
 With enough history the log's Weibull fit is simulated and the count holds
 at --confidence; otherwise a typical life from the reference (memory, low
-confidence) gives area ÷ life, and the answer says so.
+confidence) gives area ÷ life, and the answer says so. --lot, --without-lot
+and --supplier choose the blades the life comes from; when a lot that fails
+early holds much of them, the answer says so.
 
 \b
 Examples:
   sawplan forecast --area 5m2
   sawplan forecast --area 800in2 --material 304 --confidence 0.95
+  sawplan forecast --area 2m2 --material 304 --without-lot T-3309
+  sawplan forecast --area 5m2 --supplier "east depot"
   sawplan forecast --job-file job.toml --json
 """
 
@@ -92,7 +106,7 @@ def life_command(
 ) -> None:
     from sawplan.render import to_json
     from sawplan.store import connect
-    from sawplan.store.reports import life_report
+    from sawplan.store.life_report import life_report
 
     with connect(db, create=False) as database, progress("fitting blade lives", quiet=json_out):
         report = life_report(database, group_by=group_by, confidence=confidence)
@@ -121,6 +135,9 @@ def forecast_command(
         Path | None, opt("job_file", help="A job file: its parts' cut area per material.")
     ] = None,
     life: Annotated[str | None, opt("life")] = None,
+    lot: LotChoiceOpt = None,
+    without_lot: WithoutLotOpt = None,
+    supplier: SupplierChoiceOpt = None,
     confidence: ConfidenceOpt = 0.9,
     units: UnitsOpt = None,
     fractions: FractionsOpt = False,
@@ -133,11 +150,20 @@ def forecast_command(
     from sawplan.materials import load_catalogue
     from sawplan.render import to_json
     from sawplan.store import connect
+    from sawplan.store.blade_groups import blade_choice
     from sawplan.store.reports import forecast_area, forecast_job
 
     if (area is None) == (job is None):
         raise UsageError(
             "give either --area or --job-file", field="forecast", hint="e.g. --area 5m2"
+        )
+    choice = blade_choice(lot, without_lot, supplier)
+    if life is not None and choice.chosen:
+        raise UsageError(
+            "--life gives the life itself; --lot, --without-lot and --supplier choose blades "
+            "of the log",
+            field="life",
+            hint="drop one of them",
         )
     if job is not None:
         if material is not None or life is not None:
@@ -147,7 +173,7 @@ def forecast_command(
             )
         areas = job_cut_areas(job, load_catalogue(materials_file))
         with progress("forecasting blades for the job", quiet=json_out):
-            result = forecast_job(db, areas, confidence=confidence)
+            result = forecast_job(db, areas, confidence=confidence, choice=choice)
         if json_out:
             print(to_json(result, kind="forecast-job"))
             return
@@ -165,6 +191,7 @@ def forecast_command(
             material_group=mat.group if mat else None,
             confidence=confidence,
             life_cm2=life_cm2,
+            choice=choice,
         )
     if json_out:
         print(to_json(result, kind="forecast"))
@@ -231,7 +258,7 @@ def chart_weibull_command(
 ) -> None:
     from sawplan.charts import weibull_rows
     from sawplan.store import connect
-    from sawplan.store.reports import life_report
+    from sawplan.store.life_report import life_report
 
     with (
         connect(db, create=False) as database,
@@ -257,12 +284,13 @@ def chart_modes_command(
     from sawplan.charts import modes_chart, modes_rows
     from sawplan.life import rank_failure_modes
     from sawplan.store import connect
+    from sawplan.store.life_ends import with_ends
     from sawplan.store.stats import blade_lives
 
     with connect(db, create=False) as database:
-        ranking = rank_failure_modes(
-            [b.mode for b in blade_lives(database, include_unused_failures=True) if b.failed]
-        )
+        lives = with_ends(blade_lives(database, include_unused_failures=True))
+    # failures only: a blade worn out at the end of a normal life did not fail
+    ranking = rank_failure_modes([b.failure_mode for b in lives if b.failed and b.is_failure])
     if emit_rows(*modes_rows(ranking), "failure-modes", json_out, csv_out):
         return
     print(modes_chart(ranking, width=width, colorless=colorless()))
@@ -279,7 +307,7 @@ def chart_cost_command(
 ) -> None:
     from sawplan.charts import cost_chart, cost_rows
     from sawplan.store import connect
-    from sawplan.store.reports import life_report
+    from sawplan.store.life_report import life_report
 
     with (
         connect(db, create=False) as database,
@@ -303,7 +331,7 @@ def register(app: typer.Typer) -> None:
     sub = group(app, "chart", CHART_HELP)
     command(sub, "wear", _sub("Wear curve of one blade: cutting rate against area cut.", "chart wear B-017", "chart wear B-017 --csv"))(chart_wear_command)  # fmt: skip
     command(sub, "weibull", _sub("Weibull plot of blade lives, running blades counted.", "chart weibull", "chart weibull --json"))(chart_weibull_command)  # fmt: skip
-    command(sub, "modes", _sub("Retired blades by failure mode.", "chart modes", "chart modes --csv"))(chart_modes_command)  # fmt: skip
+    command(sub, "modes", _sub("Failed blades by failure mode (worn-out blades left out).", "chart modes", "chart modes --csv"))(chart_modes_command)  # fmt: skip
     command(sub, "cost", _sub("Cost per area cut by blade type.", "chart cost", "chart cost --units us --json"))(chart_cost_command)  # fmt: skip
 
 

@@ -60,7 +60,8 @@ Examples:
 EVENT_HELP = """Log something that happened to a blade.
 
 KIND is teeth-lost, crooked, stall or failure. A failure needs --failure and
-retires the blade (as `sawplan blade retire` does).
+retires the blade, judged against its type's expected life as `sawplan blade
+retire` does (--failure worn-out: the end of a normal life).
 
 \b
 Examples:
@@ -254,10 +255,13 @@ def log_event_command(
     teeth: Annotated[int | None, opt("teeth")] = None,
     date: DateOpt = None,
     note: NoteOpt = None,
+    units: UnitsOpt = None,
+    fractions: FractionsOpt = False,
     db: DbOpt = None,
 ) -> None:
     from sawplan.store import connect
     from sawplan.store.dates import parse_day
+    from sawplan.store.life_ends import retirement
     from sawplan.store.records import EventEntry, log_event
 
     entry = EventEntry(
@@ -271,8 +275,11 @@ def log_event_command(
     )
     with connect(db) as database:
         blade = log_event(database, entry)
-    if blade.status == "retired" and kind.strip().lower() == "failure":
-        print(f"logged failure ({blade.retire_cause}) on blade {blade.tag}; the blade is retired")
+        ended = retirement(database, blade) if kind.strip().lower() == "failure" else None
+    if ended is not None:
+        from sawplan.cli.blade_view import render_retirement
+
+        print(render_retirement(ended, entry.happened_on, Display(units, fractions)))
     else:
         print(f"logged {kind.strip().lower()} on blade {blade.tag} ({entry.happened_on})")
 

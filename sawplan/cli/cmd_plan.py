@@ -11,9 +11,12 @@ from sawplan.cli.options import (
     DbOpt,
     FractionsOpt,
     JsonOpt,
+    LotChoiceOpt,
     MaterialsFileOpt,
     SawsFileOpt,
+    SupplierChoiceOpt,
     UnitsOpt,
+    WithoutLotOpt,
     arg,
     command,
     opt,
@@ -43,6 +46,8 @@ with count = 0 names a length to buy) and exits with status 8; --order
 prints the order list alone (--csv-dir DIR also writes it as order.csv).
 --time-limit bounds the whole plan; the same job always gives the same
 plan unless the limit stops the optimiser, which the plan then says.
+--lot, --without-lot and --supplier choose the blades of the log that blade
+life (blades on hand) comes from; the plan's notes say which.
 
 \b
 Examples:
@@ -53,6 +58,7 @@ Examples:
   sawplan plan job.toml --json --db shop-log.sqlite
   sawplan plan job.toml --run cost
   sawplan plan job.toml --order
+  sawplan plan job.toml --without-lot T-3309
 
 Estimates only: the saw maker's manual, the blade maker's data, shop rules and
 local regulations govern.
@@ -82,6 +88,9 @@ def plan_command(
     order: Annotated[bool, opt("order")] = False,
     allow: Annotated[bool, opt("allow")] = False,
     run: Annotated[str | None, opt("run")] = None,
+    lot: LotChoiceOpt = None,
+    without_lot: WithoutLotOpt = None,
+    supplier: SupplierChoiceOpt = None,
 ) -> int:
     import sys
     import time
@@ -102,9 +111,10 @@ def plan_command(
     catalogue = load_catalogue(materials_file)
     job = load_job(jobfile, catalogue, allow_outside=allow)
     job = with_shop_currency(job)
+    from sawplan.store.blade_groups import blade_choice
     from sawplan.store.lookup import BladeLog
 
-    log = BladeLog(db)
+    log = BladeLog(db, choice=blade_choice(lot, without_lot, supplier))
     saw = choose_saw(job, saw_name, saws_file, log)
     sections = len(job.groups())
     what = f"planning {sections} section{'' if sections == 1 else 's'} on {saw.name}"

@@ -44,7 +44,7 @@ def render_cut(
     units: UnitSystem | Display,
     *,
     section_label: str | None = None,
-    calibration_cuts: int = 0,
+    calibration: Any = None,
 ) -> str:
     """The operator's card: blade, speed, feed, time, why, bundle, orientation, warnings,
     break-in."""
@@ -62,10 +62,10 @@ def render_cut(
     lines.append(_time_line(r, d))
     for i, text in enumerate(r.explanation):
         lines.append(("Why         " if i == 0 else "            ") + d.text(text))
-    if calibration_cuts:
+    if calibration is not None:
         lines.append(
-            f"            (calibration from {calibration_cuts:,} logged cuts on this saw and "
-            "material group)"
+            f"            (calibration from {_count(calibration.entries, 'timed log entry')} "
+            f"holding {_count(calibration.cuts, 'cut')} on this saw and material group)"
         )
     if r.bundle is not None:
         lines.append(f"Bundle      {d.text(r.bundle.why)}")
@@ -88,3 +88,12 @@ def render_cut(
     )
     lines.append(f"Caution     {r.caution}")
     return "\n".join(lines)
+
+
+def _count(n: int, word: str) -> str:
+    """``1 cut``, ``4,390 cuts``, ``200 timed log entries``."""
+    from sawplan.display import fmt_count
+
+    if n == 1:
+        return f"1 {word}"
+    return fmt_count(n) + " " + (word[:-1] + "ies" if word.endswith("y") else word + "s")

@@ -5,7 +5,7 @@ from __future__ import annotations
 import sys
 from typing import Any
 
-from sawplan.display import Display, as_display, fmt_money, fmt_number, fmt_percent
+from sawplan.display import Display, as_display, fmt_count, fmt_money, fmt_number, fmt_percent
 from sawplan.units import UnitSystem
 
 
@@ -27,9 +27,15 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
     o = r.overall
     pct = fmt_percent(r.confidence)
     lines = [
-        f"blade life (area cut): {_n(o.blades, 'blade')}, {o.failed} retired (failures), "
+        f"blade life (area cut): {_n(o.blades, 'blade')}, {o.failed} retired, "
         f"{o.censored} still running or removed unworn (censored)"
     ]
+    if o.failed:
+        lines.append(
+            f"  the Weibull fit counts every retired blade as a failure: "
+            f"{o.failed - o.worn_out} failed, {o.worn_out} worn out at the end of a normal life "
+            "(failures of wear)"
+        )
     if o.fitted:
         lo, hi = o.shape_ci
         kind = (
@@ -51,25 +57,30 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
         if o.mean_failure_life_cm2 is not None:
             lines.append(f"  mean life of the retired blades: {_area(d, o.mean_failure_life_cm2)}")
     if r.groups:
-        headers = [r.group_by, "blades", "retired", "β", f"η {d.label('area')}",
+        keys = list(r.group_keys)
+        headers = [*keys, "blades", "retired", "worn out", "β", f"η {d.label('area')}",
                    f"median {d.label('area')}", f"B10 {d.label('area')}"]  # fmt: skip
         rows = [
-            [d.text(g.key), g.blades, g.failed,
+            [*(d.text(k) for k in g.keys), g.blades, g.failed, g.worn_out,
              "—" if g.weibull_shape is None else f"{g.weibull_shape:.2f}",
              area_number(d, g.weibull_scale_cm2), area_number(d, g.median_life_cm2), area_number(d, g.b10_life_cm2)]
             for g in r.groups
         ]  # fmt: skip
-        lines.append(table(headers, rows, align="lrrrrrr", title=f"\nby {r.group_by}"))
+        align = "l" * len(keys) + "rrrrrrr"
+        title = "\nby " + " and ".join(keys)
+        lines.append(table(headers, rows, align=align, title=title))
         unfitted = [g for g in r.groups if not g.fitted]
         if unfitted:
             no_fit = "; ".join(f"{d.text(g.key)}: {g.reason}" for g in unfitted)
             lines.append("  — no fit: " + no_fit)
     lines += _warning_lines(r, d)
+    lines += _lot_lines(r, d)
     modes = r.failure_modes
     if modes.modes:
         rows = [[m.code, m.name, m.count, fmt_percent(m.share)] for m in modes.modes]
+        title = "\nfailure modes, most frequent first (failures only)"
         lines.append(table(["failure mode", "", "blades", "share"], rows,
-                           align="llrr", title="\nfailure modes, most frequent first"))  # fmt: skip
+                           align="llrr", title=title))  # fmt: skip
         top = modes.modes[0]
         if top.code not in _warned_modes(r):  # its causes are printed with the warning
             lines.append(
@@ -77,6 +88,7 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
             )
         if modes.unrecorded:
             lines.append(f"  {modes.unrecorded} retired blade(s) without a recorded mode")
+    lines += _worn_out_lines(r.worn_out_blades)
     if r.costs:
         per = d.label("large_area")
         rows = [[d.text(c.blade_type), fmt_money(c.price), area_number(d, c.life_cm2), c.life_method,
@@ -87,17 +99,52 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
     if r.costs_missing:
         lines.append("  no cost yet for " + "; ".join(d.text(m) for m in r.costs_missing))
     if r.calibration:
-        rows = [[c.saw or "(no saw)", c.material_group or "—", c.cuts,
+        rows = [[c.saw or "(no saw)", c.material_group or "—", fmt_count(c.entries), fmt_count(c.cuts),
                  "—" if c.factor is None else f"{c.factor:.2f}",
                  "" if c.low is None else f"{c.low:.2f}-{c.high:.2f}",
-                 "in use" if c.factor is not None else f"needs {c.needed} cuts"]
+                 "in use" if c.factor is not None else f"needs {c.needed} entries"]
                 for c in r.calibration]  # fmt: skip
-        lines.append(table(["saw", "material group", "cuts", "actual ÷ model", "middle half", "status"], rows,
-                           align="llrrll", title="\ncut-time calibration (median of actual ÷ model time)"))  # fmt: skip
+        lines.append(table(["saw", "material group", "entries", "cuts", "actual ÷ model", "middle half", "status"], rows,
+                           align="llrrrll", title="\ncut-time calibration (median of actual ÷ model time per timed entry)"))  # fmt: skip
     if r.left_out:
         lines.append(f"\nleft out (retired before cutting anything): {', '.join(r.left_out)}")
     lines += [f"\nnote: {d.text(n)}" for n in r.notes]
     return "\n".join(lines)
+
+
+def _lot_lines(r: Any, d: Any) -> list[str]:
+    """Lots that fail early or die young, named with their supplier and purchase date."""
+    lines: list[str] = []
+    for lot in r.suspect_lots:
+        lines += [
+            "",
+            f"WARNING for {lot.label}, {d.text(lot.blade_type)}: {d.text(lot.message)}",
+            f"  leave it out of forecasts and plans with --without-lot {lot.lot}",
+        ]
+    return lines
+
+
+def _worn_out_lines(w: Any) -> list[str]:
+    """Blades that wore out over a normal life: counted apart from the failures."""
+    if not (w.blades or w.worn_out_early):
+        return []
+    how = []
+    if w.recorded_worn_out:
+        how.append(f"{w.recorded_worn_out} retired worn-out")
+    if w.dull_at_normal_life:
+        how.append(f"{w.dull_at_normal_life} retired dull within their type's expected life")
+    lines = [
+        "",
+        f"worn out at the end of a normal life: {_n(w.blades, 'blade')}"
+        + (f" ({', '.join(how)})" if how else "")
+        + "; not failures, so not in the failure table or the early-failure warnings",
+    ]
+    if w.worn_out_early:
+        lines.append(
+            f"  {w.worn_out_early} retired worn-out below their type's expected life count as "
+            "teeth dulled early"
+        )
+    return lines
 
 
 def _warned_modes(r: Any) -> set[str]:
@@ -113,10 +160,11 @@ def _warning_lines(r: Any, d: Any) -> list[str]:
     causes; the set-up checks and the caution, the same for all, follow once.
     """
     warnings = [
-        (f" for {r.group_by} {d.text(g.key)}", g.early_failure)
+        (" for " + ", ".join(f"{k} {d.text(v)}" for k, v in zip(r.group_keys, g.keys, strict=True)),
+         g.early_failure)
         for g in r.groups
         if g.early_failure is not None
-    ]
+    ]  # fmt: skip
     if r.early_failure is not None:
         warnings.insert(0, (" for all blades" if warnings else "", r.early_failure))
     lines: list[str] = []
@@ -173,7 +221,21 @@ def render_forecast(f: Any, units: UnitSystem | Display) -> str:
     else:
         lines.append(f"  area ÷ life per blade {_area(d, f.life_cm2)}, rounded up")
     lines.append(f"  {d.text(f.note)}")
+    lines += _lot_warning(f, d)
     return "\n".join(lines)
+
+
+def _lot_warning(f: Any, d: Any) -> list[str]:
+    """An early-failing lot that holds much of the blades behind a forecast."""
+    if not f.lot_warning:
+        return []
+    lines = [f"  WARNING {d.text(f.lot_warning)}"]
+    if f.blades_needed_without_lot is not None:
+        lines.append(
+            f"  without lot {f.lot_named}: {_n(f.blades_needed_without_lot, 'blade')} "
+            f"at {fmt_percent(f.confidence)}"
+        )
+    return lines
 
 
 def render_job_forecast(j: Any, units: UnitSystem | Display) -> str:
@@ -198,7 +260,9 @@ def render_job_forecast(j: Any, units: UnitSystem | Display) -> str:
             f"  one blade cuts every group: areas put on the {j.combined_on} scale by mean life, "
             "as `sawplan plan` does"
         )
-    out += [f"  {g.material_group}: {d.text(g.note)}" for g in j.groups]
+    for g in j.groups:
+        out.append(f"  {g.material_group}: {d.text(g.note)}")
+        out += [f"  {g.material_group}:{line[1:]}" for line in _lot_warning(g, d)]
     return "\n".join(out)
 
 

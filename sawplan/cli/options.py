@@ -160,6 +160,15 @@ ForceOpt = Annotated[bool, opt("force")]
 ConfidenceOpt = Annotated[float, opt("confidence", show_default=True)]
 ChartWidthOpt = Annotated[int, opt("chart_width", show_default=True)]
 ChartHeightOpt = Annotated[int, opt("chart_height", show_default=True)]
+# the blades a blade life comes from (forecast, plan): ``store.blade_groups.blade_choice``
+LotChoiceOpt = Annotated[
+    list[str] | None, opt("lot", help="Take blade life only from this lot (repeat for more).")
+]
+WithoutLotOpt = Annotated[list[str] | None, opt("without_lot")]
+SupplierChoiceOpt = Annotated[
+    list[str] | None,
+    opt("supplier", help="Take blade life only from this supplier's blades (repeat for more)."),
+]
 
 
 def _material_words(ctx: typer.Context, words: list[str]) -> list[str]:

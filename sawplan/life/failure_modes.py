@@ -1,9 +1,12 @@
 """Blade failure modes, their usual causes, and the early-failure warning.
 
-The table lives in ``data/failure_modes.csv`` (code, plain name, usual causes,
-source; reference §7, common practice).  A shape β < 1 says blades fail young
-from set-up problems rather than wear (reference §7); the warning then names the
-most frequent failure mode among the early failures with its usual causes.
+The table lives in ``data/failure_modes.csv`` (code, plain name, kind, usual
+causes, source; reference §7, common practice).  It is the vocabulary of how a
+blade's life ends: ``worn-out`` (kind ``wear``: the normal end of a life, no
+causes) and the failures.  A shape β < 1 says blades fail young from set-up
+problems rather than wear (reference §7); the warning then names the most
+frequent failure mode among the early failures with its usual causes.  Worn-out
+blades are never early failures: callers leave them out (``end_of_life``).
 """
 
 from __future__ import annotations
@@ -44,6 +47,11 @@ class FailureMode:
     name: str
     causes: tuple[str, ...]
     source: str
+    kind: str = "failure"  # "wear" for the normal end of a life (worn-out)
+
+    @property
+    def is_failure(self) -> bool:
+        return self.kind == "failure"
 
 
 @dataclass(frozen=True)
@@ -97,6 +105,7 @@ def failure_modes() -> dict[str, FailureMode]:
             name=row["name"],
             causes=tuple(c.strip() for c in row["causes"].split(";") if c.strip()),
             source=row["source"],
+            kind=row["kind"],
         )
         for row in rows
     }

@@ -6,7 +6,10 @@
 - ``schema`` / ``upgrade`` / ``migrations/``: the tables and their one
   migration history (Alembic), for both engines.
 - ``records``: rows read and written.
-- ``stats`` / ``reports``: lives, calibration and forecasts for ``sawplan.life``.
+- ``stats`` / ``reports`` / ``life_report`` / ``calibration``: lives, the life
+  report, forecasts and cut-time calibration for ``sawplan.life``;
+  ``life_ends``: how each retired blade's life ended; ``blade_groups``: group
+  keys and the blades a life rests on; ``dates``: every date rule of the log.
 - ``exchange``: CSV export/import; ``backup``: one portable file;
   ``transfer``: ``db copy`` with per-table checksums; ``health``: ``check`` and
   ``restore``; ``safety``: damage checks, rolling backups, leftovers;
@@ -20,8 +23,8 @@ the cut in one transaction.
 What other commands use (every function takes ``--db``'s value, ``None`` for the default)::
 
     saws_from_db(db_path) -> list[Saw]                     # for load_saws(extra=...)
-    calibration_factor(db_path, saw_name, material_group)  # -> (factor, cuts) | None
-    life_for(db_path, material_group)                      # -> LifeBasis(fit | None, default, ...)
+    calibration_factor(db_path, saw_name, material_group)  # -> (factor, entries, cuts) | None
+    life_for(db_path, material_group, choice=BladeChoice)  # -> LifeBasis(fit | None, default, ...)
     forecast_job(db_path, {material_group: area_cm2})      # -> JobForecast
 
 SQLAlchemy is imported only when a log is opened (``sawplan cut`` reads an
@@ -46,23 +49,25 @@ from sawplan.store.db import (
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.saws import Saw
-    from sawplan.store.reports import (
-        LifeBasis,
-        calibration_factor,
-        default_life,
-        forecast_job,
-        life_for,
-    )
+    from sawplan.store.calibration import calibration_factor
+    from sawplan.store.reports import LifeBasis, default_life, forecast_job, life_for
 
-# the planning hooks live in ``reports``; loaded on first use to keep `log cut` quick
-_LAZY = {"LifeBasis", "calibration_factor", "default_life", "forecast_job", "life_for"}
+# the planning hooks live in ``reports`` and ``calibration``; loaded on first use to keep
+# `log cut` quick
+_LAZY = {
+    "LifeBasis": "reports",
+    "calibration_factor": "calibration",
+    "default_life": "reports",
+    "forecast_job": "reports",
+    "life_for": "reports",
+}
 
 
 def __getattr__(name: str) -> Any:
     if name in _LAZY:
-        from sawplan.store import reports
+        import importlib
 
-        return getattr(reports, name)
+        return getattr(importlib.import_module(f"sawplan.store.{_LAZY[name]}"), name)
     raise AttributeError(f"module 'sawplan.store' has no attribute {name!r}")
 
 

@@ -15,6 +15,7 @@ from typing import TYPE_CHECKING, Any
 
 from sawplan.display import Q, join, say
 from sawplan.errors import BadDataError, ConflictError, NotFoundError, UsageError
+from sawplan.store.dates import check_dates
 from sawplan.store.db import run_write
 from sawplan.store.fields import (
     BLADE_STATUSES,
@@ -240,7 +241,10 @@ def fit_blade(
         other = _open_fitting(db, saw_id=saw_id)
         if other is not None:
             displaced = _close_fitting(db, other, on)["tag"]
-        db.insert(
+        first = not db.scalar(
+            "SELECT COUNT(*) FROM fittings WHERE blade_id = :id", {"id": blade["id"]}
+        )
+        fitting_id = db.insert(
             "fittings",
             {
                 "blade_id": blade["id"],
@@ -251,6 +255,10 @@ def fit_blade(
                 "break_in_how": how,
             },
         )
+        check_dates(db, "fittings", row_id=fitting_id)
+        if first:  # cuts or events logged before on an unfitted blade must not predate it
+            for table in ("cuts", "events"):
+                check_dates(db, table, blade_id=blade["id"], against=("first fitting",))
         db.update("blades", blade["id"], {"status": "fitted"})
         return FitOutcome(blade["tag"], saw_label, on, displaced, moved_from)
 
@@ -296,7 +304,7 @@ def retire_blade(
         db.update(
             "blades", blade["id"], {"status": "retired", "retired_on": on, "retire_cause": code}
         )
-        db.insert(
+        event_id = db.insert(
             "events",
             {
                 "blade_id": blade["id"],
@@ -307,6 +315,10 @@ def retire_blade(
                 "note": text,
             },
         )
+        check_dates(db, "blades", row_id=blade["id"])
+        check_dates(db, "events", row_id=event_id)
+        for table in ("cuts", "events"):  # nothing of its life may come after its end
+            check_dates(db, table, blade_id=blade["id"], against=("retired",))
 
     run_write(db, step)
     return get_blade(db, tag)
@@ -387,12 +399,8 @@ _OPEN_FITTING = (
 
 
 def _close_fitting(db: Database, fitting: dict[str, Any], on: str) -> dict[str, Any]:
-    if on < fitting["fitted_on"]:
-        raise BadDataError(
-            f"{on} is before blade {fitting['tag']} was fitted ({fitting['fitted_on']})",
-            field="date",
-        )
     db.update("fittings", fitting["id"], {"removed_on": on})
+    check_dates(db, "fittings", row_id=fitting["id"], against=("fitted",))
     db.execute(
         "UPDATE blades SET status = 'removed' WHERE id = :id AND status = 'fitted'",
         {"id": fitting["blade_id"]},

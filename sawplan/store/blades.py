@@ -11,6 +11,7 @@ from sawplan.store.records import Blade, cuts_of, events_of, fittings_of, get_bl
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.life import WearCurve
+    from sawplan.life.end_of_life import EndOfLife
     from sawplan.store.db import Log as Database
 
 SHOWN_CUTS = 20  # the table shows the latest entries; JSON and CSV carry all
@@ -27,11 +28,13 @@ class BladeHistory:
     wear_notes: tuple[str, ...]
     cost_per_m2: float | None  # price ÷ area cut so far
     shown_cuts: int = field(default=SHOWN_CUTS, metadata={"json": False})
+    end: EndOfLife | None = None  # how a retired blade's life ended, against its type's
 
 
 def blade_history(db: Database, tag: str) -> BladeHistory:
     """Everything the log holds about one blade, and what its cut times say about wear."""
     from sawplan.life import wear_curve
+    from sawplan.store.life_ends import end_of
 
     blade = get_blade(db, tag)
     cuts = tuple(cuts_of(db, blade.id))
@@ -55,15 +58,17 @@ def blade_history(db: Database, tag: str) -> BladeHistory:
     if blade.price is not None and blade.area_mm2 > 0:
         cost = blade.price / (blade.area_mm2 / 1.0e6)
     fittings = tuple(fittings_of(db, blade.id))
+    end = end_of(db, blade)
     return BladeHistory(
         blade=blade,
         fittings=fittings,
         cuts=cuts,
         events=tuple(events_of(db, blade.id)),
         wear=wear,
-        wear_summary=wear_summary(wear, blade, cuts, fittings),
+        wear_summary=wear_summary(wear, blade, cuts, fittings, end),
         wear_notes=tuple(notes),
         cost_per_m2=cost,
+        end=end,
     )
 
 
@@ -72,6 +77,7 @@ def wear_summary(
     blade: Blade | None = None,
     cuts: Sequence[dict[str, Any]] = (),
     fittings: Sequence[dict[str, Any]] = (),
+    end: EndOfLife | None = None,
 ) -> str:
     """One line on where the blade is on its wear curve.
 
@@ -79,7 +85,7 @@ def wear_summary(
     instead (see ``life_summary``).
     """
     if blade is not None and blade.status in ("retired", "removed"):
-        return life_summary(blade, wear, cuts, fittings)
+        return life_summary(blade, wear, cuts, fittings, end)
     if wear is None:
         return "no timed cuts yet (log cuts with --time to follow the wear)"
     if wear.status == "break-in" and wear.total_area_cm2 < wear.break_in_cm2:
@@ -114,9 +120,10 @@ def life_summary(
     wear: WearCurve | None,
     cuts: Sequence[dict[str, Any]] = (),
     fittings: Sequence[dict[str, Any]] = (),
+    end: EndOfLife | None = None,
 ) -> str:
-    """One line on the life of a blade that is off the saw: retired (a failure) or removed
-    unworn (a censored life, reference §7).
+    """One line on the life of a blade that is off the saw: retired (worn out or a failure,
+    as ``end`` judged it) or removed unworn (a censored life, reference §7).
 
     A retired blade whose last cut began inside the break-in area (the first 650 cm²,
     reference §6, common practice) failed during break-in; when its fittings record no
@@ -139,7 +146,7 @@ def life_summary(
                 line,
             )
         return line
-    mode = failure_modes().get(blade.retire_cause or "")
+    mode = failure_modes().get(end.counted_as if end is not None else blade.retire_cause or "")
     cause = mode.name if mode is not None else (blade.retire_cause or "no cause recorded")
     if area_cm2 <= 0:
         return f"retired before cutting anything ({cause})"
@@ -165,7 +172,12 @@ def life_summary(
     else:
         line = say("{}, past break-in", line)
     skipped = _break_in(fittings)
-    if skipped is not True and mode is not None and any("broken in" in c for c in mode.causes):
+    if (
+        skipped is not True
+        and mode is not None
+        and mode.is_failure
+        and any("broken in" in c for c in mode.causes)
+    ):
         how = "fitted without break-in" if skipped is False else "no break-in recorded"
         line = say("{}; {}, one of the usual causes of {} (common practice)", line, how, mode.name)
     return line

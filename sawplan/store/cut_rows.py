@@ -10,6 +10,7 @@ from typing import TYPE_CHECKING, Any
 
 from sawplan.errors import BadDataError, ConflictError, NotFoundError, UsageError
 from sawplan.store.blade_rows import Blade, existing_blade_row, get_blade, retire_blade
+from sawplan.store.dates import check_dates
 from sawplan.store.db import run_write
 from sawplan.store.fields import (
     EVENT_KINDS,
@@ -169,7 +170,9 @@ def _insert_cut(db: Database, entry: CutEntry) -> int:
         raise NotFoundError(f"no blade with id {entry.blade_id}", field="blade")
     if status[0] == "retired":
         raise ConflictError(f"blade {status[1]} is retired; no more cuts can be logged on it")
-    return db.insert("cuts", {c: row[c] for c in _CUT_COLUMNS})
+    cut_id = db.insert("cuts", {c: row[c] for c in _CUT_COLUMNS})
+    check_dates(db, "cuts", row_id=cut_id)
+    return cut_id
 
 
 def list_cuts(
@@ -259,7 +262,7 @@ def log_event(db: Database, entry: EventEntry) -> Blade:
         blade = existing_blade_row(db, entry.blade_tag)
         if blade["status"] == "retired":
             raise ConflictError(f"blade {blade['tag']} was retired on {blade['retired_on']}")
-        db.insert(
+        event_id = db.insert(
             "events",
             {
                 "blade_id": blade["id"],
@@ -271,6 +274,7 @@ def log_event(db: Database, entry: EventEntry) -> Blade:
                 "note": note,
             },
         )
+        check_dates(db, "events", row_id=event_id)
 
     run_write(db, step)
     return get_blade(db, entry.blade_tag)

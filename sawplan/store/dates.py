@@ -1,12 +1,16 @@
-"""Dates as the log keeps them: ISO ``YYYY-MM-DD`` text, never in the future.
+"""Dates as the log keeps them: ISO ``YYYY-MM-DD`` text, never in the future, in order.
 
-A shop logs what happened, so a date after today is a typing mistake.
+A shop logs what happened, so a date after today is a typing mistake; and a blade
+is bought before it is fitted, fitted before it cuts, and cuts nothing after it is
+retired.  Every date rule of the log is in this module.
 """
 
 from __future__ import annotations
 
 import datetime as dt
 import re
+from dataclasses import dataclass
+from typing import Any
 
 from sawplan.errors import BadDataError, UsageError
 
@@ -65,3 +69,97 @@ def check_stored_day(text: str, *, field: str, now: dt.date | None = None) -> st
     if not _ISO.match(raw):
         raise UsageError(f"expected a date YYYY-MM-DD, got {text!r}", field=field)
     return parse_day(raw, field=field, now=now)
+
+
+# --- the order of a blade's dates ---------------------------------------------------------
+#
+# A blade is bought, then fitted, then it cuts and things happen to it, then it is
+# retired.  Every write step of the log (the CLI, ``db import``, the station) checks the
+# rows it wrote against these rules inside its own transaction, so a refused row leaves
+# nothing behind.  The rules live here and only here; a step names which to apply.
+
+_JOIN = " x JOIN blades b ON b.id = x.blade_id WHERE "
+_FIRST_FIT = "(SELECT MIN(f2.fitted_on) FROM fittings f2 WHERE f2.blade_id = b.id)"
+
+
+@dataclass(frozen=True)
+class DateRule:
+    """A row's date that must not lie before (or after) a date of its blade.
+
+    ``sql`` selects the blade's tag, the row's date and the blade's date of the
+    rows that break the rule (``x`` the row, ``b`` its blade): constant text.
+    """
+
+    table: str  # the row checked: fittings, cuts, events or blades
+    against: str  # which fact of the blade: bought, first fitting, fitted, retired
+    sql: str
+    what: str  # the row's date in words: "a cut on"
+    side: str  # "before" or "after"
+    bound_words: str  # "it was bought"
+
+
+_CUT = "SELECT b.tag, x.cut_on, "
+_EVENT = "SELECT b.tag, x.happened_on, "
+_FIT = "SELECT b.tag, x.fitted_on, "
+DATE_RULES: tuple[DateRule, ...] = (
+    DateRule("fittings", "bought", _FIT + "b.bought_on FROM fittings" + _JOIN
+             + "x.fitted_on < b.bought_on", "fitted on", "before", "it was bought"),
+    DateRule("fittings", "retired", _FIT + "b.retired_on FROM fittings" + _JOIN
+             + "x.fitted_on > b.retired_on", "fitted on", "after", "it was retired"),
+    DateRule("fittings", "fitted", "SELECT b.tag, x.removed_on, x.fitted_on FROM fittings" + _JOIN
+             + "x.removed_on < x.fitted_on", "taken off on", "before", "it was fitted"),
+    DateRule("cuts", "bought", _CUT + "b.bought_on FROM cuts" + _JOIN
+             + "x.cut_on < b.bought_on", "a cut on", "before", "it was bought"),
+    DateRule("cuts", "first fitting", _CUT + _FIRST_FIT + " FROM cuts" + _JOIN + "x.cut_on < "
+             + _FIRST_FIT, "a cut on", "before", "it was first fitted"),
+    DateRule("cuts", "retired", _CUT + "b.retired_on FROM cuts" + _JOIN
+             + "x.cut_on > b.retired_on", "a cut on", "after", "it was retired"),
+    DateRule("events", "bought", _EVENT + "b.bought_on FROM events" + _JOIN
+             + "x.happened_on < b.bought_on", "an event on", "before", "it was bought"),
+    DateRule("events", "first fitting", _EVENT + _FIRST_FIT + " FROM events" + _JOIN
+             + "x.happened_on < " + _FIRST_FIT, "an event on", "before", "it was first fitted"),
+    DateRule("events", "retired", _EVENT + "b.retired_on FROM events" + _JOIN
+             + "x.happened_on > b.retired_on", "an event on", "after", "it was retired"),
+    DateRule("blades", "bought", "SELECT b.tag, x.retired_on, b.bought_on FROM blades x "
+             "JOIN blades b ON b.id = x.id WHERE x.retired_on < b.bought_on", "retired on",
+             "before", "it was bought"),
+)  # fmt: skip
+_FILTERS = {"row_id": " AND x.id = :row_id", "blade_id": " AND b.id = :blade_id",
+            "after_id": " AND x.id > :after_id"}  # fmt: skip
+
+
+def check_dates(
+    db: Any,
+    table: str,
+    *,
+    row_id: int | None = None,
+    blade_id: int | None = None,
+    after_id: int | None = None,
+    against: tuple[str, ...] | None = None,
+) -> None:
+    """Refuse, naming both dates, the first row of ``table`` that breaks a date rule.
+
+    Only the rows a write step touched are read: one row (``row_id``), one blade's
+    rows (``blade_id``) or the rows added after ``after_id`` (an import).
+    ``against`` narrows the rules to the blade facts the step changed.
+    """
+    given = {"row_id": row_id, "blade_id": blade_id, "after_id": after_id}
+    params = {k: v for k, v in given.items() if v is not None}
+    where = "".join(_FILTERS[k] for k in params)
+    for rule in DATE_RULES:
+        if rule.table != table or (against is not None and rule.against not in against):
+            continue
+        found = db.execute(rule.sql + where + " ORDER BY 2, x.id LIMIT 1", params).fetchone()
+        if found is not None:
+            tag, day, bound = found
+            raise BadDataError(
+                f"blade {tag}: {rule.what} {day} is {rule.side} {rule.bound_words} ({bound})",
+                field="date",
+            )
+
+
+def last_row_id(db: Any, table: str) -> int:
+    """The highest row id of ``table`` (0 when empty): rows added later are newer."""
+    from sawplan.store.schema import ident
+
+    return int(db.scalar(f"SELECT COALESCE(MAX(id), 0) FROM {ident(table)}") or 0)

@@ -366,8 +366,10 @@ def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
     """Check references and rules against the log, then insert; any error rolls all back."""
     from sqlalchemy.exc import IntegrityError
 
+    from sawplan.store.dates import check_dates, last_row_id
     from sawplan.store.records import check_failure_mode, row_to_saw
 
+    newer_than = {t: last_row_id(db, t) for t in ("blades", "fittings", "cuts", "events")}
     saw_ids = {r["name"].lower(): (r["id"], r) for r in db.query("SELECT * FROM saws")}
     blade_ids = {r[1].lower(): r[0] for r in db.execute("SELECT id, tag FROM blades")}
     counts = dict.fromkeys(TABLES, 0)
@@ -449,6 +451,8 @@ def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
     except IntegrityError as err:
         rule = " ".join(str(err.orig).split())[:120]
         raise BadDataError(f"the rows break a rule of the log ({rule})", field="import") from None
+    for table, after in newer_than.items():  # the order of each blade's dates
+        check_dates(db, table, after_id=after)
     return counts
 
 

@@ -8,6 +8,10 @@ fall back to the model's times and the default lives.
 from __future__ import annotations
 
 from pathlib import Path
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # pragma: no cover
+    from sawplan.store.blade_groups import BladeChoice
 
 
 class BladeLog:
@@ -17,9 +21,11 @@ class BladeLog:
     default lives, and says so.
     """
 
-    def __init__(self, db: str | Path | None):
+    def __init__(self, db: str | Path | None, choice: BladeChoice | None = None):
         from sawplan.errors import UsageError
         from sawplan.store.location import resolve_db
+
+        self.choice = choice  # the blades blade life comes from (lots, suppliers)
 
         self.path = resolve_db(db)  # a file, or a server (which is asked, never created)
         if self.path.kind == "sqlite" and self.path.path is not None:
@@ -39,10 +45,19 @@ class BladeLog:
 
     def life(self, material_group: str):
         if not self.exists:
+            if self.choice is not None and self.choice.chosen:
+                from sawplan.errors import UsageError
+
+                raise UsageError(
+                    "--lot, --without-lot and --supplier choose blades of the blade log, "
+                    "and there is none",
+                    field="blade log",
+                    hint="give --db LOG",
+                )
             return None
         from sawplan.store import life_for
 
-        return life_for(self.path, material_group)
+        return life_for(self.path, material_group, choice=self.choice)
 
     def saws(self) -> list:
         if not self.exists:

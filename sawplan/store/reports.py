@@ -1,4 +1,4 @@
-"""Blade-life answers from the log: life summary, forecasts, calibration factors.
+"""Blade-life answers from the log: group lives, the life plans rest on, forecasts.
 
 This module reads the log (``stats``) and hands plain lists to the pure
 ``sawplan.life`` core; it adds what only the log knows (which blades belong
@@ -14,41 +14,36 @@ in the answer.
 
 from __future__ import annotations
 
-import difflib
 import math
 import os
-from collections import defaultdict
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any, NamedTuple
 
 from sawplan.display import Q, say
-from sawplan.errors import BadDataError, UsageError
-from sawplan.store.stats import BladeLife, blade_lives, timed_cuts, unused_retired
+from sawplan.errors import BadDataError
+from sawplan.store.stats import BladeLife, blade_lives
 
 if TYPE_CHECKING:  # pragma: no cover
-    from sawplan.life import (
-        BladeCost,
-        EarlyFailureWarning,
-        Forecast,
-        ModeRanking,
-        WeibullFit,
-    )
+    from sawplan.life import EarlyFailureWarning, Forecast, WeibullFit
+    from sawplan.store.blade_groups import BladeChoice
     from sawplan.store.db import Log as Database
 
 IN2_CM2 = 6.4516  # 1 in² = 6.4516 cm² exactly (1 in = 2.54 cm)
 DEFAULT_CONFIDENCE = 0.9
-GROUP_BY = ("blade-type", "material-group")
 FALLBACK_GROUP = "carbon-steel"
 
-# group -> (life in in², where the number comes from)
-DEFAULT_LIVES_IN2: dict[str, tuple[float, str]] = {
-    "carbon-steel": (1.0e4, "reference §7, mild steel ≈ 10⁴ in² (memory)"),
+# group -> (life, low, high in in², where the numbers come from); a single figure
+# ("≈ 10⁴ in²") is taken as the range from half to twice it
+DEFAULT_LIVES_IN2: dict[str, tuple[float, float, float, str]] = {
+    "carbon-steel": (1.0e4, 5.0e3, 2.0e4, "reference §7, mild steel ≈ 10⁴ in² (memory)"),
     "austenitic-stainless": (
         3.5e3,
+        2.0e3,
+        5.0e3,
         "reference §7, austenitic stainless 2–5 × 10³ in², middle value (memory)",
     ),
-    "nickel-alloy": (1.0e3, "reference §7, nickel alloys ≈ 10³ in² (memory)"),
+    "nickel-alloy": (1.0e3, 5.0e2, 2.0e3, "reference §7, nickel alloys ≈ 10³ in² (memory)"),
 }
 
 
@@ -60,20 +55,24 @@ class DefaultLife:
     life_cm2: float
     source: str
     fallback: bool  # True when the group has no figure of its own
+    low_cm2: float = 0.0  # the typical range (half to twice a single figure)
+    high_cm2: float = 0.0
 
 
 def default_life(material_group: str | None) -> DefaultLife:
     """Reference §7 typical life of a group (memory); other groups take mild steel's."""
     group = material_group or FALLBACK_GROUP
     if group in DEFAULT_LIVES_IN2:
-        life_in2, source = DEFAULT_LIVES_IN2[group]
-        return DefaultLife(group, life_in2 * IN2_CM2, source, False)
-    life_in2, source = DEFAULT_LIVES_IN2[FALLBACK_GROUP]
+        life_in2, low, high, source = DEFAULT_LIVES_IN2[group]
+        return DefaultLife(group, life_in2 * IN2_CM2, source, False, low * IN2_CM2, high * IN2_CM2)
+    life_in2, low, high, source = DEFAULT_LIVES_IN2[FALLBACK_GROUP]
     return DefaultLife(
         group,
         life_in2 * IN2_CM2,
         f"no typical life for {group} in the reference; {source} used instead",
         True,
+        low * IN2_CM2,
+        high * IN2_CM2,
     )
 
 
@@ -100,21 +99,34 @@ class GroupLife:
     mean_failure_life_cm2: float | None
     early_failure: EarlyFailureWarning | None
     fit: Any = field(default=None, metadata={"json": False})
+    worn_out: int = 0  # retired blades worn out at the end of a normal life (of ``failed``)
+    keys: tuple[str, ...] = ()  # the values of the --group-by keys
 
 
-def group_life(key: str, lives: Sequence[BladeLife], confidence: float) -> GroupLife:
-    """Fit a censored Weibull to one set of blades and say what it means."""
+def group_life(
+    key: str, lives: Sequence[BladeLife], confidence: float, keys: tuple[str, ...] = ()
+) -> GroupLife:
+    """Fit a censored Weibull to one set of blades and say what it means.
+
+    Every retired blade is a failure in the fit, a worn-out one a failure of wear;
+    the early-failure warning looks at the failures only.
+    """
     from sawplan.life import early_failure_warning, fit_weibull
 
     failed = [b for b in lives if b.failed]
     if not lives:
-        return _unfitted(key, lives, failed, "no blades", None)
+        return _unfitted(key, lives, failed, "no blades", None, keys)
     fit = fit_weibull([b.area_cm2 for b in lives], [b.failed for b in lives], confidence)
     if not fit.fitted:
-        return _unfitted(key, lives, failed, fit.reason, fit)
-    warning = early_failure_warning(fit, [b.mode for b in failed], [b.area_cm2 for b in failed])
+        return _unfitted(key, lives, failed, fit.reason, fit, keys)
+    failures = [b for b in failed if b.is_failure]
+    warning = early_failure_warning(
+        fit, [b.failure_mode for b in failures], [b.area_cm2 for b in failures]
+    )
     return GroupLife(
         key=key,
+        keys=keys,
+        worn_out=len(failed) - len(failures),
         blades=len(lives),
         failed=len(failed),
         censored=len(lives) - len(failed),
@@ -134,10 +146,17 @@ def group_life(key: str, lives: Sequence[BladeLife], confidence: float) -> Group
 
 
 def _unfitted(
-    key: str, lives: Sequence[BladeLife], failed: Sequence[BladeLife], reason: str, fit: Any
+    key: str,
+    lives: Sequence[BladeLife],
+    failed: Sequence[BladeLife],
+    reason: str,
+    fit: Any,
+    keys: tuple[str, ...] = (),
 ) -> GroupLife:
     return GroupLife(
         key=key,
+        keys=keys,
+        worn_out=sum(1 for b in failed if not b.is_failure),
         blades=len(lives),
         failed=len(failed),
         censored=len(lives) - len(failed),
@@ -160,164 +179,6 @@ def _mean_area(blades: Sequence[BladeLife]) -> float | None:
     return sum(b.area_cm2 for b in blades) / len(blades) if blades else None
 
 
-# --- the life report ---------------------------------------------------------------------
-
-
-@dataclass(frozen=True)
-class CalibrationRow:
-    saw: str | None
-    material_group: str | None
-    cuts: int
-    factor: float | None  # actual ÷ predicted (median of ratios); None while pending
-    low: float | None
-    high: float | None
-    needed: int
-
-
-@dataclass(frozen=True)
-class LifeReport:
-    """``sawplan life``: the whole log's blade life, failure modes, costs, calibration."""
-
-    confidence: float
-    group_by: str | None
-    groups: tuple[GroupLife, ...]
-    failure_modes: ModeRanking
-    early_failure: EarlyFailureWarning | None
-    costs: tuple[BladeCost, ...]
-    costs_missing: tuple[str, ...]  # blade types with no price or no retired blade yet
-    calibration: tuple[CalibrationRow, ...]
-    left_out: tuple[str, ...]  # retired before cutting anything
-    notes: tuple[str, ...]
-    overall: GroupLife = field(metadata={"json": False})
-    lives: tuple[BladeLife, ...] = field(metadata={"json": False})
-
-    def json_extra(self) -> dict[str, Any]:
-        from sawplan.render import jsonable
-
-        flat = jsonable(self.overall)
-        flat.pop("early_failure", None)
-        flat.pop("key", None)
-        return flat
-
-
-def life_report(
-    db: Database, *, group_by: str | None = None, confidence: float = DEFAULT_CONFIDENCE
-) -> LifeReport:
-    """Everything ``sawplan life`` shows, from the log."""
-    from sawplan.life import rank_failure_modes
-
-    if group_by is not None and group_by not in GROUP_BY:
-        close = difflib.get_close_matches(group_by.strip().lower(), GROUP_BY, n=1)
-        raise UsageError(
-            f"must be one of {', '.join(GROUP_BY)}, got {group_by!r}",
-            field="group-by",
-            hint=f"did you mean {close[0]}?" if close else None,
-        )
-    lives = blade_lives(db)
-    overall = group_life("all blades", lives, confidence)
-    groups: tuple[GroupLife, ...] = ()
-    if group_by is not None:
-        keyed: dict[str, list[BladeLife]] = defaultdict(list)
-        for b in lives:
-            k = b.blade_type if group_by == "blade-type" else (b.material_group or "unknown")
-            keyed[k].append(b)
-        groups = tuple(group_life(k, keyed[k], confidence) for k in sorted(keyed))
-    costs, missing = _costs(lives, confidence)
-    notes = []
-    if not lives:
-        notes.append("the log holds no blade that has cut anything yet")
-    return LifeReport(
-        confidence=confidence,
-        group_by=group_by,
-        groups=groups,
-        failure_modes=rank_failure_modes([b.mode for b in lives if b.failed]),
-        early_failure=overall.early_failure,
-        costs=costs,
-        costs_missing=missing,
-        calibration=calibration_table(db),
-        left_out=tuple(unused_retired(db)),
-        notes=tuple(notes),
-        overall=overall,
-        lives=tuple(lives),
-    )
-
-
-def _costs(lives: Sequence[BladeLife], confidence: float) -> tuple[tuple, tuple[str, ...]]:
-    """Cost per area by blade type: median price ÷ (fitted mean life, else mean retired life)."""
-    from sawplan.life import blade_cost_per_area, fit_weibull, rank_blade_costs
-
-    by_type: dict[str, list[BladeLife]] = defaultdict(list)
-    for b in lives:
-        by_type[b.blade_type].append(b)
-    costs, missing = [], []
-    for blade_type in sorted(by_type):
-        blades = by_type[blade_type]
-        prices = sorted(b.price for b in blades if b.price is not None)
-        failed = [b.area_cm2 for b in blades if b.failed]
-        if not prices or not failed:
-            why = "no price recorded" if not prices else "no retired blade yet"
-            missing.append(say("{}: {}", blade_type, why))
-            continue
-        price = _median(prices)
-        fit = fit_weibull([b.area_cm2 for b in blades], [b.failed for b in blades], confidence)
-        costs.append(blade_cost_per_area(blade_type, price, fit=fit, lives_cm2=failed))
-    return rank_blade_costs(costs), tuple(missing)
-
-
-def _median(values: Sequence[float]) -> float:
-    import statistics
-
-    return float(statistics.median(values))
-
-
-# --- calibration -------------------------------------------------------------------------
-
-
-def calibration_table(db: Database) -> tuple[CalibrationRow, ...]:
-    """actual ÷ predicted cut time per saw and material group, from the latest 200 timed cuts
-    of each (reported from 3 cuts on)."""
-    from sawplan.life import calibration_factors
-
-    cuts = timed_cuts(db)
-    if not cuts:
-        return ()
-    summary = calibration_factors(
-        [c.time_min for c in cuts],
-        [c.predicted_time_min for c in cuts],
-        [(c.saw, c.material_group) for c in cuts],
-    )
-    rows = [
-        CalibrationRow(f.key[0], f.key[1], f.n, f.factor, f.low, f.high, summary.min_count)
-        for f in summary.factors
-    ]
-    rows += [
-        CalibrationRow(p.key[0], p.key[1], p.n, None, None, None, p.needed) for p in summary.pending
-    ]
-    return tuple(sorted(rows, key=lambda r: (str(r.saw), str(r.material_group))))
-
-
-def calibration_factor(
-    db_path: str | os.PathLike[str] | None, saw_name: str, material_group: str
-) -> tuple[float, int] | None:
-    """Actual ÷ predicted cut time on this saw for this group, and the number of cuts.
-
-    None until the log holds at least 3 cuts with both times; only the latest 200
-    count (``stats.timed_cuts``).  The factor is the
-    median of the per-cut ratios (``sawplan.life.calibration_factors``).
-    """
-    from sawplan.life import calibration_factors
-    from sawplan.store.db import connect
-
-    with connect(db_path, create=False, light=True) as db:
-        cuts = timed_cuts(db, saw=saw_name, material_group=material_group)
-    if not cuts:
-        return None
-    summary = calibration_factors([c.time_min for c in cuts], [c.predicted_time_min for c in cuts])
-    if not summary.factors:
-        return None
-    return summary.factors[0].factor, summary.factors[0].n
-
-
 # --- life for planning and forecasts -----------------------------------------------------
 
 
@@ -326,6 +187,8 @@ class LifeBasis(NamedTuple):
 
     ``fit`` is the group's censored Weibull fit from the log (None when the log
     cannot give one); ``default`` is the reference §7 typical life to use then.
+    ``warning`` names an early-failing lot that holds much of the blades behind
+    the fit, and ``fit_without`` is the fit with that lot left out.
     """
 
     fit: WeibullFit | None
@@ -333,21 +196,48 @@ class LifeBasis(NamedTuple):
     blades: int
     failed: int
     note: str
+    choice: str = "all blades"  # which blades the life comes from, in words
+    warning: str | None = None
+    lot_named: str | None = None  # the lot the warning names
+    fit_without: WeibullFit | None = None
+
+
+DOMINANT_SHARE = 1 / 3  # an early-failing lot holding a third of the blades weighs on the fit
 
 
 def life_basis(
-    db: Database, material_group: str | None, confidence: float = DEFAULT_CONFIDENCE
+    db: Database,
+    material_group: str | None,
+    confidence: float = DEFAULT_CONFIDENCE,
+    choice: BladeChoice | None = None,
 ) -> LifeBasis:
-    lives = blade_lives(db)
+    """The log's life for a material group, from the chosen blades (lots, suppliers)."""
+    from sawplan.store.blade_groups import BladeChoice, check_choice, choose
+
+    choice = choice or BladeChoice()
+    check_choice(db, choice)
+    everyone = blade_lives(db)
+    lives = choose(everyone, choice)
     if material_group is not None:
         lives = [b for b in lives if b.material_group == material_group]
     label = material_group or "all material groups"
     gl = group_life(label, lives, confidence)
     fallback = default_life(material_group)
+    chosen = choice.words()
     if gl.fitted:
-        note = f"blade log: {gl.blades} blades ({gl.failed} retired) cutting mostly {label}"
-        return LifeBasis(gl.fit, fallback, gl.blades, gl.failed, note)
+        note = say(
+            "blade log: {} blades ({} retired) cutting mostly {}; {}",
+            gl.blades,
+            gl.failed,
+            label,
+            chosen if choice.chosen else "all lots and suppliers",
+        )
+        warning, lot, without = _dominant_lot(everyone, lives, confidence)
+        return LifeBasis(gl.fit, fallback, gl.blades, gl.failed, note, chosen, warning, lot,
+                         without)  # fmt: skip
     why = gl.reason or "no blades"
+    if choice.chosen:
+        why = say("{}, {}", why, chosen)
     note = say(
         "not enough history for {} ({}); default life {} ({}) — calibrate by logging blades",
         label,
@@ -355,19 +245,54 @@ def life_basis(
         Q("area", fallback.life_cm2 * 100.0),
         fallback.source,
     )
-    return LifeBasis(None, fallback, gl.blades, gl.failed, note)
+    return LifeBasis(None, fallback, gl.blades, gl.failed, note, chosen)
+
+
+def _dominant_lot(
+    everyone: Sequence[BladeLife], lives: Sequence[BladeLife], confidence: float
+) -> tuple[str | None, str | None, WeibullFit | None]:
+    """(warning, lot, fit without it) when an early-failing lot holds much of ``lives``."""
+    from sawplan.life import fit_weibull
+    from sawplan.life.lots import lot_label
+
+    shares = []
+    from sawplan.store.life_report import lots_to_name
+
+    for lot in lots_to_name(everyone, confidence):
+        mine = [b for b in lives if (b.lot, b.supplier) == (lot.lot, lot.supplier)]
+        if mine and len(mine) >= DOMINANT_SHARE * len(lives):
+            shares.append((len(mine), lot))
+    if not shares:
+        return None, None, None
+    count, lot = max(shares, key=lambda s: s[0])
+    rest = [b for b in lives if (b.lot, b.supplier) != (lot.lot, lot.supplier)]
+    without = fit_weibull(
+        [b.area_cm2 for b in rest], [b.failed for b in rest], confidence, bounds="none"
+    )
+    verdict = "fails early" if lot.fails_early else "dies far younger than its type's other lots"
+    warning = say(
+        "{} {} (`sawplan life` names it) and holds {} of the {} blades behind this life; "
+        "leave it out with --without-lot {}",
+        lot_label(lot.lot, lot.supplier, lot.bought_on),
+        verdict,
+        count,
+        len(lives),
+        lot.lot,
+    )
+    return warning, lot.lot, without if without.fitted else None
 
 
 def life_for(
     db_path: str | os.PathLike[str] | None,
     material_group: str | None,
     confidence: float = DEFAULT_CONFIDENCE,
+    choice: BladeChoice | None = None,
 ) -> LifeBasis:
-    """``(fit or None, default life, blades, failed, note)`` for planning's blades on hand."""
+    """``(fit or None, default life, blades, failed, note, ...)`` for planning's blades on hand."""
     from sawplan.store.db import connect
 
     with connect(db_path, create=False) as db:
-        return life_basis(db, material_group, confidence)
+        return life_basis(db, material_group, confidence, choice)
 
 
 @dataclass(frozen=True)
@@ -390,6 +315,10 @@ class BladeForecast:
     history_failed: int
     note: str
     forecast: Forecast = field(metadata={"json": False})
+    blades_from: str = "all blades"  # which blades of the log the life comes from
+    lot_warning: str | None = None  # an early-failing lot that weighs on the life
+    lot_named: str | None = None
+    blades_needed_without_lot: int | None = None  # the count with that lot left out
 
 
 def forecast_area(
@@ -400,19 +329,24 @@ def forecast_area(
     material_group: str | None = None,
     confidence: float = DEFAULT_CONFIDENCE,
     life_cm2: float | None = None,
+    choice: BladeChoice | None = None,
 ) -> BladeForecast:
     """Blades needed for ``area_cm2``: the log's fit when it has one, else a default life."""
     from sawplan.life import forecast_blades
 
     if not (math.isfinite(area_cm2) and area_cm2 > 0):
         raise BadDataError(f"must be above 0, got {area_cm2:g} cm²", field="area")
-    basis = life_basis(db, material_group, confidence)
+    basis = life_basis(db, material_group, confidence, choice)
+    without = None
     if life_cm2 is not None:
         fc = forecast_blades(area_cm2, None, deterministic_life_cm2=life_cm2, confidence=confidence)
-        source, used, note = "given", life_cm2, f"life given: {life_cm2:,.0f} cm² per blade"
+        note = say("life given: {} per blade", Q("area", life_cm2 * 100.0))
+        source, used = "given", life_cm2
     elif basis.fit is not None:
         fc = forecast_blades(area_cm2, basis.fit, confidence=confidence)
         source, used, note = "blade log", None, basis.note
+        if basis.fit_without is not None:
+            without = forecast_blades(area_cm2, basis.fit_without, confidence=confidence)
     else:
         used = basis.default.life_cm2
         fc = forecast_blades(area_cm2, None, deterministic_life_cm2=used, confidence=confidence)
@@ -435,6 +369,10 @@ def forecast_area(
         history_failed=basis.failed,
         note=note,
         forecast=fc,
+        blades_from="" if source == "given" else basis.choice,
+        lot_warning=basis.warning if source == "blade log" else None,
+        lot_named=basis.lot_named if source == "blade log" else None,
+        blades_needed_without_lot=without.blades_needed if without is not None else None,
     )
 
 
@@ -454,6 +392,7 @@ def forecast_job(
     area_by_group_cm2: Mapping[str, float],
     *,
     confidence: float = DEFAULT_CONFIDENCE,
+    choice: BladeChoice | None = None,
 ) -> JobForecast:
     """Hook for job files: total cut area per material group → blades needed.
 
@@ -469,7 +408,7 @@ def forecast_job(
         raise BadDataError("the job has no cut area", field="job")
     with connect(db_path, create=False) as db:
         parts = tuple(
-            forecast_area(db, area, material_group=group, confidence=confidence)
+            forecast_area(db, area, material_group=group, confidence=confidence, choice=choice)
             for group, area in sorted(area_by_group_cm2.items())
         )
         lives = {p.material_group: _mean_life_cm2(p) for p in parts}
@@ -479,7 +418,7 @@ def forecast_job(
         if len(parts) > 1:
             equivalent_cm2 = sum(wear.values()) * lives[ref]
             total = forecast_area(
-                db, equivalent_cm2, material_group=ref, confidence=confidence
+                db, equivalent_cm2, material_group=ref, confidence=confidence, choice=choice
             ).blades_needed
     return JobForecast(
         groups=parts,

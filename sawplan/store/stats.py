@@ -14,6 +14,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, NamedTuple
 
 if TYPE_CHECKING:  # pragma: no cover
+    from sawplan.life.end_of_life import EndOfLife
     from sawplan.store.db import Log as Database
 
 from sawplan.display import Q, join, say
@@ -32,6 +33,28 @@ class BladeLife:
     mode: str | None
     price: float | None
     status: str
+    lot: str | None = None
+    supplier: str | None = None
+    bought_on: str | None = None
+    saw: str | None = None  # the saw it cut most area on
+    end: EndOfLife | None = None  # how a retired blade's life ended (``life_ends``)
+
+    @property
+    def is_failure(self) -> bool:
+        """Retired by a failure, not worn out at the end of a normal life.
+
+        Before ``life_ends.with_ends`` judged it, the recorded word decides.
+        """
+        if not self.failed:
+            return False
+        if self.end is not None:
+            return self.end.kind == "failure"
+        return self.mode != "worn-out"
+
+    @property
+    def failure_mode(self) -> str | None:
+        """The failure mode it counts under (a worn-out retired early counts as dull)."""
+        return self.end.counted_as if self.end is not None else self.mode
 
 
 def blade_type_of(row: dict) -> str:
@@ -42,7 +65,7 @@ def blade_type_of(row: dict) -> str:
     return join(" ", [p for p in parts if p])
 
 
-_AREAS_SQL = "SELECT blade_id, material_group, area_mm2 FROM cuts"
+_AREAS_SQL = "SELECT blade_id, material_group, saw_id, area_mm2 FROM cuts"
 
 
 def blade_lives(db: Database, *, include_unused_failures: bool = False) -> list[BladeLife]:
@@ -54,36 +77,46 @@ def blade_lives(db: Database, *, include_unused_failures: bool = False) -> list[
     # Summed here, exactly (math.fsum), not by the database: SUM adds in whatever order
     # the engine scans, so SQLite and PostgreSQL could differ in the last digit.
     areas: dict[int, dict[str | None, list[float]]] = defaultdict(lambda: defaultdict(list))
-    for blade_id, group, area in db.bulk_rows(_AREAS_SQL):
+    on_saw: dict[int, dict[int | None, list[float]]] = defaultdict(lambda: defaultdict(list))
+    for blade_id, group, saw_id, area in db.bulk_rows(_AREAS_SQL):
         areas[blade_id][group].append(area)
-    by_group = {
-        blade_id: {g: math.fsum(groups[g]) for g in sorted(groups, key=str)}
-        for blade_id, groups in areas.items()
-    }
+        on_saw[blade_id][saw_id].append(area)
+    saw_names = {sid: name for sid, name in db.execute("SELECT id, name FROM saws")}
     lives = []
     for row in db.query(
         "SELECT id, tag, blade_material, grade, width_mm, thickness_mm, tpi_coarse, tpi_fine, "
-        "price, status, retire_cause FROM blades ORDER BY id"
+        "price, status, retire_cause, lot, supplier, bought_on FROM blades ORDER BY id"
     ):
-        groups = by_group.get(row["id"], {})
         area_cm2 = math.fsum(a for g in areas.get(row["id"], {}).values() for a in g) / 100.0
         failed = row["status"] == "retired"
         if area_cm2 <= 0.0 and not (failed and include_unused_failures):
             continue
-        dominant = max(groups.items(), key=lambda kv: kv[1])[0] if groups else None
+        saw_id = _most(on_saw.get(row["id"], {}))
         lives.append(
             BladeLife(
                 tag=row["tag"],
                 blade_type=blade_type_of(row),
-                material_group=dominant,
+                material_group=_most(areas.get(row["id"], {})),
                 area_cm2=area_cm2,
                 failed=failed,
                 mode=row["retire_cause"] if failed else None,
                 price=row["price"],
                 status=row["status"],
+                lot=row["lot"],
+                supplier=row["supplier"],
+                bought_on=row["bought_on"],
+                saw=saw_names.get(saw_id) if saw_id is not None else None,
             )
         )
     return lives
+
+
+def _most(by_key: dict) -> object:
+    """The key with the most area (exact sums; ties to the first key in text order)."""
+    if not by_key:
+        return None
+    sums = {k: math.fsum(by_key[k]) for k in sorted(by_key, key=str)}
+    return max(sums.items(), key=lambda kv: kv[1])[0]
 
 
 def unused_retired(db: Database) -> list[str]:
@@ -98,7 +131,7 @@ def unused_retired(db: Database) -> list[str]:
 
 
 class TimedCut(NamedTuple):
-    """A cut with both its measured and its predicted time (batch totals).
+    """A cut entry with both its measured and its predicted time (batch totals).
 
     A named tuple, not a frozen dataclass: a big log has 10⁵ of them.
     """
@@ -107,12 +140,13 @@ class TimedCut(NamedTuple):
     material_group: str | None
     time_min: float
     predicted_time_min: float
+    count: int = 1  # the cuts the entry holds
 
 
 CALIBRATION_WINDOW = 200
 # "= :x" never matches NULL, so a cut without a saw or a group has its own query
 _TIMED = (
-    "SELECT time_min, predicted_time_min FROM cuts WHERE {} AND time_min > 0 "
+    "SELECT time_min, predicted_time_min, count FROM cuts WHERE {} AND time_min > 0 "
     "AND predicted_time_min > 0 ORDER BY id DESC LIMIT :latest"
 )
 _TIMED_SQL = {
@@ -132,10 +166,10 @@ def timed_cuts(
     material_group: str | None = None,
     latest: int = CALIBRATION_WINDOW,
 ) -> list[TimedCut]:
-    """The latest ``latest`` cuts carrying both times, per saw and material group.
+    """The latest ``latest`` entries carrying both times, per saw and material group.
 
-    Only recent cuts count: a saw's calibration drifts as it is serviced and
-    re-set, and 200 cuts give a steady median.  Each (saw, group) is read
+    Only recent entries count: a saw's calibration drifts as it is serviced and
+    re-set, and 200 entries give a steady median.  Each (saw, group) is read
     newest first through the (saw_id, material_group) index, so a big log
     costs no more than a small one.
     """
@@ -154,7 +188,7 @@ def timed_cuts(
             {"saw_id": saw_id, "material_group": group, "latest": latest},
         ).fetchall()
         name = names.get(saw_id)
-        out += [TimedCut(name, group, t, p) for t, p in reversed(rows)]
+        out += [TimedCut(name, group, t, p, n) for t, p, n in reversed(rows)]
     return out
 
 

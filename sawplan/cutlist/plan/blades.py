@@ -30,8 +30,13 @@ def blade_life(
     found = life_for(group) if life_for is not None else None
     fit = getattr(found, "fit", found)
     note = getattr(found, "note", None)
+    warning = getattr(found, "warning", None)  # an early-failing lot behind the fit
+    if note is not None and warning:
+        note = say("{}; WARNING {}", note, warning)
     if fit is not None and getattr(fit, "fitted", False):
-        return (float(fit.mean_life_cm2), f"blade log Weibull fit ({fit.n} blades)", fit), note
+        chosen = getattr(found, "choice", "all blades")
+        which = f"{fit.n} blades" + ("" if chosen == "all blades" else f", {chosen}")
+        return (float(fit.mean_life_cm2), f"blade log Weibull fit ({which})", fit), note
     default = default_life(group)
     source = say("default {} — {}", Q("area", default.life_cm2 * 100), default.source)
     return (default.life_cm2, source, None), note

@@ -176,7 +176,7 @@ def plan_job(
         if s.calibration_n:
             notes.append(
                 say(
-                    "{}: cut time × {} from {} logged cut(s) on {} ({})",
+                    "{}: cut time × {} from {} timed log entries on {} ({})",
                     s.group,
                     f"{s.calibration_factor:.2f}",
                     s.calibration_n,
