@@ -15,6 +15,7 @@ import math
 import re
 from collections.abc import Iterable, Sequence
 from enum import Enum
+from itertools import zip_longest
 from typing import Any
 
 from sawplan import __version__
@@ -99,17 +100,18 @@ def table(
     body = [["" if v is None else str(v) for v in row] for row in rows]
     cols = len(headers)
     widths = [len(h) for h in headers]
-    for row in body:
-        for i, cell in enumerate(row[:cols]):
-            widths[i] = max(widths[i], len(cell))
+    for i, column in enumerate(zip_longest(*body, fillvalue="")):  # column by column: fast
+        if i < cols:
+            widths[i] = max(widths[i], max(map(len, column), default=0))
     if align is None:
         align = "".join("r" if _looks_numeric(body, i) else "l" for i in range(cols))
 
+    justify = [str.rjust if a == "r" else str.ljust for a in align[:cols]]
+
     def line(cells: Sequence[str]) -> str:
-        parts = []
-        for i, cell in enumerate(cells[:cols]):
-            parts.append(cell.rjust(widths[i]) if align[i] == "r" else cell.ljust(widths[i]))
-        return "  ".join(parts).rstrip()
+        return "  ".join(
+            [j(c, w) for j, c, w in zip(justify, cells, widths, strict=False)]
+        ).rstrip()
 
     out = []
     if title:

@@ -14,13 +14,9 @@ from __future__ import annotations
 
 from html import escape
 
+from sawplan.cutlist.sheets.bar_rows import piece_rows
 from sawplan.cutlist.sheets.palette import piece_tints
-from sawplan.cutlist.sheets.text import (
-    breakin_text,
-    forecast_text,
-    piece_rows,
-    short_banner,
-)
+from sawplan.cutlist.sheets.text import breakin_text, forecast_text, short_banner
 from sawplan.display import Display, UnitSystem, as_display, fmt_money, fmt_number
 
 VIEW_W = 1000.0  # drawing width in viewBox units
