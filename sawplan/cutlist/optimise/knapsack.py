@@ -109,6 +109,5 @@ def solve_bounded_knapsack(
         np.add(best[:n], values[j] * copies - _TIE, out=candidate)  # ties keep the part out
         better = take_table[p, w:]
         np.greater(candidate, best[w:], out=better)
-        candidate += _TIE
-        np.copyto(best[w:], candidate, where=better)
+        np.add(candidate, _TIE, out=best[w:], where=better)
     return KnapsackTable(best, unit, tuple(parts), take_table, n_items)
