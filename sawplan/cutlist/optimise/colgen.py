@@ -90,6 +90,7 @@ class ColumnPool:
         self.stock: list[int] = []
         self._index: dict[tuple[int, tuple[int, ...]], int] = {}
         self._fillings: list[tuple[int, ...]] = []
+        self._entries: list[tuple[Any, Any]] = []  # per column: items cut, copies of each
         self._matrix = np.zeros((len(problem.lengths), 64))
         self._stock = np.zeros(64, dtype=np.intp)
 
@@ -115,9 +116,26 @@ class ColumnPool:
         self._matrix[:, n] = counts
         self._stock[n] = s
         self.stock.append(s)
-        self._fillings.append(tuple(int(c) for c in counts))
+        self._fillings.append(key[1])
+        items = np.flatnonzero(self._matrix[:, n])
+        self._entries.append((items, self._matrix[items, n]))
         self._index[key] = n
         return n
+
+    def entries(self, columns: Sequence[int]) -> tuple[Any, Any, Any]:
+        """(column position in ``columns``, item, copies) of every piece in those columns,
+        column by column and items ascending within a column."""
+        import numpy as np
+
+        if not len(columns):
+            empty = np.zeros(0, dtype=np.intp)
+            return empty, empty, np.zeros(0)
+        found = [self._entries[c] for c in columns]
+        sizes = [len(items) for items, _ in found]
+        position = np.repeat(np.arange(len(columns)), sizes)
+        items = np.concatenate([items for items, _ in found])
+        copies = np.concatenate([copies for _, copies in found])
+        return position, items, copies
 
     def counts(self, column: int) -> tuple[int, ...]:
         return self._fillings[column]
@@ -344,9 +362,12 @@ class _Master:
         # Column-wise: each pool column's pieces (negated: ">=" rows as "<="), then a 1
         # in the row of its stock when that stock is limited; then one artificial column
         # per length (-1 in its row).  Rows ascend within every column.
-        a_t = pool.matrix[np.ix_(rows, cols)].T
-        entry_col, entry_row = np.nonzero(a_t)
-        entry_val = -a_t[entry_col, entry_row]
+        entry_col, entry_item, copies = pool.entries(active)
+        row_of_item = np.full(self.n_items, -1, dtype=np.intp)
+        row_of_item[rows] = np.arange(n_rows)
+        wanted = row_of_item[entry_item] >= 0  # pieces of lengths no longer wanted drop out
+        entry_col, entry_row = entry_col[wanted], row_of_item[entry_item[wanted]]
+        entry_val = -copies[wanted]
         row_of_stock = np.full(len(pool.problem.stock_lengths), -1, dtype=np.intp)
         for r, s in enumerate(self.limited):
             row_of_stock[s] = n_rows + r

@@ -199,7 +199,8 @@ def _meets_report_bound(problem: Problem, bars: tuple[Bar, ...], bounds: Bounds)
     """The plan's reported figure equals its bound (bars: ⌈LP⌉; cost or length: the LP)."""
     if objective_of(problem) == "bars":
         return len(bars) <= ceil(bounds.bars - _TINY)
-    value = sum(report_costs(problem)[s] for s, _ in bars)
+    costs = report_costs(problem)
+    value = sum(costs[s] for s, _ in bars)
     return value <= bounds.cost + 1e-9 * max(abs(bounds.cost), 1.0)
 
 
