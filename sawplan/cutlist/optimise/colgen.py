@@ -23,6 +23,7 @@ from typing import Any
 
 from sawplan.cutlist.optimise.budget import Clock
 from sawplan.cutlist.optimise.knapsack import solve_bounded_knapsack
+from sawplan.cutlist.optimise.pool import ColumnPool
 from sawplan.cutlist.optimise.problem import Problem
 
 _ROUND_EPS = 1e-6  # slack when rounding LP values up to whole bars
@@ -80,76 +81,6 @@ class LpFailure(RuntimeError):
     """HiGHS did not return an optimal master (numerical trouble); fall back to FFD."""
 
 
-class ColumnPool:
-    """Bar fillings found so far: the master's columns, shared by every re-solve."""
-
-    def __init__(self, problem: Problem) -> None:
-        import numpy as np
-
-        self.problem = problem
-        self.stock: list[int] = []
-        self._index: dict[tuple[int, tuple[int, ...]], int] = {}
-        self._fillings: list[tuple[int, ...]] = []
-        self._entries: list[tuple[Any, Any]] = []  # per column: items cut, copies of each
-        self._matrix = np.zeros((len(problem.lengths), 64))
-        self._stock = np.zeros(64, dtype=np.intp)
-
-    def __len__(self) -> int:
-        return len(self.stock)
-
-    def add(self, s: int, counts: Sequence[int]) -> int:
-        """Index of the filling ``counts`` of stock ``s`` (added if new); -1 if empty or too long."""
-        import numpy as np
-
-        key = (s, tuple(counts))
-        known = self._index.get(key)
-        if known is not None:
-            return known
-        if not any(counts) or not self.problem.fits(s, counts):
-            return -1
-        n = len(self.stock)
-        if n == self._matrix.shape[1]:
-            grown = np.zeros((self._matrix.shape[0], 2 * n))
-            grown[:, :n] = self._matrix
-            self._matrix = grown
-            self._stock = np.concatenate([self._stock, np.zeros(n, dtype=np.intp)])
-        self._matrix[:, n] = counts
-        self._stock[n] = s
-        self.stock.append(s)
-        self._fillings.append(key[1])
-        items = np.flatnonzero(self._matrix[:, n])
-        self._entries.append((items, self._matrix[items, n]))
-        self._index[key] = n
-        return n
-
-    def entries(self, columns: Sequence[int]) -> tuple[Any, Any, Any]:
-        """(column position in ``columns``, item, copies) of every piece in those columns,
-        column by column and items ascending within a column."""
-        import numpy as np
-
-        if not len(columns):
-            empty = np.zeros(0, dtype=np.intp)
-            return empty, empty, np.zeros(0)
-        found = [self._entries[c] for c in columns]
-        sizes = [len(items) for items, _ in found]
-        position = np.repeat(np.arange(len(columns)), sizes)
-        items = np.concatenate([items for items, _ in found])
-        copies = np.concatenate([copies for _, copies in found])
-        return position, items, copies
-
-    def counts(self, column: int) -> tuple[int, ...]:
-        return self._fillings[column]
-
-    @property
-    def matrix(self) -> Any:
-        return self._matrix[:, : len(self.stock)]
-
-    @property
-    def stock_of(self) -> Any:
-        """The stock index of every column, as a numpy array."""
-        return self._stock[: len(self.stock)]
-
-
 @dataclass(frozen=True)
 class LpOutcome:
     """The master at the end of column generation."""
@@ -201,9 +132,11 @@ def solve_master_lp(
         return LpOutcome((), (), 0.0, 0.0, True, 0.0, 0)
     if not usable:  # no stock left at all
         return LpOutcome((), (), float("inf"), float("inf"), True, float(sum(demand)), 0)
-    usable_set = set(usable)
     master = _Master(pool, rows, demand, limits, usable, costs)
-    active = [i for i, s in enumerate(pool.stock) if s in usable_set]
+    if len(usable) == len(limits):
+        active = list(range(len(pool)))
+    else:
+        active = np.flatnonzero(np.isin(pool.stock_of, usable)).tolist()
     wanted = np.array([max(d, 0) for d in demand], dtype=float)
     tol = 1e-9 * max(max(costs), 1e-9)
     best_bound = 0.0
