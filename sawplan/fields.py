@@ -16,6 +16,7 @@ field in the user's words, the range and the unit.  Pure: no I/O, no typer.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from types import MappingProxyType
 
@@ -158,7 +159,10 @@ _TABLE: tuple[Field, ...] = (
           names=("stock.length", "part.length")),
     Field("count", "number of pieces", "--count", "-n", "N", "Number of pieces.", low=1,
           high=1_000_000, integer=True, why="a lot of more than a million pieces is a typing slip",
-          names=("stock.count", "part.count")),
+          names=("part.count",)),
+    Field("stock_count", "bars on hand", low=0, high=1_000_000, integer=True,
+          why="0 lists a length to buy; a rack of more than a million bars is a typing slip",
+          names=("stock.count",)),
     Field("reach", "reach", "--reach", placeholder="LENGTH",
           help="Hands' distance in front of the ankles at the lift (default 25cm).",
           dimension="length", low=0, high=630, why=f"over 63 cm gives no safe load; {_NIOSH}"),
@@ -177,7 +181,8 @@ _TABLE: tuple[Field, ...] = (
           why=f"over 15 lifts a minute gives no safe load; {_NIOSH}"),
     # -- saws
     Field("saw", "saw", "--saw", "-s", "NAME", "The saw (see `sawplan saw list`).",
-          dimension="text", high=60, why="a saw's name in the shop", names=("job.saw",)),
+          dimension="text", high=60, why="a saw's name in the shop",
+          names=("job.saw", "saws.name", "fittings.saw", "cuts.saw")),
     Field("like", "saw to start from", "--like", placeholder="NAME",
           help="Start from this saw's profile."),
     Field("saw_kind", "saw kind", "--kind", placeholder="WORD",
@@ -240,7 +245,7 @@ _TABLE: tuple[Field, ...] = (
     # -- blades
     Field("tag", "blade tag", placeholder="TAG", help="The blade's tag, e.g. B-017.",
           dimension="text", high=40, why="a tag painted on the blade's box",
-          names=("blades.tag",)),
+          names=("blades.tag", "fittings.blade", "cuts.blade", "events.blade")),
     Field("blade", "blade", "--blade", placeholder="TAG",
           help="The blade's tag (default: the fitted blade).", dimension="text", high=40,
           why="a tag painted on the blade's box"),
@@ -330,6 +335,9 @@ _TABLE: tuple[Field, ...] = (
           high=5000, above=True,
           why="band saws feed metal at under 1,000 mm/min; 5,000 mm/min is a rapid traverse",
           names=("cuts.feed_mm_min",)),
+    Field("feed_setting", "feed dial setting", low=0, high=1000, above=True,
+          why="a feed dial or valve reads 0-10 or 0-100; 1,000 is no dial (common practice)",
+          names=("cuts.feed_setting",)),
     Field("job", "job", "--job", placeholder="REF", help="Job reference.", dimension="text",
           high=60, why="a job number or short name", names=("cuts.job",)),
     Field("heat", "heat number", "--heat", placeholder="TEXT",
@@ -396,6 +404,18 @@ _TABLE: tuple[Field, ...] = (
     Field("price_per_kg", "price per kg", low=0, high=1_000_000,
           why="even precious alloys cost under a million per kg in any common currency",
           names=("stock.price_per_kg",)),
+    Field("job_name", "job name", dimension="text", high=200, why=_LINE, names=("job.name",)),
+    Field("customer", "customer", dimension="text", high=200, why=_LINE,
+          names=("job.customer",)),
+    Field("due", "due date", dimension="text", high=200, why=_LINE, names=("job.due",)),
+    Field("stock_file", "stock file", dimension="text", high=200, why="a file name",
+          names=("job.stock_file",)),
+    Field("part_name", "part name", dimension="text", high=200, why=_LINE, names=("part.name",)),
+    Field("tolerance", "tolerance", dimension="text", high=200, why=_LINE,
+          names=("part.tolerance",)),
+    Field("drawing", "drawing", dimension="text", high=200, why=_LINE, names=("part.drawing",)),
+    Field("rack", "rack location", dimension="text", high=200, why=_LINE,
+          names=("stock.location",)),
     Field("remnant_credit", "rack credit", dimension="text", high=12,
           choices=("bar-price", "none"),
           why="remnants back on the rack are credited at their bar's price per length, or not",
@@ -461,11 +481,22 @@ def check_text(key: str | Field, value: str | None, *, words: str | None = None)
     if value is None:
         return None
     text = " ".join(str(value).split())
-    if any(ord(c) < 32 or 127 <= ord(c) < 160 for c in text):
+    if has_control(text):
         raise BadDataError("must not hold control characters", field=name)
     if f.high is not None and len(text) > f.high:
         raise BadDataError(f"must be {f.range_text()}, got {len(text):,} characters", field=name)
     return text
+
+
+# Characters no stored text holds: C0 and C1 controls (a terminal runs ESC sequences), DEL,
+# the line and paragraph separators, and the bidirectional overrides and isolates that
+# make text read in another order than it is stored.
+CONTROL = re.compile("[\x00-\x1f\x7f-\x9f\u2028\u2029\u202a-\u202e\u2066-\u2069]")
+
+
+def has_control(text: str) -> bool:
+    """Whether ``text`` holds a character of ``CONTROL``."""
+    return CONTROL.search(text) is not None
 
 
 def check_choice(key: str | Field, value: str, *, words: str | None = None) -> str:
