@@ -474,13 +474,19 @@ def check_count(key: str | Field, value: int, *, words: str | None = None) -> in
     return int(value)
 
 
-def check_text(key: str | Field, value: str | None, *, words: str | None = None) -> str | None:
-    """Text with white space collapsed, refused when too long or holding control characters."""
+def check_text(
+    key: str | Field, value: str | None, *, words: str | None = None, collapse: bool = True
+) -> str | None:
+    """Text with white space collapsed, refused when too long or holding control characters.
+
+    ``collapse=False`` keeps the text as it is (a file name; a value already stored) and
+    refuses line breaks and tabs with the other control characters.
+    """
     f = key if isinstance(key, Field) else FIELDS[key]
     name = words or f.words
     if value is None:
         return None
-    text = " ".join(str(value).split())
+    text = " ".join(str(value).split()) if collapse else str(value)
     if has_control(text):
         raise BadDataError("must not hold control characters", field=name)
     if f.high is not None and len(text) > f.high:

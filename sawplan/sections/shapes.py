@@ -257,7 +257,8 @@ def validate_dims(shape: str, dims: tuple[float, ...]) -> tuple[float, ...]:
 
     info = SHAPES[shape]
     for name, v in zip(info.dims, dims, strict=True):
-        check("size", v, words=name)  # the field table's range for any size of a section
+        # the field table's range for any size of a section, named in words ("leg a")
+        check("size", v, words=name.replace("_", " "))
     if shape == "flat" and dims[1] > dims[0]:
         dims = (dims[1], dims[0])
     elif shape == "rtube" and dims[1] > dims[0]:
@@ -289,12 +290,12 @@ def validate_dims(shape: str, dims: tuple[float, ...]) -> tuple[float, ...]:
         d, bf, tw, tf = dims
         _check(
             2 * tf < d,
-            "flange_thickness",
+            "flange thickness",
             f"must be less than half the depth ({_mm(d / 2)}), got {_mm(tf)}",
         )
         _check(
             tw < bf,
-            "web_thickness",
+            "web thickness",
             f"must be less than the flange width ({_mm(bf)}), got {_mm(tw)}",
         )
     return dims

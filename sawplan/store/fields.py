@@ -213,12 +213,9 @@ def _text(value: Any, rule: Any) -> None:
 
     if not isinstance(value, str):
         raise BadDataError(f"expected text, got {value!r}", field=rule.words)
-    if fields.has_control(value):
-        raise BadDataError("must not hold control characters", field=rule.words)
-    limit = rule.high if rule.is_text and rule.high is not None else MAX_OTHER_TEXT
-    if len(value) > limit:
-        raise BadDataError(f"must be at most {limit:,} characters, got {len(value):,}",
-                           field=rule.words)  # fmt: skip
+    if not rule.is_text or rule.high is None:
+        rule = fields.Field(rule.key, rule.words, dimension="text", high=MAX_OTHER_TEXT)
+    fields.check_text(rule, value, collapse=False)
 
 
 def _unruled(value: Any, words: str) -> None:
