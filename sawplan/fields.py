@@ -212,7 +212,7 @@ _TABLE: tuple[Field, ...] = (
           why="the slowest metal-cutting saws run about 10 m/min, high-speed aluminium saws about "
               "1,500 m/min (common practice)",
           names=("saws.band_speed_min_m_min", "saws.band_speed_max_m_min",
-                 "cuts.band_speed_m_min")),
+                 "cuts.band_speed_m_min", "materials.band_speed_m_min")),
     Field("speed_range", "band speed range", "--speed-range", placeholder="LOW-HIGH",
           help="Band speed range, e.g. 20-90m/min."),
     Field("power", "motor power", "--power", placeholder="POWER",
@@ -419,6 +419,26 @@ _TABLE: tuple[Field, ...] = (
     Field("drawing", "drawing", dimension="text", high=200, why=_LINE, names=("part.drawing",)),
     Field("rack", "rack location", dimension="text", high=200, why=_LINE,
           names=("stock.location",)),
+    # -- a materials file (sawplan/materials.py): one row of data/materials.csv's columns
+    Field("material_key", "material key", dimension="text", high=60,
+          why="catalogue keys are short", names=("materials.key",)),
+    Field("designation", "designation", dimension="text", high=200, why=_LINE,
+          names=("materials.designation", "materials.standard", "materials.notes")),
+    Field("uns", "UNS number", dimension="text", high=12,
+          why="a UNS number is a letter and five digits", names=("materials.uns",)),
+    Field("density", "density", dimension="density", low=500, high=23_000,
+          why="lithium, the lightest metal, is 534 kg/m³ and osmium, the densest, 22,590 kg/m³ "
+              "(memory)", names=("materials.density_kg_m3",)),
+    Field("hardness", "hardness", dimension="hardness", low=1, high=800,
+          why="Brinell numbers run from a few for lead to about 700 for hardened tool steel "
+              "(memory)", names=("materials.hardness_hb",)),
+    Field("unit_energy", "unit cutting energy", dimension="energy_density", low=0.05, high=50,
+          why="metals take from about 0.3 J/mm³ (magnesium) to under 10 J/mm³ (superalloys) to "
+              "cut, wear factors included (memory)", names=("materials.unit_energy_j_mm3",)),
+    Field("cutting_rate", "cutting rate", dimension="rate", low=10, high=1_000_000,
+          why="band saws cut metal at from about 1 cm²/min (hard alloys, small saws) to a few "
+              "hundred (aluminium); 10,000 cm²/min is no band saw (common practice)",
+          names=("materials.cutting_rate_cm2_min",)),
     Field("remnant_credit", "rack credit", dimension="text", high=12,
           choices=("bar-price", "none"),
           why="remnants back on the rack are credited at their bar's price per length, or not",
@@ -563,6 +583,10 @@ _LADDERS: dict[str, tuple[tuple[str, float], ...]] = {
     "power": (("W", 1.0), ("kW", 1000.0)),
     "force": (("N", 1.0), ("kN", 1000.0)),
     "stress": (("MPa", 1.0),),
+    "rate": (("cm²/min", 100.0),),
+    "density": (("kg/m³", 1.0),),
+    "hardness": (("HB", 1.0),),
+    "energy_density": (("J/mm³", 1.0),),
 }
 
 

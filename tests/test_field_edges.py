@@ -199,7 +199,7 @@ def test_values_drawn_from_the_field_table(shop, tmp_path, monkeypatch, path, da
 # --- an import -----------------------------------------------------------------------------
 
 # every column of an export that a field rules, but a cut's area (its rule is one cut's:
-# the area divided by the count, tested in test_store_rules)
+# the area divided by the count, tested in test_plausible_ranges)
 COLUMNS = [
     (table, column, rule)
     for table, columns in TABLES.items()

@@ -314,3 +314,35 @@ def test_control_characters_in_an_old_log_are_shown_escaped(cli, shop_log):
         assert "B-1\\u202e" in result.out
     shown = cli("blade", "show", "B-1\u202e", "--db", str(shop_log)).out
     assert "red\\x1b[31m" in shown and "east\\x1b]0;owned\\x07" in shown
+
+
+# --- a materials file ----------------------------------------------------------------------
+
+
+@pytest.mark.parametrize(
+    ("column", "cell", "words"),
+    [
+        pytest.param("band_speed_m_min", "1e308", "(band speed): must be from 3 m/min to 2,000 m/min",
+                     id="a band speed of 1e308 m/min"),
+        pytest.param("density_kg_m3", "1e308", "(density): must be from 500 kg/m³ to 23,000 kg/m³",
+                     id="a density of 1e308"),
+        pytest.param("hardness_hb", "1e-300", "(hardness): must be from 1 HB to 800 HB",
+                     id="a hardness of 1e-300 HB"),
+        pytest.param("cutting_rate_cm2_min", "0.01", "(cutting rate): must be from 0.1 cm²/min",
+                     id="a cutting rate of 0.01 cm²/min"),
+        pytest.param("notes", "red\x1b[31m", "notes: must not hold control characters",
+                     id="an escape sequence in the notes"),
+    ],
+)  # fmt: skip
+def test_a_materials_file_obeys_the_field_table(cli, tmp_path, column, cell, words):
+    catalogue = Path(__file__).parent.parent / "data" / "materials.csv"
+    with catalogue.open(encoding="utf-8", newline="") as handle:
+        row = next(r for r in csv.DictReader(handle) if r["key"] == "1018")
+    row.update(key="shop-1018", **{column: cell})
+    mine = tmp_path / "mine.csv"
+    with mine.open("w", encoding="utf-8", newline="") as handle:
+        writer = csv.DictWriter(handle, list(row))
+        writer.writeheader()
+        writer.writerow(row)
+    refused(cli("cut", "shop-1018", "round", "60mm", "--materials-file", str(mine)),
+            "mine.csv row 2", words)  # fmt: skip
