@@ -11,6 +11,7 @@ error code 1, and on failure one line on stderr with an exit code of
 from __future__ import annotations
 
 import contextlib
+import csv
 import io
 import shutil
 import sqlite3
@@ -152,3 +153,14 @@ def check_answer(code: int, err: str, what: str) -> None:
         assert err.endswith("\n") and err.count("\n") == 1, f"{what}: not one line: {err!r}"
         assert err.startswith("error: "), f"{what}: {err!r}"
         assert len(err) <= 600, f"{what}: a {len(err)}-character line"
+
+
+def set_first_cell(path: Path, column: str, cell: str) -> None:
+    """Write ``cell`` into ``column`` of the first data row of the CSV file ``path``."""
+    with path.open(encoding="utf-8", newline="") as handle:
+        rows = list(csv.DictReader(handle))
+    rows[0][column] = cell
+    with path.open("w", encoding="utf-8", newline="") as handle:
+        writer = csv.DictWriter(handle, list(rows[0]))
+        writer.writeheader()
+        writer.writerows(rows)

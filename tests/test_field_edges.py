@@ -17,13 +17,12 @@ one field would disagree there).
 
 from __future__ import annotations
 
-import csv
 import math
 import shutil
 from pathlib import Path
 
 import pytest
-from cli_walk import LEAVES, argv, baselines, build_shop, check_answer, invoke
+from cli_walk import LEAVES, argv, baselines, build_shop, check_answer, invoke, set_first_cell
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -228,14 +227,7 @@ def import_with(exported: Path, work: Path, table: str, column: str, cell: str) 
     folder = work / "csv"
     shutil.rmtree(folder, ignore_errors=True)
     shutil.copytree(exported / "csv", folder)
-    path = folder / f"{table}.csv"
-    with path.open(encoding="utf-8", newline="") as handle:
-        rows = list(csv.DictReader(handle))
-    rows[0][column] = cell
-    with path.open("w", encoding="utf-8", newline="") as handle:
-        writer = csv.DictWriter(handle, list(rows[0]))
-        writer.writeheader()
-        writer.writerows(rows)
+    set_first_cell(folder / f"{table}.csv", column, cell)
 
 
 @pytest.mark.parametrize(

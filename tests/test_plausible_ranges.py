@@ -16,6 +16,7 @@ import sqlite3
 from pathlib import Path
 
 import pytest
+from cli_walk import set_first_cell
 from logrows import snapshot
 
 from sawplan.errors import BadDataError, ExitCode
@@ -217,14 +218,7 @@ def export_with(cli, log: Path, tmp_path: Path, table: str, column: str, cell: s
     """An export of ``log`` whose first ``table`` row holds ``cell`` in ``column``."""
     folder = tmp_path / f"csv-{table}-{column}"
     assert cli("export", str(folder), "--db", str(log)).code == 0
-    path = folder / f"{table}.csv"
-    with path.open(encoding="utf-8", newline="") as handle:
-        rows = list(csv.DictReader(handle))
-    rows[0][column] = cell
-    with path.open("w", encoding="utf-8", newline="") as handle:
-        writer = csv.DictWriter(handle, list(rows[0]))
-        writer.writeheader()
-        writer.writerows(rows)
+    set_first_cell(folder / f"{table}.csv", column, cell)
     return folder
 
 
