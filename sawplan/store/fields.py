@@ -19,6 +19,7 @@ from collections.abc import Callable, Mapping
 from functools import cache, lru_cache
 from typing import Any
 
+from sawplan import fields as ft
 from sawplan.errors import BadDataError, SawplanError
 
 BLADE_STATUSES = ("new", "fitted", "removed", "retired")
@@ -53,14 +54,12 @@ def clean_text(value: str | None, *, field: str) -> str | None:
     ``field`` is where the text goes (``"blades.supplier"``) or a field's key:
     its rule in the field table gives the words and the length.
     """
-    from sawplan import fields
-
     if value is None:
         return None
     rule = _field(field)
     if rule is None or not rule.is_text:
-        rule = fields.Field(field, _words(field), dimension="text", high=MAX_OTHER_TEXT)
-    text = fields.check_text(rule, value)
+        rule = ft.Field(field, _words(field), dimension="text", high=MAX_OTHER_TEXT)
+    text = ft.check_text(rule, value)
     return text or None
 
 
@@ -88,14 +87,11 @@ def modes_hint() -> str:
 def whole_number(value: object, name: str) -> int:
     """A whole number inside the range the field table gives ``name`` (a field's key, or
     "TABLE.column"), checked before any database sees it; one line naming the field."""
-    from sawplan import fields
-
     rule = _field(name)
     if rule is None:  # a column without a rule of its own: what every engine stores
-        rule = fields.Field(name, _words(name), low=0, high=MAX_ROW_ID, integer=True)
-    if isinstance(value, bool) or not isinstance(value, int):
-        raise BadDataError(f"expected a whole number, got {value!r}", field=rule.words)
-    return fields.check_count(rule, value)
+        rule = ft.Field(name, _words(name), low=0, high=MAX_ROW_ID, integer=True)
+    _whole(value, rule)
+    return int(value)
 
 
 # --- every row the log stores -------------------------------------------------------------
@@ -107,17 +103,14 @@ def check_row(table: str, row: Mapping[str, Any]) -> None:
     A ``None`` is left to the schema (a required column refuses it there).  A cut's
     area is the batch total: the rule of ``area cut`` holds for one cut of it.
     """
-    for column, value in row.items():
-        if value is not None:
-            _rule(table, column)(value)
-    if table == "cuts" and row.get("area_mm2") is not None:
-        count = row.get("count") or 1
-        _checked("area_mm2", lambda: _number_rule("area")(row["area_mm2"] / count))
-
-
-def _checked(column: str, run: Callable[[], Any]) -> None:
+    column = ""
     try:
-        run()
+        for column, value in row.items():
+            if value is not None:
+                _rule(table, column)(value)
+        if table == "cuts" and row.get("area_mm2") is not None:
+            column = "area_mm2"
+            _number_rule("area")(row["area_mm2"] / (row.get("count") or 1))
     except StoredValueError:
         raise
     except SawplanError as err:  # a value that cannot be stored is bad data, whatever refused it
@@ -125,48 +118,37 @@ def _checked(column: str, run: Callable[[], Any]) -> None:
 
 
 @cache
-def _rule(table: str, column: str) -> Callable[[Any], None]:
+def _rule(table: str, column: str) -> Callable[[Any], Any]:
     """The check of one column's values, built once from the field table."""
-    check = _column_check(table, column)
-
-    def run(value: Any) -> None:
-        _checked(column, lambda: check(value))
-
-    return run
-
-
-def _column_check(table: str, column: str) -> Callable[[Any], None]:
-    from sawplan import fields
-
     rule = _field(f"{table}.{column}")
     words = rule.words if rule is not None else _words(column)
     if column in ("id", "blade_id", "saw_id"):
-        return lambda v: _whole(v, fields.Field(column, words, low=1, high=MAX_ROW_ID,
-                                                integer=True))  # fmt: skip
+        row_id = ft.Field(column, words, low=1, high=MAX_ROW_ID, integer=True)
+        return lambda v: _whole(v, row_id)
     if column.endswith("_on"):
-        from sawplan.store.dates import check_stored_day
-
-        return lambda v: _day(v, words, check_stored_day)
+        return lambda v: _day(v, words)
     if table == "cuts" and column == "section":
         return lambda v: (_text(v, rule), _section(v))
     if table == "cuts" and column == "area_mm2":  # the range is one cut's: see check_row
         return lambda v: _finite(v, words, above_zero=True)
     if rule is None:
-        return lambda v: _unruled(v, words)
+        text = ft.Field(column, words, dimension="text", high=MAX_OTHER_TEXT)
+        whole = ft.Field(column, words, low=0, high=MAX_ROW_ID, integer=True)
+        return lambda v: _unruled(v, text, whole)
     if rule.choices:
         return lambda v: _choice(v, rule)
     if rule.is_switch:
         return lambda v: _switch(v, words)
     if rule.is_text or (rule.low is None and rule.high is None):
+        if not rule.is_text or rule.high is None:
+            rule = ft.Field(rule.key, rule.words, dimension="text", high=MAX_OTHER_TEXT)
         return lambda v: _text(v, rule)
     return _number_rule(rule.key)
 
 
 @cache
 def _number_rule(key: str) -> Callable[[Any], None]:
-    from sawplan import fields
-
-    rule = fields.field(key)
+    rule = ft.field(key)
 
     def check(value: Any) -> None:
         if isinstance(value, str):  # a number kept as text (a feed dial's setting)
@@ -177,15 +159,13 @@ def _number_rule(key: str) -> Callable[[Any], None]:
         if rule.integer:
             _whole(value, rule)
         else:
-            fields.check(rule, value)
+            ft.check(rule, value)
 
     return check
 
 
 def _field(name: str) -> Any:
-    from sawplan import fields
-
-    return fields.FIELDS.get(name) or fields.field_for(name)
+    return ft.FIELDS.get(name) or ft.field_for(name)
 
 
 def _words(name: str) -> str:
@@ -193,11 +173,9 @@ def _words(name: str) -> str:
 
 
 def _whole(value: Any, rule: Any) -> None:
-    from sawplan import fields
-
     if isinstance(value, bool) or not isinstance(value, int):
         raise BadDataError(f"expected a whole number, got {value!r}", field=rule.words)
-    fields.check_count(rule, value)
+    ft.check_count(rule, value)
 
 
 def _finite(value: Any, words: str, *, above_zero: bool = False) -> None:
@@ -209,25 +187,19 @@ def _finite(value: Any, words: str, *, above_zero: bool = False) -> None:
 
 
 def _text(value: Any, rule: Any) -> None:
-    from sawplan import fields
-
     if not isinstance(value, str):
         raise BadDataError(f"expected text, got {value!r}", field=rule.words)
-    if not rule.is_text or rule.high is None:
-        rule = fields.Field(rule.key, rule.words, dimension="text", high=MAX_OTHER_TEXT)
-    fields.check_text(rule, value, collapse=False)
+    ft.check_text(rule, value, collapse=False)
 
 
-def _unruled(value: Any, words: str) -> None:
+def _unruled(value: Any, text: Any, whole: Any) -> None:
     """A column without a rule of its own: what any engine stores, finite and not negative."""
-    from sawplan import fields
-
     if isinstance(value, str):
-        _text(value, fields.Field(words, words, dimension="text", high=MAX_OTHER_TEXT))
+        _text(value, text)
     elif isinstance(value, int) and not isinstance(value, bool):
-        _whole(value, fields.Field(words, words, low=0, high=MAX_ROW_ID, integer=True))
+        _whole(value, whole)
     else:
-        _finite(value, words)
+        _finite(value, text.words)
 
 
 def _choice(value: Any, rule: Any) -> None:
@@ -241,9 +213,17 @@ def _switch(value: Any, words: str) -> None:
         raise BadDataError(f"expected 1 or 0, got {value!r}", field=words)
 
 
-def _day(value: Any, words: str, check_stored_day: Callable[..., str]) -> None:
+def _day(value: Any, words: str) -> None:
     if not isinstance(value, str):
         raise BadDataError(f"expected a date YYYY-MM-DD, got {value!r}", field=words)
+    _stored_day(value, words)
+
+
+@lru_cache(maxsize=4096)
+def _stored_day(value: str, words: str) -> None:
+    """A date by the rules of ``sawplan.store.dates`` (a log repeats its dates)."""
+    from sawplan.store.dates import check_stored_day
+
     check_stored_day(value, field=words)
 
 
