@@ -135,6 +135,20 @@ def saw_queue(db: Database, saw_name: str, *, limit: int | None = None) -> list[
     return db.query(sql, params)
 
 
+def queue_from(db: Database, saw_name: str, first_id: int, count: int) -> list[dict[str, Any]]:
+    """``count`` cuts still to do on a saw, from queue row ``first_id`` on, in queue order."""
+    first = db.query("SELECT job_id, seq FROM queue WHERE id = :id", {"id": int(first_id)})
+    if not first:
+        raise NotFoundError(f"that cut is not in the queue of {saw_name}", field="cut")
+    return db.query(
+        _QUEUE_SELECT + "WHERE lower(s.name) = lower(:saw) AND q.cut_id IS NULL "
+        "AND j.withdrawn_on IS NULL AND (q.job_id > :job OR (q.job_id = :job AND q.seq >= :seq)) "
+        "ORDER BY j.id, q.seq LIMIT :count",
+        {"saw": saw_name.strip(), "job": first[0]["job_id"], "seq": first[0]["seq"],
+         "count": int(count)},
+    )  # fmt: skip
+
+
 def job_progress(db: Database, saw_name: str | None = None) -> list[dict[str, Any]]:
     """Every job sent (or those of one saw): cuts in its queue and cuts done, oldest first."""
     sql = (
@@ -364,6 +378,23 @@ def _is_unique_violation(err: BaseException) -> bool:
     if isinstance(orig, sqlite3.IntegrityError):
         return "unique" in str(orig).lower()
     return sqlstate(err) == "23505"
+
+
+def tap_said(db: Database, tap: str) -> str | None:
+    """What the tap with this key saved (None: no such tap)."""
+    if not TAP_KEY.match(tap or ""):
+        return None
+    found = db.scalar("SELECT said FROM taps WHERE tap = :tap", {"tap": tap})
+    return None if found is None else str(found)
+
+
+def recent_taps(db: Database, saw_name: str, *, limit: int = 5) -> list[dict[str, Any]]:
+    """The latest taps saved at a saw, newest first: what the station says it saved."""
+    return db.query(
+        "SELECT t.kind, t.tapped_at, t.said FROM taps t JOIN saws s ON s.id = t.saw_id "
+        "WHERE lower(s.name) = lower(:saw) ORDER BY t.id DESC LIMIT :limit",
+        {"saw": saw_name.strip(), "limit": int(limit)},
+    )
 
 
 def tap_count(db: Database, kind: str | None = None) -> int:
