@@ -1,0 +1,1 @@
+"""The shop-floor station: a small web application over the blade log."""
