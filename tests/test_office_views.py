@@ -124,6 +124,7 @@ def test_weibull_chart_has_axes_in_the_shops_units(office_views, units, area):
     life, _ = office_views
     svg = charts.weibull_svg(life.weibull, Display(UnitSystem(units)))
     assert svg.startswith("<svg") and "<title" in svg and "<desc" in svg
+    assert "style" not in svg  # the station's Content-Security-Policy allows no inline style
     assert f"life: area cut ({area}, log scale)" in svg
     assert "blades failed (Weibull scale)" in svg and "63.2 %" in svg
     assert ("cm²" in svg) == (units == "metric")  # no unit of the other system
