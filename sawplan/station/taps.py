@@ -243,26 +243,23 @@ def blade_on(db: Log, view: StationView, sent: Typed, d: Display) -> Step:
 
 
 def _new_blade(view: StationView, sent: Typed, d: Display):
-    """The blade typed into "add a new blade", or None when none was typed."""
-    from sawplan.cutting.pitch import parse_pitch
-    from sawplan.store.records import BladeSpec
+    """The blade typed into "add a new blade" (read as ``sawplan blade add`` reads it), or
+    None when no tag was typed.  Width and thickness default to the saw's blade."""
+    from sawplan.store.blade_input import blade_spec
 
     tag = sent.text("tag")
     if tag is None:
         return None
-    pitch = parse_pitch(sent.required("pitch"), field="pitch")
-    unit = _length_unit(d)
     saw = view.saw
-    return BladeSpec(
-        tag=tag,
-        width_mm=sent.quantity("width", default_unit=unit) or saw.blade_width_mm,
-        thickness_mm=sent.quantity("thickness", default_unit=unit) or saw.blade_thickness_mm,
-        length_mm=saw.blade_length_mm,
-        tpi_coarse=pitch.tpi_coarse,
-        tpi_fine=pitch.tpi_fine,
+    return blade_spec(
+        tag,
+        pitch=sent.required("pitch"),
+        width=sent.text("width") or f"{saw.blade_width_mm!r}mm",
+        thickness=sent.text("thickness") or f"{saw.blade_thickness_mm!r}mm",
+        length=f"{saw.blade_length_mm!r}mm" if saw.blade_length_mm else None,
         supplier=sent.words("supplier"),
         lot=sent.words("lot"),
-        price=sent.quantity("price"),
+        price=sent.text("price"),
     )
 
 
