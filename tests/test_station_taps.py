@@ -16,6 +16,7 @@ from pathlib import Path
 import pytest
 from logrows import snapshot
 from starlette.testclient import TestClient
+from station_server import form_values
 
 HERE = Path(__file__).parent
 SAW = "mid-production"
@@ -45,16 +46,7 @@ def station(cli, tmp_path, monkeypatch):
 
 
 def form(html: str, kind: str) -> dict[str, str]:
-    """The hidden and prefilled values of one form of the page."""
-    start = html.index(f'action="/saw/{SAW}/tap/{kind}"')
-    chunk = html[start : html.index("</form>", start)]
-    values = {}
-    for tag in re.findall(r"<input[^>]*>", chunk):
-        name = re.search(r'name="([^"]+)"', tag)
-        value = re.search(r'value="([^"]*)"', tag)
-        if name and value and 'type="checkbox"' not in tag:
-            values[name.group(1)] = value.group(1)
-    return values
+    return form_values(html, f"/saw/{SAW}/tap/{kind}")
 
 
 def tap(client, kind: str, **typed: str):
