@@ -362,14 +362,22 @@ def check_key(access: Access, scope: Scope, key: str) -> str | None:
     return role
 
 
-def sign_in(response: Response, access: Access, role: str) -> None:
+def over_tls(access: Access, scope: Scope) -> bool:
+    """Cookies only over TLS: always when told, else when a proxy says it took HTTPS."""
+    if access.secure_cookies or scope.get("scheme") == "https":
+        return True
+    proto = dict(scope.get("headers", ())).get(b"x-forwarded-proto", b"")
+    return proto.decode("latin-1").strip().lower() == "https"
+
+
+def sign_in(response: Response, access: Access, role: str, scope: Scope) -> None:
     response.set_cookie(
         SESSION_COOKIE,
         session_value(access.keys.secret, role),
         max_age=SESSION_DAYS * 86400,
         httponly=True,
         samesite="strict",
-        secure=access.secure_cookies,
+        secure=over_tls(access, scope),
         path="/",
     )
 
@@ -421,7 +429,7 @@ class Guard:
             if receive is None:
                 return
         if fresh:
-            send = self._with_cookie(send, cookie)
+            send = self._with_cookie(send, cookie, over_tls(self.access, scope))
         await self.app(scope, receive, send)
 
     def _network_role(self, scope: Scope, request: Request) -> str | None:
@@ -488,8 +496,8 @@ class Guard:
 
         return wrapped
 
-    def _with_cookie(self, send: Send, cookie: str) -> Send:
-        secure = "; Secure" if self.access.secure_cookies else ""
+    def _with_cookie(self, send: Send, cookie: str, tls: bool) -> Send:
+        secure = "; Secure" if tls else ""
         value = f"{CSRF_COOKIE}={cookie}; Path=/; HttpOnly; SameSite=Strict{secure}"
 
         async def wrapped(message: Message) -> None:

@@ -138,5 +138,5 @@ async def key_page(request: Request) -> Response:
     if role is None:
         return render(request, "key.html", {"error": error}, status=403)
     response = RedirectResponse("/", 303)
-    sign_in(response, request.app.state.access, role)
+    sign_in(response, request.app.state.access, role, request.scope)
     return response
