@@ -498,7 +498,8 @@ class Guard:
 
     def _with_cookie(self, send: Send, cookie: str, tls: bool) -> Send:
         secure = "; Secure" if tls else ""
-        value = f"{CSRF_COOKIE}={cookie}; Path=/; HttpOnly; SameSite=Strict{secure}"
+        age = SESSION_DAYS * 86400  # kept as long as a session: a tablet's open page stays valid
+        value = f"{CSRF_COOKIE}={cookie}; Path=/; Max-Age={age}; HttpOnly; SameSite=Strict{secure}"
 
         async def wrapped(message: Message) -> None:
             if message["type"] == "http.response.start":
