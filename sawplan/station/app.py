@@ -111,12 +111,11 @@ def routes() -> list[BaseRoute]:
 def office_routes() -> list[BaseRoute] | None:
     """The office pages, when ``sawplan.station.office`` is installed."""
     try:
-        module = importlib.import_module("sawplan.station.office")
+        return list(importlib.import_module("sawplan.station.office").routes())
     except ModuleNotFoundError as err:
         if err.name and err.name.startswith("sawplan.station.office"):
             return None
         raise
-    return list(module.routes())
 
 
 async def healthz(request: Request) -> Response:

@@ -30,6 +30,9 @@ if TYPE_CHECKING:  # pragma: no cover
     from sawplan.store.db import Log
 
 Step = Callable[[], str]
+# A measured time under a fifth of the model's is a Start tapped late or a Cut done tapped
+# early: logging it would drag the calibration (actual ÷ model time) down for nothing.
+TOO_QUICK = 0.2
 
 
 async def tap(request: Request) -> Response:
@@ -110,17 +113,23 @@ def done(db: Log, view: StationView, sent: Typed, d: Display) -> Step:
             field="cuts",
         )
     ended = now()
-    minutes, how = typed_min, "as typed"
-    if minutes is None:
-        minutes, how = measured_minutes(rows[0].get("started_at"), ended)
-        if minutes is not None:
-            fields.check("time", minutes)
     head = rows[0]
     model = None
     if not bundle and view.blade is not None:
         settings = next_settings(db, view.saw, view.blade, head)
         if settings["cut"] is not None:
             model = settings["cut"].cut_time_model_min * count
+    minutes, how = typed_min, "as typed"
+    if minutes is None:
+        minutes, how = measured_minutes(head.get("started_at"), ended)
+        if minutes is not None and model is not None and minutes < model * TOO_QUICK:
+            how = (
+                f"not logged: {d.fmt('time', minutes)} from Start is far less than the "
+                f"{d.fmt('time', model)} these cuts take; type the time if it is right"
+            )
+            minutes = None
+        elif minutes is not None:
+            fields.check("time", minutes)
     heats = {r["heat"] for r in rows}
 
     def entry(target, chosen: list[dict[str, Any]]) -> CutEntry:
@@ -145,11 +154,10 @@ def done(db: Log, view: StationView, sent: Typed, d: Display) -> Step:
             db, view.saw.name, [r["id"] for r in rows], entry, on=ended.date().isoformat()
         )
         what = cut_words(chosen[0], d) if len(chosen) == 1 else _cuts_words(chosen, bundle)
-        time = (
-            f"{d.fmt('time', logged.time_min)} {how}"
-            if logged.time_min is not None
-            else "no time (Start was not tapped)"
-        )
+        if logged.time_min is not None:
+            time = f"{d.fmt('time', logged.time_min)} {how}"
+        else:
+            time = f"time {how}" if how else "no time (Start was not tapped)"
         tag = view.blade.tag if view.blade is not None else "the fitted blade"
         return f"Logged {what} on blade {tag}: {d.fmt('area', logged.area_mm2)}, {time}."
 
@@ -243,26 +251,23 @@ def blade_on(db: Log, view: StationView, sent: Typed, d: Display) -> Step:
 
 
 def _new_blade(view: StationView, sent: Typed, d: Display):
-    """The blade typed into "add a new blade", or None when none was typed."""
-    from sawplan.cutting.pitch import parse_pitch
-    from sawplan.store.records import BladeSpec
+    """The blade typed into "add a new blade" (read as ``sawplan blade add`` reads it), or
+    None when no tag was typed.  Width and thickness default to the saw's blade."""
+    from sawplan.store.blade_input import blade_spec
 
     tag = sent.text("tag")
     if tag is None:
         return None
-    pitch = parse_pitch(sent.required("pitch"), field="pitch")
-    unit = _length_unit(d)
     saw = view.saw
-    return BladeSpec(
-        tag=tag,
-        width_mm=sent.quantity("width", default_unit=unit) or saw.blade_width_mm,
-        thickness_mm=sent.quantity("thickness", default_unit=unit) or saw.blade_thickness_mm,
-        length_mm=saw.blade_length_mm,
-        tpi_coarse=pitch.tpi_coarse,
-        tpi_fine=pitch.tpi_fine,
+    return blade_spec(
+        tag,
+        pitch=sent.required("pitch"),
+        width=sent.text("width") or f"{saw.blade_width_mm!r}mm",
+        thickness=sent.text("thickness") or f"{saw.blade_thickness_mm!r}mm",
+        length=f"{saw.blade_length_mm!r}mm" if saw.blade_length_mm else None,
         supplier=sent.words("supplier"),
         lot=sent.words("lot"),
-        price=sent.quantity("price"),
+        price=sent.text("price"),
     )
 
 
