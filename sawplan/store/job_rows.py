@@ -63,9 +63,7 @@ def move_job(
             {"saw": saw_id, "name": job["name"]},
         )
         if twin:
-            raise ConflictError(
-                f"{saw_label} already has an open job {job['name']!r}", field="saw"
-            )
+            raise ConflictError(f"{saw_label} already has an open job {job['name']!r}", field="saw")
         db.update("jobs", job["id"], {"saw_id": saw_id})
         return str(job["name"]), saw_label
 

@@ -24,7 +24,7 @@ from starlette.routing import BaseRoute, Route
 
 from sawplan.errors import SawplanError
 from sawplan.station.forms import FORMS, FormError, Typed, place, typed
-from sawplan.station.office.routes import page
+from sawplan.station.office.pages import page
 from sawplan.station.web import log_of, render
 
 if TYPE_CHECKING:  # pragma: no cover

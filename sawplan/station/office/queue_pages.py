@@ -15,7 +15,7 @@ from starlette.requests import Request
 from starlette.responses import Response
 from starlette.routing import BaseRoute, Route
 
-from sawplan.station.office.routes import page
+from sawplan.station.office.pages import page
 from sawplan.station.web import display_of, log_of, render
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -68,7 +68,7 @@ def shelf_page(request: Request) -> Response:
 
 def shelf_chart_csv(request: Request) -> Response:
     from sawplan.station.office import charts
-    from sawplan.station.office.routes import csv_response
+    from sawplan.station.office.pages import csv_response
     from sawplan.station.office.views import shelf_view
 
     with log_of(request) as db:
