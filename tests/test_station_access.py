@@ -44,7 +44,9 @@ def station(tmp_path_factory):
     clear = make_keys(keys_file)
     app = create_app(str(folder / "log.sqlite"), keys=load_keys(keys_file), units="metric")
     # first: the /office mount of the office pages would answer 404 for a route after it
-    app.router.routes.insert(0, Route("/office/test-action", office_action, methods=["GET", "POST"]))
+    app.router.routes.insert(
+        0, Route("/office/test-action", office_action, methods=["GET", "POST"])
+    )
     return app, clear
 
 
