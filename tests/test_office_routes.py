@@ -170,3 +170,15 @@ def test_office_actions_write_through_the_store_and_refuse_beside_the_field(tmp_
 def _blade_count(db: str) -> int:
     with connect(db, create=False) as log:
         return int(log.scalar("SELECT COUNT(*) FROM blades"))
+
+
+def test_numbers_follow_the_shops_units(shop):
+    """Served in US units, the pages show no metric unit (the CSV keeps SI in its headers)."""
+    app = create_app(shop["db"], units="us")
+    with local(app) as c:
+        pages = {p: c.get(p).text for p in ("/office/life", "/office/jobs", "/office/shelf")}
+        sheet = c.get(f"/office/jobs/{shop['job']}").text
+    assert "life: area cut (in², log scale)" in pages["/office/life"]
+    for path, html in [*pages.items(), ("sheet", sheet)]:
+        for metric in ("cm²", " mm", "(mm)", "m²"):
+            assert metric not in html.replace("ft²", ""), f"{path} shows {metric!r}"
