@@ -140,3 +140,14 @@ def test_a_remnant_out_of_range_is_refused_with_its_field_and_nothing_written(se
         rack_remnant(db, RemnantEntry(length_mm=310.0, racked_on=TODAY, saw=SAW, heat="H-2231"))
     (row,) = snapshot(sent)["remnants"]
     assert 310.0 in row and "H-2231" in row
+
+
+def test_a_copy_of_the_log_carries_the_station_rows(cli, sent, tmp_path):
+    with connect(sent) as db:
+        rack_remnant(db, RemnantEntry(length_mm=350.0, racked_on=TODAY, saw=SAW, rack="R1"))
+    copy = tmp_path / "copy.sqlite"
+    result = cli("db", "copy", "--from", sent, "--to", str(copy))
+    assert result.code == 0, result.err
+    original, copied = snapshot(sent), snapshot(copy)
+    for table in ("jobs", "queue", "remnants"):
+        assert copied[table] == original[table] and copied[table]

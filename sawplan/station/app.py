@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import contextlib
 import importlib
+import threading
 from collections.abc import AsyncIterator
 from typing import TYPE_CHECKING
 
@@ -89,6 +90,11 @@ def create_app(
         lifespan=lifespan,
     )
     app.state.access = access
+    # One tap written at a time by this server.  SQLite takes one writer at a time anyway;
+    # on PostgreSQL, taps of several stations read the same small tables (queue, taps) in
+    # SERIALIZABLE transactions, and the server would abort all but one and have them retry.
+    # Other programs writing the log (the CLI, another server) are still retried as usual.
+    app.state.write_lock = threading.Lock()
     app.state.logs = logs
     app.state.db = db
     app.state.display = Display(UnitSystem(str(units)))

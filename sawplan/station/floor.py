@@ -100,8 +100,11 @@ class StationView:
     recent: list[dict[str, Any]]
 
 
-def station_view(db: Log, name: str) -> StationView | None:
-    """Everything the station page of saw ``name`` shows (None: no such saw)."""
+def station_view(db: Log, name: str, *, for_tap: bool = False) -> StationView | None:
+    """Everything the station page of saw ``name`` shows (None: no such saw).
+
+    ``for_tap``: only what a tap needs (the saw, its blade, the head of the queue).
+    """
     from sawplan.life.failure_modes import failure_modes
     from sawplan.store.records import find_saw, fitted_on_saws, get_blade, list_blades
     from sawplan.store.station_rows import job_progress, recent_taps, saw_queue
@@ -111,6 +114,9 @@ def station_view(db: Log, name: str) -> StationView | None:
         return None
     tag = fitted_on_saws(db).get(saw.name.lower())
     blade = get_blade(db, tag) if tag else None
+    if for_tap:
+        queue = saw_queue(db, saw.name, limit=1)
+        return StationView(saw, blade, None, queue, False, [], None, [], [], [])
     queue = saw_queue(db, saw.name, limit=QUEUE_SHOWN + 1)
     nxt = queue[0] if queue else None
     jobs = [

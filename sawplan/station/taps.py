@@ -50,13 +50,14 @@ def _tap(request: Request, saw_name: str, sent: Typed) -> Response:
     d = display_of(request)
     key = sent.values.get("tap", "")
     with log_of(request) as db:
-        view = load_view(db, saw_name)
+        view = load_view(db, saw_name, for_tap=True)
         if view is None:
             return missing(request, saw_name)
         if tap_said(db, key) is None:  # a tap seen before is answered below, not run again
             try:
                 step = BUILDERS[sent.kind](db, view, sent, d)
-                once(db, key, sent.kind, step, at=now().isoformat(), saw_name=view.saw.name)
+                with request.app.state.write_lock:
+                    once(db, key, sent.kind, step, at=now().isoformat(), saw_name=view.saw.name)
             except SawplanError as err:
                 fresh = load_view(db, saw_name) or view
                 context = page_context(fresh, d, error=place(sent.kind, err), typed=sent)

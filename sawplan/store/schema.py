@@ -41,6 +41,7 @@ TABLE_NAMES = ("saws", "blades", "fittings", "cuts", "events")  # parents before
 # the shop-floor station's tables (revision 0004): jobs sent to saws, their queue of cuts,
 # remnants racked, notes from the saw, the taps saved (``sawplan.store.station_rows``)
 STATION_TABLES = ("jobs", "queue", "remnants", "saw_notes", "taps")
+ALL_TABLES = TABLE_NAMES + STATION_TABLES  # what copies, backups and checks carry; parents first
 
 # Profile columns of a saw (``sawplan.saws.Saw`` fields with units), in table order.
 SAW_PROFILE_COLUMNS: dict[str, type] = {
