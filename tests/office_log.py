@@ -70,3 +70,26 @@ def build(db_path: str) -> None:
                 remove_blade(db, tag, on="2024-02-20")
             elif end is not None:
                 retire_blade(db, tag, end, on=on)
+
+
+ROUND_50_MM2 = 1963.4954084936207  # π × 25², the area of one cut through a 50 mm round
+
+
+def send(db_path: str, saw: str, name: str, cuts: int = 4, pitch: str = "4/6") -> int:
+    """Queue ``cuts`` cuts of a 50 mm round on ``saw`` as job ``name``; returns the job's id."""
+    from sawplan.saws import load_saws
+    from sawplan.store import connect
+    from sawplan.store.station_rows import send_job
+
+    rows = [
+        {"seq": i, "bar": 1, "step": "trim" if i == 1 else "part", "position_mm": 5.0 + 300 * (i - 1),
+         "mark": None if i == 1 else "A", "part": None if i == 1 else "shaft", "heat": "H-1",
+         "stock": "1018 round 50 mm", "location": "R1", "material": "1018",
+         "material_group": "carbon-steel", "section": "round 50mm", "area_mm2": ROUND_50_MM2,
+         "predicted_time_min": 2.0, "band_speed_m_min": 60.0, "feed_mm_min": 40.0, "pitch": pitch}
+        for i in range(1, cuts + 1)
+    ]  # fmt: skip
+    with connect(db_path) as db:
+        profile = dataclasses.replace(load_saws()["mid-production"], name=saw)
+        sent = send_job(db, name=name, saw_name=saw, profile=profile, cuts=rows, on="2024-06-01")
+    return sent.id

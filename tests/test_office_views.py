@@ -14,7 +14,7 @@ import io
 
 import numpy as np
 import pytest
-from office_log import BLADES, RATIOS, build
+from office_log import BLADES, RATIOS, ROUND_50_MM2, build, send
 
 from sawplan.display import Display, UnitSystem
 from sawplan.render import to_csv
@@ -31,6 +31,7 @@ def test_views_on_both_engines(log_db):
     check_weibull(life)
     check_recent(life)
     check_trend(cal)
+    check_jobs_and_shelf(log_db)
 
     from sawplan.store.records import retire_blade
 
@@ -43,6 +44,42 @@ def test_views_on_both_engines(log_db):
     before = {m.code: m.count for m in life.report.failure_modes.modes}
     assert counts["stripped"] == before["stripped"] + 1
     assert len(after.weibull.plot.points) == len(life.weibull.plot.points) + 1
+
+
+def check_jobs_and_shelf(db_path: str) -> None:
+    """A job of four cuts on bay 2: its progress, what the queue needs, the shelf; then the
+    office withdraws one job and moves the other."""
+    from sawplan.errors import ConflictError
+    from sawplan.store.job_rows import move_job, withdraw_job
+
+    first = send(db_path, "bay 2", "shafts", cuts=4)
+    second = send(db_path, "bay 2", "collars", cuts=2, pitch="3/4")
+    with connect(db_path, create=False) as db:
+        jobs = views.jobs_view(db)
+        shelf = views.shelf_view(db)
+    line = next(j for j in jobs.jobs if j.id == first)
+    assert (line.saw, line.cuts, line.done, line.state) == ("bay 2", 4, 0, "open")
+    assert line.area_left_cm2 == pytest.approx(4 * ROUND_50_MM2 / 100.0)
+    assert line.time_left_min == pytest.approx(8.0)
+    needs = {(n.saw, n.pitch): n for n in jobs.needs}
+    assert set(needs) == {("bay 2", "4/6"), ("bay 2", "3/4")}
+    assert (
+        needs[("bay 2", "4/6")].cuts_left == 4
+        and needs[("bay 2", "4/6")].forecast.blades_needed >= 1
+    )
+    # B-08 was taken off unworn: 27×0.9 4/6, the size and pitch bay 2's first job needs
+    assert [b.tag for b in shelf.shelf] == ["B-08"]
+    balance = {b.pitch: b for b in shelf.balance}
+    assert balance["4/6"].on_shelf == ("B-08",) and balance["3/4"].on_shelf == ()
+    with connect(db_path) as db:
+        assert withdraw_job(db, second, on="2024-06-02") == "collars"
+        with pytest.raises(ConflictError):
+            withdraw_job(db, second, on="2024-06-02")
+        assert move_job(db, first, "bay 1", None, on="2024-06-02") == ("shafts", "bay 1")
+        after = views.jobs_view(db)
+    states = {j.id: (j.saw, j.state) for j in after.jobs}
+    assert states == {first: ("bay 1", "open"), second: ("bay 2", "withdrawn")}
+    assert [(n.saw, n.pitch) for n in after.needs] == [("bay 1", "4/6")]
 
 
 def check_weibull(life: views.LifeView) -> None:

@@ -43,7 +43,10 @@ def station(tmp_path_factory):
     keys_file = folder / "station-keys.json"
     clear = make_keys(keys_file)
     app = create_app(str(folder / "log.sqlite"), keys=load_keys(keys_file), units="metric")
-    app.router.routes.append(Route("/office/test-action", office_action, methods=["GET", "POST"]))
+    # first: the /office mount of the office pages would answer 404 for a route after it
+    app.router.routes.insert(
+        0, Route("/office/test-action", office_action, methods=["GET", "POST"])
+    )
     return app, clear
 
 

@@ -2,7 +2,8 @@
 
 - ``views``: what each page shows, as frozen dataclasses built from the store's reports;
 - ``charts``: those views drawn as inline SVG (matplotlib) and as CSV rows;
-- ``routes``: the Starlette routes the station app mounts under ``/office``.
+- ``pages``: the read-only pages and the chart CSV, ``queue_pages``: jobs, job sheets
+  and the shelf, ``actions``: the office forms; ``routes()`` gathers them for ``/office``.
 
 Importing this package costs nothing: Starlette, Jinja2 and matplotlib load when
 the routes are built or a page is drawn.
@@ -18,6 +19,6 @@ if TYPE_CHECKING:  # pragma: no cover
 
 def routes() -> list[BaseRoute]:
     """The office pages and actions, to mount under ``/office``."""
-    from sawplan.station.office.routes import office_routes
+    from sawplan.station.office.pages import office_routes
 
     return office_routes()

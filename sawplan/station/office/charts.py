@@ -27,7 +27,12 @@ from sawplan.display import Display, fmt_percent, fmt_plain
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.life import BladeCost, ModeRanking
-    from sawplan.station.office.views import CalibrationView, WeibullView
+    from sawplan.station.office.views import (
+        BladeBalance,
+        CalibrationView,
+        ShelfView,
+        WeibullView,
+    )
 
 WIDTH_IN, HEIGHT_IN = 7.5, 4.2  # figure size in inches (the page scales the SVG to fit)
 # fractions failed labelled on the Weibull plot, most wanted first: η (63.2 %), B10, the median
@@ -295,3 +300,55 @@ def calibration_csv(view: CalibrationView) -> tuple[list[str], list[list[Any]]]:
 
 def _series(saw: str | None, group: str | None) -> str:
     return f"{saw or '(no saw)'} · {group or '(no group)'}"
+
+
+# --- blades on the shelf against the queues' needs --------------------------------------------
+
+
+def shelf_svg(view: ShelfView, d: Display) -> str:
+    """Per blade size and pitch: blades the open queues need beside those fitted and shelved."""
+    rows = list(view.balance)
+    labels = [_blade_label(b, d) for b in rows]
+    desc = (
+        "; ".join(
+            f"{label}: {b.needed} needed, {len(b.fitted)} fitted, {len(b.on_shelf)} on the shelf"
+            for label, b in zip(labels, rows, strict=True)
+        )
+        or "no open queue"
+    )
+    pct = fmt_percent(view.confidence)
+
+    def paint(ax: Any) -> None:
+        ys = list(range(len(rows)))[::-1]
+        height = 0.38
+        ax.barh([y + height / 2 for y in ys], [b.needed for b in rows], height,
+                color="#d95f0e", label=f"needed by the open queues ({pct} sure)")  # fmt: skip
+        ax.barh([y - height / 2 for y in ys], [len(b.fitted) for b in rows], height,
+                color="#08519c", label="fitted now")  # fmt: skip
+        ax.barh([y - height / 2 for y in ys], [len(b.on_shelf) for b in rows], height,
+                left=[len(b.fitted) for b in rows], color="#9ecae1", label="on the shelf")  # fmt: skip
+        ax.set_yticks(ys, labels)
+        ax.set_xlabel("blades")
+        ax.xaxis.get_major_locator().set_params(integer=True)
+        ax.grid(axis="y", visible=False)
+        ax.legend(fontsize=8, loc="lower right")
+
+    title = "Blades needed by the queues against blades to hand"
+    return _draw("shelf", title, desc, paint, _bars_height(len(rows) + len(rows) // 2))
+
+
+def shelf_csv(view: ShelfView) -> tuple[list[str], list[list[Any]]]:
+    headers = ["width_mm", "thickness_mm", "pitch", "saws", "needed", "fitted", "on_shelf",
+               "short", "fitted_tags", "shelf_tags"]  # fmt: skip
+    rows = [
+        [b.width_mm, b.thickness_mm, b.pitch, "; ".join(b.saws), b.needed, len(b.fitted),
+         len(b.on_shelf), b.short, " ".join(b.fitted), " ".join(b.on_shelf)]
+        for b in view.balance
+    ]  # fmt: skip
+    return headers, rows
+
+
+def _blade_label(b: BladeBalance, d: Display) -> str:
+    if b.width_mm is None or b.thickness_mm is None:
+        return f"pitch {b.pitch}"
+    return f"{d.size(b.width_mm)}×{d.size(b.thickness_mm)} {d.label('length')}, {b.pitch}"

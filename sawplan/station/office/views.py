@@ -19,9 +19,11 @@ from sawplan.store.reports import DEFAULT_CONFIDENCE
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.life import WeibullPlot
+    from sawplan.store.blade_rows import Blade
     from sawplan.store.calibration import CalibrationRow
     from sawplan.store.db import Log
     from sawplan.store.life_report import LifeReport
+    from sawplan.store.reports import JobForecast
     from sawplan.store.stats import TimedCut
 
 # failed fractions at which the plot's interval band is worked out (those inside the fit's line)
@@ -239,3 +241,205 @@ def calibration_trend(entries: Sequence[TimedCut]) -> tuple[TrendPoint, ...]:
                 )
             )
     return tuple(points)
+
+
+# --- jobs sent to the saws, and the blades they need ------------------------------------------
+
+CLOSED_JOBS_SHOWN = 20  # finished or withdrawn jobs listed under the open ones, newest first
+SIZE_TOLERANCE_MM = 0.05  # a blade fits a saw when its width and thickness match to this
+
+
+@dataclass(frozen=True)
+class JobLine:
+    """One job sent to a saw, with its progress through the queue."""
+
+    id: int
+    name: str
+    saw: str
+    sent_on: str
+    customer: str | None
+    due: str | None
+    withdrawn_on: str | None
+    cuts: int
+    done: int
+    area_done_cm2: float
+    area_left_cm2: float
+    time_left_min: float | None  # the plan's times of the cuts still to do (None: not timed)
+
+    @property
+    def state(self) -> str:
+        if self.withdrawn_on:
+            return "withdrawn"
+        return "finished" if self.done >= self.cuts else "open"
+
+
+@dataclass(frozen=True)
+class SawNeed:
+    """What the open queue of one saw needs of one pitch: area to cut and blades to cut it."""
+
+    saw: str
+    pitch: str
+    width_mm: float | None  # the saw's blade size (None: the saw's profile does not say)
+    thickness_mm: float | None
+    cuts_left: int
+    forecast: JobForecast  # blades needed at the forecast's confidence, per group and in all
+
+
+@dataclass(frozen=True)
+class JobsView:
+    """``/office/jobs``: every job sent, its progress, and the blades the open queue needs."""
+
+    jobs: tuple[JobLine, ...]  # open first (oldest first), then the latest closed ones
+    needs: tuple[SawNeed, ...]
+
+
+@dataclass(frozen=True)
+class JobSheet:
+    """One job's cut sheet as queued: every pass of the blade in order, done or to do."""
+
+    job: JobLine
+    cuts: tuple[dict, ...]  # the queue rows (``station_rows.job_cuts``)
+
+
+def jobs_view(db: Log, *, confidence: float = DEFAULT_CONFIDENCE) -> JobsView:
+    """Every job with its progress; the blades each saw's open queue needs, per pitch."""
+    from sawplan.store.station_rows import job_progress
+
+    progress = job_progress(db)
+    open_jobs = [j for j in progress if not j["withdrawn_on"] and j["done"] < j["cuts"]]
+    closed = [j for j in progress if j not in open_jobs][::-1][:CLOSED_JOBS_SHOWN]
+    lines = tuple(_job_line(db, j) for j in (*open_jobs, *closed))
+    return JobsView(lines, queue_needs(db, confidence=confidence))
+
+
+def job_sheet(db: Log, job_id: int) -> JobSheet | None:
+    from sawplan.store.station_rows import job_cuts, job_progress
+
+    found = [j for j in job_progress(db) if j["id"] == job_id]
+    if not found:
+        return None
+    return JobSheet(_job_line(db, found[0]), tuple(job_cuts(db, job_id)))
+
+
+def _job_line(db: Log, job: dict) -> JobLine:
+    from sawplan.store.station_rows import job_cuts
+
+    rows = job_cuts(db, job["id"])
+    left = [r for r in rows if r["cut_id"] is None]
+    times = [r["predicted_time_min"] for r in left]
+    return JobLine(
+        id=job["id"],
+        name=job["name"],
+        saw=job["saw"],
+        sent_on=job["sent_on"],
+        customer=job["customer"],
+        due=job["due"],
+        withdrawn_on=job["withdrawn_on"],
+        cuts=int(job["cuts"]),
+        done=int(job["done"]),
+        area_done_cm2=math.fsum(r["area_mm2"] for r in rows if r["cut_id"] is not None) / 100.0,
+        area_left_cm2=math.fsum(r["area_mm2"] for r in left) / 100.0,
+        time_left_min=math.fsum(times) if all(t is not None for t in times) else None,
+    )
+
+
+def queue_needs(db: Log, *, confidence: float = DEFAULT_CONFIDENCE) -> tuple[SawNeed, ...]:
+    """Per saw and pitch of its open queue: the area left by material group, forecast."""
+    from sawplan.store.records import find_saw, logged_saws
+    from sawplan.store.reports import forecast_areas
+    from sawplan.store.station_rows import saw_queue
+
+    needs = []
+    for saw in logged_saws(db):
+        by_pitch: dict[str, dict[str, float]] = defaultdict(lambda: defaultdict(float))
+        cuts: dict[str, int] = defaultdict(int)
+        for row in saw_queue(db, saw.name):
+            pitch = row["pitch"] or "(no pitch)"
+            by_pitch[pitch][row["material_group"] or row["material"]] += row["area_mm2"] / 100.0
+            cuts[pitch] += 1
+        profile = find_saw(db, saw.name)
+        for pitch in sorted(by_pitch):
+            needs.append(
+                SawNeed(
+                    saw=saw.name,
+                    pitch=pitch,
+                    width_mm=getattr(profile, "blade_width_mm", None),
+                    thickness_mm=getattr(profile, "blade_thickness_mm", None),
+                    cuts_left=cuts[pitch],
+                    forecast=forecast_areas(db, by_pitch[pitch], confidence=confidence),
+                )
+            )
+    return tuple(needs)
+
+
+@dataclass(frozen=True)
+class BladeBalance:
+    """Blades of one size and pitch: what the open queues need against what is to hand."""
+
+    width_mm: float | None
+    thickness_mm: float | None
+    pitch: str
+    needed: int  # summed over the saws that need it
+    fitted: tuple[str, ...]  # tags fitted now on those saws, of this size and pitch
+    on_shelf: tuple[str, ...]  # tags not fitted and not retired, of this size and pitch
+    saws: tuple[str, ...]
+
+    @property
+    def short(self) -> int:
+        """Blades to get before the queues are cut (0 when the shelf covers them)."""
+        return max(0, self.needed - len(self.fitted) - len(self.on_shelf))
+
+
+@dataclass(frozen=True)
+class ShelfView:
+    """``/office/shelf``: the blades on the shelf against what the queues need."""
+
+    shelf: tuple[Blade, ...]  # new or taken off unworn: ready to fit
+    balance: tuple[BladeBalance, ...]
+    confidence: float
+
+
+def shelf_view(db: Log, *, confidence: float = DEFAULT_CONFIDENCE) -> ShelfView:
+    from sawplan.store.records import list_blades
+
+    shelf = tuple(b for b in list_blades(db) if b.status in ("new", "removed"))
+    fitted = tuple(list_blades(db, status="fitted"))
+    needs = queue_needs(db, confidence=confidence)
+    groups: dict[tuple, list[SawNeed]] = defaultdict(list)
+    for n in needs:
+        groups[(n.width_mm, n.thickness_mm, n.pitch)].append(n)
+    balance = []
+    for (width, thickness, pitch), group in groups.items():
+        saws = tuple(n.saw for n in group)
+        balance.append(
+            BladeBalance(
+                width_mm=width,
+                thickness_mm=thickness,
+                pitch=pitch,
+                needed=sum(n.forecast.blades_needed for n in group),
+                fitted=tuple(
+                    b.tag for b in fitted if b.saw in saws and _fits(b, width, thickness, pitch)
+                ),
+                on_shelf=tuple(b.tag for b in shelf if _fits(b, width, thickness, pitch)),
+                saws=saws,
+            )
+        )
+    return ShelfView(shelf, tuple(balance), confidence)
+
+
+def _fits(blade: Blade, width: float | None, thickness: float | None, pitch: str) -> bool:
+    """Same size (when the saw says) and the same teeth per inch as the queue's pitch."""
+    from sawplan.cutting.pitch import parse_pitch
+    from sawplan.errors import SawplanError
+
+    try:
+        wanted = parse_pitch(pitch)
+    except SawplanError:
+        return False
+    same_pitch = math.isclose(blade.tpi_coarse, wanted.tpi_coarse, abs_tol=1e-6) and math.isclose(
+        blade.tpi_fine, wanted.tpi_fine, abs_tol=1e-6
+    )
+    sizes = ((blade.width_mm, width), (blade.thickness_mm, thickness))
+    return same_pitch and all(
+        want is None or abs(have - want) <= SIZE_TOLERANCE_MM for have, want in sizes
+    )
