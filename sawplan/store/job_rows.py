@@ -39,6 +39,7 @@ def move_job(
     when the other saw has an open job of the same name.
     """
     from sawplan.store.saw_rows import saw_row_id
+    from sawplan.store.station_rows import has_open_job
 
     def step() -> tuple[str, str]:
         job = _job(db, job_id)
@@ -56,13 +57,7 @@ def move_job(
                 field="job",
                 hint="move it once that cut is logged",
             )
-        twin = db.scalar(
-            "SELECT COUNT(*) FROM jobs j WHERE j.saw_id = :saw AND lower(j.name) = lower(:name) "
-            "AND j.withdrawn_on IS NULL AND EXISTS "
-            "(SELECT 1 FROM queue q WHERE q.job_id = j.id AND q.cut_id IS NULL)",
-            {"saw": saw_id, "name": job["name"]},
-        )
-        if twin:
+        if has_open_job(db, saw_id, job["name"]):
             raise ConflictError(f"{saw_label} already has an open job {job['name']!r}", field="saw")
         db.update("jobs", job["id"], {"saw_id": saw_id})
         return str(job["name"]), saw_label

@@ -75,13 +75,7 @@ def send_job(
 
     def step() -> SentJob:
         saw_id, saw_label = saw_row_id(db, saw_name, profile, on=on)
-        open_jobs = db.query(
-            "SELECT j.id FROM jobs j WHERE j.saw_id = :saw AND lower(j.name) = lower(:name) "
-            "AND j.withdrawn_on IS NULL AND EXISTS "
-            "(SELECT 1 FROM queue q WHERE q.job_id = j.id AND q.cut_id IS NULL)",
-            {"saw": saw_id, "name": job},
-        )
-        if open_jobs:
+        if has_open_job(db, saw_id, job):
             raise ConflictError(
                 f"job {job!r} is already in the queue of {saw_label} with cuts to do",
                 field="job",
@@ -102,6 +96,18 @@ def send_job(
         return SentJob(job_id, job, saw_label, len(rows), on)
 
     return run_write(db, step)
+
+
+def has_open_job(db: Database, saw_id: int, name: str) -> bool:
+    """Does the saw hold a job of this name (any case) not withdrawn, with cuts still to do?"""
+    return bool(
+        db.scalar(
+            "SELECT COUNT(*) FROM jobs j WHERE j.saw_id = :saw AND lower(j.name) = lower(:name) "
+            "AND j.withdrawn_on IS NULL AND EXISTS "
+            "(SELECT 1 FROM queue q WHERE q.job_id = j.id AND q.cut_id IS NULL)",
+            {"saw": saw_id, "name": name},
+        )
+    )
 
 
 def _queue_row(cut: Mapping[str, Any]) -> dict[str, Any]:
