@@ -126,3 +126,22 @@ def test_a_blade_off_form_for_a_blade_already_changed_is_refused(station):
 def test_a_saw_that_is_not_in_the_log_is_not_found(station):
     client, _log, _clock = station
     assert client.get("/saw/no-such-saw").status_code == 404
+
+
+def test_cut_done_without_a_blade_says_so_in_plain_words(station):
+    client, log, _clock = station
+    assert tap(client, "blade-off", reason="unworn").status_code == 200
+    before = snapshot(log)
+    answer = tap(client, "done")
+    assert answer.status_code == 422
+    assert "No blade is fitted on mid-production: fit one under New blade on." in answer.text
+    assert snapshot(log) == before
+
+
+def test_the_saw_list_shows_each_saw_with_its_blade_and_queue(station):
+    client, log, _clock = station
+    tap(client, "done", cuts="2", time="4min")
+    page = client.get("/").text
+    left = sum(1 for q in snapshot(log)["queue"] if q[-1] is None)  # rows without a cut entry
+    assert f'href="/saw/{SAW}"' in page
+    assert "blade T-1" in page and f"{left} cuts in the queue" in page

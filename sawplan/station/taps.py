@@ -102,6 +102,8 @@ def done(db: Log, view: StationView, sent: Typed, d: Display) -> Step:
     from sawplan.store.records import CutEntry
     from sawplan.store.station_rows import finish_cuts, queue_from
 
+    if view.blade is None:
+        raise UsageError(f"no blade is fitted on {view.saw.name}: fit one under New blade on")
     first = _cut_id(sent)
     count = sent.whole("cuts", 1)
     typed_min = sent.quantity("time", default_unit="min")
