@@ -127,6 +127,7 @@ def baselines(shop: dict[str, Path]) -> dict[tuple[str, ...], dict[str, object]]
         ("config", "show"): {},
         ("config", "set"): {"key": "units", "value": "us"},
         ("config", "unset"): {"key": "units"},
+        ("serve",): {},  # served on 127.0.0.1; the walks never start uvicorn (see run_server)
     }
 
 

@@ -135,6 +135,12 @@ def shop(tmp_path_factory) -> dict[str, Path]:
     return build_shop(tmp_path_factory.mktemp("shop"))
 
 
+@pytest.fixture(autouse=True)
+def _never_serve(monkeypatch):
+    """`sawplan serve` checks its options and builds its application, then would serve."""
+    monkeypatch.setattr("sawplan.station.serve.run_server", lambda app, host, port: None)
+
+
 def attempt(shop, work: Path, path, command, param, f: fields.Field, value: object) -> None:
     """Run the command with ``value`` for ``param`` and hold the answer to the promises."""
     db = work / "log.sqlite"

@@ -98,6 +98,8 @@ def test_bad_values_get_one_line_and_a_documented_code(shop, tmp_path, monkeypat
     (tmp_path / "etc").mkdir()
     (tmp_path / "etc" / "passwd").write_text("root:x:0:0:root:/root:/bin/sh\n", encoding="utf-8")
     monkeypatch.chdir(work)
+    # `sawplan serve` builds its application and checks its options, then would serve forever
+    monkeypatch.setattr("sawplan.station.serve.run_server", lambda app, host, port: None)
     db = work / "log.sqlite"
     takes_db = any(p.name == "db" for p in command.params)
     base = dict(baselines(shop).get(path, {}))

@@ -225,25 +225,13 @@ def parse_feed(text: str | None) -> tuple[float | None, str | None]:
 
 def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float | None):
     """The cutting model's time for one cut with this blade, or None and why."""
-    from sawplan.cutting import evaluate
-    from sawplan.cutting.pitch import Pitch
-    from sawplan.errors import SawplanError
+    from sawplan.cutting.with_blade import cut_with_blade
 
-    try:
-        result = evaluate(
-            mat,
-            sec,
-            saw_obj,
-            Pitch.of(blade.tpi_coarse, blade.tpi_fine),
-            dry=dry,
-            band_speed_m_min=speed_m_min,
-            blade_material=blade.blade_material,
-        )
-    except SawplanError as err:
-        return None, err.one_line()
-    if result.stalled:
-        return None, result.stall_reason
-    return result.cut_time_model_min, None
+    result, why = cut_with_blade(
+        mat, sec, saw_obj, blade.tpi_coarse, blade.tpi_fine, blade.blade_material,
+        dry=dry, speed_m_min=speed_m_min,
+    )  # fmt: skip
+    return (None, why) if result is None else (result.cut_time_model_min, None)
 
 
 def log_event_command(
