@@ -224,11 +224,11 @@ def weibull_chart(
     fig.ruler("x").ticks(
         [math.log(v / to_display) for v in lives], labels=[fmt_plain(v) for v in lives]
     )
-    fig.ruler("y").ticks([_weibull_y(p) for p in probs], labels=y_labels)
+    fig.ruler("y").ticks([weibull_ordinate(p) for p in probs], labels=y_labels)
     return _text(fig, "   ".join(key), colorless)
 
 
-def _weibull_y(p: float) -> float:
+def weibull_ordinate(p: float) -> float:
     """Weibull-paper ordinate ln(−ln(1 − p)) of a failed fraction ``p``."""
     return math.log(-math.log1p(-p))
 
@@ -247,7 +247,7 @@ def _probability_ticks(y_lo: float, y_hi: float, rows: int) -> list[float]:
     taken: set[int] = set()
     kept: list[float] = []
     for p in PROBABILITY_PRIORITY:
-        y = _weibull_y(p)
+        y = weibull_ordinate(p)
         row = round((y - y_lo) / (y_hi - y_lo) * (rows - 1))
         if y_lo <= y <= y_hi and row not in taken:
             taken.add(row)

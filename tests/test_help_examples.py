@@ -112,6 +112,9 @@ def shop(tmp_path_factory) -> Path:
     from sawplan.store.location import parse_location
 
     write_export_zip(parse_location(str(root / "shop-log.sqlite")), root / "shop-log.zip")
+    from sawplan.station.access import KEYS_FILE, make_keys
+
+    make_keys(root / "home" / KEYS_FILE)  # `sawplan serve --host 0.0.0.0` needs keys
     conn = sqlite3.connect(root / "old-log.sqlite")  # a log an earlier release wrote
     conn.executescript((HERE / "data" / "legacy" / "blade-log-schema1.sql").read_text("utf-8"))
     conn.close()
@@ -139,7 +142,16 @@ def _run_example(example: str, folder: Path, monkeypatch) -> tuple[int, str, str
         words = words[: words.index(">")]
     monkeypatch.chdir(folder)
     monkeypatch.setenv("SAWPLAN_HOME", str(folder / "home"))
+    if words[:1] == ["serve"]:  # build the application, check it answers, do not serve
+        monkeypatch.setattr("sawplan.station.serve.run_server", _answers_once)
     return invoke(words)
+
+
+def _answers_once(app, host: str, port: int) -> None:
+    from starlette.testclient import TestClient
+
+    with TestClient(app, client=("127.0.0.1", 50000), base_url="http://127.0.0.1") as client:
+        assert client.get("/").status_code == 200
 
 
 @pytest.mark.parametrize("example", EXAMPLES, ids=EXAMPLES)

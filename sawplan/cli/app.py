@@ -49,6 +49,7 @@ COMMANDS: dict[str, str] = {
     "restore": "sawplan.cli.cmd_logdata",
     "db": "sawplan.cli.cmd_db",
     "config": "sawplan.cli.cmd_config",
+    "serve": "sawplan.cli.cmd_serve",
 }
 COMMAND_MODULES = tuple(dict.fromkeys(COMMANDS.values()))
 

@@ -32,17 +32,6 @@ from sawplan.cli.options import (
 )
 from sawplan.display import Display
 
-BLADE_MATERIALS = {
-    "bi-metal": "bi-metal",
-    "bimetal": "bi-metal",
-    "carbon": "carbon",
-    "carbon-steel": "carbon",
-    "carbide": "carbide",
-    "carbide-tipped": "carbide",
-}
-TOOTH_FORMS = ("regular", "hook", "skip")
-TOOTH_SETS = ("raker", "wavy", "alternate")
-
 HELP = """The blades in the log: add, fit, remove, retire, list, show.
 
 A blade's life is the area it cut. A retired blade counts as a failure in
@@ -117,23 +106,6 @@ Examples:
 """
 
 
-def _length(text: str | None, key: str) -> float | None:
-    from sawplan.fields import parse
-
-    return None if text is None else parse(key, text)
-
-
-def _choice(value: str | None, allowed: tuple[str, ...], field: str) -> str | None:
-    from sawplan.errors import UsageError
-
-    if value is None:
-        return None
-    key = value.strip().lower()
-    if key not in allowed:
-        raise UsageError(f"must be one of {', '.join(allowed)}, got {value!r}", field=field)
-    return key
-
-
 def blade_add_command(
     tag: TagArg,
     pitch: Annotated[str, opt("pitch")],
@@ -155,35 +127,27 @@ def blade_add_command(
     json_out: JsonOpt = False,
     db: DbOpt = None,
 ) -> None:
-    from sawplan.cutting.pitch import parse_pitch
-    from sawplan.errors import BadDataError
     from sawplan.render import to_json
     from sawplan.store import connect
+    from sawplan.store.blade_input import blade_spec
     from sawplan.store.dates import parse_day
-    from sawplan.store.records import WELDED, BladeSpec, add_blade
+    from sawplan.store.records import add_blade
 
-    p = parse_pitch(pitch, field="pitch")
-    blade_material = BLADE_MATERIALS.get(material.strip().lower())
-    if blade_material is None:
-        raise BadDataError(
-            f"must be bi-metal, carbon or carbide, got {material!r}", field="blade material"
-        )
-    spec = BladeSpec(
-        tag=tag,
-        width_mm=_length(width, "blade_width"),
-        thickness_mm=_length(thickness, "blade_thickness"),
-        length_mm=_length(length, "blade_length"),
-        tpi_coarse=p.tpi_coarse,
-        tpi_fine=p.tpi_fine,
-        blade_material=blade_material,
+    spec = blade_spec(
+        tag,
+        pitch=pitch,
+        width=width,
+        thickness=thickness,
+        length=length,
+        material=material,
         grade=grade,
-        tooth_form=_choice(form, TOOTH_FORMS, "form"),
-        tooth_set=_choice(tooth_set, TOOTH_SETS, "set"),
+        form=form,
+        tooth_set=tooth_set,
         supplier=supplier,
         lot=lot,
         price=price,
-        bought_on=None if bought is None else parse_day(bought, field="bought"),
-        welded=_choice(welded, WELDED, "welded") or "bought",
+        bought=bought,
+        welded=welded,
         notes=notes,
     )
     with connect(db) as database:

@@ -209,8 +209,7 @@ def batch_cut_area(section_area_mm2: float, area_mm2: float | None) -> float:
 def parse_feed(text: str | None) -> tuple[float | None, str | None]:
     """A rate with a unit (mm/min, in/min) or a bare dial setting, kept as text."""
     from sawplan.errors import UsageError
-    from sawplan.fields import parse
-    from sawplan.units import positive
+    from sawplan.fields import check, parse
 
     if text is None:
         return None, None
@@ -220,31 +219,19 @@ def parse_feed(text: str | None) -> tuple[float | None, str | None]:
         setting = float(text)
     except ValueError:
         return parse("feed", text), None
-    positive(setting, field="feed setting", what="above 0")  # a dial setting is a number
+    check("feed_setting", setting)  # a dial setting is a number on the saw's dial
     return None, text.strip()
 
 
 def predict_minutes(mat, sec, saw_obj, blade, *, dry: bool, speed_m_min: float | None):
     """The cutting model's time for one cut with this blade, or None and why."""
-    from sawplan.cutting import evaluate
-    from sawplan.cutting.pitch import Pitch
-    from sawplan.errors import SawplanError
+    from sawplan.cutting.with_blade import cut_with_blade
 
-    try:
-        result = evaluate(
-            mat,
-            sec,
-            saw_obj,
-            Pitch.of(blade.tpi_coarse, blade.tpi_fine),
-            dry=dry,
-            band_speed_m_min=speed_m_min,
-            blade_material=blade.blade_material,
-        )
-    except SawplanError as err:
-        return None, err.one_line()
-    if result.stalled:
-        return None, result.stall_reason
-    return result.cut_time_model_min, None
+    result, why = cut_with_blade(
+        mat, sec, saw_obj, blade.tpi_coarse, blade.tpi_fine, blade.blade_material,
+        dry=dry, speed_m_min=speed_m_min,
+    )  # fmt: skip
+    return (None, why) if result is None else (result.cut_time_model_min, None)
 
 
 def log_event_command(

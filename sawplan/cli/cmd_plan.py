@@ -48,6 +48,8 @@ prints the order list alone (--csv-dir DIR also writes it as order.csv).
 plan unless the limit stops the optimiser, which the plan then says.
 --lot, --without-lot and --supplier choose the blades of the log that blade
 life (blades on hand) comes from; the plan's notes say which.
+--send puts the plan's cuts, in cut-sheet order, into the saw's queue on
+the station (`sawplan serve`).
 
 \b
 Examples:
@@ -59,6 +61,7 @@ Examples:
   sawplan plan job.toml --run cost
   sawplan plan job.toml --order
   sawplan plan job.toml --without-lot T-3309
+  sawplan plan job.toml --send
 
 Estimates only: the saw maker's manual, the blade maker's data, shop rules and
 local regulations govern.
@@ -91,6 +94,7 @@ def plan_command(
     lot: LotChoiceOpt = None,
     without_lot: WithoutLotOpt = None,
     supplier: SupplierChoiceOpt = None,
+    send: Annotated[bool, opt("send")] = False,
 ) -> int:
     import sys
     import time
@@ -156,7 +160,37 @@ def plan_command(
     written = write_all(outputs)
     for path in written:
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
+    if send:
+        print(send_text(plan, saw, jobfile, db), file=sys.stderr if json_out else sys.stdout)
     return 0 if plan.complete else int(ExitCode.PLAN_INCOMPLETE)
+
+
+def send_text(plan, saw, jobfile: Path, db: str | None) -> str:
+    """Put the plan's cuts in the saw's queue on the station; one line saying so."""
+    import dataclasses
+
+    from sawplan.cutlist.plan.queue import queued_cuts
+    from sawplan.store import connect
+    from sawplan.store.dates import parse_day
+    from sawplan.store.station_rows import send_job
+
+    cuts = [dataclasses.asdict(c) for c in queued_cuts(plan)]
+    with connect(db) as database:
+        sent = send_job(
+            database,
+            name=plan.job or jobfile.stem,
+            saw_name=saw.name,
+            profile=saw,
+            cuts=cuts,
+            on=parse_day(None),
+            file=jobfile.name,
+            customer=plan.customer or None,
+            due=plan.due or None,
+        )
+    line = f"sent {sent.cuts} cuts of job {sent.name!r} to the queue of {sent.saw} (sawplan serve)"
+    if not plan.complete:
+        line += "; the stock on hand is short, so only the cuts planned now were sent"
+    return line
 
 
 def order_text(plan, d: Display, json_out: bool) -> str:

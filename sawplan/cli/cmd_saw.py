@@ -2,8 +2,7 @@
 
 from __future__ import annotations
 
-import re
-from typing import Annotated, Any
+from typing import Annotated
 
 import typer
 
@@ -52,46 +51,6 @@ Examples:
   sawplan saw list --units us --csv
 """
 
-_RANGE = re.compile(
-    r"^\s*(?P<lo>[\d.]+)\s*(?P<lo_unit>[^\d\s\-–]*)\s*(?:-|–|to|\.\.)\s*(?P<hi>[\d.]+)\s*(?P<unit>\S+)\s*$"
-)
-
-
-def parse_speed_range(text: str) -> tuple[float, float]:
-    """``20-90m/min`` or ``65-330 ft/min`` → (low, high) in m/min."""
-    from sawplan.errors import BadDataError, UsageError
-    from sawplan.fields import parse
-
-    words = "band speed range"
-    m = _RANGE.match(text)
-    if not m:
-        raise UsageError(
-            f"expected LOW-HIGH with a unit, got {text!r}", field=words, hint="e.g. 20-90m/min"
-        )
-    unit = m.group("unit")
-    lo = parse("band_speed", m.group("lo") + (m.group("lo_unit") or unit), words=words)
-    hi = parse("band_speed", m.group("hi") + unit, words=words)
-    if lo > hi:
-        raise BadDataError(f"the low speed is above the high one in {text!r}", field=words)
-    return lo, hi
-
-
-def parse_rect(text: str) -> tuple[float, float]:
-    """``350x260mm`` → (width, height) in mm."""
-    from sawplan.errors import UsageError
-    from sawplan.fields import parse
-    from sawplan.sections import split_sizes
-
-    sizes = split_sizes(text.split())
-    if len(sizes) != 2:
-        raise UsageError(
-            f"expected WIDTHxHEIGHT with a unit, got {text!r}",
-            field="rectangle capacity",
-            hint="e.g. 350x260mm",
-        )
-    w, h = (parse("capacity_rect", s) for s in sizes)
-    return w, h
-
 
 def saw_add_command(
     name: Annotated[str, arg("saw", help="The saw's name in your shop.")],
@@ -118,61 +77,33 @@ def saw_add_command(
     saws_file: SawsFileOpt = None,
     db: DbOpt = None,
 ) -> None:
-    import dataclasses
-
-    from sawplan.errors import UsageError
-    from sawplan.fields import parse
     from sawplan.render import to_json
-    from sawplan.saws import Saw, get_saw
+    from sawplan.saws import get_saw
     from sawplan.store import connect, saws_from_db
     from sawplan.store.dates import parse_day
     from sawplan.store.records import add_saw
+    from sawplan.store.saw_input import saw_profile
 
-    values: dict[str, Any] = {}
-    if like is not None:
-        base = get_saw(like, saws_file, saws_from_db(db))
-        values = {f.name: getattr(base, f.name) for f in dataclasses.fields(Saw)}
-        values["source"] = f"like {base.name}"
-        values["notes"] = ""  # the base saw's notes describe that saw, not this one
-    values["name"] = name
-    given = {
-        "kind": kind,
-        "feed_type": feed_type,
-        "drive_efficiency": efficiency,
-        "coolant": coolant,
-        "wheel_count": wheels,
-        "notes": notes,
-    }
-    quantities = {
-        "wheel_diameter_mm": (wheel, "wheel"),
-        "blade_length_mm": (blade_length, "blade_length"),
-        "blade_width_mm": (blade_width, "blade_width"),
-        "blade_thickness_mm": (blade_thickness, "blade_thickness"),
-        "capacity_round_mm": (capacity_round, "capacity_round"),
-        "motor_power_w": (power, "power"),
-        "head_force_n": (head_force, "head_force"),
-    }
-    for key, (text, field_key) in quantities.items():
-        if text is not None:
-            given[key] = parse(field_key, text)
-    if speed_range is not None:
-        given["band_speed_min_m_min"], given["band_speed_max_m_min"] = parse_speed_range(
-            speed_range
-        )
-    if capacity_rect is not None:
-        given["capacity_rect_w_mm"], given["capacity_rect_h_mm"] = parse_rect(capacity_rect)
-    values.update({k: v for k, v in given.items() if v is not None})
-    values.setdefault("source", "blade log")
-    missing = [_OPTION_OF[f.name] for f in dataclasses.fields(Saw) if f.name not in values
-               and f.default is dataclasses.MISSING]  # fmt: skip
-    missing = list(dict.fromkeys(missing))
-    if missing:
-        raise UsageError(
-            f"missing {', '.join(missing)}",
-            field="saw",
-            hint="give them, or start from a known saw with --like NAME (see `sawplan saw list`)",
-        )
-    saw = Saw(**values)
+    base = get_saw(like, saws_file, saws_from_db(db)) if like is not None else None
+    saw = saw_profile(
+        name,
+        base=base,
+        kind=kind,
+        wheel=wheel,
+        blade_length=blade_length,
+        blade_width=blade_width,
+        blade_thickness=blade_thickness,
+        speed_range=speed_range,
+        power=power,
+        efficiency=efficiency,
+        capacity_round=capacity_round,
+        capacity_rect=capacity_rect,
+        feed_type=feed_type,
+        head_force=head_force,
+        coolant=coolant,
+        wheels=wheels,
+        notes=notes,
+    )
     with connect(db) as database:
         add_saw(database, saw, added_on=parse_day(None), replace=replace)
     if json_out:
@@ -182,23 +113,6 @@ def saw_add_command(
     print(
         f"\nSaved in the blade log; use it with `sawplan blade fit TAG --saw {_quote(saw.name)}`."
     )
-
-
-_OPTION_OF = {
-    "kind": "--kind",
-    "wheel_diameter_mm": "--wheel",
-    "blade_length_mm": "--blade-length",
-    "blade_width_mm": "--blade-width",
-    "blade_thickness_mm": "--blade-thickness",
-    "band_speed_min_m_min": "--speed-range",
-    "band_speed_max_m_min": "--speed-range",
-    "motor_power_w": "--power",
-    "drive_efficiency": "--efficiency",
-    "capacity_round_mm": "--capacity-round",
-    "capacity_rect_w_mm": "--capacity-rect",
-    "capacity_rect_h_mm": "--capacity-rect",
-    "feed_type": "--feed-type",
-}
 
 
 def _quote(name: str) -> str:

@@ -125,7 +125,7 @@ def _server_backup(location: LogLocation, target: Path) -> BackupResult:
 def _pg_dump(location: LogLocation, schema: str, target: Path) -> int:
     """Run pg_dump for sawplan's tables into ``target`` (via a partial file)."""
     from sawplan.store.perms import secure
-    from sawplan.store.schema import TABLE_NAMES, VERSION_TABLE
+    from sawplan.store.schema import ALL_TABLES, VERSION_TABLE
 
     url, password = _without_password(location.url or "")
     env = dict(os.environ)
@@ -133,7 +133,7 @@ def _pg_dump(location: LogLocation, schema: str, target: Path) -> int:
         env["PGPASSWORD"] = password
     tmp = partial_of(target)
     remove_partial(target)
-    tables = [arg for name in (*TABLE_NAMES, VERSION_TABLE) for arg in ("-t", f"{schema}.{name}")]
+    tables = [arg for name in (*ALL_TABLES, VERSION_TABLE) for arg in ("-t", f"{schema}.{name}")]
     command = ["pg_dump", "--format=custom", "--no-owner", f"--file={tmp}", *tables, url]
     try:
         done = subprocess.run(

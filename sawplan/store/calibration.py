@@ -77,11 +77,17 @@ def calibration_factor(
     200 count (``stats.timed_cuts``).  The factor is the median of the per-entry
     ratios (``sawplan.life.calibration_factors``).
     """
-    from sawplan.life import calibration_factors
     from sawplan.store.db import connect
 
     with connect(db_path, create=False, light=True) as db:
-        entries = timed_cuts(db, saw=saw_name, material_group=material_group)
+        return calibration_of(db, saw_name, material_group)
+
+
+def calibration_of(db: Database, saw_name: str, material_group: str) -> Calibration | None:
+    """``calibration_factor`` on a log already open (the station's)."""
+    from sawplan.life import calibration_factors
+
+    entries = timed_cuts(db, saw=saw_name, material_group=material_group)
     if not entries:
         return None
     summary = calibration_factors(

@@ -45,8 +45,14 @@ RETRY_STATES = ("40001", "40P01")  # serialization failure, deadlock: run the st
 
 
 def connect_sqlite_file(path: Path) -> sqlite3.Connection:
-    """Open a log file with the driver's own transactions off (sawplan says BEGIN itself)."""
-    return sqlite3.connect(path, timeout=BUSY_TIMEOUT_S, isolation_level=None)
+    """Open a log file with the driver's own transactions off (sawplan says BEGIN itself).
+
+    The station (``sawplan serve``) hands an open log from one worker thread to the
+    next, never to two at once, so the driver's same-thread check is off.
+    """
+    return sqlite3.connect(
+        path, timeout=BUSY_TIMEOUT_S, isolation_level=None, check_same_thread=False
+    )
 
 
 def sqlite_engine(creator) -> Engine:

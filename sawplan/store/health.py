@@ -161,9 +161,9 @@ def _broken_rules(query) -> list[str]:
 
 
 def _rows(scalar) -> dict[str, int]:
-    from sawplan.store.schema import TABLE_NAMES, ident
+    from sawplan.store.schema import ALL_TABLES, ident
 
-    return {t: int(scalar(f"SELECT COUNT(*) FROM {ident(t)}")) for t in TABLE_NAMES}
+    return {t: int(scalar(f"SELECT COUNT(*) FROM {ident(t)}")) for t in ALL_TABLES}
 
 
 # --- restore ------------------------------------------------------------------------------
@@ -305,12 +305,12 @@ def _restore_server(location: LogLocation, backup: Path, *, force: bool) -> Rest
             )
     if _is_export_zip(backup):
         from sawplan.store.exchange import import_csv
-        from sawplan.store.schema import TABLE_NAMES, ident
+        from sawplan.store.schema import ALL_TABLES, ident
 
         with connect(location) as log:
 
             def empty_and_import() -> dict[str, int]:
-                for table in reversed(TABLE_NAMES):
+                for table in reversed(ALL_TABLES):
                     log.execute(f"DELETE FROM {ident(table)}")
                 return import_csv(log, backup).rows
 

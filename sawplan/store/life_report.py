@@ -10,6 +10,7 @@ from __future__ import annotations
 from collections import defaultdict
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from functools import lru_cache
 from typing import TYPE_CHECKING, Any
 
 from sawplan.display import say
@@ -120,6 +121,13 @@ def _worn_out(lives: Sequence[BladeLife]) -> WornOut:
 
 def lots_to_name(lives: Sequence[BladeLife], confidence: float) -> tuple[SuspectLot, ...]:
     """Lots whose blades fail early or die far younger than their type's other lots."""
+    return _suspects(tuple(lives), confidence)
+
+
+@lru_cache(maxsize=8)
+def _suspects(lives: tuple[BladeLife, ...], confidence: float) -> tuple[SuspectLot, ...]:
+    """The lot screen of one set of lives, kept: a forecast of several material groups (or
+    saws' queues) asks it once per group, each time of the same blades."""
     from sawplan.life.lots import LotBlade, suspect_lots
 
     return suspect_lots(

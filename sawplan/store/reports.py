@@ -396,30 +396,46 @@ def forecast_job(
 ) -> JobForecast:
     """Hook for job files: total cut area per material group → blades needed.
 
-    Each group is forecast on its own for the table; the total follows
-    ``sawplan plan``: one blade cuts every group, so the areas are put on the
-    scale of the group that wears blades most (other groups scaled by the
-    ratio of mean lives) and forecast once.  ``sawplan.cutlist`` computes the
-    areas from a job file and calls this.
+    ``sawplan.cutlist`` computes the areas from a job file and calls this; it
+    opens the log and asks ``forecast_areas``.
     """
     from sawplan.store.db import connect
 
     if not area_by_group_cm2:
         raise BadDataError("the job has no cut area", field="job")
     with connect(db_path, create=False) as db:
-        parts = tuple(
-            forecast_area(db, area, material_group=group, confidence=confidence, choice=choice)
-            for group, area in sorted(area_by_group_cm2.items())
-        )
-        lives = {p.material_group: _mean_life_cm2(p) for p in parts}
-        wear = {p.material_group: p.area_cm2 / lives[p.material_group] for p in parts}
-        ref = max(wear, key=wear.get)
-        total = parts[0].blades_needed
-        if len(parts) > 1:
-            equivalent_cm2 = sum(wear.values()) * lives[ref]
-            total = forecast_area(
-                db, equivalent_cm2, material_group=ref, confidence=confidence, choice=choice
-            ).blades_needed
+        return forecast_areas(db, area_by_group_cm2, confidence=confidence, choice=choice)
+
+
+def forecast_areas(
+    db: Database,
+    area_by_group_cm2: Mapping[str, float],
+    *,
+    confidence: float = DEFAULT_CONFIDENCE,
+    choice: BladeChoice | None = None,
+) -> JobForecast:
+    """Blades needed for cut areas of several material groups, on an open log.
+
+    Each group is forecast on its own for the table; the total follows
+    ``sawplan plan``: one blade cuts every group, so the areas are put on the
+    scale of the group that wears blades most (other groups scaled by the
+    ratio of mean lives) and forecast once.
+    """
+    if not area_by_group_cm2:
+        raise BadDataError("no cut area to forecast", field="area")
+    parts = tuple(
+        forecast_area(db, area, material_group=group, confidence=confidence, choice=choice)
+        for group, area in sorted(area_by_group_cm2.items())
+    )
+    lives = {p.material_group: _mean_life_cm2(p) for p in parts}
+    wear = {p.material_group: p.area_cm2 / lives[p.material_group] for p in parts}
+    ref = max(wear, key=wear.get)
+    total = parts[0].blades_needed
+    if len(parts) > 1:
+        equivalent_cm2 = sum(wear.values()) * lives[ref]
+        total = forecast_area(
+            db, equivalent_cm2, material_group=ref, confidence=confidence, choice=choice
+        ).blades_needed
     return JobForecast(
         groups=parts,
         blades_needed=total,

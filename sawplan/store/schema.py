@@ -30,7 +30,7 @@ APPLICATION_ID = 0x53415750  # "SAWP": marks a SQLite file as a sawplan blade lo
 VERSION_TABLE = "sawplan_schema"  # Alembic's version table, named so no other program shares it
 # Alembic revision ids, oldest first.  A SQLite log also keeps the count in
 # PRAGMA user_version, so opening an up-to-date file costs two pragma reads.
-REVISIONS: tuple[str, ...] = ("0001", "0002", "0003")
+REVISIONS: tuple[str, ...] = ("0001", "0002", "0003", "0004")
 HEAD = REVISIONS[-1]
 # the sqlite-utils history of the first releases: its names map onto REVISIONS[0:2]
 LEGACY_SET = "sawplan-blade-log"
@@ -38,6 +38,10 @@ LEGACY_NAMES: tuple[str, ...] = ("m001_initial", "m002_cut_traceability")
 LEGACY_TABLE = "_sqlite_migrations"
 
 TABLE_NAMES = ("saws", "blades", "fittings", "cuts", "events")  # parents before children
+# the shop-floor station's tables (revision 0004): jobs sent to saws, their queue of cuts,
+# remnants racked, notes from the saw, the taps saved (``sawplan.store.station_rows``)
+STATION_TABLES = ("jobs", "queue", "remnants", "saw_notes", "taps")
+ALL_TABLES = TABLE_NAMES + STATION_TABLES  # what copies, backups and checks carry; parents first
 
 # Profile columns of a saw (``sawplan.saws.Saw`` fields with units), in table order.
 SAW_PROFILE_COLUMNS: dict[str, type] = {
@@ -170,6 +174,7 @@ def metadata() -> MetaData:
         "sqlite_where": sa.text("removed_on IS NULL"),
         "postgresql_where": sa.text("removed_on IS NULL"),
     }
+    _station_tables(md, col, real, strict)
     sa.Index("saws_name", sa.func.lower(saws.c.name), unique=True)
     sa.Index("blades_tag", sa.func.lower(blades.c.tag), unique=True)
     sa.Index("idx_fittings_blade_id", fittings.c.blade_id)
@@ -181,6 +186,88 @@ def metadata() -> MetaData:
     return md
 
 
+def _station_tables(md, col, real, strict) -> None:
+    """The station's tables (revision 0004)."""
+    import sqlalchemy as sa
+
+    def key(name: str, parent: str, **kw) -> sa.Column:
+        return sa.Column(name, sa.Integer, sa.ForeignKey(f"{parent}.id"), **kw)
+
+    jobs = sa.Table(
+        "jobs",
+        md,
+        sa.Column("id", sa.Integer, primary_key=True),
+        col("name", sa.Text, nullable=False),
+        key("saw_id", "saws", nullable=False),
+        col("sent_on", sa.Text, nullable=False),
+        *(col(name, sa.Text) for name in ("file", "customer", "due", "withdrawn_on")),
+        **strict,
+    )
+    queue = sa.Table(
+        "queue",
+        md,
+        sa.Column("id", sa.Integer, primary_key=True),
+        key("job_id", "jobs", nullable=False),
+        col("seq", sa.Integer, nullable=False),
+        col("bar", sa.Integer, nullable=False),
+        col("step", sa.Text, nullable=False),
+        col("position_mm", real),
+        *(col(name, sa.Text) for name in ("mark", "part", "heat", "stock", "location")),
+        col("material", sa.Text, nullable=False),
+        col("material_group", sa.Text),
+        col("section", sa.Text, nullable=False),
+        col("area_mm2", real, nullable=False),
+        col("predicted_time_min", real),
+        col("band_speed_m_min", real),
+        col("feed_mm_min", real),
+        col("pitch", sa.Text),
+        col("started_at", sa.Text),
+        key("cut_id", "cuts"),
+        **strict,
+    )
+    sa.Table(
+        "remnants",
+        md,
+        sa.Column("id", sa.Integer, primary_key=True),
+        key("saw_id", "saws"),
+        key("job_id", "jobs"),
+        col("bar", sa.Integer),
+        col("material", sa.Text),
+        col("section", sa.Text),
+        col("length_mm", real, nullable=False),
+        col("heat", sa.Text),
+        col("rack", sa.Text),
+        col("racked_on", sa.Text, nullable=False),
+        col("note", sa.Text),
+        **strict,
+    )
+    sa.Table(
+        "saw_notes",
+        md,
+        sa.Column("id", sa.Integer, primary_key=True),
+        key("saw_id", "saws", nullable=False),
+        key("job_id", "jobs"),
+        col("noted_on", sa.Text, nullable=False),
+        col("note", sa.Text, nullable=False),
+        **strict,
+    )
+    taps = sa.Table(
+        "taps",
+        md,
+        sa.Column("id", sa.Integer, primary_key=True),
+        col("tap", sa.Text, nullable=False),
+        key("saw_id", "saws"),
+        col("kind", sa.Text, nullable=False),
+        col("tapped_at", sa.Text, nullable=False),
+        col("said", sa.Text),
+        **strict,
+    )
+    sa.Index("idx_jobs_saw_id", jobs.c.saw_id)
+    sa.Index("queue_job_seq", queue.c.job_id, queue.c.seq, unique=True)
+    sa.Index("idx_queue_cut_id", queue.c.cut_id)
+    sa.Index("taps_tap", taps.c.tap, unique=True)
+
+
 def table(name: str):
     """One table of ``metadata()`` by name."""
     return metadata().tables[name]
@@ -188,7 +275,7 @@ def table(name: str):
 
 def ident(name: str) -> str:
     """A table or column name of the log, checked: the only names SQL text may interpolate."""
-    if name in TABLE_NAMES or name == VERSION_TABLE:
+    if name in TABLE_NAMES or name in STATION_TABLES or name == VERSION_TABLE:
         return name
     if any(name in t.columns for t in metadata().tables.values()):
         return name

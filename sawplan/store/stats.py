@@ -141,12 +141,13 @@ class TimedCut(NamedTuple):
     time_min: float
     predicted_time_min: float
     count: int = 1  # the cuts the entry holds
+    cut_on: str | None = None  # the entry's date (ISO), for the calibration's trend
 
 
 CALIBRATION_WINDOW = 200
 # "= :x" never matches NULL, so a cut without a saw or a group has its own query
 _TIMED = (
-    "SELECT time_min, predicted_time_min, count FROM cuts WHERE {} AND time_min > 0 "
+    "SELECT time_min, predicted_time_min, count, cut_on FROM cuts WHERE {} AND time_min > 0 "
     "AND predicted_time_min > 0 ORDER BY id DESC LIMIT :latest"
 )
 _TIMED_SQL = {
@@ -188,7 +189,7 @@ def timed_cuts(
             {"saw_id": saw_id, "material_group": group, "latest": latest},
         ).fetchall()
         name = names.get(saw_id)
-        out += [TimedCut(name, group, t, p, n) for t, p, n in reversed(rows)]
+        out += [TimedCut(name, group, t, p, n, on) for t, p, n, on in reversed(rows)]
     return out
 
 

@@ -25,7 +25,7 @@ from typing import TYPE_CHECKING, Any
 from sawplan.errors import ConflictError, NotFoundError, StorageError, UsageError
 from sawplan.store.db import connect, read_snapshot, resolve_db, run_write
 from sawplan.store.location import LogLocation
-from sawplan.store.schema import TABLE_NAMES, ident, metadata
+from sawplan.store.schema import ALL_TABLES, ident, metadata
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.store.db import Log
@@ -89,7 +89,7 @@ def table_digests(db: Log) -> tuple[TableCopy, ...]:
     """Count and checksum of every table, read in one snapshot."""
     out = []
     with read_snapshot(db):
-        for table in TABLE_NAMES:
+        for table in ALL_TABLES:
             digest = Digest(table)
             for rows in pages(db, table):
                 digest.feed(rows)
@@ -98,7 +98,7 @@ def table_digests(db: Log) -> tuple[TableCopy, ...]:
 
 
 def row_total(db: Log) -> int:
-    return sum(int(db.scalar(f"SELECT COUNT(*) FROM {ident(t)}")) for t in TABLE_NAMES)
+    return sum(int(db.scalar(f"SELECT COUNT(*) FROM {ident(t)}")) for t in ALL_TABLES)
 
 
 def copy_log(
@@ -136,17 +136,17 @@ def copy_log(
 
 def _copy_rows(reader: Log, writer: Log, *, replace: bool) -> tuple[TableCopy, ...]:
     if replace:
-        for table in reversed(TABLE_NAMES):
+        for table in reversed(ALL_TABLES):
             writer.execute(f"DELETE FROM {ident(table)}")
     digests = []
-    for table in TABLE_NAMES:
+    for table in ALL_TABLES:
         digest = Digest(table)
         for rows in pages(reader, table):
             writer.insert_many(table, rows)
             digest.feed(rows)
         digests.append(digest.result())
     if writer.dialect == "postgresql":
-        for table in TABLE_NAMES:  # new rows continue after the copied ids
+        for table in ALL_TABLES:  # new rows continue after the copied ids
             writer.execute(
                 f"SELECT setval(pg_get_serial_sequence(:t, 'id'), "
                 f"COALESCE((SELECT MAX(id) FROM {ident(table)}), 0) + 1, false)",
