@@ -15,7 +15,7 @@ import math
 import re
 from collections.abc import Iterable, Sequence
 from enum import Enum
-from itertools import zip_longest
+from itertools import chain, zip_longest
 from typing import Any
 
 from sawplan import __version__
@@ -111,6 +111,13 @@ def _shown(value: Any) -> str:
     return "" if value is None else terminal_text(str(value))
 
 
+def _any_control(body: list[list[str]]) -> bool:
+    """True when any cell holds a control character (``terminal_text`` would change it)."""
+    from sawplan.fields import CONTROL
+
+    return CONTROL.search("".join(chain.from_iterable(body))) is not None
+
+
 def table(
     headers: Sequence[str],
     rows: Iterable[Sequence[Any]],
@@ -122,7 +129,9 @@ def table(
 
     Every cell goes through ``terminal_text``: no cell can send a terminal a command.
     """
-    body = [[_shown(v) for v in row] for row in rows]
+    body = [["" if v is None else str(v) for v in row] for row in rows]
+    if _any_control(body):  # one scan of the whole table; escape cell by cell only then
+        body = [[terminal_text(cell) for cell in row] for row in body]
     headers = [_shown(h) for h in headers]
     cols = len(headers)
     widths = [len(h) for h in headers]
