@@ -407,6 +407,9 @@ _TABLE: tuple[Field, ...] = (
     Field("keys", "new keys", "--keys",
           help="Make a new station key and office key (shown once, stored hashed) and stop; "
                "the keys made before stop working."),
+    Field("proxied", "behind a reverse proxy", "--proxied",
+          help="Every request comes through a reverse proxy on this computer (TLS in front): "
+               "treat each one as a network request, so every page needs a key."),
     Field("send", "send to the saw", "--send",
           help="Send the planned cuts to the saw's queue on the station (`sawplan serve`)."),
     Field("remnant_length", "remnant length", dimension="length", low=1, high=100_000,

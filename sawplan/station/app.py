@@ -50,13 +50,15 @@ def create_app(
     host: str = DEFAULT_HOST,
     secure_cookies: bool = False,
     throttle: Throttle | None = None,
+    proxied: bool = False,
 ) -> Starlette:
     """The station application on the blade log ``db`` (``--db``'s value; None: the default).
 
     ``keys``: what ``sawplan serve --keys`` made (``access.load_keys()``); without
     keys only this computer is served.  ``units``: how numbers read (the
     shop's config otherwise).  ``host``: the address served, accepted as a
-    host name besides localhost.
+    host name besides localhost.  ``proxied``: every request came through a
+    reverse proxy, so none is taken for this computer (keys needed throughout).
     """
     from sawplan.display import Display
     from sawplan.station.access import load_keys
@@ -71,6 +73,7 @@ def create_app(
         throttle=throttle or Throttle(),
         served_host=host,
         secure_cookies=secure_cookies,
+        proxied=proxied,
     )
     logs = LogPool(db)
 
