@@ -145,3 +145,30 @@ def test_the_saw_list_shows_each_saw_with_its_blade_and_queue(station):
     left = sum(1 for q in snapshot(log)["queue"] if q[-1] is None)  # rows without a cut entry
     assert f'href="/saw/{SAW}"' in page
     assert "blade T-1" in page and f"{left} cuts in the queue" in page
+
+
+@pytest.mark.parametrize(
+    ("saw", "saws_file"),
+    [
+        pytest.param("large-column", None, id="packaged"),
+        pytest.param("pivot-bay", HERE.parent / "demo" / "saws.toml", id="shop-saws-file"),
+    ],
+)
+def test_a_known_saw_not_in_the_log_gets_a_page_and_is_added_by_its_first_tap(
+    station, monkeypatch, saw, saws_file
+):
+    client, log, _clock = station
+    if saws_file is not None:
+        monkeypatch.setenv("SAWPLAN_SAWS", str(saws_file))
+    assert saw in client.get("/").text  # listed as a known profile, not in the log yet
+    page = client.get(f"/saw/{saw}")
+    assert page.status_code == 200 and 'id="not-in-log"' in page.text
+    assert len(snapshot(log)["saws"]) == 1  # opening the page writes nothing
+    values = {**form_values(page.text, f"/saw/{saw}/tap/note"), "note": "vise jaw loose"}
+    answer = client.post(f"/saw/{saw}/tap/note", data=values)
+    assert answer.status_code == 200 and "Note saved: vise jaw loose" in answer.text
+    assert 'id="not-in-log"' not in answer.text
+    every = snapshot(log)
+    added = [s for s in every["saws"] if s[1] == saw]
+    assert len(added) == 1
+    assert [n[-1] for n in every["saw_notes"]] == ["vise jaw loose"]

@@ -50,6 +50,8 @@ def saws_page(request: Request) -> Response:
         saws = logged_saws(db)
         fitted = fitted_on_saws(db)
         jobs = job_progress(db)
+    logged = {s.name.lower() for s in saws}
+    profiles = [p.name for key, p in known_profiles().items() if key not in logged]
     to_cut: dict[str, int] = {}
     for job in jobs:
         if job["withdrawn_on"] is None:
@@ -59,7 +61,21 @@ def saws_page(request: Request) -> Response:
         {"name": s.name, "blade": fitted.get(s.name.lower()), "to_cut": to_cut.get(s.name.lower())}
         for s in saws
     ]
-    return render(request, "saws.html", {"saws": rows})
+    return render(request, "saws.html", {"saws": rows, "profiles": profiles})
+
+
+def known_profiles() -> dict[str, Saw]:
+    """The saw profiles the server knows besides the log: packaged, and the shop's saws file
+    (``saws_file`` in the config, or ``SAWPLAN_SAWS``); none when that file cannot be
+    read (``sawplan saw list`` says what is wrong with it)."""
+    from sawplan import config
+    from sawplan.errors import SawplanError
+    from sawplan.saws import load_saws
+
+    try:
+        return load_saws(config.get("saws_file"))
+    except SawplanError:
+        return {}
 
 
 def station_page(request: Request) -> Response:
@@ -98,11 +114,14 @@ class StationView:
     shelf: list[Blade]
     reasons: list[tuple[str, str]]
     recent: list[dict[str, Any]]
+    in_log: bool = True  # False: a known profile, added to the log with the first tap saved
 
 
 def station_view(db: Log, name: str, *, for_tap: bool = False) -> StationView | None:
     """Everything the station page of saw ``name`` shows (None: no such saw).
 
+    A saw not in the log yet but with a known profile (``known_profiles``) has a
+    page too: no blade, no queue; the first tap saved adds it to the log.
     ``for_tap``: only what a tap needs (the saw, its blade, the head of the queue).
     """
     from sawplan.life.failure_modes import failure_modes
@@ -111,7 +130,11 @@ def station_view(db: Log, name: str, *, for_tap: bool = False) -> StationView | 
 
     saw = find_saw(db, name)
     if saw is None:
-        return None
+        profile = known_profiles().get(name.strip().lower())
+        if profile is None:
+            return None
+        shelf = [] if for_tap else list_blades(db, status="new") + list_blades(db, status="removed")
+        return StationView(profile, None, None, [], False, [], None, shelf, [], [], in_log=False)
     tag = fitted_on_saws(db).get(saw.name.lower())
     blade = get_blade(db, tag) if tag else None
     if for_tap:

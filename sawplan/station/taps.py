@@ -56,6 +56,8 @@ def _tap(request: Request, saw_name: str, sent: Typed) -> Response:
         if tap_said(db, key) is None:  # a tap seen before is answered below, not run again
             try:
                 step = BUILDERS[sent.kind](db, view, sent, d)
+                if not view.in_log:
+                    step = _adding_saw(db, view, step)
                 with request.app.state.write_lock:
                     once(db, key, sent.kind, step, at=now().isoformat(), saw_name=view.saw.name)
             except SawplanError as err:
@@ -63,6 +65,17 @@ def _tap(request: Request, saw_name: str, sent: Typed) -> Response:
                 context = page_context(fresh, d, error=place(sent.kind, err), typed=sent)
                 return render(request, "station.html", context, status=422)
     return RedirectResponse(f"/saw/{quote(view.saw.name, safe='')}?tap={key}#saved", 303)
+
+
+def _adding_saw(db: Log, view: StationView, step: Step) -> Step:
+    """A known saw's first tap: its profile goes into the log in the tap's transaction."""
+    from sawplan.store.saw_rows import saw_row_id
+
+    def first() -> str:
+        saw_row_id(db, view.saw.name, view.saw, on=today())
+        return step()
+
+    return first
 
 
 def now() -> dt.datetime:
