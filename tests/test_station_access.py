@@ -118,6 +118,9 @@ def test_the_station_key_logs_work_but_cannot_reach_office_actions(app, keys):
     assert session_role(app.state.access.keys.secret, c.cookies[SESSION_COOKIE]) == "station"
     assert c.get("/").status_code == 200
     assert c.get("/office/test-action").status_code == 403
+    assert c.get("/taps").status_code == 403  # correcting any cut of a day is office work
+    refused = c.post("/taps/undo", data={CSRF_FIELD: token(c.get("/key").text), "last": "1"})
+    assert refused.status_code == 403
 
 
 def test_the_office_key_reaches_office_actions(app, keys):

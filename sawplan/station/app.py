@@ -30,7 +30,7 @@ from starlette.responses import PlainTextResponse, RedirectResponse, Response
 from starlette.routing import BaseRoute, Mount, Route
 from starlette.staticfiles import StaticFiles
 
-from sawplan.station import floor
+from sawplan.station import floor, tap_fixes
 from sawplan.station.access import Access, Guard, Keys, Throttle, key_form_answer, sign_in
 from sawplan.station.web import STATIC, LogPool, render
 
@@ -110,6 +110,7 @@ def routes() -> list[BaseRoute]:
         Route("/healthz", healthz),
         Mount("/static", StaticFiles(directory=STATIC), name="static"),
         *floor.routes(),
+        *tap_fixes.routes(),
     ]
     office = office_routes()
     if office is not None:

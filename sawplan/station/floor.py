@@ -115,6 +115,7 @@ class StationView:
     reasons: list[tuple[str, str]]
     recent: list[dict[str, Any]]
     in_log: bool = True  # False: a known profile, added to the log with the first tap saved
+    last: dict[str, Any] | None = None  # the last cut done, while the station may correct it
 
 
 def station_view(db: Log, name: str, *, for_tap: bool = False) -> StationView | None:
@@ -125,6 +126,7 @@ def station_view(db: Log, name: str, *, for_tap: bool = False) -> StationView | 
     ``for_tap``: only what a tap needs (the saw, its blade, the head of the queue).
     """
     from sawplan.life.failure_modes import failure_modes
+    from sawplan.station.tap_fixes import last_cut
     from sawplan.store.records import find_saw, fitted_on_saws, get_blade, list_blades
     from sawplan.store.station_rows import job_progress, recent_taps, saw_queue
 
@@ -159,6 +161,7 @@ def station_view(db: Log, name: str, *, for_tap: bool = False) -> StationView | 
         shelf=shelf,
         reasons=reasons,
         recent=recent_taps(db, saw.name, limit=5),
+        last=last_cut(db, saw.name),
     )
 
 
@@ -172,6 +175,7 @@ def page_context(
 ) -> dict[str, Any]:
     """The template's values: the view, a fresh tap key per form, what was saved or refused."""
     from sawplan.station.forms import KINDS
+    from sawplan.station.tap_fixes import WINDOW_MIN
 
     values = dict(typed.values) if typed is not None else {}
     for row in view.queue:
@@ -184,6 +188,7 @@ def page_context(
         "error": error,
         "typed_kind": typed.kind if typed is not None else None,
         "typed": values,
+        "window_min": WINDOW_MIN,
     }
 
 
@@ -204,13 +209,14 @@ _LIVES_LOCK = threading.Lock()
 
 def expected_life(db: Log, material_group: str | None) -> tuple[float, str]:
     """(expected life in cm², where it comes from), recomputed only when a life changed:
-    a blade added, fitted, taken off or retired (every retirement writes an event)."""
+    a blade added, fitted, taken off or retired (every retirement writes an event), or a
+    cut corrected (every correction writes a tap)."""
     from sawplan.store.reports import life_basis
 
     counts = db.execute(
         "SELECT (SELECT COUNT(*) FROM blades), (SELECT COUNT(*) FROM fittings), "
         "(SELECT COUNT(*) FROM events), (SELECT COUNT(*) FROM fittings "
-        "WHERE removed_on IS NOT NULL)"
+        "WHERE removed_on IS NOT NULL), (SELECT COUNT(*) FROM taps WHERE corrects IS NOT NULL)"
     ).fetchone()
     key = (db.location.label, tuple(counts), material_group)
     with _LIVES_LOCK:

@@ -334,11 +334,22 @@ def _saw_id(db: Database, saw_name: str) -> int:
 # --- taps: each form once ------------------------------------------------------------------------
 
 
+@dataclass(frozen=True)
+class Saved:
+    """What a tap's step saved: its words, and what the taps row keeps besides them
+    (the cut a "cut done" logged; for a correction the tap corrected and the change)."""
+
+    said: str
+    cut_id: int | None = None
+    corrects: int | None = None
+    change: str | None = None
+
+
 def once(
     db: Database,
     tap: str,
     kind: str,
-    step: Callable[[], str],
+    step: Callable[[], str | Saved],
     *,
     at: str,
     saw_name: str | None = None,
@@ -356,12 +367,15 @@ def once(
         seen = db.scalar("SELECT said FROM taps WHERE tap = :tap", {"tap": tap})
         if seen is not None:
             return str(seen), True
-        said = step()
+        done = step()
+        saved = done if isinstance(done, Saved) else Saved(done)
         saw_id = _saw_id(db, saw_name) if saw_name else None
         db.insert(
-            "taps", {"tap": tap, "saw_id": saw_id, "kind": kind, "tapped_at": at, "said": said}
-        )
-        return said, False
+            "taps",
+            {"tap": tap, "saw_id": saw_id, "kind": kind, "tapped_at": at, "said": saved.said,
+             "cut_id": saved.cut_id, "corrects": saved.corrects, "change": saved.change},
+        )  # fmt: skip
+        return saved.said, False
 
     try:
         return run_write(db, whole)
