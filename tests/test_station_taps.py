@@ -282,3 +282,10 @@ def test_the_office_corrects_any_cut_done_of_the_day(station):
     undo = form_values(day.text, "/taps/undo")
     assert client.post("/taps/undo", data=undo).status_code == 200
     assert [c["id"] for c in cuts(log)] == [second["id"]]
+
+
+def test_every_form_of_the_station_is_a_kind_of_tap_the_store_knows():
+    from sawplan.station.forms import KINDS
+    from sawplan.store.station_rows import TAP_KINDS
+
+    assert sorted(KINDS) == sorted(TAP_KINDS)  # import checks a tap's kind against TAP_KINDS
