@@ -197,6 +197,7 @@ def test_the_last_cut_is_corrected_in_time_and_count_and_the_taps_keep_the_chang
     clock["now"] += dt.timedelta(minutes=5)
     answer = tap(client, "fix", cuts="2", time="5min")
     assert answer.status_code == 200 and "Corrected the cut done at 08:00" in answer.text
+    assert "Now in the log: 2 cuts" in answer.text  # the page shows the cut as corrected
     (cut,) = cuts(log)
     assert (cut["id"], cut["count"], cut["pieces"]) == (logged["id"], 2, 1)
     assert cut["area_mm2"] == pytest.approx(2 * AREA_MM2)
