@@ -16,6 +16,7 @@ field in the user's words, the range and the unit.  Pure: no I/O, no typer.
 from __future__ import annotations
 
 import math
+import re
 from dataclasses import dataclass
 from types import MappingProxyType
 
@@ -158,7 +159,10 @@ _TABLE: tuple[Field, ...] = (
           names=("stock.length", "part.length")),
     Field("count", "number of pieces", "--count", "-n", "N", "Number of pieces.", low=1,
           high=1_000_000, integer=True, why="a lot of more than a million pieces is a typing slip",
-          names=("stock.count", "part.count")),
+          names=("part.count",)),
+    Field("stock_count", "bars on hand", low=0, high=1_000_000, integer=True,
+          why="0 lists a length to buy; a rack of more than a million bars is a typing slip",
+          names=("stock.count",)),
     Field("reach", "reach", "--reach", placeholder="LENGTH",
           help="Hands' distance in front of the ankles at the lift (default 25cm).",
           dimension="length", low=0, high=630, why=f"over 63 cm gives no safe load; {_NIOSH}"),
@@ -177,7 +181,8 @@ _TABLE: tuple[Field, ...] = (
           why=f"over 15 lifts a minute gives no safe load; {_NIOSH}"),
     # -- saws
     Field("saw", "saw", "--saw", "-s", "NAME", "The saw (see `sawplan saw list`).",
-          dimension="text", high=60, why="a saw's name in the shop", names=("job.saw",)),
+          dimension="text", high=60, why="a saw's name in the shop",
+          names=("job.saw", "saws.name", "fittings.saw", "cuts.saw")),
     Field("like", "saw to start from", "--like", placeholder="NAME",
           help="Start from this saw's profile."),
     Field("saw_kind", "saw kind", "--kind", placeholder="WORD",
@@ -207,7 +212,7 @@ _TABLE: tuple[Field, ...] = (
           why="the slowest metal-cutting saws run about 10 m/min, high-speed aluminium saws about "
               "1,500 m/min (common practice)",
           names=("saws.band_speed_min_m_min", "saws.band_speed_max_m_min",
-                 "cuts.band_speed_m_min")),
+                 "cuts.band_speed_m_min", "materials.band_speed_m_min")),
     Field("speed_range", "band speed range", "--speed-range", placeholder="LOW-HIGH",
           help="Band speed range, e.g. 20-90m/min."),
     Field("power", "motor power", "--power", placeholder="POWER",
@@ -215,8 +220,9 @@ _TABLE: tuple[Field, ...] = (
           why="bench saws have motors of a few hundred watts, production saws up to about 30 kW",
           names=("saws.motor_power_w",)),
     Field("efficiency", "drive efficiency", "--efficiency", placeholder="FRACTION",
-          help="Motor-to-blade efficiency, above 0 and at most 1.", low=0, high=1, above=True,
-          why="a drive cannot give the blade more than the motor's power",
+          help="Motor-to-blade efficiency, from 0.1 to 1.", low=0.1, high=1,
+          why="a drive cannot give the blade more than the motor's power, and none loses "
+              "nine tenths of it",
           names=("saws.drive_efficiency",)),
     Field("capacity_round", "round capacity", "--capacity-round", placeholder="LENGTH",
           help="Largest round, e.g. 260mm.", dimension="length", low=10, high=5000,
@@ -240,7 +246,7 @@ _TABLE: tuple[Field, ...] = (
     # -- blades
     Field("tag", "blade tag", placeholder="TAG", help="The blade's tag, e.g. B-017.",
           dimension="text", high=40, why="a tag painted on the blade's box",
-          names=("blades.tag",)),
+          names=("blades.tag", "fittings.blade", "cuts.blade", "events.blade")),
     Field("blade", "blade", "--blade", placeholder="TAG",
           help="The blade's tag (default: the fitted blade).", dimension="text", high=40,
           why="a tag painted on the blade's box"),
@@ -322,15 +328,20 @@ _TABLE: tuple[Field, ...] = (
           why="under 1 mm² is no cut; 1,000 m² is years of sawing on one saw",
           names=("cuts.area_mm2",)),
     Field("time", "measured time", "--time", placeholder="TIME",
-          help="Measured time of the whole entry, e.g. 4.5min.", dimension="time", low=0,
-          high=100_000, above=True,
-          why="a batch of many cuts may run for weeks of shifts (100,000 min is about 70 days)",
+          help="Measured time of the whole entry, e.g. 4.5min.", dimension="time", low=0.01,
+          high=100_000,
+          why="no band-saw cut takes under a second (0.01 min); a batch of many cuts may run "
+              "for weeks of shifts (100,000 min is about 70 days)",
           names=("cuts.time_min",)),
     Field("feed", "feed", "--feed", placeholder="FEED",
-          help="Feed: a rate (40mm/min) or the dial setting (3).", dimension="feed", low=0,
-          high=5000, above=True,
-          why="band saws feed metal at under 1,000 mm/min; 5,000 mm/min is a rapid traverse",
+          help="Feed: a rate (40mm/min) or the dial setting (3).", dimension="feed", low=0.1,
+          high=5000,
+          why="at 0.1 mm/min a 1 m bar takes a week to cut through; band saws feed metal at "
+              "under 1,000 mm/min, and 5,000 mm/min is a rapid traverse",
           names=("cuts.feed_mm_min",)),
+    Field("feed_setting", "feed dial setting", low=0, high=1000, above=True,
+          why="a feed dial or valve reads 0-10 or 0-100; 1,000 is no dial (common practice)",
+          names=("cuts.feed_setting",)),
     Field("job", "job", "--job", placeholder="REF", help="Job reference.", dimension="text",
           high=60, why="a job number or short name", names=("cuts.job",)),
     Field("heat", "heat number", "--heat", placeholder="TEXT",
@@ -383,8 +394,8 @@ _TABLE: tuple[Field, ...] = (
           names=("job.handling_time",)),
     Field("change_time", "blade change time", "--change-time", placeholder="TIME",
           help="Time to change a worn blade, break-in included, e.g. 15min.", dimension="time",
-          low=0, high=600, above=True,
-          why="a blade change takes minutes; no change takes no time, and none takes ten hours",
+          low=1, high=600,
+          why="a blade change takes minutes: under one is not a change, over ten hours none is",
           names=("job.change_time",)),
     Field("economics", "cost per cut", "--economics",
           help="Also show what the cut costs at the recommended, cheapest and fastest band speeds."),
@@ -397,6 +408,36 @@ _TABLE: tuple[Field, ...] = (
     Field("price_per_kg", "price per kg", low=0, high=1_000_000,
           why="even precious alloys cost under a million per kg in any common currency",
           names=("stock.price_per_kg",)),
+    Field("job_name", "job name", dimension="text", high=200, why=_LINE, names=("job.name",)),
+    Field("customer", "customer", dimension="text", high=200, why=_LINE,
+          names=("job.customer",)),
+    Field("due", "due date", dimension="text", high=200, why=_LINE, names=("job.due",)),
+    Field("stock_file", "stock file", dimension="text", high=200, why="a file name",
+          names=("job.stock_file",)),
+    Field("part_name", "part name", dimension="text", high=200, why=_LINE, names=("part.name",)),
+    Field("tolerance", "tolerance", dimension="text", high=200, why=_LINE,
+          names=("part.tolerance",)),
+    Field("drawing", "drawing", dimension="text", high=200, why=_LINE, names=("part.drawing",)),
+    # -- a materials file (sawplan/materials.py): one row of data/materials.csv's columns
+    Field("material_key", "material key", dimension="text", high=60,
+          why="catalogue keys are short", names=("materials.key",)),
+    Field("designation", "designation", dimension="text", high=200, why=_LINE,
+          names=("materials.designation", "materials.standard", "materials.notes")),
+    Field("uns", "UNS number", dimension="text", high=12,
+          why="a UNS number is a letter and five digits", names=("materials.uns",)),
+    Field("density", "density", dimension="density", low=500, high=23_000,
+          why="lithium, the lightest metal, is 534 kg/m³ and osmium, the densest, 22,590 kg/m³ "
+              "(memory)", names=("materials.density_kg_m3",)),
+    Field("hardness", "hardness", dimension="hardness", low=1, high=800,
+          why="Brinell numbers run from a few for lead to about 700 for hardened tool steel "
+              "(memory)", names=("materials.hardness_hb",)),
+    Field("unit_energy", "unit cutting energy", dimension="energy_density", low=0.05, high=50,
+          why="metals take from about 0.3 J/mm³ (magnesium) to under 10 J/mm³ (superalloys) to "
+              "cut, wear factors included (memory)", names=("materials.unit_energy_j_mm3",)),
+    Field("cutting_rate", "cutting rate", dimension="rate", low=10, high=1_000_000,
+          why="band saws cut metal at from about 1 cm²/min (hard alloys, small saws) to a few "
+              "hundred (aluminium); 10,000 cm²/min is no band saw (common practice)",
+          names=("materials.cutting_rate_cm2_min",)),
     # -- the station (`sawplan serve`)
     Field("host", "address to serve", "--host", placeholder="ADDRESS",
           help="Address to listen on: 127.0.0.1 serves this computer only (no key needed); "
@@ -416,7 +457,13 @@ _TABLE: tuple[Field, ...] = (
           why="an off-cut under 1 mm is swarf; no bar is longer than 100 m",
           names=("remnants.length_mm",)),
     Field("rack", "rack place", dimension="text", high=60, why=_SHORT_TEXT,
-          names=("remnants.rack",)),
+          names=("remnants.rack", "stock.location")),
+    Field("tap_said", "what a tap saved", dimension="text", high=2000,
+          why="the station's own sentence about one tap: a line or a few",
+          names=("taps.said",)),
+    Field("tap_change", "what a correction changed", dimension="text", high=4000,
+          why="the old and new values of one cut entry, or the whole entry taken back (JSON)",
+          names=("taps.change",)),
     Field("remnant_credit", "rack credit", dimension="text", high=12,
           choices=("bar-price", "none"),
           why="remnants back on the rack are credited at their bar's price per length, or not",
@@ -475,18 +522,35 @@ def check_count(key: str | Field, value: int, *, words: str | None = None) -> in
     return int(value)
 
 
-def check_text(key: str | Field, value: str | None, *, words: str | None = None) -> str | None:
-    """Text with white space collapsed, refused when too long or holding control characters."""
+def check_text(
+    key: str | Field, value: str | None, *, words: str | None = None, collapse: bool = True
+) -> str | None:
+    """Text with white space collapsed, refused when too long or holding control characters.
+
+    ``collapse=False`` keeps the text as it is (a file name; a value already stored) and
+    refuses line breaks and tabs with the other control characters.
+    """
     f = key if isinstance(key, Field) else FIELDS[key]
     name = words or f.words
     if value is None:
         return None
-    text = " ".join(str(value).split())
-    if any(ord(c) < 32 or 127 <= ord(c) < 160 for c in text):
+    text = " ".join(str(value).split()) if collapse else str(value)
+    if has_control(text):
         raise BadDataError("must not hold control characters", field=name)
     if f.high is not None and len(text) > f.high:
         raise BadDataError(f"must be {f.range_text()}, got {len(text):,} characters", field=name)
     return text
+
+
+# Characters no stored text holds: C0 and C1 controls (a terminal runs ESC sequences), DEL,
+# the line and paragraph separators, and the bidirectional overrides and isolates that
+# make text read in another order than it is stored.
+CONTROL = re.compile("[\x00-\x1f\x7f-\x9f\u2028\u2029\u202a-\u202e\u2066-\u2069]")
+
+
+def has_control(text: str) -> bool:
+    """Whether ``text`` holds a character of ``CONTROL``."""
+    return CONTROL.search(text) is not None
 
 
 def check_choice(key: str | Field, value: str, *, words: str | None = None) -> str:
@@ -544,6 +608,10 @@ _LADDERS: dict[str, tuple[tuple[str, float], ...]] = {
     "power": (("W", 1.0), ("kW", 1000.0)),
     "force": (("N", 1.0), ("kN", 1000.0)),
     "stress": (("MPa", 1.0),),
+    "rate": (("cm²/min", 100.0),),
+    "density": (("kg/m³", 1.0),),
+    "hardness": (("HB", 1.0),),
+    "energy_density": (("J/mm³", 1.0),),
 }
 
 

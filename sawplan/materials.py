@@ -354,10 +354,14 @@ def _read_table(path: Path, *, label: str, origin: str, user: bool) -> list[Mate
 
 
 def _parse_row(row: dict[str, str], *, where: str, origin: str, user: bool) -> Material:
+    from sawplan.fields import Field, check_text, field_for
+
     def text(column: str, *, required: bool) -> str:
         value = row.get(column, "")
         if required and not value:
             raise BadDataError("must not be empty", field=f"{where}, {column}")
+        rule = field_for(f"materials.{column}") or Field(column, column, dimension="text")
+        check_text(rule, value, words=f"{where}, {column}", collapse=False)
         return value
 
     key = text("key", required=True)
@@ -369,8 +373,8 @@ def _parse_row(row: dict[str, str], *, where: str, origin: str, user: bool) -> M
     numbers: dict[str, float] = {}
     sources: dict[str, str] = {}
     for column, source_column in NUMERIC_COLUMNS.items():
-        numbers[column] = _positive(row.get(column, ""), field=f"{where}, {column}")
-        source = row.get(source_column, "")
+        numbers[column] = _plausible(row.get(column, ""), column, field=f"{where}, {column}")
+        source = text(source_column, required=False)
         if not source:
             if not user:
                 raise BadDataError("must name a source", field=f"{where}, {source_column}")
@@ -396,11 +400,17 @@ def _parse_row(row: dict[str, str], *, where: str, origin: str, user: bool) -> M
     )
 
 
-def _positive(raw: str, *, field: str) -> float:
+def _plausible(raw: str, column: str, *, field: str) -> float:
+    """A number of the row inside its field's range (``sawplan.fields``, ``materials.*``)."""
+    from sawplan.fields import check, field_for
+
     try:
         value = float(raw)
     except ValueError:
         value = math.nan
     if not (math.isfinite(value) and value > 0):
         raise BadDataError(f"expected a positive number, got '{raw}'", field=field)
+    rule = field_for(f"materials.{column}")
+    scale = 100.0 if column == "cutting_rate_cm2_min" else 1.0  # the field's unit: mm²/min
+    check(rule, value * scale, words=f"{field} ({rule.words})")
     return value

@@ -88,6 +88,28 @@ def to_csv(headers: Sequence[str], rows: Iterable[Sequence[Any]]) -> str:
     return buf.getvalue()
 
 
+def terminal_text(text: str) -> str:
+    """Text as a terminal shows it safely: each control character written as an escape.
+
+    Stored text (a tag, a note, an imported supplier) could carry ESC sequences
+    that move the cursor or retitle the window, or bidirectional overrides that
+    reorder what is read; the table shows ``\\x1b`` and ``\\u202e`` instead
+    (``sawplan.fields.CONTROL``).
+    """
+    from sawplan.fields import CONTROL
+
+    return CONTROL.sub(_escaped, text)
+
+
+def _escaped(match: re.Match[str]) -> str:
+    code = ord(match.group())
+    return f"\\x{code:02x}" if code < 0x100 else f"\\u{code:04x}"
+
+
+def _shown(value: Any) -> str:
+    return "" if value is None else terminal_text(str(value))
+
+
 def table(
     headers: Sequence[str],
     rows: Iterable[Sequence[Any]],
@@ -95,8 +117,12 @@ def table(
     align: str | None = None,
     title: str | None = None,
 ) -> str:
-    """A plain aligned text table. ``align`` has one of l/r per column (numbers right)."""
-    body = [["" if v is None else str(v) for v in row] for row in rows]
+    """A plain aligned text table. ``align`` has one of l/r per column (numbers right).
+
+    Every cell goes through ``terminal_text``: no cell can send a terminal a command.
+    """
+    body = [[_shown(v) for v in row] for row in rows]
+    headers = [_shown(h) for h in headers]
     cols = len(headers)
     widths = [len(h) for h in headers]
     for row in body:
@@ -113,7 +139,7 @@ def table(
 
     out = []
     if title:
-        out.append(title)
+        out.append("\n".join(terminal_text(part) for part in title.split("\n")))
     out.append(line(list(headers)))
     out.append("  ".join("-" * w for w in widths))
     out.extend(line(row) for row in body)
@@ -135,9 +161,9 @@ def _looks_numeric(rows: list[list[str]], i: int) -> bool:
 
 
 def key_values(pairs: Iterable[tuple[str, Any]], *, title: str | None = None) -> str:
-    """A two-column block of labelled values."""
-    pairs = [(k, "" if v is None else str(v)) for k, v in pairs]
+    """A two-column block of labelled values (each through ``terminal_text``)."""
+    pairs = [(_shown(k), _shown(v)) for k, v in pairs]
     width = max((len(k) for k, _ in pairs), default=0)
-    lines = [title] if title else []
+    lines = ["\n".join(terminal_text(part) for part in title.split("\n"))] if title else []
     lines += [f"{k.ljust(width)}  {v}" for k, v in pairs]
     return "\n".join(lines)

@@ -113,3 +113,19 @@ def test_the_command_line_refuses_implausible_values(cli, args):
     result = cli(*args)
     assert result.code == ExitCode.BAD_DATA, result.err
     assert result.err.count("\n") == 1 and "must be" in result.err
+
+
+def test_every_job_file_key_and_materials_column_has_a_rule():
+    from sawplan.cutlist.jobfile.types import JOB_KEYS, PART_KEYS, STOCK_KEYS
+    from sawplan.materials import NUMERIC_COLUMNS
+
+    keys = [("job", JOB_KEYS), ("stock", STOCK_KEYS), ("part", PART_KEYS),
+            ("materials", ("key", "designation", "uns", "standard", "notes", *NUMERIC_COLUMNS))]  # fmt: skip
+    flags = {"stock.remnant"}  # true or false: nothing to range
+    missing = [
+        f"{table}.{key}"
+        for table, names in keys
+        for key in names
+        if fields.field_for(f"{table}.{key}") is None and f"{table}.{key}" not in flags
+    ]
+    assert missing == []

@@ -112,12 +112,12 @@ STOCK = "([[stock]] 1018 round 50mm 3m)"
         ),
         pytest.param(
             "count = 4", "count = -2", "count = -2", BadDataError,
-            f"{PART}: count: must be at least 1, got -2",
+            f"{PART}: count (number of pieces): must be from 1 to 1,000,000, got -2",
             id="negative-part-count",
         ),
         pytest.param(
             "count = 2", "count = -1", "count = -1", BadDataError,
-            f"{STOCK}: count: must not be negative, got -1",
+            f"{STOCK}: count (bars on hand): must be from 0 to 1,000,000, got -1",
             id="negative-stock-count",
         ),
         pytest.param(
@@ -163,7 +163,7 @@ STOCK = "([[stock]] 1018 round 50mm 3m)"
         ),
         pytest.param(
             'kerf = "2mm"', 'kerf = "-2mm"', 'kerf = "-2mm"', BadDataError,
-            "([job]): kerf: must be more than 0, got '-2mm'",
+            "([job]): kerf: must be from 0.1 mm to 10 mm, got -2 mm",
             id="negative-kerf",
         ),
         pytest.param(

@@ -267,7 +267,7 @@ def test_stock_price_1e308_in_a_job_file_is_a_one_line_error(cli, tmp_path):
     job.write_text(TWO_SHORT.replace("price = 40", "price = 1e308"), encoding="utf-8")
     r = cli("plan", str(job), "--saw", "mid-production")
     assert r.code == 3
-    assert r.err.count("\n") == 1 and "price: must be at most 10,000,000" in r.err
+    assert r.err.count("\n") == 1 and "price (stock price): must be from 0 to 10,000,000" in r.err
 
 
 def test_job_of_three_million_pieces_is_refused_before_planning(cli, tmp_path):

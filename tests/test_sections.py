@@ -346,22 +346,23 @@ def sections(draw: st.DrawFn) -> Section:
     shape = draw(st.sampled_from(sorted(SHAPES)))
     size = st.floats(min_value=2.0, max_value=600.0)
     frac = st.floats(min_value=0.01, max_value=0.49)
+    wall = 0.1  # the thinnest size the field table takes (sawplan.fields "size")
     if shape in ("round", "square", "hex", "octagon"):
         dims: tuple[float, ...] = (draw(size),)
     elif shape == "flat":
         dims = (draw(size), draw(size))
     elif shape in ("tube", "stube"):
         s = draw(size)
-        dims = (s, s * draw(frac))
+        dims = (s, max(wall, s * draw(frac)))
     elif shape == "rtube":
         w, h = draw(size), draw(size)
-        dims = (w, h, min(w, h) * draw(frac))
+        dims = (w, h, max(wall, min(w, h) * draw(frac)))
     elif shape == "angle":
         a, b = draw(size), draw(size)
-        dims = (a, b, min(a, b) * 2 * draw(frac))
+        dims = (a, b, max(wall, min(a, b) * 2 * draw(frac)))
     else:  # channel, ibeam
         d, bf = draw(size), draw(size)
-        dims = (d, bf, bf * 2 * draw(frac), d * draw(frac))
+        dims = (d, bf, max(wall, bf * 2 * draw(frac)), max(wall, d * draw(frac)))
     info = SHAPES[shape]
     rows = draw(st.integers(1, 3))
     cols = draw(st.integers(1, 3))

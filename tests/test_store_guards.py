@@ -323,7 +323,7 @@ def test_an_imported_count_of_1e23_is_one_line_and_writes_nothing(shop_log, cli,
     assert cli("blade", "add", "B-1", *BLADE, "--db", str(target)).code == 0
     before = snapshot(target)
     err = one_line(cli("import", str(folder), "--db", str(target)), 3)
-    assert "cuts.csv row 1" in err and "count: must be from 1 to 100,000" in err
+    assert "cuts.csv row 1" in err and "count: number of cuts: must be from 1 to 100,000" in err
     assert snapshot(target) == before
 
 

@@ -17,16 +17,13 @@ inside the test's own temporary folder.
 
 from __future__ import annotations
 
-import contextlib
-import io
 import shutil
-import sqlite3
 from pathlib import Path
 
 import pytest
-import typer
+from cli_walk import LEAVES, argv, baselines, build_shop, check_answer, invoke
 
-from sawplan.cli.app import app, run
+from sawplan.cli.app import run
 from sawplan.cli.boundary import run_guarded
 
 DEPTH = 8
@@ -44,7 +41,6 @@ BAD_VALUES: dict[str, str] = {
     "10k characters": LONG,
     "path traversal": TRAVERSAL,
 }
-DOCUMENTED_FAILURES = {2, 3, 4, 5, 6, 7, 9}
 
 # Parameters whose values are the user's own words: anything short may be accepted.
 FREE_TEXT = {"note", "notes", "job", "heat", "location", "supplier", "lot", "grade", "break_in_how"}
@@ -66,123 +62,9 @@ ZERO_OK = {
 }
 
 
-def invoke(args: list[str]) -> tuple[int, str, str]:
-    out, err = io.StringIO(), io.StringIO()
-    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(err):
-        code = run_guarded(run, args)
-    return code, out.getvalue(), err.getvalue()
-
-
-def _walk(command, path=()):
-    if isinstance(getattr(command, "commands", None), dict):
-        for name, sub in command.commands.items():
-            yield from _walk(sub, (*path, name))
-    else:
-        yield path, command
-
-
-LEAVES = list(_walk(typer.main.get_command(app)))
-
-
-# --- the shop the walk starts from --------------------------------------------------------
-
-
 @pytest.fixture(scope="module")
 def shop(tmp_path_factory) -> dict[str, Path]:
-    """A blade log with a saw, two blades (one fitted) and cuts; a job; a CSV folder."""
-    root = tmp_path_factory.mktemp("shop")
-    log = root / "template.sqlite"
-
-    def ok(*args: str, db: Path = log) -> None:
-        code, _out, err = invoke([*args, "--db", str(db)])
-        assert code == 0, (args, err)
-
-    ok("saw", "add", "bay 2", "--like", "mid-production")
-    ok("blade", "add", "B-017", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm",
-       "--price", "60")  # fmt: skip
-    ok(
-        "blade",
-        "add",
-        "B-018",
-        "--pitch",
-        "4/6",
-        "--blade-width",
-        "27mm",
-        "--blade-thickness",
-        "0.9mm",
-    )
-    ok("blade", "fit", "B-017", "--saw", "bay 2")
-    for _ in range(3):
-        ok("log", "cut", "304", "round", "60mm", "--cuts", "5", "--time", "10min")
-    other = root / "other.sqlite"
-    ok("blade", "add", "B-900", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm",
-       db=other)  # fmt: skip
-    code, _out, err = invoke(["export", str(root / "csv-in"), "--db", str(other)])
-    assert code == 0, err
-    job = root / "job.toml"
-    shutil.copy(Path(__file__).parent / "data" / "plan_small.toml", job)
-    foreign = root / "foreign.sqlite"
-    conn = sqlite3.connect(foreign)
-    conn.execute("CREATE TABLE invoices (id INTEGER PRIMARY KEY)")
-    conn.close()
-    garbage = root / "garbage.sqlite"
-    garbage.write_bytes(b"SQLite format 3\x00" + bytes(range(256)) * 16)
-    ok("backup", str(root / "backup.sqlite"))
-    return {"root": root, "log": log, "job": job, "csv": root / "csv-in", "foreign": foreign,
-            "garbage": garbage, "backup": root / "backup.sqlite"}  # fmt: skip
-
-
-def baselines(shop: dict[str, Path]) -> dict[tuple[str, ...], dict[str, object]]:
-    """A valid invocation of every command: parameter name -> value."""
-    return {
-        ("plan",): {"jobfile": str(shop["job"])},
-        ("cut",): {"material": "4140", "section": ["round", "60mm"]},
-        ("weigh",): {"material": "4140", "section": ["round", "60mm"], "length": "1m"},
-        ("materials",): {},
-        ("life",): {},
-        ("forecast",): {"area": "5m2"},
-        ("export",): {"csvdir": "out"},
-        ("import",): {"csvdir": str(shop["csv"])},
-        ("backup",): {"file": "copy.sqlite"},
-        ("check",): {},
-        ("restore",): {"file": str(shop["backup"]), "db": "restored.sqlite"},
-        ("db", "copy"): {"source": str(shop["log"]), "target": "copied.sqlite"},
-        ("db", "upgrade"): {},
-        ("saw", "add"): {"name": "bay 9", "like": "mid-production"},
-        ("saw", "list"): {},
-        ("blade", "add"): {"tag": "B-100", "pitch": "3/4", "width": "27mm", "thickness": "0.9mm"},
-        ("blade", "fit"): {"tag": "B-018", "saw": "bay 2"},
-        ("blade", "remove"): {"tag": "B-017"},
-        ("blade", "retire"): {"tag": "B-017", "cause": "dull"},
-        ("blade", "list"): {},
-        ("blade", "show"): {"tag": "B-017"},
-        ("log", "cut"): {"material": "304", "section": ["round", "60mm"]},
-        ("log", "event"): {"tag": "B-017", "kind": "teeth-lost"},
-        ("log", "list"): {},
-        ("chart", "wear"): {"tag": "B-017"},
-        ("chart", "weibull"): {},
-        ("chart", "modes"): {},
-        ("chart", "cost"): {},
-        ("config", "show"): {},
-        ("config", "set"): {"key": "units", "value": "us"},
-        ("config", "unset"): {"key": "units"},
-        ("serve",): {},  # served on 127.0.0.1; the walk never starts uvicorn (see below)
-    }
-
-
-def argv(path: tuple[str, ...], command, values: dict[str, object]) -> list[str]:
-    options: list[str] = []
-    positional: list[str] = []
-    for param in command.params:
-        if param.name not in values:
-            continue
-        value = values[param.name]
-        if param.param_type_name == "option":
-            options += [param.opts[0], str(value)]
-        else:
-            positional += value if isinstance(value, list) else [str(value)]
-    # "--" so a positional value such as "-5" is read as a value, not an option
-    return [*path, *options, "--", *positional] if positional else [*path, *options]
+    return build_shop(tmp_path_factory.mktemp("shop"))
 
 
 def may_succeed(path: tuple[str, ...], name: str, label: str, value: str) -> bool:
@@ -199,16 +81,6 @@ def may_succeed(path: tuple[str, ...], name: str, label: str, value: str) -> boo
     if name == "db":  # a new name starts a new log (or reads as an empty one)
         return label not in ("10k characters", "empty", "path traversal")
     return label == "zero" and key in ZERO_OK
-
-
-def check_answer(code: int, err: str, what: str) -> None:
-    assert "Traceback" not in err, what
-    assert code != 1, f"{what}: internal error: {err}"
-    if code != 0:
-        assert code in DOCUMENTED_FAILURES, f"{what}: exit {code}: {err}"
-        assert err.endswith("\n") and err.count("\n") == 1, f"{what}: not one line: {err!r}"
-        assert err.startswith("error: "), f"{what}: {err!r}"
-        assert len(err) <= 600, f"{what}: a {len(err)}-character line"
 
 
 def test_every_command_has_a_baseline(shop):

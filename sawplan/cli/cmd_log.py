@@ -209,8 +209,7 @@ def batch_cut_area(section_area_mm2: float, area_mm2: float | None) -> float:
 def parse_feed(text: str | None) -> tuple[float | None, str | None]:
     """A rate with a unit (mm/min, in/min) or a bare dial setting, kept as text."""
     from sawplan.errors import UsageError
-    from sawplan.fields import parse
-    from sawplan.units import positive
+    from sawplan.fields import check, parse
 
     if text is None:
         return None, None
@@ -220,7 +219,7 @@ def parse_feed(text: str | None) -> tuple[float | None, str | None]:
         setting = float(text)
     except ValueError:
         return parse("feed", text), None
-    positive(setting, field="feed setting", what="above 0")  # a dial setting is a number
+    check("feed_setting", setting)  # a dial setting is a number on the saw's dial
     return None, text.strip()
 
 

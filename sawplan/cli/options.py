@@ -59,11 +59,26 @@ def _range_callback(f: fields.Field) -> Callable[[Any], Any]:
     return check
 
 
+def _text_callback(f: fields.Field, then: Callable[[Any], Any] | None) -> Callable[[Any], Any]:
+    """Free text checked as it is parsed (white space collapsed, no control characters, not
+    too long), then handed to the option's own callback, if any."""
+
+    def check(value: Any) -> Any:
+        if isinstance(value, str):
+            value = fields.check_text(f, value)
+        elif isinstance(value, list | tuple):
+            value = [fields.check_text(f, v) if isinstance(v, str) else v for v in value]
+        return value if then is None else then(value)
+
+    return check
+
+
 def opt(key: str, *, help: str | None = None, callback: Callable | None = None, **extra) -> Any:
     """The typer option of field ``key``: its name, short flag, placeholder and help.
 
     A number typed as int/float is checked against the field's range as it is
-    parsed; text quantities are read with ``fields.parse`` in the command.
+    parsed, and so is free text (``fields.check_text``); text quantities are read
+    with ``fields.parse`` in the command.
     """
     f = fields.field(key)
     if f.option is None:
@@ -73,6 +88,8 @@ def opt(key: str, *, help: str | None = None, callback: Callable | None = None, 
         decls.append(f.short)
     if callback is None and (f.low is not None or f.high is not None) and not f.dimension:
         callback = _range_callback(f)
+    elif f.is_text and not f.choices:
+        callback = _text_callback(f, callback)
     return typer.Option(
         *decls,
         help=help or f.help,

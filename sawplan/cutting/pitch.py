@@ -17,7 +17,6 @@ from sawplan.errors import BadDataError, DamagedFileError, UsageError
 from sawplan.paths import data_file
 
 MM_PER_IN = 25.4
-TPI_RANGE = (0.5, 36.0)  # outside this no metal-cutting band blade is made (memory)
 EXAMPLES = "e.g. 3/4, 4/6, 10-14, 14, 0.75/1.25"
 
 
@@ -120,15 +119,14 @@ def parse_pitch(text: str, *, field: str = "pitch") -> Pitch:
         raise UsageError(
             f"expected a pitch in teeth per inch, got {text!r}", field=field, hint=EXAMPLES
         )
+    from sawplan.fields import check
+
     first = float(match.group(1))
     second = float(match.group(2)) if match.group(2) else None
-    low, high = TPI_RANGE
     for tpi in (first, second):
-        if tpi is not None and not low <= tpi <= high:
-            raise BadDataError(
-                f"teeth per inch must be between {fmt_tpi(low)} and {fmt_tpi(high)}, "
-                f"got {fmt_tpi(tpi)}",
-                field=field,
-                hint=EXAMPLES,
-            )
+        if tpi is not None:
+            try:
+                check("pitch", tpi, words=field)  # the field table's range of teeth per inch
+            except BadDataError as err:
+                raise BadDataError(err.message, field=field, hint=EXAMPLES) from None
     return find(Pitch.of(first, second))

@@ -2,12 +2,11 @@
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 from sawplan.errors import BadDataError, UsageError
 
-MAX_SIZE_MM = 10_000.0  # larger than any band saw's capacity: a typing mistake
+MAX_SIZE_MM = 10_000.0  # a bundle wider or taller than any band saw's capacity: a typing slip
 
 
 @dataclass(frozen=True)
@@ -253,10 +252,12 @@ def _mm(v: float) -> str:
 
 def validate_dims(shape: str, dims: tuple[float, ...]) -> tuple[float, ...]:
     """Check sizes and return them in canonical order (flats and rtubes widest first)."""
+    from sawplan.fields import check
+
     info = SHAPES[shape]
     for name, v in zip(info.dims, dims, strict=True):
-        _check(math.isfinite(v) and v > 0, name, f"must be a positive length, got {v:g} mm")
-        _check(v <= MAX_SIZE_MM, name, f"{_mm(v)} is beyond any saw (at most 10 m)")
+        # the field table's range for any size of a section, named in words ("leg a")
+        check("size", v, words=name.replace("_", " "))
     if shape == "flat" and dims[1] > dims[0]:
         dims = (dims[1], dims[0])
     elif shape == "rtube" and dims[1] > dims[0]:
@@ -288,12 +289,12 @@ def validate_dims(shape: str, dims: tuple[float, ...]) -> tuple[float, ...]:
         d, bf, tw, tf = dims
         _check(
             2 * tf < d,
-            "flange_thickness",
+            "flange thickness",
             f"must be less than half the depth ({_mm(d / 2)}), got {_mm(tf)}",
         )
         _check(
             tw < bf,
-            "web_thickness",
+            "web thickness",
             f"must be less than the flange width ({_mm(bf)}), got {_mm(tw)}",
         )
     return dims

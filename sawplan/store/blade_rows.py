@@ -19,12 +19,11 @@ from sawplan.store.dates import check_dates
 from sawplan.store.db import run_write
 from sawplan.store.fields import (
     BLADE_STATUSES,
-    WELDED,
     check_failure_mode,
+    check_row,
     clean_text,
     fmt_num,
     pitch_label,
-    positive,
 )
 from sawplan.store.saw_rows import saw_row_id
 
@@ -133,29 +132,24 @@ def _blade(row: dict[str, Any]) -> Blade:
 
 def add_blade(db: Database, spec: BladeSpec, *, added_on: str) -> Blade:
     """Record a new blade; ``ConflictError`` when the tag is taken."""
-    tag = clean_text(spec.tag, field="tag")
+    tag = clean_text(spec.tag, field="blades.tag")
     if tag is None:
-        raise UsageError("a blade needs a tag", field="tag", hint="e.g. B-017")
-    if spec.welded not in WELDED:
-        raise BadDataError(f"must be {' or '.join(WELDED)}, got {spec.welded!r}", field="welded")
-    for name in ("width_mm", "thickness_mm", "tpi_coarse", "tpi_fine"):
-        positive(getattr(spec, name), name)
-    for name in ("length_mm",):
-        if getattr(spec, name) is not None:
-            positive(getattr(spec, name), name)
-    if spec.price is not None and not spec.price >= 0:
-        raise BadDataError(f"must be 0 or more, got {spec.price:g}", field="price")
+        raise UsageError("a blade needs a tag", field="blade tag", hint="e.g. B-017")
+    row = dataclasses.asdict(spec)
+    for key in ("grade", "tooth_form", "tooth_set", "supplier", "lot", "notes", "blade_material"):
+        row[key] = clean_text(row[key], field=f"blades.{key}")
+    row.update(tag=tag, status="new", added_on=added_on)
+    row["blade_material"] = row["blade_material"] or "bi-metal"
+    for key in ("width_mm", "thickness_mm", "tpi_coarse", "tpi_fine"):
+        if row[key] is None:
+            raise BadDataError("is required", field=key)
+    check_row("blades", row)  # every value against the field table, before any rule between them
     if spec.thickness_mm >= spec.width_mm:
         raise BadDataError(
             f"thickness {fmt_num(spec.thickness_mm)} mm must be less than the width "
             f"{fmt_num(spec.width_mm)} mm",
-            field="thickness",
+            field="blade thickness",
         )
-    row = dataclasses.asdict(spec)
-    for key in ("grade", "tooth_form", "tooth_set", "supplier", "lot", "notes", "blade_material"):
-        row[key] = clean_text(row[key], field=key)
-    row.update(tag=tag, status="new", added_on=added_on)
-    row["blade_material"] = row["blade_material"] or "bi-metal"
 
     def step() -> None:
         if _find_blade_row(db, tag) is not None:
@@ -222,9 +216,8 @@ def fit_blade(
     break_in_how: str | None = None,
 ) -> FitOutcome:
     """Fit a blade to a saw, taking off whatever blade that saw carried."""
-    if tension_mpa is not None:
-        positive(tension_mpa, "tension")
-    how = clean_text(break_in_how, field="break-in-how")
+    how = clean_text(break_in_how, field="fittings.break_in_how")
+    check_row("fittings", {"tension_mpa": tension_mpa, "fitted_on": on})
 
     def step() -> FitOutcome:
         blade = existing_blade_row(db, tag)
@@ -289,8 +282,8 @@ def retire_blade(
 ) -> Blade:
     """End a blade's life with a failure mode; records a ``failure`` event."""
     code = check_failure_mode(cause, field="cause")
-    where = clean_text(location, field="location")
-    text = clean_text(note, field="note")
+    where = clean_text(location, field="events.location")
+    text = clean_text(note, field="events.note")
 
     def step() -> None:
         blade = existing_blade_row(db, tag)

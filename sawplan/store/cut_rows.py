@@ -4,17 +4,17 @@ from __future__ import annotations
 
 import dataclasses
 import difflib
-import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
-from sawplan.errors import BadDataError, ConflictError, NotFoundError, UsageError
+from sawplan.errors import ConflictError, NotFoundError, UsageError
 from sawplan.store.blade_rows import Blade, existing_blade_row, get_blade, retire_blade
 from sawplan.store.dates import check_dates
 from sawplan.store.db import run_write
 from sawplan.store.fields import (
     EVENT_KINDS,
     check_failure_mode,
+    check_row,
     clean_text,
     modes_hint,
     whole_number,
@@ -60,7 +60,7 @@ def cut_row(entry: CutEntry) -> dict[str, Any]:
     row = dataclasses.asdict(entry)
     row["coolant"] = int(bool(entry.coolant))
     for key in ("job", "heat", "note", "feed_setting"):
-        row[key] = clean_text(row[key], field=key)
+        row[key] = clean_text(row[key], field=f"cuts.{key}")
     return row
 
 
@@ -158,11 +158,8 @@ def log_cut(db: Database, entry: CutEntry) -> int:
 
 def _insert_cut(db: Database, entry: CutEntry) -> int:
     """Check and write one cut entry inside the caller's write transaction."""
-    whole_number(entry.count, "cuts.count")
-    whole_number(entry.pieces, "cuts.pieces")
-    if not (math.isfinite(entry.area_mm2) and entry.area_mm2 > 0):
-        raise BadDataError("a cut needs an area above 0", field="area")
-    row = cut_row(entry)
+    row = {c: v for c, v in cut_row(entry).items() if c in _CUT_COLUMNS}
+    check_row("cuts", row)  # before the blade is read: a bad value is named first
     status = db.execute(
         "SELECT status, tag FROM blades WHERE id = :id", {"id": entry.blade_id}
     ).fetchone()
@@ -170,7 +167,7 @@ def _insert_cut(db: Database, entry: CutEntry) -> int:
         raise NotFoundError(f"no blade with id {entry.blade_id}", field="blade")
     if status[0] == "retired":
         raise ConflictError(f"blade {status[1]} is retired; no more cuts can be logged on it")
-    cut_id = db.insert("cuts", {c: row[c] for c in _CUT_COLUMNS})
+    cut_id = db.insert("cuts", row)
     check_dates(db, "cuts", row_id=cut_id)
     return cut_id
 
@@ -255,8 +252,8 @@ def log_event(db: Database, entry: EventEntry) -> Blade:
     if entry.teeth is not None:
         whole_number(entry.teeth, "events.teeth")
     teeth = entry.teeth if entry.teeth is not None else (1 if kind == "teeth-lost" else None)
-    location = clean_text(entry.location, field="location")
-    note = clean_text(entry.note, field="note")
+    location = clean_text(entry.location, field="events.location")
+    note = clean_text(entry.note, field="events.note")
 
     def step() -> None:
         blade = existing_blade_row(db, entry.blade_tag)

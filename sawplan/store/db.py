@@ -152,18 +152,23 @@ class Log:
     # --- writing -------------------------------------------------------------------
 
     def insert(self, table: str, row: Mapping[str, Any]) -> int:
-        """Insert one row; returns its id."""
+        """Insert one row, checked against the field table first; returns its id."""
+        from sawplan.store.fields import check_row
         from sawplan.store.schema import table as table_of
 
+        check_row(table, row)
         statement = table_of(table).insert().values(**row)
         return int(self._run(statement, None, lambda r: r.inserted_primary_key[0]))
 
     def insert_many(self, table: str, rows: Sequence[Mapping[str, Any]]) -> int:
-        """Insert rows in batches (every row with the same keys); returns how many."""
+        """Insert rows in batches (every row with the same keys), each checked; returns how many."""
+        from sawplan.store.fields import check_row
         from sawplan.store.schema import table as table_of
 
         if not rows:
             return 0
+        for row in rows:
+            check_row(table, row)
         keys = list(dict.fromkeys(k for row in rows for k in row))
         shaped = [{k: row.get(k) for k in keys} for row in rows]
         statement = table_of(table).insert()
@@ -172,8 +177,11 @@ class Log:
         return len(shaped)
 
     def update(self, table: str, row_id: int, values: Mapping[str, Any]) -> None:
+        """Update one row's ``values``, checked against the field table first."""
+        from sawplan.store.fields import check_row
         from sawplan.store.schema import table as table_of
 
+        check_row(table, values)
         t = table_of(table)
         self._run(t.update().where(t.c.id == row_id).values(**values), None, lambda r: None)
 

@@ -33,7 +33,7 @@ from sawplan.errors import (
 )
 from sawplan.store.db import read_snapshot, run_write
 from sawplan.store.exchange_station import COLUMNS as STATION_COLUMNS
-from sawplan.store.fields import whole_number
+from sawplan.store.fields import StoredValueError, check_row
 from sawplan.store.records import BLADE_STATUSES, EVENT_KINDS, WELDED
 from sawplan.store.schema import SAW_PROFILE_COLUMNS
 
@@ -111,9 +111,6 @@ TABLES: dict[str, dict[str, str]] = {
     **STATION_COLUMNS,
 }
 LOG_TABLES = ("saws", "blades", "fittings", "cuts", "events")
-_POSITIVE = {"width_mm", "thickness_mm", "length_mm", "tpi_coarse", "tpi_fine", "area_mm2",
-             "pieces", "count", "band_speed_m_min", "feed_mm_min", "time_min",
-             "predicted_time_min", "tension_mpa", "teeth"}  # fmt: skip
 
 _EXPORT_SQL = {
     "saws": "SELECT * FROM saws ORDER BY id",
@@ -311,15 +308,12 @@ def _convert_row(
             if kind == "text":
                 value: Any = text[1:] if text.startswith("'") else text
                 value = value if value.strip() else None
-                if value is not None and any(ord(c) < 32 or 127 <= ord(c) < 160 for c in value):
-                    # sawplan never stores them (a NUL is not even text to PostgreSQL)
-                    raise BadDataError("must not hold control characters")
             elif text.strip() == "":
                 value = None
             elif kind == "real":
                 value = _number(text, float)
             elif kind == "int":
-                value = whole_number(_number(text, int), f"{table}.{column}")
+                value = _number(text, int)
             elif kind == "flag":
                 value = _flag(text)
             elif kind == "stamp":
@@ -330,9 +324,11 @@ def _convert_row(
             raise _row_error(name, number, column, err.message) from None
         if value is None and required:
             raise _row_error(name, number, column, "is required")
-        if column in _POSITIVE and value is not None and not value > 0:
-            raise _row_error(name, number, column, f"must be above 0, got {text!r}")
         out[column] = value
+    try:  # the rules every row of the log obeys, whoever writes it (sawplan.fields)
+        check_row(table, out)
+    except StoredValueError as err:
+        raise _row_error(name, number, err.column, err.one_line()) from None
     return out
 
 

@@ -7,7 +7,7 @@ from typing import TYPE_CHECKING, Any
 
 from sawplan.errors import ConflictError, NotFoundError, UsageError
 from sawplan.store.db import run_write
-from sawplan.store.fields import MAX_TEXT, clean_text
+from sawplan.store.fields import clean_text
 from sawplan.store.schema import SAW_PROFILE_COLUMNS
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -39,12 +39,12 @@ def row_to_saw(row: dict[str, Any]) -> Saw:
 
 def add_saw(db: Database, saw: Saw, *, added_on: str, replace: bool = False) -> None:
     """Keep a saw profile in the log; ``replace`` updates one of the same name."""
-    name = clean_text(saw.name, field="name")
+    name = clean_text(saw.name, field="saws.name")
     if name is None:
         raise UsageError("a saw needs a name", field="name")
     row = saw_to_row(saw) | {"name": name, "added_on": added_on}
-    row["notes"] = clean_text(row.get("notes"), field="notes", limit=MAX_TEXT["note"])
-    row["source"] = clean_text(row.get("source"), field="source") or "blade log"
+    row["notes"] = clean_text(row.get("notes"), field="saws.notes")
+    row["source"] = clean_text(row.get("source"), field="saws.source") or "blade log"
 
     def step() -> None:
         existing = _find_saw_row(db, name)

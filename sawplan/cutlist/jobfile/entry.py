@@ -1,17 +1,23 @@
 """One entry of a job file (a TOML table or a stock-file row), read value by value.
 
 Each reader checks one kind of value (text, a quantity with its unit, a whole
-number, money, a flag) and fails with a one-line error at the key's line.
+number, money, a flag) against the key's rule in the one field table
+(``sawplan.fields``: ``job.kerf``, ``stock.price``, ``part.count``), the same
+rule the command line and the blade log apply, and fails with a one-line error
+at the key's line naming the key, the field's words, the range and the unit.
 """
 
 from __future__ import annotations
 
 import difflib
-import math
+from typing import Any
 
 from sawplan.cutlist.jobfile.lines import TomlLines, Where, located
-from sawplan.cutlist.jobfile.types import MAX_LENGTH_MM, MAX_MONEY
+from sawplan.cutlist.jobfile.types import MAX_TEXT
 from sawplan.errors import BadDataError, SawplanError, UsageError
+
+# the table of the field table's names ("stock.price") that an entry's keys belong to
+_TABLE_NAMES = {"[job]": "job", "[[stock]]": "stock", "stock row": "stock", "[[part]]": "part"}
 
 
 class JobEntry:
@@ -45,7 +51,31 @@ class JobEntry:
                 hint = f"did you mean {close[0]}?" if close else "expected " + ", ".join(allowed)
                 raise self.fail(UsageError(f"unknown key {key!r}", hint=hint), key)
 
-    def text(self, key: str, *, required: bool = False, default: str = "") -> str:
+    def rule(self, key: str) -> Any:
+        """The field-table rule of ``key`` in this table (``job.kerf``, ``stock.price``)."""
+        from sawplan.fields import field_for
+
+        return field_for(f"{_TABLE_NAMES.get(self.table, self.table)}.{key}")
+
+    def named(self, key: str) -> str:
+        """How an error names ``key``: as written, with the field's words when they differ."""
+        rule = self.rule(key)
+        if rule is None or rule.words == key.replace("_", " "):
+            return key
+        return f"{key} ({rule.words})"
+
+    def checked(self, key: str, value: Any, check: Any) -> Any:
+        """``check(rule, value, words=…)`` with the error at the key's line."""
+        try:
+            return check(self.rule(key), value, words=self.named(key))
+        except SawplanError as err:
+            raise self.fail(err, key) from None
+
+    def text(
+        self, key: str, *, required: bool = False, default: str = "", collapse: bool = True
+    ) -> str:
+        from sawplan.fields import Field, check_text
+
         value = self.data.get(key)
         if value is None:
             if required:
@@ -58,13 +88,15 @@ class JobEntry:
         value = str(value).strip()
         if required and not value:
             raise self.fail(BadDataError("must not be empty", field=key), key)
-        if len(value) > 200:
-            raise self.fail(
-                BadDataError(f"is {len(value)} characters, at most 200", field=key), key
-            )
-        return value
+        rule = self.rule(key) or Field(key, key, dimension="text", high=MAX_TEXT)
+        try:
+            return check_text(rule, value, words=self.named(key), collapse=collapse) or ""
+        except SawplanError as err:
+            raise self.fail(err, key) from None
 
-    def quantity(self, key: str, dimension: str, example: str, *, positive: bool) -> float | None:
+    def quantity(self, key: str, dimension: str, example: str) -> float | None:
+        """A quantity with its unit, in the core unit, inside its field's range."""
+        from sawplan.fields import check
         from sawplan.units import to_core
 
         value = self.data.get(key)
@@ -81,61 +113,37 @@ class JobEntry:
             core = to_core(value, dimension, field=key)
         except SawplanError as err:
             raise self.fail(err, key) from None
-        if positive and not core > 0:
-            raise self.fail(BadDataError(f"must be more than 0, got {value!r}", field=key), key)
-        if core < 0:
-            raise self.fail(BadDataError(f"must not be negative, got {value!r}", field=key), key)
-        if dimension == "length" and core > MAX_LENGTH_MM:
-            raise self.fail(BadDataError(f"must be at most 100 m, got {value!r}", field=key), key)
-        return core
+        return self.checked(key, core, check)
 
-    def count(self, key: str, *, minimum: int) -> int | None:
+    def count(self, key: str) -> int | None:
+        """A whole number inside its field's range (``part.count``, ``stock.count``)."""
+        from sawplan.fields import check_count
+
         value = self.data.get(key)
         if value is None:
             return None
         if isinstance(value, bool) or not isinstance(value, int):
             err = BadDataError(f"expected a whole number, got {value!r}", field=key)
             raise self.fail(err, key)
-        if value < minimum:
-            what = "must not be negative" if minimum == 0 else f"must be at least {minimum}"
-            raise self.fail(BadDataError(f"{what}, got {value}", field=key), key)
-        if value > 1_000_000:
-            raise self.fail(BadDataError(f"must be at most 1,000,000, got {value}", field=key), key)
-        return value
+        return self.checked(key, value, check_count)
 
     def money(self, key: str) -> float | None:
+        """An amount of money inside its field's range (``job.shop_rate``, ``stock.price``)."""
+        from sawplan.fields import check
+
         value = self.data.get(key)
         if value is None:
             return None
-        if (
-            isinstance(value, bool)
-            or not isinstance(value, int | float)
-            or not math.isfinite(value)
-        ):
+        if isinstance(value, bool) or not isinstance(value, int | float):
             err = BadDataError(f"expected a number (money), e.g. 120.50, got {value!r}", field=key)
             raise self.fail(err, key)
-        if value < 0:
-            raise self.fail(BadDataError(f"must not be negative, got {value:g}", field=key), key)
-        high = _money_limit(self.table, key)
-        if value > high:
-            err = BadDataError(f"must be at most {high:,.0f}, got {value:g}", field=key)
-            raise self.fail(err, key)
-        return float(value)
+        return float(self.checked(key, value, check))
 
     def flag(self, key: str) -> bool:
         value = self.data.get(key, False)
         if not isinstance(value, bool):
             raise self.fail(BadDataError(f"expected true or false, got {value!r}", field=key), key)
         return value
-
-
-def _money_limit(table: str, key: str) -> float:
-    """The field table's upper limit for a money key of a job file (else MAX_MONEY)."""
-    from sawplan.fields import field_for
-
-    name = "job" if table == "[job]" else "stock"
-    rule = field_for(f"{name}.{key}")
-    return rule.high if rule is not None and rule.high is not None else MAX_MONEY
 
 
 def raw_stock_label(item: dict, i: int) -> str:

@@ -233,10 +233,10 @@ def parse_job(
             raise entry.fail(err, "name")
         names[name.casefold()] = entry.where().line
         material, spec, section_text = resolve(entry)
-        length = entry.quantity("length", "length", "250mm", positive=True)
+        length = entry.quantity("length", "length", "250mm")
         if length is None:
             raise entry.fail(BadDataError("is missing", field="length"))
-        count = entry.count("count", minimum=1)
+        count = entry.count("count")
         parts.append(
             PartLine(
                 index=i + 1,
@@ -277,7 +277,7 @@ def _stock_line(
     if price is not None and per_kg is not None:
         err = UsageError("give price (per bar) or price_per_kg, not both", field="price_per_kg")
         raise entry.fail(err, "price_per_kg")
-    length = entry.quantity("length", "length", "6m", positive=True)
+    length = entry.quantity("length", "length", "6m")
     if length is None:
         raise entry.fail(BadDataError("is missing", field="length"))
     return StockLine(
@@ -287,7 +287,7 @@ def _stock_line(
         section=spec,
         section_text=section_text,
         length_mm=length,
-        count=entry.count("count", minimum=0),
+        count=entry.count("count"),
         price=price,
         price_per_kg=per_kg,
         heat=entry.text("heat"),
@@ -334,14 +334,14 @@ def _read_header(table: dict, lines: TomlLines, file: str, *, default_name: str)
     entry = JobEntry(table, "[job]", 0, lines, file, None)
     entry.check_keys(JOB_KEYS)
 
-    def length(key: str, default: float | None, *, positive: bool = False) -> float | None:
-        value = entry.quantity(key, "length", "1.6mm", positive=positive)
+    def length(key: str, default: float | None) -> float | None:
+        value = entry.quantity(key, "length", "1.6mm")
         return default if value is None else value
 
-    handling = entry.quantity("handling_time", "time", "0.5min", positive=False)
+    handling = entry.quantity("handling_time", "time", "0.5min")
     return JobHeader(
         name=entry.text("name", default=default_name) or default_name,
-        kerf_mm=length("kerf", None, positive=True),
+        kerf_mm=length("kerf", None),
         trim_mm=length("trim", DEFAULT_TRIM_MM) or 0.0,
         grip_mm=length("grip", DEFAULT_GRIP_MM) or 0.0,
         min_remnant_mm=length("min_remnant", DEFAULT_MIN_REMNANT_MM) or 0.0,
@@ -352,7 +352,7 @@ def _read_header(table: dict, lines: TomlLines, file: str, *, default_name: str)
         currency=entry.text("currency"),
         customer=entry.text("customer"),
         due=entry.text("due"),
-        stock_file=entry.text("stock_file"),
+        stock_file=entry.text("stock_file", collapse=False),
         remnant_credit=_remnant_credit(entry),
     )
 

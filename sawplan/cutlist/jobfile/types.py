@@ -27,9 +27,9 @@ DEFAULT_TRIM_MM = 0.0  # bar ends taken as square
 DEFAULT_GRIP_MM = 0.0  # a saw that can part the last piece (no vise tail)
 DEFAULT_MIN_REMNANT_MM = 300.0  # common practice: tails under about a foot are scrap
 DEFAULT_HANDLING_TIME_MIN = 0.5  # common practice: advance, clamp and unload, per cut
-MAX_LENGTH_MM = 100_000.0  # a 100 m bar is a typing mistake
+MAX_LENGTH_MM = 100_000.0  # a 100 m bar is a typing mistake (the field table's piece length)
 MAX_FILE_BYTES = 5_000_000
-MAX_MONEY = 1e9  # a price, rate or value above a billion in any currency is a typing mistake
+MAX_TEXT = 200  # a text key without a field of its own
 # The largest job accepted (its plan's time and memory are measured in bench/bench_limits.py):
 MAX_PIECES = 100_000  # pieces in one job: a cut sheet longer than this is split into jobs
 MAX_PARTS = 2_000  # [[part]] entries in one job
