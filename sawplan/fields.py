@@ -448,6 +448,9 @@ _TABLE: tuple[Field, ...] = (
     Field("keys", "new keys", "--keys",
           help="Make a new station key and office key (shown once, stored hashed) and stop; "
                "the keys made before stop working."),
+    Field("proxied", "behind a reverse proxy", "--proxied",
+          help="Every request comes through a reverse proxy on this computer (TLS in front): "
+               "treat each one as a network request, so every page needs a key."),
     Field("send", "send to the saw", "--send",
           help="Send the planned cuts to the saw's queue on the station (`sawplan serve`)."),
     Field("remnant_length", "remnant length", dimension="length", low=1, high=100_000,
@@ -455,6 +458,12 @@ _TABLE: tuple[Field, ...] = (
           names=("remnants.length_mm",)),
     Field("rack", "rack place", dimension="text", high=60, why=_SHORT_TEXT,
           names=("remnants.rack", "stock.location")),
+    Field("tap_said", "what a tap saved", dimension="text", high=2000,
+          why="the station's own sentence about one tap: a line or a few",
+          names=("taps.said",)),
+    Field("tap_change", "what a correction changed", dimension="text", high=4000,
+          why="the old and new values of one cut entry, or the whole entry taken back (JSON)",
+          names=("taps.change",)),
     Field("remnant_credit", "rack credit", dimension="text", high=12,
           choices=("bar-price", "none"),
           why="remnants back on the rack are credited at their bar's price per length, or not",

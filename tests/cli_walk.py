@@ -75,6 +75,7 @@ def build_shop(root: Path) -> dict[str, Path]:
     for _ in range(3):
         ok("log", "cut", "304", "round", "60mm", "--cuts", "5", "--time", "10min")
     ok("log", "event", "B-017", "teeth-lost", "--teeth", "2", "--note", "hard spot")
+    station_rows(log)
     other = root / "other.sqlite"
     ok("blade", "add", "B-900", "--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm",
        db=other)  # fmt: skip
@@ -91,6 +92,26 @@ def build_shop(root: Path) -> dict[str, Path]:
     ok("backup", str(root / "backup.sqlite"))
     return {"root": root, "log": log, "job": job, "csv": root / "csv-in", "foreign": foreign,
             "garbage": garbage, "backup": root / "backup.sqlite"}  # fmt: skip
+
+
+def station_rows(log: Path) -> None:
+    """A remnant, a note and two taps (one a correction), so the station's columns are walked."""
+    from sawplan.store import connect
+    from sawplan.store.dates import parse_day
+    from sawplan.store.station_rows import RemnantEntry, Saved, add_note, once, rack_remnant
+
+    day = parse_day(None)
+    with connect(log) as db:
+        rack_remnant(db, RemnantEntry(length_mm=420.0, racked_on=day, saw="bay 2", heat="H-1",
+                                      rack="R2", note="kept"))  # fmt: skip
+
+        def note() -> Saved:
+            add_note(db, "bay 2", "coolant low", on=day)
+            return Saved("Note saved: coolant low")
+
+        once(db, "a" * 32, "note", note, at=f"{day}T08:00:00+00:00", saw_name="bay 2")
+        once(db, "b" * 32, "fix", lambda: Saved("Corrected", 1, None, '{"time_min":[10.0,9.5]}'),
+             at=f"{day}T08:05:00+00:00", saw_name="bay 2")  # fmt: skip
 
 
 def baselines(shop: dict[str, Path]) -> dict[tuple[str, ...], dict[str, object]]:

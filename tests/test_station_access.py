@@ -95,6 +95,16 @@ def test_a_proxied_request_from_loopback_counts_as_the_network(app):
     assert page.status_code == 303
 
 
+def test_behind_a_proxy_that_names_no_client_every_request_needs_a_key(station, keys):
+    # --proxied: a proxy on this computer that sends no X-Forwarded-For must not open the office
+    proxied = create_app(
+        str(station[0].state.db), keys=station[0].state.access.keys, units="metric", proxied=True
+    )
+    with TestClient(proxied, client=LOCAL, base_url="http://127.0.0.1:8470") as c:
+        assert c.get("/", follow_redirects=False).status_code == 303
+        assert c.get("/", headers={"Authorization": f"Bearer {keys['station']}"}).status_code == 200
+
+
 def test_a_key_in_the_url_opens_nothing(app, keys):
     c = client(app)
     page = c.get(f"/?key={keys['office']}", follow_redirects=False)
@@ -108,6 +118,9 @@ def test_the_station_key_logs_work_but_cannot_reach_office_actions(app, keys):
     assert session_role(app.state.access.keys.secret, c.cookies[SESSION_COOKIE]) == "station"
     assert c.get("/").status_code == 200
     assert c.get("/office/test-action").status_code == 403
+    assert c.get("/taps").status_code == 403  # correcting any cut of a day is office work
+    refused = c.post("/taps/undo", data={CSRF_FIELD: token(c.get("/key").text), "last": "1"})
+    assert refused.status_code == 403
 
 
 def test_the_office_key_reaches_office_actions(app, keys):
@@ -185,6 +198,21 @@ def test_a_local_request_under_a_strange_host_name_is_refused(app):
 def test_serving_the_network_without_keys_is_refused(cli):
     result = cli("serve", "--host", "0.0.0.0")
     assert result.code == 2 and "needs keys" in result.err
+
+
+def test_proxied_without_keys_is_refused_and_with_keys_serves_no_request_as_local(
+    cli, tmp_path, monkeypatch
+):
+    monkeypatch.setenv("SAWPLAN_HOME", str(tmp_path))
+    refused = cli("serve", "--proxied")
+    assert refused.code == 2 and "--proxied" in refused.err
+    make_keys(tmp_path / "station-keys.json")
+    served = {}
+    monkeypatch.setattr(
+        "sawplan.station.serve.run_server", lambda app, host, port: served.update(app=app)
+    )
+    assert cli("serve", "--proxied", "--db", str(tmp_path / "log.sqlite")).code == 0
+    assert served["app"].state.access.proxied is True
 
 
 def test_keys_are_shown_once_and_stored_hashed(cli, tmp_path, monkeypatch):

@@ -102,6 +102,15 @@ def worked(shop, served, browser):
         page.fill("#done-time", typed_time)
         page.get_by_role("button", name="Cut done").click()
         said.append(saved.inner_text())
+    page.locator("summary", has_text="Correct the last cut").click()  # 45 s was 50 s
+    page.fill("#fix-time", "50s")
+    page.get_by_role("button", name="Correct it").click()
+    fix_said = saved.inner_text()
+    page.locator("summary", has_text="Correct the last cut").click()
+    page.set_viewport_size({"width": PHONE[0], "height": PHONE[1]})
+    fix_shot = folder / "station-phone-correcting.png"
+    page.screenshot(path=str(fix_shot), full_page=True)
+    page.set_viewport_size({"width": TABLET[0], "height": TABLET[1]})
     page.locator("summary", has_text="Blade off").click()
     page.select_option("#blade-off-reason", "stripped")
     page.get_by_role("button", name="Blade off").click()
@@ -124,6 +133,7 @@ def worked(shop, served, browser):
         path = folder / f"station-{name}.png"
         page.screenshot(path=str(path), full_page=True)
         shots[name] = (path, width, _targets(page))
+    shots["phone, correcting the last cut"] = (fix_shot, PHONE[0], [])
     context.close()
     return {
         "before": before,
@@ -132,6 +142,7 @@ def worked(shop, served, browser):
         "refused": refused,
         "remnant_said": remnant_said,
         "cuts_said": said,
+        "fix_said": fix_said,
         "shots": shots,
     }
 
@@ -169,9 +180,10 @@ def test_the_log_holds_exactly_the_work_done_at_the_station(worked):
     # the first cut was timed from Start within a second: far too quick for a 60 mm round,
     # so no time was logged (and the page said so); the others as typed
     times = [dict(zip(cut_cols, row, strict=True))["time_min"] for row in new["cuts"]]
-    assert times[0] is None and times[1:] == [pytest.approx(0.8), pytest.approx(0.75)]
+    assert times[0] is None and times[1:] == [pytest.approx(0.8), pytest.approx(50 / 60)]
     assert "time not logged" in worked["cuts_said"][0]
     assert "48.0 s as typed" in worked["cuts_said"][1]  # 0.8 min
+    assert worked["fix_said"].startswith("Saved: Corrected the cut done at")  # 45 s → 50 s
     # the queue: the first three passes marked done by those three entries, in order
     done = [q for q in after["queue"] if q[-1] is not None]
     assert [q[-1] for q in done] == [c[0] for c in new["cuts"]]
@@ -187,9 +199,9 @@ def test_the_log_holds_exactly_the_work_done_at_the_station(worked):
     (remnant,) = new["remnants"]
     assert 420.0 in remnant and "R2" in remnant
     assert worked["after_refusal"]["remnants"] == before["remnants"]
-    # every tap once: 3 starts, 3 cuts done, blade off, blade on, remnant
+    # every tap once: 3 starts, 3 cuts done, a correction, blade off, blade on, remnant
     assert sorted(t[3] for t in new["taps"]) == sorted(
-        ["start"] * 3 + ["done"] * 3 + ["blade-off", "blade-on", "remnant"]
+        ["start"] * 3 + ["done"] * 3 + ["fix", "blade-off", "blade-on", "remnant"]
     )
 
 
@@ -200,7 +212,7 @@ def test_a_refusal_is_one_sentence_beside_its_field(worked):
     assert worked["remnant_said"].startswith("Saved: Remnant racked: 420 mm")
 
 
-@pytest.mark.parametrize("name", ["phone", "tablet"])
+@pytest.mark.parametrize("name", ["phone", "tablet", "phone, correcting the last cut"])
 def test_no_horizontal_overflow_at_phone_and_tablet_widths(worked, name):
     path, width, _targets_found = worked["shots"][name]
     png = path.read_bytes()

@@ -151,3 +151,35 @@ def test_a_copy_of_the_log_carries_the_station_rows(cli, sent, tmp_path):
     original, copied = snapshot(sent), snapshot(copy)
     for table in ("jobs", "queue", "remnants"):
         assert copied[table] == original[table] and copied[table]
+
+
+def test_a_cut_done_is_corrected_and_taken_back_in_one_step_each_on_both_engines(sent):
+    from sawplan.store.station_rows import Saved
+    from sawplan.store.tap_fixes import correct_cut, day_cut_taps, take_back_cut
+
+    with connect(sent) as db:
+        ids = [r["id"] for r in saw_queue(db, SAW, limit=3)]
+
+        def step() -> Saved:
+            cut_id, _entry_done, _rows = finish_cuts(db, SAW, ids, _entry, on=TODAY)
+            return Saved("three cuts", cut_id=cut_id)
+
+        once(db, "c" * 32, "done", step, at=TODAY + "T10:00:00", saw_name=SAW)
+        (tap,) = day_cut_taps(db, TODAY)
+        fixed = correct_cut(db, tap["id"], cuts=1, time_min=1.5)
+        assert fixed.cuts == (3, 1) and fixed.before["count"] == 3 and fixed.after["count"] == 1
+    rows = snapshot(sent)
+    (cut,) = rows["cuts"]
+    assert cut[0] == tap["cut_id"] and cut[7] == pytest.approx(AREA_MM2)  # area_mm2, 8th column
+    assert sum(1 for q in rows["queue"] if q[-1] == cut[0]) == 1
+    before = rows
+    with connect(sent) as db, pytest.raises(BadDataError, match="number of cuts"):
+        correct_cut(db, tap["id"], cuts=0)  # the field table's range of "cuts"
+    assert snapshot(sent) == before
+    with connect(sent) as db:
+        taken = take_back_cut(db, tap["id"])
+        assert taken.after is None and taken.before["time_min"] == 1.5
+        with pytest.raises(ConflictError, match="taken back already"):
+            take_back_cut(db, tap["id"])
+    rows = snapshot(sent)
+    assert rows["cuts"] == [] and all(q[-1] is None for q in rows["queue"])

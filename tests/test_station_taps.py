@@ -145,3 +145,148 @@ def test_the_saw_list_shows_each_saw_with_its_blade_and_queue(station):
     left = sum(1 for q in snapshot(log)["queue"] if q[-1] is None)  # rows without a cut entry
     assert f'href="/saw/{SAW}"' in page
     assert "blade T-1" in page and f"{left} cuts in the queue" in page
+
+
+@pytest.mark.parametrize(
+    ("saw", "saws_file"),
+    [
+        pytest.param("large-column", None, id="packaged"),
+        pytest.param("pivot-bay", HERE.parent / "demo" / "saws.toml", id="shop-saws-file"),
+    ],
+)
+def test_a_known_saw_not_in_the_log_gets_a_page_and_is_added_by_its_first_tap(
+    station, monkeypatch, saw, saws_file
+):
+    client, log, _clock = station
+    if saws_file is not None:
+        monkeypatch.setenv("SAWPLAN_SAWS", str(saws_file))
+    assert saw in client.get("/").text  # listed as a known profile, not in the log yet
+    page = client.get(f"/saw/{saw}")
+    assert page.status_code == 200 and 'id="not-in-log"' in page.text
+    assert len(snapshot(log)["saws"]) == 1  # opening the page writes nothing
+    values = {**form_values(page.text, f"/saw/{saw}/tap/note"), "note": "vise jaw loose"}
+    answer = client.post(f"/saw/{saw}/tap/note", data=values)
+    assert answer.status_code == 200 and "Note saved: vise jaw loose" in answer.text
+    assert 'id="not-in-log"' not in answer.text
+    every = snapshot(log)
+    added = [s for s in every["saws"] if s[1] == saw]
+    assert len(added) == 1
+    assert [n[-1] for n in every["saw_notes"]] == ["vise jaw loose"]
+
+
+# --- correcting a cut done -------------------------------------------------------------------
+
+TAP_COLUMNS = ("id", "tap", "saw_id", "kind", "tapped_at", "said", "cut_id", "corrects", "change")
+
+
+def taps_of(log, kind: str) -> list[dict]:
+    rows = [dict(zip(TAP_COLUMNS, row, strict=True)) for row in snapshot(log)["taps"]]
+    return [r for r in rows if r["kind"] == kind]
+
+
+def marked(log) -> list:
+    return [q[-1] for q in snapshot(log)["queue"] if q[-1] is not None]
+
+
+def test_the_last_cut_is_corrected_in_time_and_count_and_the_taps_keep_the_change(station):
+    import json
+
+    client, log, clock = station
+    tap(client, "done", cuts="3", time="6min")
+    (logged,) = cuts(log)
+    clock["now"] += dt.timedelta(minutes=5)
+    answer = tap(client, "fix", cuts="2", time="5min")
+    assert answer.status_code == 200 and "Corrected the cut done at 08:00" in answer.text
+    assert "Now in the log: 2 cuts" in answer.text  # the page shows the cut as corrected
+    (cut,) = cuts(log)
+    assert (cut["id"], cut["count"], cut["pieces"]) == (logged["id"], 2, 1)
+    assert cut["area_mm2"] == pytest.approx(2 * AREA_MM2)
+    assert cut["time_min"] == pytest.approx(5.0)
+    assert cut["predicted_time_min"] == pytest.approx(logged["predicted_time_min"] * 2 / 3)
+    assert marked(log) == [cut["id"]] * 2  # the third cut is back in the queue
+    (done,), (fixed,) = taps_of(log, "done"), taps_of(log, "fix")
+    assert fixed["corrects"] == done["id"] and fixed["cut_id"] == done["cut_id"] == cut["id"]
+    change = json.loads(fixed["change"])
+    assert change["time_min"] == [6.0, 5.0] and change["count"] == [3, 2]
+    assert tap(client, "fix", cuts="4").status_code == 200  # more: the next ones in the queue
+    (cut,) = cuts(log)
+    assert cut["count"] == 4 and cut["area_mm2"] == pytest.approx(4 * AREA_MM2)
+    assert marked(log) == [cut["id"]] * 4
+
+
+def test_the_last_cut_is_taken_back_and_kept_whole_in_the_undo_tap(station):
+    import json
+
+    client, log, _clock = station
+    first_page = client.get(f"/saw/{SAW}").text
+    tap(client, "done", cuts="2", time="4min")
+    (logged,) = cuts(log)
+    answer = tap(client, "undo")
+    assert answer.status_code == 200 and "2 cuts are to cut again" in answer.text
+    assert cuts(log) == [] and marked(log) == []
+    (done,), (undone,) = taps_of(log, "done"), taps_of(log, "undo")
+    assert done["cut_id"] is None and undone["corrects"] == done["id"]
+    taken = json.loads(undone["change"])["taken_back"]
+    assert taken["area_mm2"] == pytest.approx(logged["area_mm2"]) and taken["count"] == 2
+    first = form(first_page, "done")["cut"]
+    assert form(answer.text, "done")["cut"] == first  # the same cut is next again
+    assert "Correct the last cut" not in answer.text  # nothing left to correct
+
+
+def test_the_station_corrects_only_the_last_cut_and_only_for_a_while(station):
+    client, log, clock = station
+    tap(client, "done", time="2min")
+    page = client.get(f"/saw/{SAW}").text
+    assert "Correct the last cut" in page and "until 08:15" in page
+    stale = form(page, "fix")
+    tap(client, "done", time="3min")  # the next cut done ends the first one's window
+    before = snapshot(log)
+    answer = client.post(f"/saw/{SAW}/tap/fix", data={**stale, "time": "9min"})
+    assert answer.status_code == 422 and "can no longer be corrected here" in answer.text
+    clock["now"] += dt.timedelta(minutes=16)
+    assert "Correct the last cut" not in client.get(f"/saw/{SAW}").text
+    clock["now"] -= dt.timedelta(minutes=16)
+    page = client.get(f"/saw/{SAW}").text
+    clock["now"] += dt.timedelta(minutes=16)
+    late = client.post(f"/saw/{SAW}/tap/fix", data={**form(page, "fix"), "time": "9min"})
+    assert late.status_code == 422 and snapshot(log) == before
+
+
+def test_a_correction_follows_the_field_rules_and_writes_nothing_when_refused(station):
+    client, log, _clock = station
+    tap(client, "done", cuts="2", time="4min")
+    before = snapshot(log)
+    zero = tap(client, "fix", cuts="0")
+    error = re.search(r'id="fix-cuts-error"[^>]*>([^<]+)<', zero.text).group(1)
+    assert error == "Must be from 1 to 100,000, got 0."  # the range of fields.py "cuts"
+    assert 'id="fix-time-error"' in tap(client, "fix", time="yesterday").text
+    assert "left in the queue" not in tap(client, "fix", cuts="999").text  # says it plainly:
+    assert "can be in this tap" in tap(client, "fix", cuts="999").text
+    assert tap(client, "fix").status_code == 422  # nothing typed: nothing to correct
+    assert snapshot(log) == before
+
+
+def test_the_office_corrects_any_cut_done_of_the_day(station):
+    client, log, _clock = station
+    tap(client, "done", time="2min")
+    tap(client, "done", time="3min")
+    first, second = cuts(log)
+    day = client.get("/taps")
+    assert day.status_code == 200 and day.text.count('action="/taps/fix"') == 2
+    values = form_values(day.text[day.text.index('id="tap-') :], "/taps/fix")
+    answer = client.post("/taps/fix", data={**values, "time": "2.5min"})
+    assert answer.status_code == 200 and "Corrected the cut done at 08:00" in answer.text
+    assert [c["time_min"] for c in cuts(log)] == [pytest.approx(2.5), pytest.approx(3.0)]
+    again = client.post("/taps/fix", data={**values, "time": "7min"})  # the same form again
+    assert again.status_code == 200 and cuts(log)[0]["time_min"] == pytest.approx(2.5)
+    assert len(taps_of(log, "fix")) == 1
+    undo = form_values(day.text, "/taps/undo")
+    assert client.post("/taps/undo", data=undo).status_code == 200
+    assert [c["id"] for c in cuts(log)] == [second["id"]]
+
+
+def test_every_form_of_the_station_is_a_kind_of_tap_the_store_knows():
+    from sawplan.station.forms import KINDS
+    from sawplan.store.station_rows import TAP_KINDS
+
+    assert sorted(KINDS) == sorted(TAP_KINDS)  # import checks a tap's kind against TAP_KINDS

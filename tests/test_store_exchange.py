@@ -46,7 +46,7 @@ ROUND_60_MM2 = math.pi * 60.0**2 / 4.0  # closed form πd²/4
 TRICKY = ('=HYPERLINK("x")', "+44 cut", "-dull edge", "@once", "'quoted", "plain, with comma")
 
 
-def build_log(path, cuts: int = 80) -> None:
+def build_log(path, cuts: int = 80, *, undo_first: bool = False) -> None:
     """A small log touching every table and every kind of column."""
     saw = load_saws()["mid-production"]
     with connect(path) as db:
@@ -82,6 +82,72 @@ def build_log(path, cuts: int = 80) -> None:
             )
         log_event(db, EventEntry("B-1", "teeth-lost", "2024-03-01", teeth=2, note="-2 teeth"))
         retire_blade(db, "B-2", "body-crack", on="2024-03-02", location="gullet")
+        station_rows(db, saw, undo_first=undo_first)
+
+
+def queued(n: int) -> list[dict]:
+    """``n`` passes of an invented job on 60 mm rounds: a squaring cut, then 200 mm pieces."""
+    return [{"seq": i + 1, "bar": 1 + i // 5, "step": "trim" if i % 5 == 0 else "part",
+             "position_mm": 5.0 + 201.6 * (i % 5), "mark": None if i % 5 == 0 else f"P{i}",
+             "part": "=spacer" if i % 5 else None, "heat": "H-77", "stock": "3m",
+             "location": "rack B", "material": "304", "material_group": "austenitic-stainless",
+             "section": "round 60mm", "area_mm2": ROUND_60_MM2, "predicted_time_min": 1.2,
+             "band_speed_m_min": 40.0, "feed_mm_min": 25.0, "pitch": "4/6"}
+            for i in range(n)]  # fmt: skip
+
+
+def station_rows(db, saw, *, undo_first: bool = False) -> None:
+    """Every station table: two jobs (one withdrawn), cuts done by taps, a correction,
+    a remnant and a note; ``undo_first`` takes the first cut done back (a gap in the ids)."""
+    from sawplan.store.job_rows import withdraw_job
+    from sawplan.store.station_rows import (
+        RemnantEntry,
+        Saved,
+        add_note,
+        finish_cuts,
+        once,
+        rack_remnant,
+        send_job,
+        start_cut,
+    )  # fmt: skip
+    from sawplan.store.tap_fixes import correct_cut, take_back_cut
+
+    job = send_job(db, name="+flanges", saw_name=saw.name, profile=saw, cuts=queued(12),
+                   on="2024-03-03", customer="@harbour", due="2024-04-01")  # fmt: skip
+    old = send_job(db, name="old job", saw_name=saw.name, profile=saw, cuts=queued(2),
+                   on="2024-03-03")  # fmt: skip
+    withdraw_job(db, old.id, on="2024-03-04")
+    ids = [r["id"] for r in db.query("SELECT id FROM queue WHERE job_id = :j ORDER BY seq",
+                                     {"j": job.id})]  # fmt: skip
+    start_cut(db, saw.name, ids[0], at="2024-03-05T08:00:00+01:00")
+
+    def entry(target, rows):
+        return CutEntry(blade_id=target.blade.id, saw_id=target.saw_id, cut_on="2024-03-05",
+                        material="304", material_group="austenitic-stainless",
+                        section="round 60mm", area_mm2=ROUND_60_MM2 * len(rows),
+                        count=len(rows), time_min=2.0 * len(rows), job=job.name)  # fmt: skip
+
+    taps = []
+    for n, chosen in enumerate((ids[0:2], ids[2:3], ids[3:6])):
+
+        def done(chosen=chosen) -> Saved:
+            cut_id, _e, _r = finish_cuts(db, saw.name, chosen, entry, on="2024-03-05")
+            return Saved("-logged", cut_id=cut_id)
+
+        once(db, f"{n + 1:032x}", "done", done, at=f"2024-03-05T08:{10 * n:02d}:00+01:00",
+             saw_name=saw.name)  # fmt: skip
+        taps.append(db.scalar("SELECT MAX(id) FROM taps"))
+    fixed = correct_cut(db, taps[2], time_min=5.5, cuts=2)
+    once(db, "f" * 32, "fix", lambda: Saved("fixed", fixed.cut_id, taps[2], fixed.change()),
+         at="2024-03-05T08:25:00+01:00", saw_name=saw.name)  # fmt: skip
+    if undo_first:
+        taken = take_back_cut(db, taps[0])
+        once(db, "e" * 32, "undo", lambda: Saved("undone", None, taps[0], taken.change()),
+             at="2024-03-05T08:26:00+01:00", saw_name=saw.name)  # fmt: skip
+    rack_remnant(db, RemnantEntry(length_mm=412.0, racked_on="2024-03-05", saw=saw.name,
+                                  job_id=job.id, bar=1, material="304", section="round 60mm",
+                                  heat="H-77", rack="=R2", note="'kept"))  # fmt: skip
+    add_note(db, saw.name, "-coolant low", on="2024-03-05", job_id=job.id)
 
 
 def rows(db) -> dict[str, list[tuple]]:
@@ -101,19 +167,75 @@ def exported(tmp_path_factory):
 def test_round_trip_into_a_fresh_log_gives_the_same_rows(exported, log_db):
     with connect(log_db) as db:
         result = import_csv(db, exported / "csv")
-    assert result.rows["cuts"] == 80
+    assert result.rows["cuts"] == 80 + 3  # 80 logged, 3 by the station's taps
+    assert result.rows["queue"] == 14 and result.rows["taps"] == 4
     assert rows(log_db) == rows(exported / "log.sqlite")
+    assert all(rows(log_db)[t] for t in TABLES)  # every table has rows
+
+
+def test_export_import_export_gives_the_same_files(tmp_path, log_db):
+    """With the station's tables, and a cut taken back (the ids keep a gap)."""
+    source = tmp_path / "source.sqlite"
+    build_log(source, cuts=4, undo_first=True)
+    with connect(source) as db:
+        export_csv(db, tmp_path / "first")
+    with connect(log_db) as db:
+        result = import_csv(db, tmp_path / "first")
+        export_csv(db, tmp_path / "second")
+    assert result.rows["queue"] == 14 and result.rows["taps"] == 5  # 3 done, a fix, an undo
+    for name in TABLES:
+        first = (tmp_path / "first" / f"{name}.csv").read_text(encoding="utf-8")
+        assert (tmp_path / "second" / f"{name}.csv").read_text(encoding="utf-8") == first, name
 
 
 def test_formula_cells_are_neutralised(exported):
-    with (exported / "csv" / "cuts.csv").open(newline="", encoding="utf-8") as handle:
-        cells = [c for row in csv.reader(handle) for c in row]
+    cells = []
+    for name in TABLES:
+        with (exported / "csv" / f"{name}.csv").open(newline="", encoding="utf-8") as handle:
+            cells += [c for row in csv.reader(handle) for c in row]
     leads = ("=", "+", "-", "@")
     risky = [c for c in cells if c.startswith(leads)]
     # numbers may start with "-" (none here are negative); no text cell may
     assert risky == []
     assert '\'=HYPERLINK("x")' in cells and "'@once" in cells
-    assert "''quoted" in cells  # one apostrophe more, so import strips exactly one
+    assert {"'+flanges", "'@harbour", "'=spacer", "'=R2", "'-coolant low", "'-logged"} <= set(cells)
+    assert "''quoted" in cells and "''kept" in cells  # one more, so import strips exactly one
+
+
+@pytest.mark.parametrize(
+    ("file", "column", "cell", "said"),
+    [
+        pytest.param("queue.csv", "area_mm2", "2e9", "area cut: must be", id="queue-area"),
+        pytest.param("queue.csv", "step", "saw", "must be trim or part", id="queue-step"),
+        pytest.param("queue.csv", "job_row", "9", "no row 9 in jobs.csv", id="queue-job"),
+        pytest.param("remnants.csv", "length_mm", "0.5", "remnant length", id="remnant-length"),
+        pytest.param("saw_notes.csv", "note", " ", "note: is required", id="note-empty"),
+        pytest.param("taps.csv", "tap", "not-a-key", "tap key", id="tap-key"),
+        pytest.param("taps.csv", "tapped_at", "at eight", "date and time", id="tap-time"),
+        pytest.param("jobs.csv", "withdrawn_on", "", "open twice", id="job-open-twice"),
+    ],
+)
+def test_station_rows_are_imported_by_the_station_s_own_rules(
+    exported, tmp_path, file, column, cell, said
+):
+    bad = tmp_path / "bad"
+    bad.mkdir()
+    for name in TABLES:
+        with (exported / "csv" / f"{name}.csv").open(newline="", encoding="utf-8") as handle:
+            table = list(csv.reader(handle))
+        if f"{name}.csv" == file:
+            table[-1][table[0].index(column)] = cell  # the last row of the file
+            if column == "withdrawn_on":  # the withdrawn job comes back with the same name
+                table[-1][table[0].index("name")] = table[1][table[0].index("name")]
+        (bad / f"{name}.csv").write_text(to_csv(table[0], table[1:]), encoding="utf-8")
+    target = tmp_path / "t.sqlite"
+    with connect(target):
+        pass
+    before = snapshot(target)
+    with connect(target) as db, pytest.raises(BadDataError) as err:
+        import_csv(db, bad)
+    assert said in str(err.value) and (file in str(err.value) or column == "withdrawn_on")
+    assert snapshot(target) == before
 
 
 # any text the log stores: no control characters, line separators or bidi overrides
@@ -219,7 +341,7 @@ def test_backup_is_the_same_log_in_one_file(exported, tmp_path):
     assert not (tmp_path / "copy.sqlite-wal").exists()
     assert rows(copy) == rows(exported / "log.sqlite")
     with connect(copy, create=False) as db:  # opens as a sawplan log
-        assert db.scalar("SELECT COUNT(*) FROM cuts") == 80
+        assert db.scalar("SELECT COUNT(*) FROM cuts") == 80 + 3
     with pytest.raises(ConflictError):
         backup(exported / "log.sqlite", copy)
 

@@ -21,7 +21,7 @@ import pg_server
 import pytest
 from logrows import execute, snapshot
 
-from sawplan.store.schema import TABLE_NAMES
+from sawplan.store.schema import ALL_TABLES, TABLE_NAMES
 
 SECRET = "Tr0ub4dor-and-3"
 BLADE = ("--pitch", "3/4", "--blade-width", "27mm", "--blade-thickness", "0.9mm")
@@ -170,13 +170,13 @@ def test_backup_of_a_server_log_without_pg_dump_is_the_export_set(
     assert result.code == 0, result.err
     assert "the export set" in result.out and "pg_dump is not installed" in result.out
     with zipfile.ZipFile(target) as zf:
-        assert sorted(zf.namelist()) == sorted(f"{t}.csv" for t in TABLE_NAMES)
+        assert sorted(zf.namelist()) == sorted(f"{t}.csv" for t in ALL_TABLES)
     fresh = tmp_path / "restored.sqlite"
     restored = cli("restore", str(target), "--db", str(fresh))
     assert restored.code == 0, restored.err
     for name, db in (("a", pg_log), ("b", fresh)):
         assert cli("export", str(tmp_path / name), "--db", str(db)).code == 0
-    for table in TABLE_NAMES:
+    for table in ALL_TABLES:
         assert (tmp_path / "a" / f"{table}.csv").read_bytes() == (
             tmp_path / "b" / f"{table}.csv"
         ).read_bytes()

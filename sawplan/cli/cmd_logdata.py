@@ -12,8 +12,10 @@ from sawplan.cli.options import DbOpt, ForceOpt, arg, command, opt
 EXPORT_HELP = """Write the blade log as CSV files into the folder DIR.
 
 One file per table: saws.csv, blades.csv, fittings.csv, cuts.csv,
-events.csv. Blades and saws are named by tag and name, so the folder can be
-imported into another log. Cells that a spreadsheet would run as a formula
+events.csv, and the station's jobs.csv, queue.csv, remnants.csv,
+saw_notes.csv, taps.csv. Blades and saws are named by tag and name, and rows
+of other files by their row number, so the folder can be imported into
+another log. Cells that a spreadsheet would run as a formula
 start with an apostrophe.
 
 \b

@@ -10,7 +10,9 @@
   computer (a loopback address, no proxy header) is ``office`` without a key.
   A request a reverse proxy forwarded (``Forwarded``/``X-Forwarded-For``/
   ``X-Real-IP``) counts as a network request even though it comes from
-  loopback: the proxy serves the network.
+  loopback: the proxy serves the network.  ``sawplan serve --proxied`` goes
+  further: every request is a network request (a proxy that sends no such
+  header cannot open the office to the whole network).
 - **Signing in.** A key is typed once into the ``/key`` form (POST, never in a
   URL) or sent as ``Authorization: Bearer KEY`` by a program; the browser then
   carries a signed, HttpOnly, SameSite=Strict cookie.  Wrong keys are
@@ -293,6 +295,7 @@ class Access:
     throttle: Throttle
     served_host: str = "127.0.0.1"
     secure_cookies: bool = False
+    proxied: bool = False  # every request came through a reverse proxy: none is local
 
 
 def is_local(scope: Scope) -> bool:
@@ -398,7 +401,7 @@ class Guard:
             await self.app(scope, receive, send)
             return
         send = self._with_headers(scope, send)
-        local = is_local(scope)
+        local = not self.access.proxied and is_local(scope)
         if local and not _host_allowed(scope, self.access.served_host):
             await PlainTextResponse("unknown host name", 403)(scope, receive, send)
             return

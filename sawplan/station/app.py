@@ -30,7 +30,7 @@ from starlette.responses import PlainTextResponse, RedirectResponse, Response
 from starlette.routing import BaseRoute, Mount, Route
 from starlette.staticfiles import StaticFiles
 
-from sawplan.station import floor
+from sawplan.station import floor, tap_fixes
 from sawplan.station.access import Access, Guard, Keys, Throttle, key_form_answer, sign_in
 from sawplan.station.web import STATIC, LogPool, render
 
@@ -50,13 +50,15 @@ def create_app(
     host: str = DEFAULT_HOST,
     secure_cookies: bool = False,
     throttle: Throttle | None = None,
+    proxied: bool = False,
 ) -> Starlette:
     """The station application on the blade log ``db`` (``--db``'s value; None: the default).
 
     ``keys``: what ``sawplan serve --keys`` made (``access.load_keys()``); without
     keys only this computer is served.  ``units``: how numbers read (the
     shop's config otherwise).  ``host``: the address served, accepted as a
-    host name besides localhost.
+    host name besides localhost.  ``proxied``: every request came through a
+    reverse proxy, so none is taken for this computer (keys needed throughout).
     """
     from sawplan.display import Display
     from sawplan.station.access import load_keys
@@ -71,6 +73,7 @@ def create_app(
         throttle=throttle or Throttle(),
         served_host=host,
         secure_cookies=secure_cookies,
+        proxied=proxied,
     )
     logs = LogPool(db)
 
@@ -107,6 +110,7 @@ def routes() -> list[BaseRoute]:
         Route("/healthz", healthz),
         Mount("/static", StaticFiles(directory=STATIC), name="static"),
         *floor.routes(),
+        *tap_fixes.routes(),
     ]
     office = office_routes()
     if office is not None:

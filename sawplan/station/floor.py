@@ -50,6 +50,8 @@ def saws_page(request: Request) -> Response:
         saws = logged_saws(db)
         fitted = fitted_on_saws(db)
         jobs = job_progress(db)
+    logged = {s.name.lower() for s in saws}
+    profiles = [p.name for key, p in known_profiles().items() if key not in logged]
     to_cut: dict[str, int] = {}
     for job in jobs:
         if job["withdrawn_on"] is None:
@@ -59,7 +61,21 @@ def saws_page(request: Request) -> Response:
         {"name": s.name, "blade": fitted.get(s.name.lower()), "to_cut": to_cut.get(s.name.lower())}
         for s in saws
     ]
-    return render(request, "saws.html", {"saws": rows})
+    return render(request, "saws.html", {"saws": rows, "profiles": profiles})
+
+
+def known_profiles() -> dict[str, Saw]:
+    """The saw profiles the server knows besides the log: packaged, and the shop's saws file
+    (``saws_file`` in the config, or ``SAWPLAN_SAWS``); none when that file cannot be
+    read (``sawplan saw list`` says what is wrong with it)."""
+    from sawplan import config
+    from sawplan.errors import SawplanError
+    from sawplan.saws import load_saws
+
+    try:
+        return load_saws(config.get("saws_file"))
+    except SawplanError:
+        return {}
 
 
 def station_page(request: Request) -> Response:
@@ -98,20 +114,29 @@ class StationView:
     shelf: list[Blade]
     reasons: list[tuple[str, str]]
     recent: list[dict[str, Any]]
+    in_log: bool = True  # False: a known profile, added to the log with the first tap saved
+    last: dict[str, Any] | None = None  # the last cut done, while the station may correct it
 
 
 def station_view(db: Log, name: str, *, for_tap: bool = False) -> StationView | None:
     """Everything the station page of saw ``name`` shows (None: no such saw).
 
+    A saw not in the log yet but with a known profile (``known_profiles``) has a
+    page too: no blade, no queue; the first tap saved adds it to the log.
     ``for_tap``: only what a tap needs (the saw, its blade, the head of the queue).
     """
     from sawplan.life.failure_modes import failure_modes
+    from sawplan.station.tap_fixes import last_cut
     from sawplan.store.records import find_saw, fitted_on_saws, get_blade, list_blades
     from sawplan.store.station_rows import job_progress, recent_taps, saw_queue
 
     saw = find_saw(db, name)
     if saw is None:
-        return None
+        profile = known_profiles().get(name.strip().lower())
+        if profile is None:
+            return None
+        shelf = [] if for_tap else list_blades(db, status="new") + list_blades(db, status="removed")
+        return StationView(profile, None, None, [], False, [], None, shelf, [], [], in_log=False)
     tag = fitted_on_saws(db).get(saw.name.lower())
     blade = get_blade(db, tag) if tag else None
     if for_tap:
@@ -136,6 +161,7 @@ def station_view(db: Log, name: str, *, for_tap: bool = False) -> StationView | 
         shelf=shelf,
         reasons=reasons,
         recent=recent_taps(db, saw.name, limit=5),
+        last=last_cut(db, saw.name),
     )
 
 
@@ -149,6 +175,7 @@ def page_context(
 ) -> dict[str, Any]:
     """The template's values: the view, a fresh tap key per form, what was saved or refused."""
     from sawplan.station.forms import KINDS
+    from sawplan.station.tap_fixes import WINDOW_MIN
 
     values = dict(typed.values) if typed is not None else {}
     for row in view.queue:
@@ -161,6 +188,7 @@ def page_context(
         "error": error,
         "typed_kind": typed.kind if typed is not None else None,
         "typed": values,
+        "window_min": WINDOW_MIN,
     }
 
 
@@ -181,13 +209,14 @@ _LIVES_LOCK = threading.Lock()
 
 def expected_life(db: Log, material_group: str | None) -> tuple[float, str]:
     """(expected life in cm², where it comes from), recomputed only when a life changed:
-    a blade added, fitted, taken off or retired (every retirement writes an event)."""
+    a blade added, fitted, taken off or retired (every retirement writes an event), or a
+    cut corrected (every correction writes a tap)."""
     from sawplan.store.reports import life_basis
 
     counts = db.execute(
         "SELECT (SELECT COUNT(*) FROM blades), (SELECT COUNT(*) FROM fittings), "
         "(SELECT COUNT(*) FROM events), (SELECT COUNT(*) FROM fittings "
-        "WHERE removed_on IS NOT NULL)"
+        "WHERE removed_on IS NOT NULL), (SELECT COUNT(*) FROM taps WHERE corrects IS NOT NULL)"
     ).fetchone()
     key = (db.location.label, tuple(counts), material_group)
     with _LIVES_LOCK:

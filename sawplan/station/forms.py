@@ -32,6 +32,9 @@ FORMS: dict[str, dict[str, str]] = {
     },
     "remnant": {"length": "remnant_length", "heat": "heat", "rack": "rack", "note": "note"},
     "note": {"note": "note"},
+    # correcting a cut done (``tap_fixes``): "last" is the id of the tap corrected
+    "fix": {"last": "cut", "cuts": "cuts", "time": "time"},
+    "undo": {"last": "cut"},
 }
 KINDS = tuple(FORMS)
 

@@ -32,8 +32,14 @@ def make_keys_text() -> str:
     )
 
 
-def serve(*, db: str | None, host: str, port: int, units: object = None) -> None:
-    """Check the log and the keys, then serve until Ctrl-C."""
+def serve(
+    *, db: str | None, host: str, port: int, units: object = None, proxied: bool = False
+) -> None:
+    """Check the log and the keys, then serve until Ctrl-C.
+
+    ``proxied``: a reverse proxy on this computer forwards every request, so
+    no request is taken for this computer and keys must exist.
+    """
     from sawplan import fields
     from sawplan.station.access import keys_path, load_keys
     from sawplan.station.app import create_app
@@ -43,6 +49,12 @@ def serve(*, db: str | None, host: str, port: int, units: object = None) -> None
     if not host.strip():
         raise UsageError("expected an address, got nothing", field="host", hint="e.g. 0.0.0.0")
     keys = load_keys()
+    if proxied and not keys.any:
+        raise UsageError(
+            f"--proxied makes every request need a key, and there are none in {keys_path()}",
+            field="proxied",
+            hint="make them once with: sawplan serve --keys",
+        )
     if not is_loopback(host) and not keys.any:
         raise UsageError(
             f"serving the network ({host}) needs keys, and there are none in {keys_path()}",
@@ -51,10 +63,12 @@ def serve(*, db: str | None, host: str, port: int, units: object = None) -> None
         )
     with connect(db) as log:  # refuse a damaged or newer log now, not at the first tap
         where = log.location.label
-    app = create_app(db, keys=keys, units=units, host=host)
+    app = create_app(db, keys=keys, units=units, host=host, proxied=proxied)
     shown = f"[{host}]" if ":" in host else host
     print(f"serving the station for {where} on http://{shown}:{port}/ (Ctrl-C stops)")
-    if not is_loopback(host):
+    if proxied:
+        print("  behind a reverse proxy: every request needs the station or office key")
+    elif not is_loopback(host):
         print("  network requests need the station or office key; put TLS in front (README)")
     run_server(app, host, port)
 

@@ -23,13 +23,15 @@ from sawplan.errors import BadDataError, ConflictError, SawplanError, UsageError
 from sawplan.station.floor import UNWORN, StationView, missing, next_settings, page_context
 from sawplan.station.floor import station_view as load_view
 from sawplan.station.forms import KINDS, Typed, place, typed
+from sawplan.station.tap_fixes import fix, undo
 from sawplan.station.web import display_of, log_of, render
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.display import Display
     from sawplan.store.db import Log
+    from sawplan.store.station_rows import Saved
 
-Step = Callable[[], str]
+Step = Callable[[], "str | Saved"]
 # A measured time under a fifth of the model's is a Start tapped late or a Cut done tapped
 # early: logging it would drag the calibration (actual ÷ model time) down for nothing.
 TOO_QUICK = 0.2
@@ -56,6 +58,8 @@ def _tap(request: Request, saw_name: str, sent: Typed) -> Response:
         if tap_said(db, key) is None:  # a tap seen before is answered below, not run again
             try:
                 step = BUILDERS[sent.kind](db, view, sent, d)
+                if not view.in_log:
+                    step = _adding_saw(db, view, step)
                 with request.app.state.write_lock:
                     once(db, key, sent.kind, step, at=now().isoformat(), saw_name=view.saw.name)
             except SawplanError as err:
@@ -63,6 +67,17 @@ def _tap(request: Request, saw_name: str, sent: Typed) -> Response:
                 context = page_context(fresh, d, error=place(sent.kind, err), typed=sent)
                 return render(request, "station.html", context, status=422)
     return RedirectResponse(f"/saw/{quote(view.saw.name, safe='')}?tap={key}#saved", 303)
+
+
+def _adding_saw(db: Log, view: StationView, step: Step) -> Step:
+    """A known saw's first tap: its profile goes into the log in the tap's transaction."""
+    from sawplan.store.saw_rows import saw_row_id
+
+    def first() -> str | Saved:
+        saw_row_id(db, view.saw.name, view.saw, on=today())
+        return step()
+
+    return first
 
 
 def now() -> dt.datetime:
@@ -100,7 +115,7 @@ def start(db: Log, view: StationView, sent: Typed, d: Display) -> Step:
 def done(db: Log, view: StationView, sent: Typed, d: Display) -> Step:
     from sawplan import fields
     from sawplan.store.records import CutEntry
-    from sawplan.store.station_rows import finish_cuts, queue_from
+    from sawplan.store.station_rows import Saved, finish_cuts, queue_from
 
     if view.blade is None:
         raise UsageError(f"no blade is fitted on {view.saw.name}: fit one under New blade on")
@@ -152,8 +167,8 @@ def done(db: Log, view: StationView, sent: Typed, d: Display) -> Step:
             heat=heats.pop() if len(heats) == 1 else None,
         )
 
-    def step() -> str:
-        _cut, logged, chosen = finish_cuts(
+    def step() -> Saved:
+        cut_id, logged, chosen = finish_cuts(
             db, view.saw.name, [r["id"] for r in rows], entry, on=ended.date().isoformat()
         )
         what = cut_words(chosen[0], d) if len(chosen) == 1 else _cuts_words(chosen, bundle)
@@ -162,7 +177,8 @@ def done(db: Log, view: StationView, sent: Typed, d: Display) -> Step:
         else:
             time = f"time {how}" if how else "no time (Start was not tapped)"
         tag = view.blade.tag if view.blade is not None else "the fitted blade"
-        return f"Logged {what} on blade {tag}: {d.fmt('area', logged.area_mm2)}, {time}."
+        said = f"Logged {what} on blade {tag}: {d.fmt('area', logged.area_mm2)}, {time}."
+        return Saved(said, cut_id=cut_id)
 
     return step
 
@@ -330,5 +346,7 @@ BUILDERS: dict[str, Callable[[Log, StationView, Typed, Display], Step]] = {
     "blade-on": blade_on,
     "remnant": remnant,
     "note": note,
+    "fix": fix,
+    "undo": undo,
 }
 assert set(BUILDERS) == set(KINDS)

@@ -1,6 +1,7 @@
 """Moving the log in and out: CSV export and import, and a one-file backup.
 
-Export writes one CSV per table (saws, blades, fittings, cuts, events) with
+Export writes one CSV per table (saws, blades, fittings, cuts, events, and the
+station's jobs, queue, remnants, saw_notes, taps: ``exchange_station``) with
 natural keys (blade tag, saw name) in place of row ids, so a folder of CSVs can
 be read into any log.  Text a spreadsheet would run as a formula (= + - @) is
 neutralised by ``sawplan.render.to_csv`` with a leading apostrophe; text that
@@ -31,6 +32,7 @@ from sawplan.errors import (
     UsageError,
 )
 from sawplan.store.db import read_snapshot, run_write
+from sawplan.store.exchange_station import COLUMNS as STATION_COLUMNS
 from sawplan.store.fields import StoredValueError, check_row
 from sawplan.store.records import BLADE_STATUSES, EVENT_KINDS, WELDED
 from sawplan.store.schema import SAW_PROFILE_COLUMNS
@@ -106,7 +108,9 @@ TABLES: dict[str, dict[str, str]] = {
         "teeth": "int",
         "note": "text",
     },
+    **STATION_COLUMNS,
 }
+LOG_TABLES = ("saws", "blades", "fittings", "cuts", "events")
 
 _EXPORT_SQL = {
     "saws": "SELECT * FROM saws ORDER BY id",
@@ -134,8 +138,9 @@ class TransferResult:
 def export_csv(
     db: Database, folder: str | os.PathLike[str], *, overwrite: bool = False
 ) -> TransferResult:
-    """Write ``saws.csv``, ``blades.csv``, ``fittings.csv``, ``cuts.csv``, ``events.csv``."""
+    """Write one CSV per table of ``TABLES`` (``saws.csv``, ... ``taps.csv``)."""
     from sawplan.render import to_csv
+    from sawplan.store.exchange_station import export_rows, row_numbers
 
     out = Path(folder)
     if out.exists() and not out.is_dir():
@@ -151,11 +156,14 @@ def export_csv(
     counts: dict[str, int] = {}
     texts: dict[str, str] = {}
     with read_snapshot(db):  # one consistent moment of every table
+        numbers = row_numbers(db)
         for table, columns in TABLES.items():
-            rows = [
-                [_export_cell(row.get(c), columns[c]) for c in columns]
-                for row in db.query(_EXPORT_SQL[table])
-            ]
+            found = (
+                db.query(_EXPORT_SQL[table])
+                if table in LOG_TABLES
+                else export_rows(db, table, numbers)
+            )
+            rows = [[_export_cell(row.get(c), columns[c]) for c in columns] for row in found]
             counts[table] = len(rows)
             texts[table] = to_csv(list(columns), rows)
     for leftover in out.glob("*.csv.tmp"):  # left by a killed export
@@ -287,6 +295,7 @@ def _convert_row(
     name: str, number: int, raw: dict[str, str | None], columns: dict[str, str]
 ) -> dict[str, Any]:
     from sawplan.store.dates import check_stored_day
+    from sawplan.store.exchange_station import check_stamp
 
     table = name.rsplit(".", 1)[0]  # "cuts.csv" -> cuts
     out: dict[str, Any] = {}
@@ -307,6 +316,8 @@ def _convert_row(
                 value = _number(text, int)
             elif kind == "flag":
                 value = _flag(text)
+            elif kind == "stamp":
+                value = check_stamp(text)
             else:
                 value = check_stored_day(text, field=column)
         except SawplanError as err:
@@ -363,6 +374,7 @@ def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
     from sqlalchemy.exc import IntegrityError
 
     from sawplan.store.dates import check_dates, last_row_id
+    from sawplan.store.exchange_station import new_ids, write_station
     from sawplan.store.records import check_failure_mode, row_to_saw
 
     newer_than = {t: last_row_id(db, t) for t in ("blades", "fittings", "cuts", "events")}
@@ -444,6 +456,8 @@ def _write_all(db: Database, parsed: dict[str, list[Row]]) -> dict[str, int]:
     try:
         for table, rows in (("fittings", fittings), ("cuts", cuts), ("events", events)):
             counts[table] = db.insert_many(table, rows)
+        cut_ids = new_ids(db, "cuts", newer_than["cuts"])
+        counts.update(write_station(db, parsed, saw_ids, cut_ids))
     except IntegrityError as err:
         rule = " ".join(str(err.orig).split())[:120]
         raise BadDataError(f"the rows break a rule of the log ({rule})", field="import") from None

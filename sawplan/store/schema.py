@@ -30,7 +30,7 @@ APPLICATION_ID = 0x53415750  # "SAWP": marks a SQLite file as a sawplan blade lo
 VERSION_TABLE = "sawplan_schema"  # Alembic's version table, named so no other program shares it
 # Alembic revision ids, oldest first.  A SQLite log also keeps the count in
 # PRAGMA user_version, so opening an up-to-date file costs two pragma reads.
-REVISIONS: tuple[str, ...] = ("0001", "0002", "0003", "0004")
+REVISIONS: tuple[str, ...] = ("0001", "0002", "0003", "0004", "0005")
 HEAD = REVISIONS[-1]
 # the sqlite-utils history of the first releases: its names map onto REVISIONS[0:2]
 LEGACY_SET = "sawplan-blade-log"
@@ -187,7 +187,7 @@ def metadata() -> MetaData:
 
 
 def _station_tables(md, col, real, strict) -> None:
-    """The station's tables (revision 0004)."""
+    """The station's tables (revision 0004; the taps' corrections: 0005)."""
     import sqlalchemy as sa
 
     def key(name: str, parent: str, **kw) -> sa.Column:
@@ -260,6 +260,11 @@ def _station_tables(md, col, real, strict) -> None:
         col("kind", sa.Text, nullable=False),
         col("tapped_at", sa.Text, nullable=False),
         col("said", sa.Text),
+        # revision 0005: the cut a "cut done" tap logged (while it stands), and for a
+        # correction (kind fix or undo) the tap it corrected and what it changed (JSON)
+        col("cut_id", sa.Integer),
+        col("corrects", sa.Integer),
+        col("change", sa.Text),
         **strict,
     )
     sa.Index("idx_jobs_saw_id", jobs.c.saw_id)

@@ -13,6 +13,7 @@ form sent twice writes once and answers with what the first one saved.
 
 from __future__ import annotations
 
+import dataclasses
 import re
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass
@@ -34,6 +35,8 @@ QUEUE_COLUMNS = (
 )  # fmt: skip
 STEPS = ("trim", "part")
 TAP_KEY = re.compile(r"^[0-9a-f]{32}$")
+# every kind of tap a station saves (``sawplan.station.forms.FORMS``; a test keeps them equal)
+TAP_KINDS = ("start", "done", "blade-off", "blade-on", "remnant", "note", "fix", "undo")
 MAX_QUEUE = 200_000  # a job file holds at most 100,000 pieces (jobfile/types.py): one pass each
 
 
@@ -64,14 +67,13 @@ def send_job(
     """Queue a planned job's cuts on a saw; refused while a job of that name is still open there."""
     from sawplan.store.saw_rows import saw_row_id
 
-    job = fields.check_text("job", name)
-    if not job:
-        raise UsageError("a job sent to a saw needs a name", field="job", hint="name = in [job]")
+    values = job_values(name, file, customer)
+    job = values["name"]
     if not cuts:
         raise BadDataError("the plan has no cuts to send", field="job")
     if len(cuts) > MAX_QUEUE:
         raise BadDataError(f"a job sends at most {MAX_QUEUE:,} cuts", field="job")
-    rows = [_queue_row(c) for c in cuts]
+    rows = [queue_row(c) for c in cuts]
 
     def step() -> SentJob:
         saw_id, saw_label = saw_row_id(db, saw_name, profile, on=on)
@@ -81,17 +83,7 @@ def send_job(
                 field="job",
                 hint="finish it, or withdraw it in the office pages, before sending it again",
             )
-        job_id = db.insert(
-            "jobs",
-            {
-                "name": job,
-                "saw_id": saw_id,
-                "sent_on": on,
-                "file": fields.check_text("file", file) if file else None,
-                "customer": fields.check_text("note", customer) if customer else None,
-                "due": due or None,
-            },
-        )
+        job_id = db.insert("jobs", {**values, "saw_id": saw_id, "sent_on": on, "due": due or None})
         db.insert_many("queue", [{**row, "job_id": job_id} for row in rows])
         return SentJob(job_id, job, saw_label, len(rows), on)
 
@@ -110,7 +102,20 @@ def has_open_job(db: Database, saw_id: int, name: str) -> bool:
     )
 
 
-def _queue_row(cut: Mapping[str, Any]) -> dict[str, Any]:
+def job_values(name: str, file: str | None, customer: str | None) -> dict[str, Any]:
+    """A job's name, file and customer as the field table allows them (send and import)."""
+    job = fields.check_text("job", name)
+    if not job:
+        raise UsageError("a job sent to a saw needs a name", field="job", hint="name = in [job]")
+    return {
+        "name": job,
+        "file": fields.check_text("file", file) if file else None,
+        "customer": fields.check_text("note", customer) if customer else None,
+    }
+
+
+def queue_row(cut: Mapping[str, Any]) -> dict[str, Any]:
+    """One pass of the blade as the queue keeps it, checked by the field table."""
     row = {k: cut.get(k) for k in QUEUE_COLUMNS}
     if row["step"] not in STEPS:
         raise BadDataError(f"must be {' or '.join(STEPS)}, got {row['step']!r}", field="step")
@@ -270,8 +275,19 @@ class RemnantEntry:
 
 def rack_remnant(db: Database, entry: RemnantEntry) -> int:
     """Record a remnant racked; returns its row id."""
+    row = remnant_row(entry)
+
+    def step() -> int:
+        saw_id = _saw_id(db, entry.saw) if entry.saw else None
+        return db.insert("remnants", {**row, "saw_id": saw_id})
+
+    return run_write(db, step)
+
+
+def remnant_row(entry: RemnantEntry) -> dict[str, Any]:
+    """A remnant's row (its saw aside), checked by the field table (station and import)."""
     fields.check("remnant_length", entry.length_mm)
-    row = {
+    return {
         "length_mm": float(entry.length_mm),
         "racked_on": entry.racked_on,
         "job_id": entry.job_id,
@@ -282,12 +298,6 @@ def rack_remnant(db: Database, entry: RemnantEntry) -> int:
         "rack": fields.check_text("rack", entry.rack) or None,
         "note": fields.check_text("note", entry.note) or None,
     }
-
-    def step() -> int:
-        saw_id = _saw_id(db, entry.saw) if entry.saw else None
-        return db.insert("remnants", {**row, "saw_id": saw_id})
-
-    return run_write(db, step)
 
 
 def remnants(db: Database, *, saw_name: str | None = None) -> list[dict[str, Any]]:
@@ -302,9 +312,7 @@ def remnants(db: Database, *, saw_name: str | None = None) -> list[dict[str, Any
 
 def add_note(db: Database, saw_name: str, note: str, *, on: str, job_id: int | None = None) -> int:
     """A note from the saw (the coolant is low, bar 3 was bent...)."""
-    text = fields.check_text("note", note)
-    if not text:
-        raise UsageError("expected a note, got nothing", field="note")
+    text = note_text(note)
     return run_write(
         db,
         lambda: db.insert(
@@ -312,6 +320,14 @@ def add_note(db: Database, saw_name: str, note: str, *, on: str, job_id: int | N
             {"saw_id": _saw_id(db, saw_name), "job_id": job_id, "noted_on": on, "note": text},
         ),
     )
+
+
+def note_text(note: str | None) -> str:
+    """A saw's note as the field table allows it: not empty (station and import)."""
+    text = fields.check_text("note", note)
+    if not text:
+        raise UsageError("expected a note, got nothing", field="note")
+    return text
 
 
 def saw_notes(db: Database, saw_name: str | None = None, *, limit: int = 50) -> list[dict]:
@@ -334,11 +350,22 @@ def _saw_id(db: Database, saw_name: str) -> int:
 # --- taps: each form once ------------------------------------------------------------------------
 
 
+@dataclass(frozen=True)
+class Saved:
+    """What a tap's step saved: its words, and what the taps row keeps besides them
+    (the cut a "cut done" logged; for a correction the tap corrected and the change)."""
+
+    said: str
+    cut_id: int | None = None
+    corrects: int | None = None
+    change: str | None = None
+
+
 def once(
     db: Database,
     tap: str,
     kind: str,
-    step: Callable[[], str],
+    step: Callable[[], str | Saved],
     *,
     at: str,
     saw_name: str | None = None,
@@ -356,12 +383,18 @@ def once(
         seen = db.scalar("SELECT said FROM taps WHERE tap = :tap", {"tap": tap})
         if seen is not None:
             return str(seen), True
-        said = step()
+        done = step()
+        saved = done if isinstance(done, Saved) else Saved(done)
+        limit = fields.field("tap_said").high or 0
+        if len(saved.said) > limit:  # a bundle of very many cuts: the words are only words
+            saved = dataclasses.replace(saved, said=saved.said[: limit - 3] + "...")
         saw_id = _saw_id(db, saw_name) if saw_name else None
         db.insert(
-            "taps", {"tap": tap, "saw_id": saw_id, "kind": kind, "tapped_at": at, "said": said}
-        )
-        return said, False
+            "taps",
+            {"tap": tap, "saw_id": saw_id, "kind": kind, "tapped_at": at, "said": saved.said,
+             "cut_id": saved.cut_id, "corrects": saved.corrects, "change": saved.change},
+        )  # fmt: skip
+        return saved.said, False
 
     try:
         return run_write(db, whole)

@@ -200,12 +200,13 @@ class LogCounts:
     cuts: int  # entries
     cut_count: int  # cuts, batches counted in full
     events: int
+    corrections: int  # corrected or taken-back cuts (station taps): they change lives in place
 
 
 def log_counts(db: Database) -> LogCounts:
     one = db.execute(
         "SELECT (SELECT COUNT(*) FROM saws), (SELECT COUNT(*) FROM blades), "
         "(SELECT COUNT(*) FROM cuts), (SELECT COALESCE(SUM(count), 0) FROM cuts), "
-        "(SELECT COUNT(*) FROM events)"
+        "(SELECT COUNT(*) FROM events), (SELECT COUNT(*) FROM taps WHERE corrects IS NOT NULL)"
     ).fetchone()
     return LogCounts(*(int(v) for v in one))

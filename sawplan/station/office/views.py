@@ -307,7 +307,8 @@ def jobs_view(db: Log, *, confidence: float = DEFAULT_CONFIDENCE) -> JobsView:
 
     progress = job_progress(db)
     open_jobs = [j for j in progress if not j["withdrawn_on"] and j["done"] < j["cuts"]]
-    closed = [j for j in progress if j not in open_jobs][::-1][:CLOSED_JOBS_SHOWN]
+    opened = {j["id"] for j in open_jobs}
+    closed = [j for j in progress if j["id"] not in opened][::-1][:CLOSED_JOBS_SHOWN]
     lines = tuple(_job_line(db, j) for j in (*open_jobs, *closed))
     return JobsView(lines, queue_needs(db, confidence=confidence))
 
