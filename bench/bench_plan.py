@@ -50,7 +50,8 @@ def main() -> int:
     from sawplan.cutlist.jobfile.load import load_job
     from sawplan.cutlist.plan.job import plan_job
     from sawplan.cutlist.sheets.html import render_html
-    from sawplan.cutlist.sheets.text import render_markdown, render_plan
+    from sawplan.cutlist.sheets.markdown import render_markdown
+    from sawplan.cutlist.sheets.text import render_plan
     from sawplan.materials import load_catalogue
     from sawplan.saws import get_saw
 

@@ -15,6 +15,7 @@ import math
 import re
 from collections.abc import Iterable, Sequence
 from enum import Enum
+from itertools import chain, zip_longest
 from typing import Any
 
 from sawplan import __version__
@@ -110,6 +111,13 @@ def _shown(value: Any) -> str:
     return "" if value is None else terminal_text(str(value))
 
 
+def _any_control(body: list[list[str]]) -> bool:
+    """True when any cell holds a control character (``terminal_text`` would change it)."""
+    from sawplan.fields import CONTROL
+
+    return CONTROL.search("".join(chain.from_iterable(body))) is not None
+
+
 def table(
     headers: Sequence[str],
     rows: Iterable[Sequence[Any]],
@@ -121,21 +129,24 @@ def table(
 
     Every cell goes through ``terminal_text``: no cell can send a terminal a command.
     """
-    body = [[_shown(v) for v in row] for row in rows]
+    body = [["" if v is None else str(v) for v in row] for row in rows]
+    if _any_control(body):  # one scan of the whole table; escape cell by cell only then
+        body = [[terminal_text(cell) for cell in row] for row in body]
     headers = [_shown(h) for h in headers]
     cols = len(headers)
     widths = [len(h) for h in headers]
-    for row in body:
-        for i, cell in enumerate(row[:cols]):
-            widths[i] = max(widths[i], len(cell))
+    for i, column in enumerate(zip_longest(*body, fillvalue="")):  # column by column: fast
+        if i < cols:
+            widths[i] = max(widths[i], max(map(len, column), default=0))
     if align is None:
         align = "".join("r" if _looks_numeric(body, i) else "l" for i in range(cols))
 
+    justify = [str.rjust if a == "r" else str.ljust for a in align[:cols]]
+
     def line(cells: Sequence[str]) -> str:
-        parts = []
-        for i, cell in enumerate(cells[:cols]):
-            parts.append(cell.rjust(widths[i]) if align[i] == "r" else cell.ljust(widths[i]))
-        return "  ".join(parts).rstrip()
+        return "  ".join(
+            [j(c, w) for j, c, w in zip(justify, cells, widths, strict=False)]
+        ).rstrip()
 
     out = []
     if title:

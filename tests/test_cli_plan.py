@@ -229,3 +229,43 @@ def test_an_empty_blade_log_falls_back_to_default_lives(cli, tmp_path):
     assert data["blade_forecast_method"] == "deterministic"
     assert any("not enough history" in n for n in data["notes"])
     assert all(s["calibration_n"] == 0 for s in data["sections"])
+
+
+def test_bars_cut_alike_keep_their_own_number_and_rack_on_every_sheet(cli, tmp_path):
+    # Three 1000 mm bars (two on rack A1, one on B2), nine 310 mm pieces: with a 2 mm
+    # kerf and 5 mm trim a bar holds three (3 × 312 = 936 of 997, four need 1248), so
+    # all three bars are cut alike and keep a 1000 - 5 - 930 - 2·2 - 2 = 59 mm remnant
+    # (worked out by hand).  The sheets draw such bars once; each must still carry its
+    # own number, rack and drawing ids.
+    job = tmp_path / "job.toml"
+    stock = (
+        '[[stock]]\nmaterial = "1018"\nsection = "round 30mm"\nlength = "1000mm"\n'
+        'count = {count}\nheat = "H-1"\nlocation = "{rack}"\n'
+    )
+    job.write_text(
+        '[job]\nname = "alike"\nsaw = "mid-production"\nkerf = "2mm"\ntrim = "5mm"\n'
+        'grip = "0mm"\nmin_remnant = "20mm"\n'
+        + stock.format(count=2, rack="A1")
+        + stock.format(count=1, rack="B2")
+        + '[[part]]\nname = "p"\nmaterial = "1018"\nsection = "round 30mm"\n'
+        'length = "310mm"\ncount = 9\n',
+        encoding="utf-8",
+    )
+    html_path, md_path = tmp_path / "job.html", tmp_path / "job.md"
+    r = cli("plan", str(job), "--sheet", str(html_path))
+    assert r.code == 0, r.err
+    assert cli("plan", str(job), "--sheet", str(md_path)).code == 0
+    assert re.search(r"^bars\s+3;", r.out, re.M)
+    table_rows = re.findall(r"^\s*(\d)  .*?@(A1|B2)", r.out, re.M)
+    assert sorted(n for n, _ in table_rows) == ["1", "2", "3"]
+    assert sorted(rack for _, rack in table_rows) == ["A1", "A1", "B2"]
+    assert r.out.count("keep 59 mm remnant") == 3
+    html = html_path.read_text(encoding="utf-8")
+    blocks = re.findall(r'<section class="bar" id="bar-(\d+)">(.*?)</section>', html, re.S)
+    assert [n for n, _ in blocks] == ["1", "2", "3"]
+    for n, block in blocks:
+        assert f'aria-label="bar {n}, ' in block
+        assert f'<pattern id="keep-{n}"' in block and f'fill="url(#keep-{n})"' in block
+        assert "bar-number" not in block
+    md = md_path.read_text(encoding="utf-8")
+    assert [m for m in re.findall(r"^### Bar (\d+)", md, re.M)] == ["1", "2", "3"]

@@ -14,7 +14,14 @@ import re
 import pytest
 from coloraide import Color
 
-from sawplan.cutlist.sheets.palette import CHROMA, FIRST_HUE_DEG, LIGHTNESS, SIZE, piece_tints
+from sawplan.cutlist.sheets.palette import (
+    CHROMA,
+    FIRST_HUE_DEG,
+    LIGHTNESS,
+    SIZE,
+    TINTS,
+    piece_tints,
+)
 
 HEX = re.compile(r"#[0-9a-f]{6}")
 EIGHT_BIT = 0.006  # one step of 8-bit sRGB moves OKLCH L or C by well under this
@@ -52,6 +59,19 @@ def test_tints_are_evenly_spaced_hues_at_one_lightness_and_chroma():
         assert chroma == pytest.approx(CHROMA, abs=EIGHT_BIT)
         expected = (FIRST_HUE_DEG + i * 360 / SIZE) % 360
         assert abs((hue - expected + 180) % 360 - 180) < 3.0  # degrees, after 8-bit rounding
+
+
+def test_written_out_tints_are_the_rule_worked_out_by_coloraide():
+    # The sheet uses TINTS without importing ColorAide; ColorAide applies the rule here.
+    expected = tuple(
+        Color("oklch", [LIGHTNESS, CHROMA, FIRST_HUE_DEG + i * 360.0 / SIZE])
+        .convert("srgb")
+        .fit("srgb")
+        .to_string(hex=True)
+        for i in range(SIZE)
+    )
+    assert expected == TINTS
+    assert piece_tints() == TINTS
 
 
 def test_black_marks_on_every_tint_pass_wcag_aaa():

@@ -286,7 +286,7 @@ def render_outputs(
             outputs[csv_dir / name] = text
     if sheet is not None:
         if sheet.suffix.lower() == ".md":
-            from sawplan.cutlist.sheets.text import render_markdown
+            from sawplan.cutlist.sheets.markdown import render_markdown
 
             outputs[sheet] = render_markdown(plan, units)
         else:

@@ -291,7 +291,7 @@ def life_for(
     """``(fit or None, default life, blades, failed, note, ...)`` for planning's blades on hand."""
     from sawplan.store.db import connect
 
-    with connect(db_path, create=False) as db:
+    with connect(db_path, create=False, light=True) as db:
         return life_basis(db, material_group, confidence, choice)
 
 

@@ -23,28 +23,26 @@ from typing import Any
 
 from sawplan.cutlist.optimise.budget import Clock
 from sawplan.cutlist.optimise.knapsack import solve_bounded_knapsack
+from sawplan.cutlist.optimise.pool import ColumnPool
 from sawplan.cutlist.optimise.problem import Problem
 
 _ROUND_EPS = 1e-6  # slack when rounding LP values up to whole bars
 
 
-def solve_lp(c: Any, a_ub: Any, b_ub: Any) -> tuple[Any, float, Any]:
-    """min c·x s.t. a_ub·x <= b_ub, x >= 0 by HiGHS's dual simplex (no presolve: these
-    masters are small and dense); returns x, the optimum and the row duals (>= 0)."""
+def solve_lp(c: Any, columns: tuple[Any, Any, Any], b_ub: Any) -> tuple[Any, float, Any]:
+    """min c·x s.t. A·x <= b_ub, x >= 0 by HiGHS's dual simplex (no presolve: these
+    masters are small and dense); A is given column-wise as (start of each column,
+    row of each entry, value of each entry), rows ascending within a column.
+    Returns x, the optimum and the row duals (>= 0)."""
     import numpy as np
 
     from sawplan.cutlist.optimise.highs import new_highs, optimal
 
-    n_rows, n_cols = a_ub.shape
+    starts, index, value = columns
+    n_rows, n_cols = len(b_ub), len(c)
     highs = new_highs()
     highs.setOptionValue("presolve", "off")
     highs.setOptionValue("simplex_strategy", 1)  # dual simplex
-    nz = a_ub != 0
-    counts = nz.sum(axis=0)
-    starts = np.concatenate([[0], np.cumsum(counts)[:-1]]).astype(np.int32)
-    rows_t, cols_t = np.nonzero(nz.T)  # column-major order of the nonzeros
-    index = cols_t.astype(np.int32)
-    value = a_ub.T[rows_t, cols_t]
     highs.addRows(
         n_rows,
         np.full(n_rows, -np.inf),
@@ -62,7 +60,7 @@ def solve_lp(c: Any, a_ub: Any, b_ub: Any) -> tuple[Any, float, Any]:
         len(index),
         starts,
         index,
-        value.astype(float),
+        value,
     )
     highs.run()
     if highs.getModelStatus() != optimal():
@@ -81,50 +79,6 @@ def solve_lp(c: Any, a_ub: Any, b_ub: Any) -> tuple[Any, float, Any]:
 
 class LpFailure(RuntimeError):
     """HiGHS did not return an optimal master (numerical trouble); fall back to FFD."""
-
-
-class ColumnPool:
-    """Bar fillings found so far: the master's columns, shared by every re-solve."""
-
-    def __init__(self, problem: Problem) -> None:
-        import numpy as np
-
-        self.problem = problem
-        self.stock: list[int] = []
-        self._index: dict[tuple[int, tuple[int, ...]], int] = {}
-        self._matrix = np.zeros((len(problem.lengths), 64))
-
-    def __len__(self) -> int:
-        return len(self.stock)
-
-    def add(self, s: int, counts: Sequence[int]) -> int:
-        """Index of the filling ``counts`` of stock ``s`` (added if new); -1 if empty or too long."""
-        import numpy as np
-
-        key = (s, tuple(counts))
-        known = self._index.get(key)
-        if known is not None:
-            return known
-        if not any(counts) or not self.problem.fits(s, counts):
-            return -1
-        n = len(self.stock)
-        if n == self._matrix.shape[1]:
-            grown = np.zeros((self._matrix.shape[0], 2 * n))
-            grown[:, :n] = self._matrix
-            self._matrix = grown
-        self._matrix[:, n] = counts
-        self.stock.append(s)
-        self._index[key] = n
-        return n
-
-    def counts(self, column: int) -> tuple[int, ...]:
-        import numpy as np
-
-        return tuple(np.rint(self._matrix[:, column]).astype(np.int64).tolist())
-
-    @property
-    def matrix(self) -> Any:
-        return self._matrix[:, : len(self.stock)]
 
 
 @dataclass(frozen=True)
@@ -178,9 +132,11 @@ def solve_master_lp(
         return LpOutcome((), (), 0.0, 0.0, True, 0.0, 0)
     if not usable:  # no stock left at all
         return LpOutcome((), (), float("inf"), float("inf"), True, float(sum(demand)), 0)
-    usable_set = set(usable)
     master = _Master(pool, rows, demand, limits, usable, costs)
-    active = [i for i, s in enumerate(pool.stock) if s in usable_set]
+    if len(usable) == len(limits):
+        active = list(range(len(pool)))
+    else:
+        active = np.flatnonzero(np.isin(pool.stock_of, usable)).tolist()
     wanted = np.array([max(d, 0) for d in demand], dtype=float)
     tol = 1e-9 * max(max(costs), 1e-9)
     best_bound = 0.0
@@ -324,6 +280,7 @@ class _Master:
         self.limits = limits
         self.costs = costs
         self.d_rows = np.array([demand[j] for j in rows], dtype=float)
+        self.costs_array = np.array(costs, dtype=float)
         self.big = 1e3 * max(max(costs), 1e-6)
         self.n_items = len(demand)
         self.keep = max(2 * len(rows), 100)
@@ -332,26 +289,40 @@ class _Master:
         import numpy as np
 
         pool, rows = self.pool, self.rows
-        a = pool.matrix[np.ix_(rows, active)] if active else np.zeros((len(rows), 0))
-        n_art = len(rows)
-        blocks = [np.hstack([-a, -np.eye(n_art)])]
-        b_ub = [-self.d_rows]
-        if self.limited:
-            stock_of = np.array([pool.stock[i] for i in active], dtype=int)
-            e = np.zeros((len(self.limited), len(active) + n_art))
-            for r, s in enumerate(self.limited):
-                e[r, : len(active)] = stock_of == s
-            blocks.append(e)
-            b_ub.append(np.array([self.limits[s] for s in self.limited], dtype=float))
-        c = np.concatenate([[self.costs[pool.stock[i]] for i in active], np.full(n_art, self.big)])
-        # HiGHS takes the matrix column-wise: handing it over sparse saves most of the
-        # wrapper's work on masters of a few hundred columns.
-        a_ub, b = np.vstack(blocks), np.concatenate(b_ub)
-        x, fun, marginals = solve_lp(c, a_ub, b)
+        n_rows, n_active = len(rows), len(active)
+        cols = np.asarray(active, dtype=np.intp)
+        stock = pool.stock_of[cols]
+        # Column-wise: each pool column's pieces (negated: ">=" rows as "<="), then a 1
+        # in the row of its stock when that stock is limited; then one artificial column
+        # per length (-1 in its row).  Rows ascend within every column.
+        entry_col, entry_item, copies = pool.entries(active)
+        row_of_item = np.full(self.n_items, -1, dtype=np.intp)
+        row_of_item[rows] = np.arange(n_rows)
+        wanted = row_of_item[entry_item] >= 0  # pieces of lengths no longer wanted drop out
+        entry_col, entry_row = entry_col[wanted], row_of_item[entry_item[wanted]]
+        entry_val = -copies[wanted]
+        row_of_stock = np.full(len(pool.problem.stock_lengths), -1, dtype=np.intp)
+        for r, s in enumerate(self.limited):
+            row_of_stock[s] = n_rows + r
+        limited = np.flatnonzero(row_of_stock[stock] >= 0)
+        art = np.arange(n_rows)
+        all_col = np.concatenate([entry_col, limited, n_active + art])
+        all_row = np.concatenate([entry_row, row_of_stock[stock[limited]], art])
+        all_val = np.concatenate([entry_val, np.ones(len(limited)), np.full(n_rows, -1.0)])
+        order = np.lexsort((all_row, all_col))
+        counts = np.bincount(all_col, minlength=n_active + n_rows)
+        starts = np.concatenate([[0], np.cumsum(counts)[:-1]]).astype(np.int32)
+        index = all_row[order].astype(np.int32)
+        value = all_val[order].astype(float)
+        b_ub = np.concatenate([-self.d_rows, [float(self.limits[s]) for s in self.limited]])
+        c = np.concatenate([self.costs_array[stock], np.full(n_rows, self.big)])
+        x, fun, marginals = solve_lp(c, (starts, index, value), b_ub)
         items = np.zeros(self.n_items)
-        items[rows] = np.maximum(marginals[: len(rows)], 0.0)
-        stock = {s: max(float(marginals[len(rows) + r]), 0.0) for r, s in enumerate(self.limited)}
-        return x, fun, _Duals(items, stock)
+        items[rows] = np.maximum(marginals[:n_rows], 0.0)
+        stock_duals = {
+            s: max(float(marginals[n_rows + r]), 0.0) for r, s in enumerate(self.limited)
+        }
+        return x, fun, _Duals(items, stock_duals)
 
     def prune(self, active: list[int], x: Any, duals: _Duals) -> list[int]:
         """Keep the working set small: columns in use and those of least reduced cost."""
@@ -361,12 +332,11 @@ class _Master:
             return active
         pool = self.pool
         values = duals.items @ pool.matrix[:, active]
-        reduced = (
-            np.array(
-                [self.costs[pool.stock[i]] + duals.stock.get(pool.stock[i], 0.0) for i in active]
-            )
-            - values
-        )
+        stock_dual = np.zeros(len(self.costs))
+        for s, v in duals.stock.items():
+            stock_dual[s] = v
+        stock = pool.stock_of[np.asarray(active, dtype=np.intp)]
+        reduced = (self.costs_array[stock] + stock_dual[stock]) - values
         reduced[x[: len(active)] > 1e-9] = -np.inf
         order = np.argsort(reduced, kind="stable")[: self.keep]
         return [active[k] for k in sorted(order)]

@@ -58,12 +58,19 @@ class KnapsackTable:
         return [self._filling_at(int(c)) for c in steps]
 
     def _filling_at(self, c: int) -> tuple[int, ...]:
+        """Walk the parts back from the last: each taken part frees its weight."""
+        import numpy as np
+
         counts = [0] * self.n_items
-        for p in range(len(self.parts) - 1, -1, -1):
-            if self.take[p, c]:
-                item, copies, weight = self.parts[p]
-                counts[item] += copies
-                c -= weight
+        p = len(self.parts)
+        while p > 0:
+            taken = np.flatnonzero(self.take[:p, c])  # the next part back taken at c
+            if not len(taken):
+                break
+            p = int(taken[-1])
+            item, copies, weight = self.parts[p]
+            counts[item] += copies
+            c -= weight
         return tuple(counts)
 
 
@@ -109,6 +116,5 @@ def solve_bounded_knapsack(
         np.add(best[:n], values[j] * copies - _TIE, out=candidate)  # ties keep the part out
         better = take_table[p, w:]
         np.greater(candidate, best[w:], out=better)
-        candidate += _TIE
-        np.copyto(best[w:], candidate, where=better)
+        np.add(candidate, _TIE, out=best[w:], where=better)
     return KnapsackTable(best, unit, tuple(parts), take_table, n_items)

@@ -114,6 +114,8 @@ def _holder(plan: _Plan, holders: list[int], j: int, receiver: int) -> int:
 def _gather(plan: _Plan, clock: Clock, max_donors: int) -> None:
     weights = plan.problem.weights
     n_bars = len(plan.fills)
+    # Bars with a scrap tail by spare length, kept up to date as donors succeed.
+    scrap = sorted((plan.room[b], b) for b in range(n_bars) if plan.scrap(b))
     tried = 0
     for donor in sorted(range(n_bars), key=lambda b: -plan.room[b]):
         if tried >= max_donors or clock.expired():
@@ -121,7 +123,9 @@ def _gather(plan: _Plan, clock: Clock, max_donors: int) -> None:
         if not plan.scrap(donor):
             continue
         tried += 1
-        receivers = sorted((plan.room[b], b) for b in range(n_bars) if b != donor and plan.scrap(b))
+        receivers = list(scrap)
+        del receivers[bisect_left(receivers, (plan.room[donor], donor))]
+        before = {donor: plan.room[donor]}  # spare length of each bar touched, before
         moves: list[tuple[int, int]] = []
         success = False
         for j in range(len(weights) - 1, -1, -1):  # shortest pieces first
@@ -131,6 +135,7 @@ def _gather(plan: _Plan, clock: Clock, max_donors: int) -> None:
                 if spot == len(receivers):
                     break
                 _, b = receivers.pop(spot)
+                before.setdefault(b, plan.room[b])
                 plan.move(j, donor, b)
                 insort(receivers, (plan.room[b], b))
                 moves.append((j, b))
@@ -140,3 +145,8 @@ def _gather(plan: _Plan, clock: Clock, max_donors: int) -> None:
         if not success:
             for j, b in reversed(moves):
                 plan.move(j, b, donor)
+            continue
+        for b, room in before.items():  # every bar touched was a scrap bar before
+            del scrap[bisect_left(scrap, (room, b))]
+            if plan.scrap(b):
+                insort(scrap, (plan.room[b], b))

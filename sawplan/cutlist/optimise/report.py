@@ -5,7 +5,9 @@ from __future__ import annotations
 import time
 from collections.abc import Sequence
 from dataclasses import dataclass
+from itertools import compress
 from math import ceil
+from operator import neg
 
 from sawplan.cutlist.optimise.build import Instance
 from sawplan.cutlist.optimise.problem import Bar, Problem
@@ -91,13 +93,12 @@ def build_plan(
     """
     problem = instance.problem
     queues = _keys_by_length(instance)
-    ordered = sorted(bars, key=lambda bar: (bar[0], tuple(-n for n in bar[1])))
+    ordered = sorted(bars, key=lambda bar: (bar[0], tuple(map(neg, bar[1]))))
     patterns: list[BarPattern] = []
     for s, counts in ordered:
         pieces: list[str] = []
-        for j, n in enumerate(counts):
-            if n:
-                pieces.extend(_next_key(queues[j]) for _ in range(n))
+        for j in compress(range(len(counts)), counts):  # the items this bar holds
+            pieces.extend(_next_key(queues[j]) for _ in range(counts[j]))
         remnant = problem.remnant(s, counts)
         patterns.append(
             BarPattern(
@@ -115,7 +116,8 @@ def build_plan(
     if objective == "bars":
         value, bound = float(len(patterns)), float(lower)
     else:
-        value = sum(report_costs(problem)[s] for s, _ in bars)
+        costs = report_costs(problem)
+        value = sum(costs[s] for s, _ in bars)
         bound = min(bounds.cost, value)
     short = tuple((key, n) for j, left in enumerate(unplaced) for key, n in _take(queues[j], left))
     return CutPlan(

@@ -23,8 +23,9 @@ from math import ceil, floor
 
 from sawplan.cutlist.optimise.arcflow import solve_arc_flow
 from sawplan.cutlist.optimise.budget import Clock, Effort
-from sawplan.cutlist.optimise.colgen import ColumnPool, LpFailure, LpOutcome, solve_master_lp
+from sawplan.cutlist.optimise.colgen import LpFailure, LpOutcome, solve_master_lp
 from sawplan.cutlist.optimise.ffd import pack_first_fit_decreasing
+from sawplan.cutlist.optimise.pool import ColumnPool
 from sawplan.cutlist.optimise.problem import Bar, Problem, downsize, score
 
 _ROUND_EPS = 1e-6
@@ -45,9 +46,9 @@ def reaches_bound(problem: Problem, plan: Incumbent, bound: float, bar_cost: flo
     """True when no plan can cost less than ``plan`` (it meets the LP bound)."""
     if any(plan.unplaced):
         return False
-    cost = sum(problem.costs[s] for s, _ in plan.bars)
     if bar_cost is not None:
         return len(plan.bars) <= ceil(bound / bar_cost - _ROUND_EPS)
+    cost = sum(problem.costs[s] for s, _ in plan.bars)
     return cost <= bound + 1e-9 * max(abs(bound), 1.0)
 
 

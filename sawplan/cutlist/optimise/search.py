@@ -23,9 +23,10 @@ from math import ceil
 from sawplan.cutlist.optimise.arcflow import solve_arc_flow
 from sawplan.cutlist.optimise.budget import Clock, Effort
 from sawplan.cutlist.optimise.build import Instance
-from sawplan.cutlist.optimise.colgen import ColumnPool, LpFailure, solve_master_lp
+from sawplan.cutlist.optimise.colgen import LpFailure, solve_master_lp
 from sawplan.cutlist.optimise.ffd import pack_first_fit_decreasing
 from sawplan.cutlist.optimise.polish import gather_remnants
+from sawplan.cutlist.optimise.pool import ColumnPool
 from sawplan.cutlist.optimise.problem import Bar, Problem
 from sawplan.cutlist.optimise.repair import price_step, repair_plan
 from sawplan.cutlist.optimise.report import Bounds, material_bounds, objective_of, report_costs
@@ -199,7 +200,8 @@ def _meets_report_bound(problem: Problem, bars: tuple[Bar, ...], bounds: Bounds)
     """The plan's reported figure equals its bound (bars: ⌈LP⌉; cost or length: the LP)."""
     if objective_of(problem) == "bars":
         return len(bars) <= ceil(bounds.bars - _TINY)
-    value = sum(report_costs(problem)[s] for s, _ in bars)
+    costs = report_costs(problem)
+    value = sum(costs[s] for s, _ in bars)
     return value <= bounds.cost + 1e-9 * max(abs(bounds.cost), 1.0)
 
 

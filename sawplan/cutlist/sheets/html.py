@@ -12,15 +12,13 @@ Chromium at A4 and Letter width).  All user text is escaped.
 
 from __future__ import annotations
 
+from collections.abc import Iterator
+from dataclasses import replace
 from html import escape
 
+from sawplan.cutlist.sheets.bar_rows import PerPattern, StockText, piece_rows
 from sawplan.cutlist.sheets.palette import piece_tints
-from sawplan.cutlist.sheets.text import (
-    breakin_text,
-    forecast_text,
-    piece_rows,
-    short_banner,
-)
+from sawplan.cutlist.sheets.text import breakin_text, forecast_text, short_banner
 from sawplan.display import Display, UnitSystem, as_display, fmt_money, fmt_number
 
 VIEW_W = 1000.0  # drawing width in viewBox units
@@ -80,7 +78,7 @@ def render_html(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> str:
         "<h2>Blade and settings per section</h2>",
         _sections_table(plan, d),
         "<h2>Bars</h2>",
-        *(_bar_block(plan, b, d) for b in plan.bars),
+        *_bar_blocks(plan, d),
         _remnants(plan, d),
         "<h2>Blades and quote</h2>",
         _quote(plan, d),
@@ -155,15 +153,34 @@ def _sections_table(plan, d: Display) -> str:
     return f"<table>{head}{''.join(rows)}</table>"
 
 
-def _bar_block(plan, b, d: Display) -> str:
+# Stands for a bar's number in the text kept for all the bars cut alike; every
+# text from the job is escaped, so "<" never comes from it.
+_NUMBER = "<bar-number/>"
+
+
+def _bar_blocks(plan, d: Display) -> Iterator[str]:
+    """Every bar's block; the drawing and table are worked out once per bar pattern."""
+    body = PerPattern(lambda b: _bar_body(replace(b, bar=_NUMBER), d))
+    stock = StockText(d)
+    for b in plan.bars:
+        yield _bar_block(b, d, stock(b), body(b).replace(_NUMBER, str(b.bar)))
+
+
+def _bar_block(b, d: Display, stock: str, body: str) -> str:
     e = escape
     lift = f'<span class="{e(b.handling)}">{e(b.handling)}</span>'
     title = (
-        f"<h3>Bar {b.bar} · {e(d.text(b.stock))}"
+        f"<h3>Bar {b.bar} · {e(stock)}"
         + (f" · heat {e(b.heat)}" if b.heat else "")
         + (f" · rack {e(b.location)}" if b.location else "")
         + f" · {e(d.fmt('mass', b.weight_kg))} {lift}</h3>"
     )
+    return f'<section class="bar" id="bar-{b.bar}">{title}{body}</section>'
+
+
+def _bar_body(b, d: Display) -> str:
+    """The bar's drawing and its table of steps."""
+    e = escape
     rows = []
     if b.trim_cut_mm is not None:
         rows.append(
@@ -196,10 +213,7 @@ def _bar_block(plan, b, d: Display) -> str:
         f"<tr><th>Step</th><th class=n>From head ({e(d.label('length'))})</th><th>Piece</th>"
         "<th class=n>Weight</th><th>Lift</th></tr>"
     )
-    return (
-        f'<section class="bar" id="bar-{b.bar}">{title}{bar_svg(b, d)}'
-        f"<table>{head}{''.join(rows)}</table></section>"
-    )
+    return f"{bar_svg(b, d)}<table>{head}{''.join(rows)}</table>"
 
 
 def bar_svg(b, d: Display) -> str:

@@ -1,164 +1,20 @@
-"""The cut sheet as text: terminal summary, per-bar table, to-scale bar drawings, Markdown.
+"""The cut sheet as text for the terminal: summary, sections, per-bar table, drawings.
 
-The drawings are plain ASCII so they survive e-mail, printers and any
-terminal: one line per bar, ``width`` columns for the whole bar length.
-``#`` is the head trim, ``[-A-]`` a piece with its mark, ``=R=`` a remnant to
-keep, ``...`` scrap.  Kerfs are the seams between segments.  Pieces too narrow
-to draw on their own are drawn as one run (``[A×12]``).
+The drawings are ``drawing``'s plain ASCII bars; the Markdown sheet is
+``markdown``.  Bars cut alike share their rows and drawing (``bar_rows``), so
+a plan of tens of thousands of pieces prints in a moment.
 """
 
 from __future__ import annotations
 
-from collections.abc import Sequence
-from dataclasses import dataclass
-
+from sawplan.cutlist.sheets.bar_rows import PerPattern, StockText, piece_rows
+from sawplan.cutlist.sheets.drawing import DRAW_WIDTH, draw_bar
 from sawplan.display import Display, UnitSystem, as_display, fmt_money, fmt_number, fmt_percent
 
-DRAW_WIDTH = 72
-
-
-@dataclass(frozen=True)
-class PieceRow:
-    """One line of a bar's cut list: a piece, or a run of equal pieces in a row."""
-
-    first: object  # PieceCut
-    last: object
-    count: int
-
-    def step(self, d: Display) -> str:
-        return str(self.first.seq) if self.count == 1 else f"{self.first.seq}–{self.last.seq}"
-
-    def span(self, d: Display) -> str:
-        return d.span(self.first.start_mm, self.last.end_mm)
-
-    def what(self, d: Display) -> str:
-        p = self.first
-        text = f"{p.mark} {p.part} ({d.tape(p.length_mm)})"
-        if self.count > 1:
-            pitch = (self.last.start_mm - p.start_mm) / (self.count - 1)
-            text += f" ×{self.count}, one every {d.tape(pitch)}"
-        return text
-
-    def weight(self, d: Display) -> str:
-        return d.fmt("mass", self.first.weight_kg) + (" each" if self.count > 1 else "")
-
-
-def piece_rows(bar, run: int = 3) -> list[PieceRow]:
-    """The bar's pieces, with ``run`` or more equal pieces in a row on one line."""
-    groups: list[list] = []
-    for p in bar.pieces:
-        if groups and groups[-1][0].mark == p.mark:
-            groups[-1].append(p)
-        else:
-            groups.append([p])
-    rows: list[PieceRow] = []
-    for g in groups:
-        if len(g) >= run:
-            rows.append(PieceRow(g[0], g[-1], len(g)))
-        else:
-            rows += [PieceRow(p, p, 1) for p in g]
-    return rows
-
-
-# --- drawings -----------------------------------------------------------------------------
-
-
-@dataclass(frozen=True)
-class Segment:
-    """A stretch of the bar for drawing: [start, end) in mm and what it is."""
-
-    kind: str  # "trim" | "piece" | "remnant" | "scrap"
-    start_mm: float
-    end_mm: float
-    label: str
-
-
-def segments(bar, *, max_segments: int = DRAW_WIDTH // 3) -> list[Segment]:
-    """The bar as drawable segments; a piece takes its own length and the kerf after it.
-
-    Runs of the same mark are merged when there are too many segments to draw
-    each piece (``A×12``); if even that is too many, all pieces become one run.
-    """
-    out: list[Segment] = []
-    if bar.trim_mm > 0:
-        out.append(Segment("trim", 0.0, bar.trim_mm, "#"))
-    pieces = list(bar.pieces)
-    ends = [p.start_mm for p in pieces[1:]] + [bar.remnant_start_mm if pieces else bar.trim_mm]
-    singles = [Segment("piece", p.start_mm, e, p.mark) for p, e in zip(pieces, ends, strict=True)]
-    if len(singles) > max_segments:
-        singles = _runs(singles)
-    if len(singles) > max_segments and singles:
-        singles = [Segment("piece", singles[0].start_mm, singles[-1].end_mm, f"{len(pieces)} pcs")]
-    out.extend(singles)
-    if bar.length_mm - bar.remnant_start_mm > 1e-9:
-        kind = "remnant" if bar.remnant_kept else "scrap"
-        label = "R" if bar.remnant_kept else ""
-        out.append(Segment(kind, bar.remnant_start_mm, bar.length_mm, label))
-    return out
-
-
-def _runs(singles: list[Segment]) -> list[Segment]:
-    runs: list[list[Segment]] = []
-    for s in singles:
-        if runs and runs[-1][0].label == s.label:
-            runs[-1].append(s)
-        else:
-            runs.append([s])
-    return [
-        Segment("piece", r[0].start_mm, r[-1].end_mm, r[0].label + (f"×{len(r)}" * (len(r) > 1)))
-        for r in runs
-    ]
-
-
-def columns(bounds_mm: Sequence[float], total_mm: float, width: int) -> list[int]:
-    """Column of each boundary, to scale, with every segment at least one column wide."""
-    n = len(bounds_mm) - 1
-    cols = [round(x / total_mm * width) if total_mm > 0 else 0 for x in bounds_mm]
-    cols[0], cols[-1] = 0, width
-    for k in range(1, n + 1):  # at least one column each, left to right
-        cols[k] = max(cols[k], cols[k - 1] + 1)
-    for k in range(n - 1, 0, -1):  # and pull back from the right edge
-        cols[k] = min(cols[k], cols[k + 1] - 1)
-    return cols
-
-
-def draw_bar(bar, width: int = DRAW_WIDTH) -> str:
-    """One bar as exactly ``width`` characters, to scale."""
-    segs = segments(bar, max_segments=max(1, width // 2))
-    if not segs:
-        return "." * width
-    bounds = [segs[0].start_mm] + [s.end_mm for s in segs]
-    cols = columns(bounds, bar.length_mm, width)
-    out = []
-    for s, a, b in zip(segs, cols, cols[1:], strict=False):
-        out.append(_fill(s, b - a))
-    text = "".join(out)
-    return text[:width].ljust(width, ".")
-
-
-def _fill(s: Segment, w: int) -> str:
-    if w <= 0:
-        return ""
-    if s.kind == "trim":
-        return "#" * w
-    if s.kind == "scrap":
-        return "." * w
-    if s.kind == "remnant":
-        return _centred("R", w, "=") if w >= 3 else "R" * min(w, 1) + "=" * (w - 1)
-    label = s.label
-    if w >= len(label) + 2:
-        return "[" + _centred(label, w - 2, "-") + "]"
-    if w == len(label) + 1:
-        return label + "|"
-    if w >= len(label):
-        return _centred(label, w, "-")
-    return label[:w]
-
-
-def _centred(text: str, w: int, fill: str) -> str:
-    left = (w - len(text)) // 2
-    return fill * left + text + fill * (w - len(text) - left)
-
+__all__ = [
+    "DRAW_WIDTH", "blades_text", "bound_text", "order_list", "quote_text", "render_plan",
+    "short_banner",
+]  # fmt: skip
 
 # --- the terminal report --------------------------------------------------------------------
 
@@ -176,8 +32,8 @@ def render_plan(
         _drawings(plan, d, width),
         _remnants(plan, d),
         order_list(plan, d),
-        _blades(plan, d),
-        _quote(plan, d),
+        blades_text(plan, d),
+        quote_text(plan, d),
         _notes(plan, d),
     ]
     return "\n\n".join(b for b in blocks if b)
@@ -319,52 +175,61 @@ def _cut_table(plan, d: Display) -> str:
     unit = d.label("length")
     headers = ["bar", "stock", "heat", "step", f"from head {unit}", "piece", "weight", "lift"]
     rows: list[list[str]] = []
+    body = PerPattern(lambda b: _bar_rows(b, d))
+    stock = StockText(d)
+    blank = ["", "", ""]
     for b in plan.bars:
         where = f" @{b.location}" if b.location else ""
-        first = [str(b.bar), d.text(b.stock) + where, b.heat or "—"]
-        blank = ["", "", ""]
-        lead = first
-        if b.trim_cut_mm is not None:
-            rows.append([*lead, "trim", d.span(0.0, b.trim_mm), "squaring cut", "", ""])
+        lead = [str(b.bar), stock(b) + where, b.heat or "—"]
+        tails, summary = body(b)
+        for tail in tails:
+            rows.append([*lead, *tail])
             lead = blank
-        for row in piece_rows(b):
-            rows.append([
-                *lead, row.step(d), row.span(d), row.what(d), row.weight(d), row.first.handling,
-            ])  # fmt: skip
-            lead = blank
-        if b.remnant_mm > 0 or b.length_mm - b.remnant_start_mm > 1e-9:
-            what = (
-                f"keep {d.tape(b.remnant_mm)} remnant, mark heat {b.heat or '—'}"
-                if b.remnant_kept
-                else f"scrap {d.tape(b.remnant_mm)}"
-            )
-            weight = d.fmt("mass", b.remnant_weight_kg) if b.remnant_mm > 0 else ""
-            span = d.span(b.remnant_start_mm, b.length_mm)
-            rows.append([*lead, "end", span, what, weight, ""])
-            lead = blank
-        summary = f"bar {d.fmt('mass', b.weight_kg)}, {b.handling}; {b.cuts} cuts"
         rows.append(["", summary, "", "", "", "", "", ""])
     title = "CUT SHEET (positions from the head end of each bar)"
     return table(headers, rows, align="rlllrlrl", title=title)
 
 
+def _bar_rows(b, d: Display) -> tuple[list[tuple[str, ...]], str]:
+    """One bar's rows without the bar's number and stock (step, span, piece, weight,
+    lift), and its summary line."""
+    tails: list[tuple[str, ...]] = []
+    if b.trim_cut_mm is not None:
+        tails.append(("trim", d.span(0.0, b.trim_mm), "squaring cut", "", ""))
+    for row in piece_rows(b):
+        tails.append((row.step(d), row.span(d), row.what(d), row.weight(d), row.first.handling))
+    if b.remnant_mm > 0 or b.length_mm - b.remnant_start_mm > 1e-9:
+        what = (
+            f"keep {d.tape(b.remnant_mm)} remnant, mark heat {b.heat or '—'}"
+            if b.remnant_kept
+            else f"scrap {d.tape(b.remnant_mm)}"
+        )
+        weight = d.fmt("mass", b.remnant_weight_kg) if b.remnant_mm > 0 else ""
+        tails.append(("end", d.span(b.remnant_start_mm, b.length_mm), what, weight, ""))
+    return tails, f"bar {d.fmt('mass', b.weight_kg)}, {b.handling}; {b.cuts} cuts"
+
+
 def _drawings(plan, d: Display, width: int) -> str:
     lines = [f"BARS TO SCALE ({width} columns = one bar; # trim, [A] piece, =R= keep, ... scrap)"]
     num = max((len(str(b.bar)) for b in plan.bars), default=1)
-    for b in plan.bars:
+
+    def drawn(b) -> str:
         tail = d.bar_length(b.length_mm)
         if b.remnant_kept:
             tail += f", R {d.tape(b.remnant_mm)}" + (f" heat {b.heat}" if b.heat else "")
-        lines.append(f"{str(b.bar).rjust(num)} |{draw_bar(b, width)}| {tail}")
-    seen: dict[str, str] = {}
-    for b in plan.bars:
-        for p in b.pieces:
-            seen.setdefault(p.mark, f"{p.part} {d.tape(p.length_mm)}")
+        return f"|{draw_bar(b, width)}| {tail}"
+
+    line = PerPattern(drawn)
+    seen: dict[str, object] = {}
     counts: dict[str, int] = {}
     for b in plan.bars:
+        lines.append(f"{str(b.bar).rjust(num)} {line(b)}")
         for p in b.pieces:
+            if p.mark not in seen:
+                seen[p.mark] = p
             counts[p.mark] = counts.get(p.mark, 0) + 1
-    lines.append("marks: " + "; ".join(f"{m} = {t} ×{counts[m]}" for m, t in seen.items()))
+    marks = (f"{m} = {p.part} {d.tape(p.length_mm)} ×{counts[m]}" for m, p in seen.items())
+    lines.append("marks: " + "; ".join(marks))
     return "\n".join(lines)
 
 
@@ -392,7 +257,7 @@ def _remnants(plan, d: Display) -> str:
     )
 
 
-def _blades(plan, d: Display) -> str:
+def blades_text(plan, d: Display) -> str:
     from sawplan.render import key_values
 
     pairs = [
@@ -422,7 +287,7 @@ def forecast_text(plan) -> str:
     return plan.blade_forecast_method
 
 
-def _quote(plan, d: Display) -> str:
+def quote_text(plan, d: Display) -> str:
     from sawplan.render import key_values
 
     pairs = [
@@ -440,69 +305,3 @@ def _notes(plan, d: Display) -> str:
     lines.append("CAUTIONS")
     lines += [f"- {d.text(c)}" for c in plan.cautions]
     return "\n".join(lines)
-
-
-# --- Markdown sheet ---------------------------------------------------------------------------
-
-
-def render_markdown(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> str:
-    """A Markdown cut sheet: the same content as the HTML sheet, drawings as text."""
-    d = as_display(units)
-    out = [f"# Cut sheet: {_md(plan.job)}", ""]
-    if not plan.complete:
-        out += [f"**{_md(short_banner(plan, d))}**", ""]
-    head = [("file", plan.file), ("saw", plan.saw)]
-    if plan.customer:
-        head.insert(0, ("customer", plan.customer))
-    if plan.due:
-        head.append(("due", plan.due))
-    out += [f"- **{k}**: {_md(v)}" for k, v in head]
-    out += ["", "## Sections", ""]
-    out.append(
-        "| material and section | bars | ⌈LP⌉ | kerf | pitch | band speed | feed "
-        "| time/cut | cuts |"
-    )
-    out.append("|---|---:|---:|---:|---|---:|---:|---:|---:|")
-    for s in plan.sections:
-        out.append(
-            f"| {_md(d.text(s.group))} | {s.bars_used} | {s.lp_bound_bars} | {d.length(s.kerf_mm)} | "
-            f"{_md(s.pitch)} {_md(s.tooth_form)} | {d.fmt('speed', s.band_speed_m_min, 3)} | "
-            f"{d.fmt('feed', s.feed_mm_min, 3)} | {d.fmt('time', s.cut_time_min)} | {s.cuts} |"
-        )
-    out += ["", "## Bars", ""]
-    for b in plan.bars:
-        title = f"### Bar {b.bar}: {_md(d.text(b.stock))}"
-        out.append(title + (f", heat {_md(b.heat)}" if b.heat else ""))
-        out += ["", "```", draw_bar(b), "```", ""]
-        out.append(f"| step | from head ({d.label('length')}) | piece | weight | lift |")
-        out.append("|---|---|---|---:|---|")
-        if b.trim_cut_mm is not None:
-            out.append(f"| trim | {d.span(0.0, b.trim_mm)} | squaring cut | | |")
-        for row in piece_rows(b):
-            out.append(
-                f"| {row.step(d)} | {row.span(d)} | {_md(row.what(d))} | {row.weight(d)} | "
-                f"{row.first.handling} |"
-            )
-        if b.length_mm - b.remnant_start_mm > 1e-9:
-            what = (
-                f"keep remnant {d.tape(b.remnant_mm)}, mark heat {_md(b.heat or '—')}"
-                if b.remnant_kept
-                else f"scrap {d.tape(b.remnant_mm)}"
-            )
-            out.append(f"| end | {d.span(b.remnant_start_mm, b.length_mm)} | {what} | | |")
-        out += ["", f"Bar weight {d.fmt('mass', b.weight_kg)}: **{b.handling}**.", ""]
-    if not plan.complete:
-        out += ["## Order list", "", "```", order_list(plan, d), "```", ""]
-    out += ["## Blades and quote", "", "```", _blades(plan, d), "", _quote(plan, d), "```", ""]
-    out += ["## Notes and cautions", ""]
-    out += [f"- {_md(d.text(n))}" for n in plan.notes]
-    out += [f"- **{_md(d.text(c))}**" for c in plan.cautions]
-    return "\n".join(out) + "\n"
-
-
-def _md(text: str) -> str:
-    """Escape the characters that would break a Markdown table or start markup."""
-    text = str(text).replace("\\", "\\\\")
-    for ch in "|*_`[]<>#":
-        text = text.replace(ch, "\\" + ch)
-    return " ".join(text.split())
