@@ -42,6 +42,8 @@ def environment() -> Environment:
     """The one Jinja2 environment of the station (autoescaped HTML)."""
     import jinja2
 
+    from sawplan.display import fmt_count
+
     env = jinja2.Environment(
         loader=jinja2.FileSystemLoader(TEMPLATES),
         autoescape=jinja2.select_autoescape(("html",), default=True),
@@ -51,6 +53,7 @@ def environment() -> Environment:
     )
     env.globals["csrf_field"] = csrf_field
     env.globals["static"] = lambda name: f"/static/{name}"
+    env.globals["count"] = fmt_count
     return env
 
 
