@@ -51,6 +51,9 @@ plan unless the limit stops the optimiser, which the plan then says.
 life (blades on hand) comes from; the plan's notes say which.
 --send puts the plan's cuts, in cut-sheet order, into the saw's queue on
 the station (`sawplan serve`).
+--sheet and --csv-dir replace files that exist only with --force, and never
+a file the plan reads (the job file, its stock file, the materials, saws and
+config files, the blade log).
 
 \b
 Examples:
