@@ -113,12 +113,27 @@ def check_targets(targets: Sequence[Target], inputs: Sequence[Input], *, force: 
                 "choose another name"
             )
         seen[key] = target
-        clash = _input_named(target.path, inputs)
-        if clash is not None:
-            raise UsageError(
-                f"{target.option} would overwrite {clash.what} {target.path}; choose another name"
-            )
+        for path in (target.path, partial_of(target.path)):  # the partial is written too
+            clash = _input_named(path, inputs)
+            if clash is not None:
+                raise UsageError(
+                    f"{target.option} would overwrite {clash.what} {path}; choose another name"
+                )
+        _check_partial(target)
         _check_one(target, force=force)
+
+
+def _check_partial(target: Target) -> None:
+    """``NAME.partial`` must be absent or a plain file (a killed run's, or one being written)."""
+    partial = partial_of(target.path)
+    try:
+        st = os.lstat(partial)
+    except OSError:
+        return
+    if not stat.S_ISREG(st.st_mode):
+        raise UsageError(
+            f"{target.option}: {partial} is in the way ({_kind(st.st_mode)}); remove it first"
+        )
 
 
 def _check_one(target: Target, *, force: bool) -> None:
@@ -158,6 +173,8 @@ def _kind(mode: int) -> str:
         return "a socket"
     if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
         return "a device"
+    if stat.S_ISLNK(mode):
+        return "a symbolic link"
     return "not a regular file"
 
 
@@ -280,8 +297,8 @@ def clear_stale(partial: Path, target: Path | None = None) -> bool:
         return False
     except OSError:
         return False
-    if not stat.S_ISREG(st.st_mode):
-        raise UsageError(f"{partial} is in the way (not a file sawplan wrote); remove it first")
+    if not stat.S_ISREG(st.st_mode):  # check_targets said so already; raced here
+        raise UsageError(f"{partial} is in the way ({_kind(st.st_mode)}); remove it first")
     try:
         fd = os.open(partial, os.O_RDONLY | getattr(os, "O_CLOEXEC", 0))
     except OSError:

@@ -276,6 +276,26 @@ def test_a_partial_sheet_left_by_a_killed_run_is_removed_by_the_next(cli, shop, 
     assert sheet.exists() and not partial.exists()
 
 
+def test_an_input_named_like_the_partial_file_is_never_removed(cli, shop, tmp_path):
+    """A job file called ``sheet.html.partial`` is not a leftover of ``--sheet sheet.html``."""
+    job = tmp_path / "sheet.html.partial"
+    shutil.copy(shop["job"], job)
+    before = digest(job)
+    err = one_line(cli("plan", str(job), "--sheet", str(tmp_path / "sheet.html"), "--force"), 2)
+    assert f"would overwrite the job file {job}" in err
+    assert digest(job) == before
+
+
+def test_a_partial_name_that_is_a_link_is_refused_and_what_it_leads_to_is_kept(cli, shop, tmp_path):
+    elsewhere = tmp_path / "precious.txt"
+    elsewhere.write_text("keep me", encoding="utf-8")
+    (tmp_path / "sheet.html.partial").symlink_to(elsewhere)
+    err = one_line(plan(cli, shop, "--sheet", str(tmp_path / "sheet.html")), 2)
+    assert "is in the way (a symbolic link)" in err
+    assert elsewhere.read_text(encoding="utf-8") == "keep me"
+    assert not (tmp_path / "sheet.html").exists()
+
+
 def test_a_partial_being_written_by_another_run_is_a_conflict_and_is_kept(cli, shop, tmp_path):
     """A partial whose lock is held belongs to a run in progress: refused, not removed."""
     fcntl = pytest.importorskip("fcntl")
