@@ -16,6 +16,8 @@ import hashlib
 import os
 import shutil
 import stat
+import subprocess
+import sys
 from pathlib import Path
 
 import pytest
@@ -309,6 +311,41 @@ def test_a_partial_being_written_by_another_run_is_a_conflict_and_is_kept(cli, s
     assert partial.read_text(encoding="utf-8") == "being written" and not sheet.exists()
 
 
+WRITER = """
+import sys, time
+from pathlib import Path
+from sawplan.outputs import staged
+with staged(Path(sys.argv[1])) as partial:
+    partial.write_text("<!DOCTYPE html><p>half a sheet", encoding="utf-8")
+    print("writing", flush=True)
+    time.sleep(120)
+"""
+
+
+@posix_only
+def test_a_writer_in_progress_is_waited_for_and_a_killed_one_cleaned_up(cli, shop, tmp_path):
+    """A real second process: while it writes, its partial is refused and kept; once it is
+    killed (SIGKILL: no clean-up of its own), the next run removes the partial."""
+    sheet = tmp_path / "sheet.html"
+    writer = subprocess.Popen(
+        [sys.executable, "-c", WRITER, str(sheet)], stdout=subprocess.PIPE, text=True
+    )
+    try:
+        assert writer.stdout is not None and writer.stdout.readline().strip() == "writing"
+        err = one_line(plan(cli, shop, "--sheet", str(sheet)), 5)
+        assert "another sawplan is writing" in err
+        assert outputs.partial_of(sheet).exists() and not sheet.exists()
+    finally:
+        writer.kill()
+        writer.wait()
+    assert outputs.partial_of(sheet).exists()  # what the killed run left
+    result = plan(cli, shop, "--sheet", str(sheet))
+    assert result.code == 0, result.err
+    assert not outputs.partial_of(sheet).exists()
+    assert sheet.read_text(encoding="utf-8").startswith("<!DOCTYPE html>")
+    assert "half a sheet" not in sheet.read_text(encoding="utf-8")
+
+
 def test_a_killed_backup_is_cleaned_by_the_next_and_never_listed_as_a_backup(cli, log, tmp_path):
     from sawplan.store import safety
 
@@ -358,6 +395,24 @@ def test_exports_and_backups_are_private_whatever_the_umask(cli, log, tmp_path, 
         assert mode(csv_file) == 0o600, csv_file
     assert mode(tmp_path / "copies") == 0o700
     assert mode(tmp_path / "copies" / "b.sqlite") == 0o600
+
+
+@posix_only
+@pytest.mark.parametrize("umask", [0o000, 0o022], ids=["umask 000", "umask 022"])
+def test_the_copy_before_an_upgrade_is_private_whatever_the_umask(cli, tmp_path, umask):
+    from test_store_upgrade import legacy_log
+
+    from sawplan.store import safety
+
+    log = legacy_log(tmp_path / "blade-log.sqlite", 2)
+    old = os.umask(umask)
+    try:
+        assert cli("blade", "list", "--db", str(log)).code == 0  # upgrades, copying first
+    finally:
+        os.umask(old)
+    (copy,) = safety.backups_of(log)
+    assert mode(safety.backups_dir(log)) == 0o700
+    assert mode(copy) == 0o600
 
 
 @posix_only
