@@ -37,6 +37,7 @@ from sawplan.errors import ConflictError, StorageError, UsageError
 PARTIAL = ".partial"
 SIDECARS = ("-journal", "-wal", "-shm")  # SQLite's helper files beside a log (or a partial)
 POSIX = os.name == "posix"
+STATION_KEYS = "station-keys.json"  # station/access.py KEYS_FILE, beside the config file
 
 
 @dataclass(frozen=True)
@@ -59,8 +60,9 @@ class Input:
 
 
 def run_inputs(db: object = None, files: Iterable[tuple[str, Path | None]] = ()) -> list[Input]:
-    """The files of a run: ``files`` (what, path) plus the config file, the configured
-    materials and saws files, and the blade log ``db`` with its SQLite helper files."""
+    """The files of a run: ``files`` (what, path) plus the config file, the station's keys,
+    the configured materials and saws files, and the blade log ``db`` with its SQLite
+    helper files."""
     found = [Input(Path(p), what) for what, p in files if p is not None]
     found += _config_inputs()
     found += log_inputs(db)
@@ -88,7 +90,11 @@ def _config_inputs() -> list[Input]:
     from sawplan import config
     from sawplan.errors import SawplanError
 
-    found = [Input(config.config_path(), "the config file")]
+    path = config.config_path()
+    found = [
+        Input(path, "the config file"),
+        Input(path.with_name(STATION_KEYS), "the station's keys file"),
+    ]
     for key, what in (("materials_file", "the materials file"), ("saws_file", "the saws file")):
         try:
             value = config.get(key)

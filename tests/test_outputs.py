@@ -159,6 +159,17 @@ def test_a_backup_onto_the_config_file_is_refused_even_with_force(cli, shop, log
     assert digest(shop["config"]) == before
 
 
+def test_a_backup_onto_the_station_keys_is_refused_even_with_force(cli, log):
+    from sawplan.station.access import keys_path
+
+    assert keys_path().name == outputs.STATION_KEYS  # the name outputs.py guards
+    keys = keys_path()
+    keys.write_text('{"keys": []}', encoding="utf-8")
+    err = one_line(cli("backup", str(keys), "--force", "--db", str(log)), 2)
+    assert "would overwrite the station's keys file" in err
+    assert keys.read_text(encoding="utf-8") == '{"keys": []}'
+
+
 # --- existing files need --force -------------------------------------------------------------
 
 
