@@ -112,6 +112,8 @@ def check_targets(targets: Sequence[Target], inputs: Sequence[Input], *, force: 
     """Refuse the whole run, writing nothing, if any target may not be written."""
     seen: dict[Path, Target] = {}
     for target in targets:
+        if target.path.name in ("", ".", ".."):
+            raise UsageError(f"{target.option}: {str(target.path)!r} is not a file name")
         key = _resolved(target.path)
         if key in seen:
             raise UsageError(
@@ -119,14 +121,22 @@ def check_targets(targets: Sequence[Target], inputs: Sequence[Input], *, force: 
                 "choose another name"
             )
         seen[key] = target
-        for path in (target.path, partial_of(target.path)):  # the partial is written too
-            clash = _input_named(path, inputs)
-            if clash is not None:
-                raise UsageError(
-                    f"{target.option} would overwrite {clash.what} {path}; choose another name"
-                )
+        _refuse_input(target, target.path, inputs)
+        exists = _existing_file(target)
+        _refuse_input(target, partial_of(target.path), inputs)  # the partial is written too
         _check_partial(target)
-        _check_one(target, force=force)
+        if exists and not force:
+            raise ConflictError(
+                f"{target.option}: {target.path} exists", hint="add --force to replace it"
+            )
+
+
+def _refuse_input(target: Target, path: Path, inputs: Sequence[Input]) -> None:
+    clash = _input_named(path, inputs)
+    if clash is not None:
+        raise UsageError(
+            f"{target.option} would overwrite {clash.what} {path}; choose another name"
+        )
 
 
 def _check_partial(target: Target) -> None:
@@ -142,7 +152,8 @@ def _check_partial(target: Target) -> None:
         )
 
 
-def _check_one(target: Target, *, force: bool) -> None:
+def _existing_file(target: Target) -> bool:
+    """Whether the target exists (a file, or a link); refuse anything else in its place."""
     path = target.path
     parent = path.parent
     if parent.exists() and not parent.is_dir():
@@ -150,7 +161,7 @@ def _check_one(target: Target, *, force: bool) -> None:
     try:
         st = os.lstat(path)
     except FileNotFoundError:
-        return
+        return False
     except NotADirectoryError:
         raise UsageError(
             f"{target.option}: a part of {path} is a file, not a folder; choose another place"
@@ -166,8 +177,7 @@ def _check_one(target: Target, *, force: bool) -> None:
         raise UsageError(
             f"{target.option}: {path} is {_kind(st.st_mode)}, not a file; give a file name"
         )
-    if not force:
-        raise ConflictError(f"{target.option}: {path} exists", hint="add --force to replace it")
+    return True
 
 
 def _kind(mode: int) -> str:

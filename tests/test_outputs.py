@@ -277,6 +277,14 @@ def test_a_folder_a_fifo_or_a_device_is_never_a_target(cli, shop, tmp_path, log,
     assert not outputs.partial_of(target).exists()
 
 
+@pytest.mark.parametrize("name", ["", ".", ".."])
+def test_a_target_without_a_file_name_is_one_line(cli, shop, log, name):
+    err = one_line(plan(cli, shop, "--sheet", name, "--force"), 2)
+    assert "is not a file name" in err
+    err = one_line(cli("backup", name, "--force", "--db", str(log)), 2)
+    assert "is not a file name" in err
+
+
 # --- leftovers of killed runs ----------------------------------------------------------------
 
 

@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Annotated, Any
+from typing import TYPE_CHECKING, Annotated, Any
 
 import typer
 
@@ -24,6 +24,9 @@ from sawplan.cli.options import (
 )
 from sawplan.display import Display
 from sawplan.units import UnitSystem
+
+if TYPE_CHECKING:  # pragma: no cover
+    from sawplan.outputs import Input, Target
 
 HELP = """Plan a job: cut lists from stock on hand, time, blades, quote.
 
@@ -121,7 +124,7 @@ def plan_command(
     job = load_job(jobfile, catalogue, allow_outside=allow)
     job = with_shop_currency(job)
     targets = output_targets(csv_dir, sheet)
-    inputs = plan_inputs(job, jobfile, db, materials_file, saws_file, allow)
+    inputs = plan_inputs(job, jobfile, db, materials_file, saws_file, allow) if targets else []
     if targets:  # refused before any planning, and again just before writing
         from sawplan.outputs import check_targets
 
@@ -307,7 +310,7 @@ def render_outputs(
     return outputs
 
 
-def output_targets(csv_dir: Path | None, sheet: Path | None) -> list:
+def output_targets(csv_dir: Path | None, sheet: Path | None) -> list[Target]:
     """The files ``--csv-dir`` and ``--sheet`` name, known before the plan is made."""
     from sawplan.outputs import Target
 
@@ -317,7 +320,14 @@ def output_targets(csv_dir: Path | None, sheet: Path | None) -> list:
     return found
 
 
-def plan_inputs(job, jobfile: Path, db, materials_file, saws_file, allow: bool) -> list:
+def plan_inputs(
+    job,
+    jobfile: Path,
+    db: str | None,
+    materials_file: Path | None,
+    saws_file: Path | None,
+    allow: bool,
+) -> list[Input]:
     """Every file the plan reads: none of them may be written over."""
     from sawplan.cutlist.jobfile.load import resolve_stock_file
     from sawplan.outputs import run_inputs
@@ -335,7 +345,9 @@ def plan_inputs(job, jobfile: Path, db, materials_file, saws_file, allow: bool) 
     )
 
 
-def write_all(outputs: dict[Path, str], targets: list, inputs: list, *, force: bool) -> list[Path]:
+def write_all(
+    outputs: dict[Path, str], targets: list[Target], inputs: list[Input], *, force: bool
+) -> list[Path]:
     """Check the targets again, then write each beside itself and move them all into place."""
     from sawplan.outputs import check_targets, write_files
 
