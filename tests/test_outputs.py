@@ -297,6 +297,18 @@ def test_a_partial_sheet_left_by_a_killed_run_is_removed_by_the_next(cli, shop, 
     assert sheet.exists() and not partial.exists()
 
 
+def test_leftovers_of_a_killed_export_are_removed_by_the_next(cli, log, tmp_path):
+    folder = tmp_path / "csv"
+    folder.mkdir()
+    (folder / "cuts.csv.partial").write_text("blade,saw\nB-", encoding="utf-8")  # this version
+    (folder / "saws.csv.tmp").write_text("name\n", encoding="utf-8")  # an older version's
+    (folder / "notes.txt").write_text("the user's own", encoding="utf-8")
+    assert cli("export", str(folder), "--db", str(log)).code == 0
+    assert leftovers(folder) == []
+    assert (folder / "notes.txt").read_text(encoding="utf-8") == "the user's own"
+    assert (folder / "cuts.csv").read_text(encoding="utf-8").startswith("blade,saw,")
+
+
 def test_an_input_named_like_the_partial_file_is_never_removed(cli, shop, tmp_path):
     """A job file called ``sheet.html.partial`` is not a leftover of ``--sheet sheet.html``."""
     job = tmp_path / "sheet.html.partial"

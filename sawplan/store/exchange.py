@@ -164,6 +164,8 @@ def export_csv(
             texts[table] = to_csv(list(columns), rows)
     check_targets(targets, inputs, force=overwrite)  # again: the reading took a while
     make_folder(out)  # 0700 when sawplan creates it, as the log's folder (log_mode)
+    for leftover in out.glob("*.csv.tmp"):  # left by a killed export of an older version
+        leftover.unlink(missing_ok=True)
     write_files({out / f"{t}.csv": text for t, text in texts.items()}, mode=file_mode())
     return TransferResult(str(out), counts)
 
