@@ -234,9 +234,9 @@ def copy_verified(source: Path, target: Path) -> int:
     """A consistent one-file copy of ``source``, checked, then renamed into place.
 
     Uses SQLite's online backup (other programs may keep writing); the copy
-    is written beside ``target`` as ``*.partial`` (a partial left by a killed
-    run is replaced) and renamed only when complete and sound.  Returns its
-    size in bytes.
+    is written beside ``target`` as ``*.partial`` through ``sawplan.outputs.staged``
+    (a partial left by a killed run is removed first) and renamed only when
+    complete and sound.  Returns its size in bytes.
     """
     from sawplan.outputs import staged
     from sawplan.store.perms import file_mode
