@@ -5,7 +5,8 @@
 2. Plan the shop's jobs, each with its printable sheet in ``demo/out/``: the
    main one, a machine-base frame in structural steel and tube; several
    hundred small blanks from alloy and carbon bar; heavy stainless billet
-   slices; and aluminium and stainless handrail parts.
+   slices; and aluminium and stainless handrail parts.  The sheets of the
+   last run are removed first: ``plan`` replaces a file only with ``--force``.
 3. Choose the blade for an I-beam cut, show what a blade left on the saw does
    to a billet cut, and weigh a 6 m channel (a lift for two or the crane).
 4. Blade life from the log, with its Weibull plot.
@@ -100,6 +101,8 @@ def main(argv: Sequence[str] | None = None, *, out_dir: Path | None = None) -> i
             f"({summary.cuts:,} cuts) from {summary.first_day} to {summary.last_day}"
         )
         trial_blade = summary.trial_stripped[0] if summary.trial_stripped else None
+        for job, _heading_text in JOBS:  # the last run's sheets: plan replaces none unasked
+            (out / f"{job}.html").unlink(missing_ok=True)
         for heading, args in steps(out, trial_blade):
             _heading(heading)
             print("$ sawplan " + shlex.join(args))

@@ -142,6 +142,9 @@ def test_make_demo_shows_the_plan_the_quote_and_blade_life(tmp_path, capsys, mon
     home.mkdir()
     monkeypatch.setenv("SAWPLAN_HOME", str(home))
     out_dir = tmp_path / "out"
+    out_dir.mkdir()
+    for sheet in ("frame-kit.html", "rail-posts.html"):  # left by an earlier `make demo`
+        (out_dir / sheet).write_text("the last run's sheet", encoding="utf-8")
     run_demo = load_demo_module("run_demo")
     code = run_demo.main([], out_dir=out_dir)
     out = capsys.readouterr().out

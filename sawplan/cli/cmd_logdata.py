@@ -16,7 +16,8 @@ events.csv, and the station's jobs.csv, queue.csv, remnants.csv,
 saw_notes.csv, taps.csv. Blades and saws are named by tag and name, and rows
 of other files by their row number, so the folder can be imported into
 another log. Cells that a spreadsheet would run as a formula
-start with an apostrophe.
+start with an apostrophe. Files that exist are replaced only with --force;
+new files are readable by you alone unless log_mode says otherwise.
 
 \b
 Examples:
@@ -44,7 +45,8 @@ A PostgreSQL log is written with the server's own pg_dump when it is
 installed (restore with pg_restore), otherwise as the export set (the CSV
 files of `sawplan export` in one zip, read back by `sawplan restore`); the
 answer says which. The copy is made beside FILE and renamed into place only
-when complete.
+when complete. An existing FILE is replaced only with --force, and never the
+log itself or its -wal and -shm files.
 
 \b
 Examples:

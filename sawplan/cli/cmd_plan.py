@@ -3,12 +3,13 @@
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Annotated, Any
+from typing import TYPE_CHECKING, Annotated, Any
 
 import typer
 
 from sawplan.cli.options import (
     DbOpt,
+    ForceOpt,
     FractionsOpt,
     JsonOpt,
     LotChoiceOpt,
@@ -23,6 +24,9 @@ from sawplan.cli.options import (
 )
 from sawplan.display import Display
 from sawplan.units import UnitSystem
+
+if TYPE_CHECKING:  # pragma: no cover
+    from sawplan.outputs import Input, Target
 
 HELP = """Plan a job: cut lists from stock on hand, time, blades, quote.
 
@@ -50,6 +54,9 @@ plan unless the limit stops the optimiser, which the plan then says.
 life (blades on hand) comes from; the plan's notes say which.
 --send puts the plan's cuts, in cut-sheet order, into the saw's queue on
 the station (`sawplan serve`).
+--sheet and --csv-dir replace files that exist only with --force, and never
+a file the plan reads (the job file, its stock file, the materials, saws and
+config files, the blade log).
 
 \b
 Examples:
@@ -76,6 +83,7 @@ def plan_command(
         opt("csv_dir", help="Write cuts.csv, bars.csv, summary.csv and order.csv into DIR."),
     ] = None,
     sheet: Annotated[Path | None, opt("sheet")] = None,
+    force: ForceOpt = False,
     units: UnitsOpt = None,
     fractions: FractionsOpt = False,
     db: DbOpt = None,
@@ -115,6 +123,12 @@ def plan_command(
     catalogue = load_catalogue(materials_file)
     job = load_job(jobfile, catalogue, allow_outside=allow)
     job = with_shop_currency(job)
+    targets = output_targets(csv_dir, sheet)
+    inputs = plan_inputs(job, jobfile, db, materials_file, saws_file, allow) if targets else []
+    if targets:  # refused before any planning, and again just before writing
+        from sawplan.outputs import check_targets
+
+        check_targets(targets, inputs, force=force)
     from sawplan.store.blade_groups import blade_choice
     from sawplan.store.lookup import BladeLog
 
@@ -157,7 +171,7 @@ def plan_command(
 
             print()
             print(render_run_quote(quote, d, currency=plan.currency))
-    written = write_all(outputs)
+    written = write_all(outputs, targets, inputs, force=force)
     for path in written:
         print(f"wrote {path}", file=sys.stderr if json_out else sys.stdout)
     if send:
@@ -296,31 +310,54 @@ def render_outputs(
     return outputs
 
 
-def write_all(outputs: dict[Path, str]) -> list[Path]:
-    """Write each file to a temporary name beside it, then move them all into place."""
-    import contextlib
-    import os
-    import tempfile
+def output_targets(csv_dir: Path | None, sheet: Path | None) -> list[Target]:
+    """The files ``--csv-dir`` and ``--sheet`` name, known before the plan is made."""
+    from sawplan.outputs import Target
 
-    staged: list[tuple[str, Path]] = []
-    mask = os.umask(0)
-    os.umask(mask)
-    try:
-        for path, text in outputs.items():
-            path.parent.mkdir(parents=True, exist_ok=True)
-            fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-            staged.append((tmp, path))
-            with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
-                handle.write(text)
-            os.chmod(tmp, 0o666 & ~mask)  # mkstemp makes 0600; give the usual permissions
-        for tmp, path in staged:
-            os.replace(tmp, path)
-    except BaseException:
-        for tmp, _path in staged:
-            with contextlib.suppress(FileNotFoundError):
-                os.unlink(tmp)
-        raise
-    return [path for _tmp, path in staged]
+    found = [Target(csv_dir / name, "--csv-dir") for name in PLAN_CSV] if csv_dir else []
+    if sheet is not None:
+        found.append(Target(sheet, "--sheet"))
+    return found
+
+
+def plan_inputs(
+    job,
+    jobfile: Path,
+    db: str | None,
+    materials_file: Path | None,
+    saws_file: Path | None,
+    allow: bool,
+) -> list[Input]:
+    """Every file the plan reads: none of them may be written over."""
+    from sawplan.cutlist.jobfile.load import resolve_stock_file
+    from sawplan.outputs import run_inputs
+
+    stock = job.header.stock_file
+    stock_path = resolve_stock_file(stock, jobfile.parent, allow_outside=allow) if stock else None
+    return run_inputs(
+        db,
+        [
+            ("the job file", jobfile),
+            ("the job's stock file", stock_path),
+            ("the materials file", materials_file),
+            ("the saws file", saws_file),
+        ],
+    )
+
+
+def write_all(
+    outputs: dict[Path, str], targets: list[Target], inputs: list[Input], *, force: bool
+) -> list[Path]:
+    """Check the targets again, then write each beside itself and move them all into place."""
+    from sawplan.outputs import check_targets, write_files
+
+    if not outputs:
+        return []
+    check_targets(targets, inputs, force=force)
+    return write_files(dict(outputs))
+
+
+PLAN_CSV = ("cuts.csv", "bars.csv", "summary.csv", "order.csv")
 
 
 def plan_csv(plan) -> dict[str, str]:

@@ -16,7 +16,6 @@ command line (which other users of the machine can see).
 
 from __future__ import annotations
 
-import contextlib
 import os
 import shutil
 import sqlite3
@@ -26,10 +25,10 @@ from dataclasses import dataclass
 from pathlib import Path
 from urllib.parse import urlsplit, urlunsplit
 
-from sawplan.errors import ConflictError, NotFoundError, StorageError, UsageError
+from sawplan.errors import NotFoundError, StorageError, UsageError
 from sawplan.store.db import connect
 from sawplan.store.location import LogLocation, resolve_db, scrub
-from sawplan.store.safety import copy_verified, partial_of, remove_partial
+from sawplan.store.safety import copy_verified
 
 PG_DUMP_TIMEOUT_S = 3600
 KINDS = {
@@ -60,6 +59,9 @@ def backup(
     overwrite: bool = False,
 ) -> BackupResult:
     """Write one portable backup file of the log at ``db`` into ``dest``."""
+    from sawplan.outputs import Target, check_targets, run_inputs
+    from sawplan.store.perms import make_folder
+
     location = resolve_db(db)
     target = Path(dest).expanduser()
     if location.kind == "memory":
@@ -68,22 +70,11 @@ def backup(
         assert location.path is not None
         if not location.path.exists():
             raise NotFoundError(f"no blade log at {location.path}", field="db")
-        if target.exists() and target.resolve() == location.path.resolve():
-            raise UsageError("the backup cannot be the log itself", field="file")
-    _check_target(target, overwrite)
+    check_targets([Target(target, "backup FILE")], run_inputs(location), force=overwrite)
+    make_folder(target.parent)
     if location.kind == "sqlite":
         return _sqlite_backup(location, target)
     return _server_backup(location, target)
-
-
-def _check_target(target: Path, overwrite: bool) -> None:
-    if target.is_dir():
-        raise UsageError(f"{target} is a folder; give a file name", field="file")
-    if target.exists() and not overwrite:
-        raise ConflictError(f"{target} exists", field="file", hint="add --force to replace it")
-    from sawplan.store.perms import make_folder
-
-    make_folder(target.parent)
 
 
 def _sqlite_backup(location: LogLocation, target: Path) -> BackupResult:
@@ -124,30 +115,26 @@ def _server_backup(location: LogLocation, target: Path) -> BackupResult:
 
 def _pg_dump(location: LogLocation, schema: str, target: Path) -> int:
     """Run pg_dump for sawplan's tables into ``target`` (via a partial file)."""
-    from sawplan.store.perms import secure
+    from sawplan.outputs import staged
+    from sawplan.store.perms import file_mode
     from sawplan.store.schema import ALL_TABLES, VERSION_TABLE
 
     url, password = _without_password(location.url or "")
     env = dict(os.environ)
     if password:
         env["PGPASSWORD"] = password
-    tmp = partial_of(target)
-    remove_partial(target)
     tables = [arg for name in (*ALL_TABLES, VERSION_TABLE) for arg in ("-t", f"{schema}.{name}")]
-    command = ["pg_dump", "--format=custom", "--no-owner", f"--file={tmp}", *tables, url]
-    try:
-        done = subprocess.run(
-            command, env=env, capture_output=True, text=True, timeout=PG_DUMP_TIMEOUT_S
-        )
-    except (OSError, subprocess.TimeoutExpired) as err:
-        remove_partial(target)
-        raise StorageError(f"pg_dump did not run ({err})") from None
-    if done.returncode != 0:
-        remove_partial(target)
-        said = " ".join(done.stderr.split())[:160]
-        raise StorageError(f"pg_dump failed: {scrub(said, location)}")
-    secure(tmp)
-    os.replace(tmp, target)
+    with staged(target, mode=file_mode()) as tmp:  # pg_dump writes into our locked partial
+        command = ["pg_dump", "--format=custom", "--no-owner", f"--file={tmp}", *tables, url]
+        try:
+            done = subprocess.run(
+                command, env=env, capture_output=True, text=True, timeout=PG_DUMP_TIMEOUT_S
+            )
+        except (OSError, subprocess.TimeoutExpired) as err:
+            raise StorageError(f"pg_dump did not run ({err})") from None
+        if done.returncode != 0:
+            said = " ".join(done.stderr.split())[:160]
+            raise StorageError(f"pg_dump failed: {scrub(said, location)}")
     return target.stat().st_size
 
 
@@ -168,22 +155,17 @@ def write_export_zip(location: LogLocation, target: Path) -> int:
     """The export set (one CSV per table) as one zip, written beside and renamed."""
     import zipfile
 
+    from sawplan.outputs import staged
     from sawplan.store.exchange import EXPORT_MEMBERS, export_csv
-    from sawplan.store.perms import secure
+    from sawplan.store.perms import file_mode
 
-    tmp = partial_of(target)
-    remove_partial(target)
-    try:
-        with tempfile.TemporaryDirectory(prefix="sawplan-backup-") as folder:
-            with connect(location, create=False) as db:
-                export_csv(db, folder)
-            with zipfile.ZipFile(tmp, "w", compression=zipfile.ZIP_DEFLATED) as zf:
-                for name in EXPORT_MEMBERS:
-                    zf.write(Path(folder) / name, arcname=name)
-        secure(tmp)
-        os.replace(tmp, target)
-    except BaseException:
-        with contextlib.suppress(OSError):
-            tmp.unlink()
-        raise
+    with (
+        staged(target, mode=file_mode()) as tmp,
+        tempfile.TemporaryDirectory(prefix="sawplan-backup-") as folder,
+    ):
+        with connect(location, create=False) as db:
+            export_csv(db, folder)
+        with zipfile.ZipFile(tmp, "w", compression=zipfile.ZIP_DEFLATED) as zf:
+            for name in EXPORT_MEMBERS:
+                zf.write(Path(folder) / name, arcname=name)
     return target.stat().st_size

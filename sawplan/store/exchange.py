@@ -26,7 +26,6 @@ from typing import TYPE_CHECKING, Any
 
 from sawplan.errors import (
     BadDataError,
-    ConflictError,
     NotFoundError,
     SawplanError,
     UsageError,
@@ -139,20 +138,17 @@ def export_csv(
     db: Database, folder: str | os.PathLike[str], *, overwrite: bool = False
 ) -> TransferResult:
     """Write one CSV per table of ``TABLES`` (``saws.csv``, ... ``taps.csv``)."""
+    from sawplan.outputs import Target, check_targets, run_inputs, write_files
     from sawplan.render import to_csv
     from sawplan.store.exchange_station import export_rows, row_numbers
+    from sawplan.store.perms import file_mode, make_folder
 
     out = Path(folder)
     if out.exists() and not out.is_dir():
         raise UsageError(f"{out} is a file; give a folder", field="folder")
-    clashes = [f"{t}.csv" for t in TABLES if (out / f"{t}.csv").exists()]
-    if clashes and not overwrite:
-        raise ConflictError(
-            f"{out} already holds {', '.join(clashes)}",
-            field="folder",
-            hint="add --force to replace them",
-        )
-    out.mkdir(parents=True, exist_ok=True)
+    targets = [Target(out / f"{t}.csv", "export DIR") for t in TABLES]
+    inputs = run_inputs(db.location)
+    check_targets(targets, inputs, force=overwrite)
     counts: dict[str, int] = {}
     texts: dict[str, str] = {}
     with read_snapshot(db):  # one consistent moment of every table
@@ -166,10 +162,11 @@ def export_csv(
             rows = [[_export_cell(row.get(c), columns[c]) for c in columns] for row in found]
             counts[table] = len(rows)
             texts[table] = to_csv(list(columns), rows)
-    for leftover in out.glob("*.csv.tmp"):  # left by a killed export
+    check_targets(targets, inputs, force=overwrite)  # again: the reading took a while
+    make_folder(out)  # 0700 when sawplan creates it, as the log's folder (log_mode)
+    for leftover in out.glob("*.csv.tmp"):  # left by a killed export of an older version
         leftover.unlink(missing_ok=True)
-    for table, text in texts.items():
-        _write_atomic(out / f"{table}.csv", text)
+    write_files({out / f"{t}.csv": text for t, text in texts.items()}, mode=file_mode())
     return TransferResult(str(out), counts)
 
 
@@ -179,13 +176,6 @@ def _export_cell(value: Any, kind: str) -> Any:
     if kind.startswith("text") and isinstance(value, str) and value.startswith("'"):
         return "'" + value  # import strips one apostrophe from any text cell
     return value
-
-
-def _write_atomic(path: Path, text: str) -> None:
-    tmp = path.with_name(path.name + ".tmp")
-    with tmp.open("w", encoding="utf-8", newline="") as handle:
-        handle.write(text)
-    os.replace(tmp, path)
 
 
 # --- import ------------------------------------------------------------------------------

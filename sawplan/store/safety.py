@@ -21,7 +21,6 @@ from __future__ import annotations
 
 import contextlib
 import datetime as dt
-import os
 import random
 import sqlite3
 from pathlib import Path
@@ -235,36 +234,30 @@ def copy_verified(source: Path, target: Path) -> int:
     """A consistent one-file copy of ``source``, checked, then renamed into place.
 
     Uses SQLite's online backup (other programs may keep writing); the copy
-    is written beside ``target`` as ``*.partial`` (a partial left by a killed
-    run is replaced) and renamed only when complete and sound.  Returns its
-    size in bytes.
+    is written beside ``target`` as ``*.partial`` through ``sawplan.outputs.staged``
+    (a partial left by a killed run is removed first) and renamed only when
+    complete and sound.  Returns its size in bytes.
     """
-    from sawplan.store.perms import create_log_file, secure
+    from sawplan.outputs import staged
+    from sawplan.store.perms import file_mode
 
-    tmp = partial_of(target)
-    remove_partial(target)
     src = sqlite3.connect(source, timeout=30.0)
     try:
-        create_log_file(tmp)
-        out = sqlite3.connect(tmp)
-        try:
-            src.backup(out)
-            out.execute("PRAGMA journal_mode = DELETE")  # one file, no -wal beside it
-            problems = integrity_problems(out)
-        finally:
-            out.close()
-        if problems:
-            raise DamagedFileError(
-                f"{source} is damaged (SQLite's check of its copy: {problems[0][:80]}); "
-                "no backup was written",
-                field="db",
-                hint=restore_hint(source),
-            )
-        secure(tmp)
-        os.replace(tmp, target)
-    except BaseException:
-        remove_partial(target)
-        raise
+        with staged(target, mode=file_mode()) as tmp:  # exclusive, locked; removed on failure
+            out = sqlite3.connect(tmp)
+            try:
+                src.backup(out)
+                out.execute("PRAGMA journal_mode = DELETE")  # one file, no -wal beside it
+                problems = integrity_problems(out)
+            finally:
+                out.close()
+            if problems:
+                raise DamagedFileError(
+                    f"{source} is damaged (SQLite's check of its copy: {problems[0][:80]}); "
+                    "no backup was written",
+                    field="db",
+                    hint=restore_hint(source),
+                )
     finally:
         src.close()
     return target.stat().st_size

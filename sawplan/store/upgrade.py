@@ -399,6 +399,7 @@ def _server_backup_before_upgrade(
     import shutil
     from urllib.parse import urlsplit
 
+    from sawplan.outputs import clear_stale_partials
     from sawplan.paths import user_data_dir
     from sawplan.store.backup import _pg_dump
     from sawplan.store.perms import make_folder
@@ -409,6 +410,7 @@ def _server_backup_before_upgrade(
     folder = user_data_dir() / BACKUP_FOLDER
     make_folder(folder)
     name = urlsplit(location.url or "").path.strip("/") or "log"
+    clear_stale_partials(folder, f"{name}-schema*.dump")  # left by a killed upgrade
     stamp = dt.datetime.now().strftime("%Y%m%d-%H%M%S")
     target = folder / f"{name}-schema{version}-{stamp}.dump"
     _pg_dump(location, schema, target)
