@@ -65,28 +65,59 @@ def to_json(obj: Any, *, kind: str) -> str:
 
 _FORMULA_LEADS = ("=", "+", "-", "@", "\t", "\r")
 _PLAIN_NUMBER = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?", re.ASCII)
+# A formula start after anything a spreadsheet may skip or not show: white space, C0/C1
+# controls, and the invisible marks (zero-width, bidi marks, word joiner, BOM, Arabic
+# letter mark, Mongolian vowel separator).
+_RISKY_LEAD = re.compile(
+    "[\\s\x00-\x1f\x7f-\x9f\u061c\u180e\u200b-\u200f\u2028-\u202e\u2060-\u206f\ufeff]*"
+    "[=+\\-@\uff0b\uff0d\uff1d\uff20]"
+)
 
 
 def safe_cell(value: Any) -> Any:
     """Neutralise text a spreadsheet would run as a formula (plain numbers pass untouched).
 
+    A cell is risky when = + - @ (or their full-width forms) come first after any
+    white space, control or invisible character, or when it starts with a tab or a
+    carriage return; an apostrophe in front makes it text (import takes it off again).
     Only a plain decimal number ("-5", "+1.5e3") keeps its sign unquoted: Python's
     float() also reads "-inf", "+nan" and "-1_000", which a spreadsheet would take
     for formulas.
     """
-    text_lead = isinstance(value, str) and value.startswith(_FORMULA_LEADS)
-    if text_lead and not _PLAIN_NUMBER.fullmatch(value):
+    if not isinstance(value, str) or not value or value[0].isalnum():
+        return value
+    risky = value.startswith(_FORMULA_LEADS) or _RISKY_LEAD.match(value) is not None
+    if risky and not _PLAIN_NUMBER.fullmatch(value):
         return "'" + value
     return value
 
 
+# Line breaks the csv module does not quote when lines end in LF (a lone CR; the rest
+# are breaks for str.splitlines and some editors): a cell holding one is quoted by hand.
+_ODD_BREAK = re.compile("[\r\x0b\x0c\x1c-\x1e\x85\u2028\u2029]")
+_NEEDS_QUOTES = re.compile('[\n",\r\x0b\x0c\x1c-\x1e\x85\u2028\u2029]')
+
+
 def to_csv(headers: Sequence[str], rows: Iterable[Sequence[Any]]) -> str:
+    """CSV text, every cell through ``safe_cell``; a cell holding a line break, a quote or
+    a comma is quoted.  The csv module's minimal quoting leaves a lone CR bare when lines
+    end in LF, and a reader then starts a new row inside the cell: such text (rare) is
+    quoted here instead."""
+    cells = [[safe_cell(h) for h in headers]]
+    cells += [[safe_cell("" if v is None else v) for v in row] for row in rows]
     buf = io.StringIO()
-    writer = csv.writer(buf, lineterminator="\n")
-    writer.writerow([safe_cell(h) for h in headers])
-    for row in rows:
-        writer.writerow([safe_cell("" if v is None else v) for v in row])
-    return buf.getvalue()
+    csv.writer(buf, lineterminator="\n").writerows(cells)
+    text = buf.getvalue()
+    if _ODD_BREAK.search(text) is None:
+        return text
+    return "".join(",".join(_quoted(c) for c in row) + "\n" for row in cells)
+
+
+def _quoted(cell: Any) -> str:
+    text = str(cell)
+    if _NEEDS_QUOTES.search(text) is None:
+        return text
+    return '"' + text.replace('"', '""') + '"'
 
 
 def terminal_text(text: str) -> str:
