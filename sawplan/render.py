@@ -60,7 +60,18 @@ def to_json(obj: Any, *, kind: str) -> str:
             "sawplan": __version__,
             "items": body,
         }
-    return json.dumps(payload, indent=2, ensure_ascii=False)
+    text = json.dumps(payload, indent=2, ensure_ascii=False)
+    return _JSON_RAW.sub(_json_escaped, text)
+
+
+# ``fields.CONTROL`` but C0, which json escapes itself: DEL, C1, the line separators and the
+# bidi overrides (only ever inside a string) become \\u escapes, so printed JSON cannot
+# drive a terminal
+_JSON_RAW = re.compile("[\x7f-\x9f\u2028\u2029\u202a-\u202e\u2066-\u2069]")
+
+
+def _json_escaped(match: re.Match[str]) -> str:
+    return f"\\u{ord(match.group()):04x}"
 
 
 _FORMULA_LEADS = ("=", "+", "-", "@", "\t", "\r")
@@ -120,16 +131,19 @@ def _quoted(cell: Any) -> str:
     return '"' + text.replace('"', '""') + '"'
 
 
-def terminal_text(text: str) -> str:
+def terminal_text(text: str, *, lines: bool = False) -> str:
     """Text as a terminal shows it safely: each control character written as an escape.
 
     Stored text (a tag, a note, an imported supplier) could carry ESC sequences
     that move the cursor or retitle the window, or bidirectional overrides that
     reorder what is read; the table shows ``\\x1b`` and ``\\u202e`` instead
-    (``sawplan.fields.CONTROL``).
+    (``sawplan.fields.CONTROL``).  ``lines=True`` keeps the line feeds of a block
+    of several lines.  Text already escaped comes back unchanged.
     """
     from sawplan.fields import CONTROL
 
+    if lines:
+        return "\n".join(CONTROL.sub(_escaped, part) for part in text.split("\n"))
     return CONTROL.sub(_escaped, text)
 
 

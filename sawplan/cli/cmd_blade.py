@@ -31,6 +31,7 @@ from sawplan.cli.options import (
     opt,
 )
 from sawplan.display import Display
+from sawplan.render import terminal_text
 
 HELP = """The blades in the log: add, fit, remove, retire, list, show.
 
@@ -189,11 +190,12 @@ def blade_fit_command(
             break_in=break_in,
             break_in_how=break_in_how,
         )
-    print(f"fitted blade {outcome.blade} on {outcome.saw} ({outcome.fitted_on})")
+    lines = [f"fitted blade {outcome.blade} on {outcome.saw} ({outcome.fitted_on})"]
     if outcome.moved_from:
-        print(f"  it was on {outcome.moved_from}: that fitting is closed")
+        lines.append(f"  it was on {outcome.moved_from}: that fitting is closed")
     if outcome.displaced:
-        print(f"  blade {outcome.displaced} was taken off {outcome.saw} (status: removed)")
+        lines.append(f"  blade {outcome.displaced} was taken off {outcome.saw} (status: removed)")
+    print(terminal_text("\n".join(lines), lines=True))  # names as the log holds them
     print(BLADE_CAUTION)
 
 
@@ -209,7 +211,9 @@ def blade_remove_command(
     on = parse_day(date)
     with connect(db) as database:
         saw = remove_blade(database, tag, on=on)
-    print(f"removed blade {tag} from {saw} ({on}); it counts as unworn until retired")
+    print(
+        terminal_text(f"removed blade {tag} from {saw} ({on}); it counts as unworn until retired")
+    )
 
 
 def blade_retire_command(

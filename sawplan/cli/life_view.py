@@ -6,6 +6,7 @@ import sys
 from typing import Any
 
 from sawplan.display import Display, as_display, fmt_count, fmt_money, fmt_number, fmt_percent
+from sawplan.render import terminal_text
 from sawplan.units import UnitSystem
 
 
@@ -109,7 +110,7 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
     if r.left_out:
         lines.append(f"\nleft out (retired before cutting anything): {', '.join(r.left_out)}")
     lines += [f"\nnote: {d.text(n)}" for n in r.notes]
-    return "\n".join(lines)
+    return terminal_text("\n".join(lines), lines=True)  # group names are stored text
 
 
 def _lot_lines(r: Any, d: Any) -> list[str]:
@@ -222,7 +223,7 @@ def render_forecast(f: Any, units: UnitSystem | Display) -> str:
         lines.append(f"  area ÷ life per blade {_area(d, f.life_cm2)}, rounded up")
     lines.append(f"  {d.text(f.note)}")
     lines += _lot_warning(f, d)
-    return "\n".join(lines)
+    return terminal_text("\n".join(lines), lines=True)  # group names are stored text
 
 
 def _lot_warning(f: Any, d: Any) -> list[str]:
@@ -263,7 +264,7 @@ def render_job_forecast(j: Any, units: UnitSystem | Display) -> str:
     for g in j.groups:
         out.append(f"  {g.material_group}: {d.text(g.note)}")
         out += [f"  {g.material_group}:{line[1:]}" for line in _lot_warning(g, d)]
-    return "\n".join(out)
+    return terminal_text("\n".join(out), lines=True)
 
 
 def emit_rows(
