@@ -5,7 +5,6 @@ from __future__ import annotations
 from typing import Any
 
 from sawplan.display import Display, as_display, fmt_money, fmt_number, section_text
-from sawplan.render import terminal_text
 from sawplan.units import UnitSystem
 
 _WELDED_TEXT = {"in-house": "welded in house", "bought": "bought welded"}
@@ -201,4 +200,6 @@ def render_retirement(r: Any, on: str, units: UnitSystem | Display) -> str:
         )
     elif end.causes:
         lines.append("  usual causes (common practice): " + "; ".join(end.causes))
+    from sawplan.render import terminal_text
+
     return terminal_text("\n".join(lines), lines=True)

@@ -31,7 +31,6 @@ from sawplan.cli.options import (
     opt,
 )
 from sawplan.display import Display
-from sawplan.render import terminal_text
 
 HELP = """The blades in the log: add, fit, remove, retire, list, show.
 
@@ -195,6 +194,8 @@ def blade_fit_command(
         lines.append(f"  it was on {outcome.moved_from}: that fitting is closed")
     if outcome.displaced:
         lines.append(f"  blade {outcome.displaced} was taken off {outcome.saw} (status: removed)")
+    from sawplan.render import terminal_text
+
     print(terminal_text("\n".join(lines), lines=True))  # names as the log holds them
     print(BLADE_CAUTION)
 
@@ -211,6 +212,8 @@ def blade_remove_command(
     on = parse_day(date)
     with connect(db) as database:
         saw = remove_blade(database, tag, on=on)
+    from sawplan.render import terminal_text
+
     print(
         terminal_text(f"removed blade {tag} from {saw} ({on}); it counts as unworn until retired")
     )

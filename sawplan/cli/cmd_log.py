@@ -30,7 +30,6 @@ from sawplan.cli.options import (
     saw_opt,
 )
 from sawplan.display import Display, fmt_number, fmt_plain, say
-from sawplan.render import terminal_text
 
 HELP = """Log what the blades cut and what happened to them.
 
@@ -269,6 +268,8 @@ def log_event_command(
 
         print(render_retirement(ended, entry.happened_on, Display(units, fractions)))
     else:
+        from sawplan.render import terminal_text
+
         print(
             terminal_text(
                 f"logged {kind.strip().lower()} on blade {blade.tag} ({entry.happened_on})"

@@ -6,7 +6,6 @@ import sys
 from typing import Any
 
 from sawplan.display import Display, as_display, fmt_count, fmt_money, fmt_number, fmt_percent
-from sawplan.render import terminal_text
 from sawplan.units import UnitSystem
 
 
@@ -110,6 +109,8 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
     if r.left_out:
         lines.append(f"\nleft out (retired before cutting anything): {', '.join(r.left_out)}")
     lines += [f"\nnote: {d.text(n)}" for n in r.notes]
+    from sawplan.render import terminal_text
+
     return terminal_text("\n".join(lines), lines=True)  # group names are stored text
 
 
@@ -223,6 +224,8 @@ def render_forecast(f: Any, units: UnitSystem | Display) -> str:
         lines.append(f"  area ÷ life per blade {_area(d, f.life_cm2)}, rounded up")
     lines.append(f"  {d.text(f.note)}")
     lines += _lot_warning(f, d)
+    from sawplan.render import terminal_text
+
     return terminal_text("\n".join(lines), lines=True)  # group names are stored text
 
 
@@ -264,6 +267,8 @@ def render_job_forecast(j: Any, units: UnitSystem | Display) -> str:
     for g in j.groups:
         out.append(f"  {g.material_group}: {d.text(g.note)}")
         out += [f"  {g.material_group}:{line[1:]}" for line in _lot_warning(g, d)]
+    from sawplan.render import terminal_text
+
     return terminal_text("\n".join(out), lines=True)
 
 

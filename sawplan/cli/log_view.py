@@ -7,7 +7,6 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from sawplan.display import Display, as_display, fmt_number, section_text
-from sawplan.render import terminal_text
 from sawplan.units import UnitSystem
 
 
@@ -44,6 +43,8 @@ def render_logged(entry, sec, mat, blade, units: UnitSystem | Display, notes: li
         model = d.fmt("time", entry.predicted_time_min)
         lines.append(f"  time measured {measured}, model {model}")
     lines += [f"  note: {d.text(n)}" for n in notes]
+    from sawplan.render import terminal_text
+
     return terminal_text("\n".join(lines), lines=True)  # tags and saw names are stored text
 
 
