@@ -4,7 +4,7 @@ A log written before the store refused control characters (or edited by hand)
 can hold ESC sequences (colour, cursor moves, ECMA-48 §8.3), OSC 8 hyperlinks,
 BEL, backspace and the bidirectional overrides of Unicode UAX #9 (which make
 text read in another order than it is stored).  Every command that prints
-stored text is walked on such a log, in its text and JSON forms; nothing it
+stored text is walked on such a log, in its text, JSON and CSV forms; nothing it
 prints to stdout or stderr may carry a raw character of ``fields.CONTROL`` but
 the line feed.  The characters are read with the standard ``unicodedata``
 module (categories Cc and Cf), not with the code's own pattern.
@@ -91,11 +91,15 @@ EXTRA = [
     ["blade", "fit", "B-0", "--saw", "bay"],  # did you mean ...?
     ["blade", "show", "B-01"],
     ["log", "cut", "304", "round", "60mm", "--saw", "bay"],
+    ["cut", "304", "round", "60mm", "--economics"],
+    ["cut", "304", "round", "60mm", "--economics", "--json"],
+    ["forecast", "--area", "5m2", "--json"],
 ]
 
 
 def commands(shop) -> list[list[str]]:
-    """Every command's valid invocation, with --json where it has one, and the extras."""
+    """Every command's valid invocation, with --json and --csv where it has them, and the
+    extras."""
     out = []
     values = baselines(shop)
     for path, command in LEAVES:
@@ -103,8 +107,9 @@ def commands(shop) -> list[list[str]]:
             continue  # serve would serve; config holds no stored text
         args = argv(path, command, values[path])
         out.append(args)
-        if any("--json" in p.opts for p in command.params):
-            out.append([*args[: len(path)], "--json", *args[len(path) :]])
+        for form in ("--json", "--csv"):
+            if any(form in p.opts for p in command.params):
+                out.append([*args[: len(path)], form, *args[len(path) :]])
     return out + EXTRA
 
 

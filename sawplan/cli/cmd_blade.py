@@ -250,7 +250,7 @@ def blade_list_command(
     csv_out: CsvOpt = False,
     db: DbOpt = None,
 ) -> None:
-    from sawplan.render import table, to_csv, to_json
+    from sawplan.render import table, terminal_text, to_csv, to_json
     from sawplan.store import connect
     from sawplan.store.records import list_blades
 
@@ -261,7 +261,8 @@ def blade_list_command(
         return
     headers, rows = blade_table(blades, Display(units, fractions))
     if csv_out:
-        print(to_csv(headers, rows), end="")
+        # stored text on the terminal: no raw control characters
+        print(terminal_text(to_csv(headers, rows), lines=True), end="")
     elif not rows:
         print(
             "no blades in the log yet; add one: sawplan blade add TAG --pitch 3/4 "

@@ -275,13 +275,14 @@ def render_job_forecast(j: Any, units: UnitSystem | Display) -> str:
 def emit_rows(
     headers: list[str], rows: list[list[Any]], kind: str, json_out: bool, csv_out: bool
 ) -> bool:
-    from sawplan.render import to_csv, to_json
+    from sawplan.render import terminal_text, to_csv, to_json
 
     if json_out:
         print(to_json([dict(zip(headers, r, strict=True)) for r in rows], kind=kind))
         return True
     if csv_out:
-        print(to_csv(headers, rows), end="")
+        # stored text on the terminal: no raw control characters
+        print(terminal_text(to_csv(headers, rows), lines=True), end="")
         return True
     return False
 
