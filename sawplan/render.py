@@ -115,13 +115,22 @@ def to_csv(headers: Sequence[str], rows: Iterable[Sequence[Any]]) -> str:
     end in LF, and a reader then starts a new row inside the cell: such text (rare) is
     quoted here instead."""
     cells = [[safe_cell(h) for h in headers]]
-    cells += [[safe_cell("" if v is None else v) for v in row] for row in rows]
+    cells += [[_cell(v) for v in row] for row in rows]
     buf = io.StringIO()
     csv.writer(buf, lineterminator="\n").writerows(cells)
     text = buf.getvalue()
     if _ODD_BREAK.search(text) is None:
         return text
     return "".join(",".join(_quoted(c) for c in row) + "\n" for row in cells)
+
+
+def _cell(value: Any) -> Any:
+    """``safe_cell`` with the common cases first (a number, text starting with a letter)."""
+    if value is None:
+        return ""
+    if type(value) is not str or value[:1].isalnum():
+        return value
+    return safe_cell(value)
 
 
 def _quoted(cell: Any) -> str:
