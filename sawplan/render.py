@@ -121,14 +121,14 @@ def to_csv(headers: Sequence[str], rows: Iterable[Sequence[Any]]) -> str:
     text = buf.getvalue()
     if _ODD_BREAK.search(text) is None:
         return text
-    return "".join(",".join(_quoted(c) for c in row) + "\n" for row in cells)
+    return "".join((",".join(_quoted(c) for c in row) or '""') + "\n" for row in cells)
 
 
 def _cell(value: Any) -> Any:
     """``safe_cell`` with the common cases first (a number, text starting with a letter)."""
     if value is None:
         return ""
-    if type(value) is not str or value[:1].isalnum():
+    if not isinstance(value, str) or value[:1].isalnum():
         return value
     return safe_cell(value)
 
