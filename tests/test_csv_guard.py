@@ -95,6 +95,7 @@ def test_every_cell_comes_back_as_one_cell_and_none_runs(table):
         pytest.param("\u061c=1", "'\u061c=1", id="Arabic letter mark before ="),
         pytest.param("\x1b=1", "'\x1b=1", id="control character before ="),
         pytest.param("\r", "'\r", id="a lone carriage return"),
+        pytest.param("\uff1d1+1", "'\uff1d1+1", id="full-width = (an input method may type it)"),
         pytest.param("-inf", "'-inf", id="minus infinity is no plain number"),
         pytest.param("-5", "-5", id="a negative number stays a number"),
         pytest.param("a=1", "a=1", id="= after a letter is text anyway"),
