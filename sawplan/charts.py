@@ -17,6 +17,7 @@ from collections.abc import Sequence
 from typing import TYPE_CHECKING, Any
 
 from sawplan.display import Display, UnitSystem, as_display, fmt_percent, fmt_plain
+from sawplan.render import terminal_text
 
 if TYPE_CHECKING:  # pragma: no cover
     from sawplan.life import BladeCost, ModeRanking, WearCurve, WeibullPlot
@@ -105,14 +106,14 @@ def wear_chart(
     curve's own verdict, e.g. the life line of a blade already retired.
     """
     if not curve.points:
-        return f"{title}: no timed cuts to draw"
+        return terminal_text(f"{title}: no timed cuts to draw")
     d = as_display(units)
     area = 100.0  # cm² → core mm²
     xs = [d.value("area", p.cumulative_area_cm2 * area) for p in curve.points]
     rates = [d.value("rate", p.rate_cm2_min * area) for p in curve.points]
     trend = [d.value("rate", area / p.trend_min_per_cm2) for p in curve.points]
     fig = _figure(width, height)
-    fig.title(title)
+    fig.title(terminal_text(title))
     fig.label(f"area cut ({d.label('area')})", "x")
     fig.label(f"rate ({d.label('rate')})", "y")
     key = ["o each cut", "▚ trend (median of 5)"]
@@ -197,7 +198,7 @@ def weibull_chart(
 ) -> str:
     """Failures at their median ranks on Weibull axes; a Weibull sample lies on a line."""
     if not plot.points:
-        return f"{title}: no failures to plot"
+        return terminal_text(f"{title}: no failures to plot")
     d = as_display(units)
     to_display = d.value("area", 100.0)  # one cm² in display units
     xs = [p.x for p in plot.points]
@@ -207,7 +208,7 @@ def weibull_chart(
     x_lo, x_hi = min(all_x) - 0.05, max(all_x) + 0.05
     y_lo, y_hi = min(all_y) - 0.1, max(all_y) + 0.1
     fig = _figure(width, height)
-    fig.title(title)
+    fig.title(terminal_text(title))
     fig.label(f"life, area cut ({d.label('area')}, log scale)", "x")
     fig.label("failed", "y")
     key = ["o failures (median ranks)"]
@@ -335,7 +336,7 @@ def modes_chart(
 ) -> str:
     """Retired blades by failure mode, most frequent on top."""
     if not ranking.modes:
-        return f"{title}: no failures recorded"
+        return terminal_text(f"{title}: no failures recorded")
     labels = [m.code for m in ranking.modes]
     counts = [m.count for m in ranking.modes]
     text = _hbars(labels, counts, title, "blades", width, height, colorless, integer=True)
@@ -363,7 +364,7 @@ def cost_chart(
 ) -> str:
     """Price ÷ life per blade type, cheapest on top (currency as the prices were logged)."""
     if not costs:
-        return f"{title}: no blade type has both a price and a retired blade yet"
+        return terminal_text(f"{title}: no blade type has both a price and a retired blade yet")
     d = as_display(units)
     labels = [d.text(c.blade_type) for c in costs]
     values = [d.per("large_area", c.cost_per_m2 / 1e6) for c in costs]
@@ -384,8 +385,9 @@ def _hbars(
 ) -> str:
     """Horizontal bars, the first item on top, from 0 to a round upper limit."""
     height = height or max(8, 3 * len(labels) + 5)
+    labels = [terminal_text(label) for label in labels]  # blade types hold stored text
     fig = _figure(width, height)
-    fig.title(title)
+    fig.title(terminal_text(title))
     fig.label(x_label, "x")
     # plotext draws the first bar at the bottom: reverse so the first item is on top
     fig.draw(fig.bar(list(reversed(labels)), list(reversed(values)), orientation="h"))
@@ -481,11 +483,11 @@ def speed_cost_chart(
     reads best); ``runs`` are ``RunSpeed`` results (recommended, cheapest, fastest).
     """
     if not curve:
-        return f"{title}: no speeds to draw"
+        return terminal_text(f"{title}: no speeds to draw")
     d = as_display(units)
     xs = [d.value("speed", p.band_speed_m_min) for p in curve]
     fig = _figure(width, height)
-    fig.title(title)
+    fig.title(terminal_text(title))
     fig.label(f"band speed ({d.label('speed')})", "x")
     fig.label("cost per cut", "y")
     top = _covering_ticks(max(p.total for p in curve) * 1.1)

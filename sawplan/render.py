@@ -60,45 +60,99 @@ def to_json(obj: Any, *, kind: str) -> str:
             "sawplan": __version__,
             "items": body,
         }
-    return json.dumps(payload, indent=2, ensure_ascii=False)
+    text = json.dumps(payload, indent=2, ensure_ascii=False)
+    return _JSON_RAW.sub(_json_escaped, text)
+
+
+# ``fields.CONTROL`` but C0, which json escapes itself: DEL, C1, the line separators and the
+# bidi overrides (only ever inside a string) become \\u escapes, so printed JSON cannot
+# drive a terminal
+_JSON_RAW = re.compile("[\x7f-\x9f\u2028\u2029\u202a-\u202e\u2066-\u2069]")
+
+
+def _json_escaped(match: re.Match[str]) -> str:
+    return f"\\u{ord(match.group()):04x}"
 
 
 _FORMULA_LEADS = ("=", "+", "-", "@", "\t", "\r")
 _PLAIN_NUMBER = re.compile(r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?", re.ASCII)
+# A formula start after anything a spreadsheet may skip or not show: white space, C0/C1
+# controls, and the invisible marks (zero-width, bidi marks, word joiner, BOM, Arabic
+# letter mark, Mongolian vowel separator).
+_RISKY_LEAD = re.compile(
+    "[\\s\x00-\x1f\x7f-\x9f\u061c\u180e\u200b-\u200f\u2028-\u202e\u2060-\u206f\ufeff]*"
+    "[=+\\-@\uff0b\uff0d\uff1d\uff20]"
+)
 
 
 def safe_cell(value: Any) -> Any:
     """Neutralise text a spreadsheet would run as a formula (plain numbers pass untouched).
 
+    A cell is risky when = + - @ (or their full-width forms) come first after any
+    white space, control or invisible character, or when it starts with a tab or a
+    carriage return; an apostrophe in front makes it text (import takes it off again).
     Only a plain decimal number ("-5", "+1.5e3") keeps its sign unquoted: Python's
     float() also reads "-inf", "+nan" and "-1_000", which a spreadsheet would take
     for formulas.
     """
-    text_lead = isinstance(value, str) and value.startswith(_FORMULA_LEADS)
-    if text_lead and not _PLAIN_NUMBER.fullmatch(value):
+    if not isinstance(value, str) or not value or value[0].isalnum():
+        return value
+    risky = value.startswith(_FORMULA_LEADS) or _RISKY_LEAD.match(value) is not None
+    if risky and not _PLAIN_NUMBER.fullmatch(value):
         return "'" + value
     return value
 
 
+# Line breaks the csv module does not quote when lines end in LF (a lone CR; the rest
+# are breaks for str.splitlines and some editors): a cell holding one is quoted by hand.
+_ODD_BREAK = re.compile("[\r\x0b\x0c\x1c-\x1e\x85\u2028\u2029]")
+_NEEDS_QUOTES = re.compile('[\n",\r\x0b\x0c\x1c-\x1e\x85\u2028\u2029]')
+
+
 def to_csv(headers: Sequence[str], rows: Iterable[Sequence[Any]]) -> str:
+    """CSV text, every cell through ``safe_cell``; a cell holding a line break, a quote or
+    a comma is quoted.  The csv module's minimal quoting leaves a lone CR bare when lines
+    end in LF, and a reader then starts a new row inside the cell: such text (rare) is
+    quoted here instead."""
+    cells = [[safe_cell(h) for h in headers]]
+    cells += [[_cell(v) for v in row] for row in rows]
     buf = io.StringIO()
-    writer = csv.writer(buf, lineterminator="\n")
-    writer.writerow([safe_cell(h) for h in headers])
-    for row in rows:
-        writer.writerow([safe_cell("" if v is None else v) for v in row])
-    return buf.getvalue()
+    csv.writer(buf, lineterminator="\n").writerows(cells)
+    text = buf.getvalue()
+    if _ODD_BREAK.search(text) is None:
+        return text
+    return "".join((",".join(_quoted(c) for c in row) or '""') + "\n" for row in cells)
 
 
-def terminal_text(text: str) -> str:
+def _cell(value: Any) -> Any:
+    """``safe_cell`` with the common cases first (a number, text starting with a letter)."""
+    if value is None:
+        return ""
+    if not isinstance(value, str) or value[:1].isalnum():
+        return value
+    return safe_cell(value)
+
+
+def _quoted(cell: Any) -> str:
+    text = str(cell)
+    if _NEEDS_QUOTES.search(text) is None:
+        return text
+    return '"' + text.replace('"', '""') + '"'
+
+
+def terminal_text(text: str, *, lines: bool = False) -> str:
     """Text as a terminal shows it safely: each control character written as an escape.
 
     Stored text (a tag, a note, an imported supplier) could carry ESC sequences
     that move the cursor or retitle the window, or bidirectional overrides that
     reorder what is read; the table shows ``\\x1b`` and ``\\u202e`` instead
-    (``sawplan.fields.CONTROL``).
+    (``sawplan.fields.CONTROL``).  ``lines=True`` keeps the line feeds of a block
+    of several lines.  Text already escaped comes back unchanged.
     """
     from sawplan.fields import CONTROL
 
+    if lines:
+        return "\n".join(CONTROL.sub(_escaped, part) for part in text.split("\n"))
     return CONTROL.sub(_escaped, text)
 
 

@@ -200,4 +200,6 @@ def render_retirement(r: Any, on: str, units: UnitSystem | Display) -> str:
         )
     elif end.causes:
         lines.append("  usual causes (common practice): " + "; ".join(end.causes))
-    return "\n".join(lines)
+    from sawplan.render import terminal_text
+
+    return terminal_text("\n".join(lines), lines=True)

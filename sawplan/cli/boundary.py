@@ -224,9 +224,16 @@ def storage_error_from_os(err: OSError) -> SawplanError:
     return StorageError(f"{reason}: {where}" if where else reason)
 
 
+_BLANKS = str.maketrans("\t\n\r\f\v", "     ")
+
+
 def one_line(text: str) -> str:
-    """White space collapsed, control characters shown escaped, very long words shortened."""
-    clean = "".join(_visible(c) for c in str(text))
+    """White space collapsed, control characters shown escaped (``render.terminal_text``,
+    so a tag or name in a message or a "did you mean" cannot drive the terminal), very
+    long words shortened."""
+    from sawplan.render import terminal_text
+
+    clean = terminal_text(str(text).translate(_BLANKS))
     line = " ".join(short(word, _LONG_WORD) for word in clean.split())
     if len(line) > MAX_LINE:
         line = line[: MAX_LINE - 1] + "…"
@@ -238,15 +245,6 @@ def short(text: str, limit: int = _LONG_WORD) -> str:
     if len(text) <= limit:
         return text
     return f"{text[: limit // 2]}…({len(text):,} characters)"
-
-
-def _visible(char: str) -> str:
-    if char in "\t\n\r\f\v":
-        return " "
-    code = ord(char)
-    if code < 32 or code == 127 or 0x80 <= code < 0xA0:
-        return f"\\x{code:02x}"
-    return char
 
 
 def _abort_class() -> type[BaseException]:

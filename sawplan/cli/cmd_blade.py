@@ -189,11 +189,14 @@ def blade_fit_command(
             break_in=break_in,
             break_in_how=break_in_how,
         )
-    print(f"fitted blade {outcome.blade} on {outcome.saw} ({outcome.fitted_on})")
+    lines = [f"fitted blade {outcome.blade} on {outcome.saw} ({outcome.fitted_on})"]
     if outcome.moved_from:
-        print(f"  it was on {outcome.moved_from}: that fitting is closed")
+        lines.append(f"  it was on {outcome.moved_from}: that fitting is closed")
     if outcome.displaced:
-        print(f"  blade {outcome.displaced} was taken off {outcome.saw} (status: removed)")
+        lines.append(f"  blade {outcome.displaced} was taken off {outcome.saw} (status: removed)")
+    from sawplan.render import terminal_text
+
+    print(terminal_text("\n".join(lines), lines=True))  # names as the log holds them
     print(BLADE_CAUTION)
 
 
@@ -209,7 +212,11 @@ def blade_remove_command(
     on = parse_day(date)
     with connect(db) as database:
         saw = remove_blade(database, tag, on=on)
-    print(f"removed blade {tag} from {saw} ({on}); it counts as unworn until retired")
+    from sawplan.render import terminal_text
+
+    print(
+        terminal_text(f"removed blade {tag} from {saw} ({on}); it counts as unworn until retired")
+    )
 
 
 def blade_retire_command(
@@ -243,7 +250,7 @@ def blade_list_command(
     csv_out: CsvOpt = False,
     db: DbOpt = None,
 ) -> None:
-    from sawplan.render import table, to_csv, to_json
+    from sawplan.render import table, terminal_text, to_csv, to_json
     from sawplan.store import connect
     from sawplan.store.records import list_blades
 
@@ -254,7 +261,8 @@ def blade_list_command(
         return
     headers, rows = blade_table(blades, Display(units, fractions))
     if csv_out:
-        print(to_csv(headers, rows), end="")
+        # stored text on the terminal: no raw control characters
+        print(terminal_text(to_csv(headers, rows), lines=True), end="")
     elif not rows:
         print(
             "no blades in the log yet; add one: sawplan blade add TAG --pitch 3/4 "

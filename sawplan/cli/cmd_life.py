@@ -306,6 +306,7 @@ def chart_cost_command(
     db: DbOpt = None,
 ) -> None:
     from sawplan.charts import cost_chart, cost_rows
+    from sawplan.render import terminal_text
     from sawplan.store import connect
     from sawplan.store.life_report import life_report
 
@@ -322,7 +323,7 @@ def chart_cost_command(
         )
     )
     if report.costs_missing:
-        print("no cost yet for " + "; ".join(report.costs_missing))
+        print(terminal_text("no cost yet for " + "; ".join(report.costs_missing)))
 
 
 def register(app: typer.Typer) -> None:

@@ -268,7 +268,13 @@ def log_event_command(
 
         print(render_retirement(ended, entry.happened_on, Display(units, fractions)))
     else:
-        print(f"logged {kind.strip().lower()} on blade {blade.tag} ({entry.happened_on})")
+        from sawplan.render import terminal_text
+
+        print(
+            terminal_text(
+                f"logged {kind.strip().lower()} on blade {blade.tag} ({entry.happened_on})"
+            )
+        )
 
 
 def log_list_command(
@@ -282,7 +288,7 @@ def log_list_command(
     csv_out: CsvOpt = False,
     db: DbOpt = None,
 ) -> None:
-    from sawplan.render import table, to_csv, to_json
+    from sawplan.render import table, terminal_text, to_csv, to_json
     from sawplan.store import connect
     from sawplan.store.records import list_cuts
 
@@ -293,7 +299,8 @@ def log_list_command(
         return
     headers, body = cut_table(entries, Display(units, fractions))
     if csv_out:
-        print(to_csv(headers, body), end="")
+        # stored text on the terminal: no raw control characters
+        print(terminal_text(to_csv(headers, body), lines=True), end="")
     elif not body:
         print("no cuts logged yet; log one: sawplan log cut MATERIAL SECTION...")
     else:

@@ -127,7 +127,7 @@ def saw_list_command(
     saws_file: SawsFileOpt = None,
     db: DbOpt = None,
 ) -> None:
-    from sawplan.render import table, to_csv, to_json
+    from sawplan.render import table, terminal_text, to_csv, to_json
     from sawplan.saws import load_saws
     from sawplan.store import connect
     from sawplan.store.records import fitted_on_saws, logged_saws
@@ -141,7 +141,8 @@ def saw_list_command(
         return
     headers, rows = saw_table(saws, fitted, Display(units, fractions))
     if csv_out:
-        print(to_csv(headers, rows), end="")
+        # stored text on the terminal: no raw control characters
+        print(terminal_text(to_csv(headers, rows), lines=True), end="")
     else:
         print(table(headers, rows, align="llrrrrlll"))
 

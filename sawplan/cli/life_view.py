@@ -109,7 +109,9 @@ def render_life(r: Any, units: UnitSystem | Display) -> str:
     if r.left_out:
         lines.append(f"\nleft out (retired before cutting anything): {', '.join(r.left_out)}")
     lines += [f"\nnote: {d.text(n)}" for n in r.notes]
-    return "\n".join(lines)
+    from sawplan.render import terminal_text
+
+    return terminal_text("\n".join(lines), lines=True)  # group names are stored text
 
 
 def _lot_lines(r: Any, d: Any) -> list[str]:
@@ -222,7 +224,9 @@ def render_forecast(f: Any, units: UnitSystem | Display) -> str:
         lines.append(f"  area ÷ life per blade {_area(d, f.life_cm2)}, rounded up")
     lines.append(f"  {d.text(f.note)}")
     lines += _lot_warning(f, d)
-    return "\n".join(lines)
+    from sawplan.render import terminal_text
+
+    return terminal_text("\n".join(lines), lines=True)  # group names are stored text
 
 
 def _lot_warning(f: Any, d: Any) -> list[str]:
@@ -263,19 +267,22 @@ def render_job_forecast(j: Any, units: UnitSystem | Display) -> str:
     for g in j.groups:
         out.append(f"  {g.material_group}: {d.text(g.note)}")
         out += [f"  {g.material_group}:{line[1:]}" for line in _lot_warning(g, d)]
-    return "\n".join(out)
+    from sawplan.render import terminal_text
+
+    return terminal_text("\n".join(out), lines=True)
 
 
 def emit_rows(
     headers: list[str], rows: list[list[Any]], kind: str, json_out: bool, csv_out: bool
 ) -> bool:
-    from sawplan.render import to_csv, to_json
+    from sawplan.render import terminal_text, to_csv, to_json
 
     if json_out:
         print(to_json([dict(zip(headers, r, strict=True)) for r in rows], kind=kind))
         return True
     if csv_out:
-        print(to_csv(headers, rows), end="")
+        # stored text on the terminal: no raw control characters
+        print(terminal_text(to_csv(headers, rows), lines=True), end="")
         return True
     return False
 

@@ -43,7 +43,9 @@ def render_logged(entry, sec, mat, blade, units: UnitSystem | Display, notes: li
         model = d.fmt("time", entry.predicted_time_min)
         lines.append(f"  time measured {measured}, model {model}")
     lines += [f"  note: {d.text(n)}" for n in notes]
-    return "\n".join(lines)
+    from sawplan.render import terminal_text
+
+    return terminal_text("\n".join(lines), lines=True)  # tags and saw names are stored text
 
 
 def _cuts(n: int) -> str:

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 from sawplan.cutlist.sheets.bar_rows import PerPattern, StockText, piece_rows
 from sawplan.cutlist.sheets.drawing import draw_bar
 from sawplan.cutlist.sheets.text import blades_text, order_list, quote_text, short_banner
@@ -40,17 +42,9 @@ def render_markdown(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> st
         out.append(title + (f", heat {_md(b.heat)}" if b.heat else ""))
         out += body(b)
     if not plan.complete:
-        out += ["## Order list", "", "```", order_list(plan, d), "```", ""]
-    out += [
-        "## Blades and quote",
-        "",
-        "```",
-        blades_text(plan, d),
-        "",
-        quote_text(plan, d),
-        "```",
-        "",
-    ]
+        out += ["## Order list", "", *_fenced(order_list(plan, d)), ""]
+    out += ["## Blades and quote", ""]
+    out += [*_fenced(blades_text(plan, d) + "\n\n" + quote_text(plan, d)), ""]
     out += ["## Notes and cautions", ""]
     out += [f"- {_md(d.text(n))}" for n in plan.notes]
     out += [f"- **{_md(d.text(c))}**" for c in plan.cautions]
@@ -59,7 +53,7 @@ def render_markdown(plan, units: UnitSystem | Display = UnitSystem.METRIC) -> st
 
 def _bar_body(b, d) -> list[str]:
     """A bar's drawing, table and weight: the same for every bar cut alike."""
-    out = ["", "```", draw_bar(b), "```", ""]
+    out = ["", *_fenced(draw_bar(b)), ""]
     out.append(f"| step | from head ({d.label('length')}) | piece | weight | lift |")
     out.append("|---|---|---|---:|---|")
     if b.trim_cut_mm is not None:
@@ -80,9 +74,18 @@ def _bar_body(b, d) -> list[str]:
     return out
 
 
+_MD_SPECIAL = re.compile(r"([\\`*_\[\]<>#|~&])")
+
+
 def _md(text: str) -> str:
-    """Escape the characters that would break a Markdown table or start markup."""
-    text = str(text).replace("\\", "\\\\")
-    for ch in "|*_`[]<>#":
-        text = text.replace(ch, "\\" + ch)
-    return " ".join(text.split())
+    """Inline text that stays text: every character that could start markup (emphasis,
+    code, links, raw HTML, an entity, a table cell) backslash-escaped, on one line."""
+    return " ".join(_MD_SPECIAL.sub(r"\\\1", str(text)).split())
+
+
+def _fenced(text: str) -> list[str]:
+    """A code block whose fence is longer than any run of backticks in ``text``, so no
+    line of it can close the block early (CommonMark 0.31, §4.5 fenced code blocks)."""
+    longest = max((len(run) for run in re.findall("`+", text)), default=0)
+    fence = "`" * max(3, longest + 1)
+    return [fence, text, fence]

@@ -36,7 +36,10 @@ def render_plan(
         quote_text(plan, d),
         _notes(plan, d),
     ]
-    return "\n\n".join(b for b in blocks if b)
+    from sawplan.render import terminal_text
+
+    # notes carry the log's lot and group names: stored text, shown through the one escape
+    return terminal_text("\n\n".join(b for b in blocks if b), lines=True)
 
 
 def short_banner(plan, d: Display) -> str:
