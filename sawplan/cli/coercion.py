@@ -104,9 +104,9 @@ def plain_conversion(descriptor: Any) -> Convert | None:
     if annotation is bool:
         return _flag
     if annotation is int and info.min is None and info.max is None:
-        return _whole
+        return _number(int, _WHOLE)
     if annotation is float and info.min is None and info.max is None:
-        return _decimal
+        return _number(float, _DECIMAL)
     if isinstance(annotation, type) and issubclass(annotation, Path) and info.path_type is None:
         return _path(annotation, info)
     return None
@@ -133,20 +133,17 @@ def _flag(value: Any, param: Any, ctx: Any) -> bool:
     return value
 
 
-def _whole(value: Any, param: Any, ctx: Any) -> int:
-    if type(value) is int:
-        return value
-    if type(value) is str and _WHOLE.fullmatch(value):
-        return int(value)
-    raise Declined
+def _number(kind: type, written: re.Pattern[str]) -> Convert:
+    """A number already of its type, or typed as plain digits (anything else: typer)."""
 
+    def convert(value: Any, param: Any, ctx: Any) -> Any:
+        if type(value) is kind:
+            return value
+        if type(value) is str and written.fullmatch(value):
+            return kind(value)
+        raise Declined
 
-def _decimal(value: Any, param: Any, ctx: Any) -> float:
-    if type(value) is float:
-        return value
-    if type(value) is str and _DECIMAL.fullmatch(value):
-        return float(value)
-    raise Declined
+    return convert
 
 
 def _choice(choices: tuple[Any, ...], case_sensitive: bool) -> Convert:
