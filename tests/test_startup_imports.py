@@ -17,7 +17,6 @@ import sys
 
 import pytest
 
-
 PROBE = """
 import runpy, sys
 sys.argv = ["sawplan", *sys.argv[1:]]
