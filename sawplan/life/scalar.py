@@ -70,7 +70,9 @@ def find_root(
     x_far = f_far = 0.0  # the other end of the bracket
     step_before = step = 0.0
     for _ in range(maxiter):
-        if f_last * f_now < 0.0:  # the root lies between the last two points
+        if f_last != 0.0 and f_now != 0.0 and (f_last < 0.0) != (f_now < 0.0):
+            # the root lies between the last two points (signs compared, not a product
+            # of two tiny values that could round to zero)
             x_far, f_far = x_last, f_last
             step_before = step = x_now - x_last
         if abs(f_far) < abs(f_now):  # keep the best point in x_now
