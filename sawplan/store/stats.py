@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from collections import defaultdict
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import TYPE_CHECKING, NamedTuple
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -58,9 +59,22 @@ class BladeLife:
 
 def blade_type_of(row: dict) -> str:
     """Material, grade, width × thickness and pitch: what makes blades comparable."""
-    size = say("{}×{}", Q("size", row["width_mm"]), Q("size", row["thickness_mm"]))
-    parts = [row["blade_material"], row.get("grade") or "", size]
-    parts.append(pitch_label(row["tpi_coarse"], row["tpi_fine"]))
+    return _blade_type(
+        row["blade_material"],
+        row.get("grade") or "",
+        row["width_mm"],
+        row["thickness_mm"],
+        row["tpi_coarse"],
+        row["tpi_fine"],
+    )
+
+
+@lru_cache(maxsize=512, typed=True)  # a log of 10³ blades holds a handful of types
+def _blade_type(
+    material: str, grade: str, width_mm: float, thickness_mm: float, coarse: float, fine: float
+) -> str:
+    size = say("{}×{}", Q("size", width_mm), Q("size", thickness_mm))
+    parts = [material, grade, size, pitch_label(coarse, fine)]
     return join(" ", [p for p in parts if p])
 
 
