@@ -62,6 +62,9 @@ def _version(value: bool) -> None:
 
 def make_app(modules: tuple[str, ...] = COMMAND_MODULES) -> typer.Typer:
     """The Typer app with the given command modules registered."""
+    from sawplan.cli.coercion import install
+
+    install()  # plain option values converted without importing pydantic
     new = typer.Typer(
         name="sawplan",
         help=HELP,

@@ -108,7 +108,10 @@ def life_command(
     from sawplan.store import connect
     from sawplan.store.life_report import life_report
 
-    with connect(db, create=False) as database, progress("fitting blade lives", quiet=json_out):
+    with (
+        connect(db, create=False, light=True) as database,
+        progress("fitting blade lives", quiet=json_out),
+    ):
         report = life_report(database, group_by=group_by, confidence=confidence)
     if json_out:
         print(to_json(report, kind="life"))

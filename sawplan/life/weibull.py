@@ -9,7 +9,8 @@ biases the life low.  The fit is maximum likelihood (reference §7):
 
 For a fixed shape β the scale has a closed form, η^β = Σ x_i^β / d (d failures),
 so the fit reduces to one monotone equation in β (the profile score), solved
-with ``scipy.optimize.brentq``.  Standard errors come from the observed
+by Brent's method (``sawplan.life.scalar``: scipy's steps, without importing
+scipy).  Standard errors come from the observed
 information (analytic Hessian in ln β, ln η).  Confidence bounds are
 **likelihood-ratio (profile) bounds**: two-sided at ``confidence``, the set of
 values whose profile log-likelihood is within χ²₁(confidence)/2 of the maximum.
@@ -215,9 +216,9 @@ class _Model:
     # -- profile in β ---------------------------------------------------------
     def log_scale_u(self, shape: float) -> float:
         """ln η (scaled units) maximising the likelihood for this shape."""
-        from scipy.special import logsumexp
+        from sawplan.life.scalar import log_sum_exp
 
-        return float((logsumexp(shape * self.log_u) - math.log(self.d)) / shape)
+        return float((log_sum_exp(shape * self.log_u) - math.log(self.d)) / shape)
 
     def loglik(self, shape: float, log_scale_u: float) -> float:
         """Log-likelihood in original units (scaled lives shift it by −d·ln ref)."""
@@ -245,7 +246,7 @@ class _Model:
         return 1.0 / shape + self.sum_log_fail / self.d - mean_log
 
     def solve_shape(self) -> float | None:
-        from scipy.optimize import brentq
+        from sawplan.life.scalar import find_root
 
         lo, hi = 0.5, 2.0
         while self.score(lo) < 0.0 and lo > 1e-6:
@@ -254,31 +255,26 @@ class _Model:
             if hi >= _SHAPE_MAX:
                 return None
             hi *= 4.0
-        return float(brentq(self.score, lo, hi, xtol=1e-12, rtol=1e-12))
+        return float(find_root(self.score, lo, hi, xtol=1e-12, rtol=1e-12))
 
     # -- profile of a quantile ------------------------------------------------
     def profile_quantile(self, log_t_u: float, c: float, log_shape_hat: float) -> float:
         """Max log-likelihood with the quantile ln t fixed (η = t·e^{−c/β})."""
-        from scipy.optimize import minimize_scalar
+        from sawplan.life.scalar import minimise_bounded
 
         def neg(log_shape: float) -> float:
             shape = math.exp(log_shape)
             return -self.loglik(shape, log_t_u - c / shape)
 
-        res = minimize_scalar(
-            neg,
-            bounds=(log_shape_hat - 5.0, log_shape_hat + 5.0),
-            method="bounded",
-            options={"xatol": 1e-10},
-        )
-        return -float(res.fun)
+        _, lowest = minimise_bounded(neg, log_shape_hat - 5.0, log_shape_hat + 5.0, xatol=1e-10)
+        return -float(lowest)
 
     # -- result -----------------------------------------------------------------
     def target(self, shape: float, confidence: float) -> float:
         """The profile log-likelihood at the edge of the ``confidence`` interval."""
-        from scipy.special import chdtri  # χ² quantile without importing scipy.stats (≈0.4 s)
+        from sawplan.life.scalar import chi2_1_quantile
 
-        drop = float(chdtri(1, 1.0 - confidence)) / 2.0
+        drop = chi2_1_quantile(confidence) / 2.0
         return self.loglik(shape, self.log_scale_u(shape)) - drop
 
     def quantile_ci(self, shape: float, p: float, target: float) -> tuple[float, float]:
@@ -366,7 +362,7 @@ def _bound(profile, start: float, target: float, direction: int) -> float:
     Returns ±inf when the profile stays above the target over a wide span (the
     data do not bound the parameter on that side).
     """
-    from scipy.optimize import brentq
+    from sawplan.life.scalar import find_root
 
     def gap(v: float) -> float:
         return profile(v) - target
@@ -377,7 +373,7 @@ def _bound(profile, start: float, target: float, direction: int) -> float:
         outer = start + direction * step
         if gap(outer) < 0.0:
             a, b = sorted((inner, outer))
-            return float(brentq(gap, a, b, xtol=1e-10))
+            return float(find_root(gap, a, b, xtol=1e-10))
         inner = outer
         step *= 2.0
     return math.inf * direction

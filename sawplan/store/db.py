@@ -448,6 +448,26 @@ def run_write(db: Log, step: Callable[[], T]) -> T:
             attempt += 1
 
 
+BULK_ROWS = 10_000  # a load this big changes a table's shape for PostgreSQL's planner
+
+
+def refresh_statistics(db: Log, counts: Mapping[str, int]) -> None:
+    """ANALYZE, on PostgreSQL, each table a bulk load (import, ``db copy``) just filled.
+
+    Until autovacuum gets to them, the planner takes freshly loaded tables for
+    the nearly empty ones they were and may plan ``sawplan life`` over 10⁵ cuts
+    badly.  Tables that took fewer than ``BULK_ROWS`` rows are left alone; SQLite
+    plans from its indexes and needs nothing.
+    """
+    from sawplan.store.schema import ident
+
+    if db.dialect != "postgresql":
+        return
+    for table, rows in counts.items():
+        if rows >= BULK_ROWS:
+            db.execute(f"ANALYZE {ident(table)}")
+
+
 @contextmanager
 def read_snapshot(db: AnyLog) -> Iterator[AnyLog]:
     """Several reads that see one moment of the log (an export, a report); writes nothing."""

@@ -30,7 +30,7 @@ from sawplan.errors import (
     SawplanError,
     UsageError,
 )
-from sawplan.store.db import read_snapshot, run_write
+from sawplan.store.db import read_snapshot, refresh_statistics, run_write
 from sawplan.store.exchange_station import COLUMNS as STATION_COLUMNS
 from sawplan.store.fields import StoredValueError, check_row
 from sawplan.store.records import BLADE_STATUSES, EVENT_KINDS, WELDED
@@ -205,7 +205,9 @@ def import_csv(db: Database, folder: str | os.PathLike[str]) -> TransferResult:
         _check_before_commit(db)
         return counts
 
-    return TransferResult(str(src), run_write(db, step))
+    counts = run_write(db, step)
+    refresh_statistics(db, counts)
+    return TransferResult(str(src), counts)
 
 
 def _check_before_commit(db: Database) -> None:

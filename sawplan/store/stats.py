@@ -8,9 +8,9 @@ retired tells nothing about life and is left out.
 
 from __future__ import annotations
 
-import math
 from collections import defaultdict
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import TYPE_CHECKING, NamedTuple
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -59,13 +59,48 @@ class BladeLife:
 
 def blade_type_of(row: dict) -> str:
     """Material, grade, width × thickness and pitch: what makes blades comparable."""
-    size = say("{}×{}", Q("size", row["width_mm"]), Q("size", row["thickness_mm"]))
-    parts = [row["blade_material"], row.get("grade") or "", size]
-    parts.append(pitch_label(row["tpi_coarse"], row["tpi_fine"]))
+    return _blade_type(
+        row["blade_material"],
+        row.get("grade") or "",
+        row["width_mm"],
+        row["thickness_mm"],
+        row["tpi_coarse"],
+        row["tpi_fine"],
+    )
+
+
+@lru_cache(maxsize=512, typed=True)  # a log of 10³ blades holds a handful of types
+def _blade_type(
+    material: str, grade: str, width_mm: float, thickness_mm: float, coarse: float, fine: float
+) -> str:
+    size = say("{}×{}", Q("size", width_mm), Q("size", thickness_mm))
+    parts = [material, grade, size, pitch_label(coarse, fine)]
     return join(" ", [p for p in parts if p])
 
 
-_AREAS_SQL = "SELECT blade_id, material_group, saw_id, area_mm2 FROM cuts"
+# One row per blade, material group, saw and distinct area, with the number of cuts of
+# that area: far fewer rows than cuts, as a blade cuts the same sections over and over.
+_AREAS_SQL = (
+    "SELECT blade_id, material_group, saw_id, area_mm2, COUNT(*) FROM cuts "
+    "GROUP BY blade_id, material_group, saw_id, area_mm2"
+)
+
+Terms = list[tuple[float, int]]  # (area, how many cuts had it)
+
+
+def exact_sum(terms: Terms) -> float:
+    """Σ count × value, rounded once: what ``math.fsum`` of every single cut gives.
+
+    Each float is a whole number over a power of two, so the sum is worked in
+    whole numbers over the largest denominator, and Python's int ÷ int rounds
+    it correctly (half to even), as ``math.fsum`` rounds its exact sum.
+    """
+    ratios = [(float(value).as_integer_ratio(), count) for value, count in terms]
+    if not ratios:
+        return 0.0
+    denominator = max(den for (_, den), _ in ratios)
+    numerator = sum(num * count * (denominator // den) for (num, den), count in ratios)
+    return numerator / denominator
 
 
 def blade_lives(db: Database, *, include_unused_failures: bool = False) -> list[BladeLife]:
@@ -74,20 +109,20 @@ def blade_lives(db: Database, *, include_unused_failures: bool = False) -> list[
     Retired blades that never cut anything are left out unless
     ``include_unused_failures`` (a zero life cannot enter a Weibull fit).
     """
-    # Summed here, exactly (math.fsum), not by the database: SUM adds in whatever order
+    # Summed here, exactly (``exact_sum``), not by the database: SUM adds in whatever order
     # the engine scans, so SQLite and PostgreSQL could differ in the last digit.
-    areas: dict[int, dict[str | None, list[float]]] = defaultdict(lambda: defaultdict(list))
-    on_saw: dict[int, dict[int | None, list[float]]] = defaultdict(lambda: defaultdict(list))
-    for blade_id, group, saw_id, area in db.bulk_rows(_AREAS_SQL):
-        areas[blade_id][group].append(area)
-        on_saw[blade_id][saw_id].append(area)
+    areas: dict[int, dict[str | None, Terms]] = defaultdict(lambda: defaultdict(list))
+    on_saw: dict[int, dict[int | None, Terms]] = defaultdict(lambda: defaultdict(list))
+    for blade_id, group, saw_id, area, count in db.bulk_rows(_AREAS_SQL):
+        areas[blade_id][group].append((area, count))
+        on_saw[blade_id][saw_id].append((area, count))
     saw_names = {sid: name for sid, name in db.execute("SELECT id, name FROM saws")}
     lives = []
     for row in db.query(
         "SELECT id, tag, blade_material, grade, width_mm, thickness_mm, tpi_coarse, tpi_fine, "
         "price, status, retire_cause, lot, supplier, bought_on FROM blades ORDER BY id"
     ):
-        area_cm2 = math.fsum(a for g in areas.get(row["id"], {}).values() for a in g) / 100.0
+        area_cm2 = exact_sum([t for g in areas.get(row["id"], {}).values() for t in g]) / 100.0
         failed = row["status"] == "retired"
         if area_cm2 <= 0.0 and not (failed and include_unused_failures):
             continue
@@ -115,7 +150,7 @@ def _most(by_key: dict) -> object:
     """The key with the most area (exact sums; ties to the first key in text order)."""
     if not by_key:
         return None
-    sums = {k: math.fsum(by_key[k]) for k in sorted(by_key, key=str)}
+    sums = {k: exact_sum(by_key[k]) for k in sorted(by_key, key=str)}
     return max(sums.items(), key=lambda kv: kv[1])[0]
 
 

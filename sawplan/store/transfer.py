@@ -23,7 +23,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 from sawplan.errors import ConflictError, NotFoundError, StorageError, UsageError
-from sawplan.store.db import connect, read_snapshot, resolve_db, run_write
+from sawplan.store.db import connect, read_snapshot, refresh_statistics, resolve_db, run_write
 from sawplan.store.location import LogLocation
 from sawplan.store.schema import ALL_TABLES, ident, metadata
 
@@ -122,6 +122,7 @@ def copy_log(
             )
         with read_snapshot(reader):
             read = run_write(writer, lambda: _copy_rows(reader, writer, replace=replace))
+        refresh_statistics(writer, {copied.table: copied.rows for copied in read})
         landed = table_digests(writer)
     for expected, got in zip(read, landed, strict=True):
         if expected != got:
