@@ -70,7 +70,7 @@ from sawplan.cutlist.jobfile.types import (
     PartLine,
     StockLine,
 )
-from sawplan.errors import BadDataError, NotFoundError, SawplanError, UsageError
+from sawplan.errors import BadDataError, SawplanError, UsageError
 
 __all__ = [
     "DEFAULT_GRIP_MM",
@@ -110,23 +110,12 @@ def load_job(
 
     ``allow_outside`` lets ``stock_file`` name a file outside the job's folder.
     """
+    from sawplan.user_files import read_text_limited
+
     path = Path(path)
-    try:
-        if path.stat().st_size > MAX_FILE_BYTES:
-            raise BadDataError("is over 5 MB; a job file is a short text file", field=path.name)
-        raw = path.read_bytes()
-    except FileNotFoundError:
-        raise NotFoundError(f"no such file: {path}", field="job file") from None
-    except IsADirectoryError:
-        raise BadDataError(
-            f"{path} is a folder, expected a TOML job file", field="job file"
-        ) from None
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError:
-        raise BadDataError(
-            "is not UTF-8 text (save the job file as UTF-8)", field=path.name
-        ) from None
+    text = read_text_limited(
+        path, MAX_FILE_BYTES, "job file", why="a job file is a short text file", what="the job file"
+    )
     return parse_job(
         text,
         catalogue,
