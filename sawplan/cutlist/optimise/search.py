@@ -67,6 +67,8 @@ def search_plan(instance: Instance, *, clock: Clock, effort: Effort = Effort()) 
             gather_remnants(problem, best.bars, clock=clock, max_donors=effort.polish_donors)
         )
         return SearchOutcome(bars, best.unplaced, bounds, method, True, clock.fired)
+    if clock.expired():  # the first plan took all the time there was: it is the answer
+        return SearchOutcome(best.bars, best.unplaced, bounds, method, False, True)
     try:
         pool = _seeded_pool(problem, first_bars)
         lp = solve_master_lp(
@@ -97,7 +99,7 @@ def search_plan(instance: Instance, *, clock: Clock, effort: Effort = Effort()) 
     except LpFailure:
         pass
     bars = best.bars
-    if not any(best.unplaced):
+    if not any(best.unplaced) and not clock.expired():  # polish only with time left
         bars = tuple(gather_remnants(problem, bars, clock=clock, max_donors=effort.polish_donors))
     if not proven and not any(best.unplaced):
         proven = _meets_report_bound(problem, bars, bounds)
@@ -154,9 +156,7 @@ def _seeded_pool(problem: Problem, first_bars: list[Bar]) -> ColumnPool:
         capacity = problem.capacity(s)
         for j, w in enumerate(weights):
             if w <= capacity:
-                counts = [0] * len(weights)
-                counts[j] = min(problem.demand[j], capacity // w)
-                pool.add(s, counts)
+                pool.add_one(s, j, min(problem.demand[j], capacity // w))
     for s, counts in first_bars:
         pool.add(s, counts)
     return pool
