@@ -61,6 +61,7 @@ from sawplan.cutlist.jobfile.types import (
     MAX_LENGTH_MM,
     MAX_PARTS,
     MAX_PIECES,
+    MAX_SECTION_PAIRS,
     PART_KEYS,
     REMNANT_CREDIT,
     STOCK_KEYS,
@@ -248,6 +249,7 @@ def parse_job(
     job_lines = {key: lines.key_line("[job]", 0, key) for key in job_table}
     job = Job(file, header, tuple(stock), tuple(parts), materials, sections, job_lines)
     check_parts_have_stock(job, lines)
+    _check_sections(job)
     return job
 
 
@@ -307,6 +309,21 @@ def _check_size(parts: list[PartLine], file: str) -> None:
             hint="split it into several jobs",
         )
         raise located(err, Where(file, ""))
+
+
+def _check_sections(job: Job) -> None:
+    """Each section's distinct lengths × stock lines within the optimiser's budget."""
+    for group in job.groups():
+        lengths = {p.length_mm for p in job.parts if p.group == group}
+        lines = sum(1 for s in job.stock if s.group == group)
+        if len(lengths) * lines > MAX_SECTION_PAIRS:
+            err = BadDataError(
+                f"{group[0]} {group[1]} has {len(lengths):,} piece lengths and {lines:,} "
+                f"stock lines ({len(lengths) * lines:,} pairs), at most {MAX_SECTION_PAIRS:,} "
+                "in one section",
+                hint="split the job, or merge stock lines of the same length",
+            )
+            raise located(err, Where(job.file, ""))
 
 
 def _with_field(err: SawplanError, name: str) -> SawplanError:
