@@ -11,8 +11,9 @@ from ``os.wait4``) and the wall time are the command's own.  Jobs (fictional):
 - the most parts accepted: 1,000 distinct parts × 50 pieces on 10 stock lines;
 - the most pieces accepted: 3 parts × 33,333 pieces (about 100,000).
 Each runs with ``--time-limit`` (default 10 s) and again with a short one
-(default 5 s: the first plan and the sheet of 50,000 pieces take about 2 s).  Goals (issue): every job within its limit (honoured within
-10 %, after Python's start-up) and under 1 GB of memory.
+(default 5 s: the first plan and the sheet of 50,000 pieces take about 2 s).
+Goals (issue): every job within its limit (honoured within 10 %, after
+Python's start-up) and under 1 GB of memory.
 
 Then the reads and the forecasts that once ran away:
 - a job whose ``stock_file`` is a FIFO, and one naming ``/dev/zero`` with
