@@ -77,15 +77,19 @@ def jobs() -> list[tuple[str, str]]:
     ]
 
 
-def run(argv: list[str]) -> tuple[float, float, int, str]:
-    """(wall seconds, peak MB, exit code, last stderr line) of one child process."""
+def run(argv: list[str]) -> tuple[float, float, int, str, float]:
+    """(wall s, peak MB, exit code, last stderr line, CPU s) of one child process.
+
+    The CPU seconds (user + system) are the steadier figure on a shared machine."""
     started = time.perf_counter()
     child = subprocess.Popen(argv, cwd=ROOT, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     assert child.stderr is not None
     err = child.stderr.read().decode("utf-8", "replace").strip().splitlines()
     _, status, usage = os.wait4(child.pid, 0)
     seconds = time.perf_counter() - started
-    return seconds, usage.ru_maxrss / 1024, os.waitstatus_to_exitcode(status), (err or [""])[-1]
+    code = os.waitstatus_to_exitcode(status)
+    cpu = usage.ru_utime + usage.ru_stime
+    return seconds, usage.ru_maxrss / 1024, code, (err or [""])[-1], cpu
 
 
 def sawplan(*args: str) -> list[str]:
@@ -105,18 +109,19 @@ assert fc.method == "{method}", fc.method
 
 def plans(limit: float, short: float, startup: float) -> bool:
     ok = True
-    print(f"{'job':<26} {'limit s':>7} {'wall s':>7} {'peak MB':>8} {'exit':>4}  goal")
+    print(f"{'job':<26} {'limit s':>7} {'wall s':>7} {'CPU s':>6} {'peak MB':>8} {'exit':>4}  goal")
     with tempfile.TemporaryDirectory() as tmp:
         for name, text in jobs():
             path = Path(tmp) / "job.toml"
             path.write_text(text, encoding="utf-8")
             for seconds_given in (limit, short):
                 argv = sawplan("plan", str(path), "--saw", "mid-production")
-                seconds, peak, code, _ = run([*argv, "--time-limit", str(seconds_given)])
+                seconds, peak, code, _, cpu = run([*argv, "--time-limit", str(seconds_given)])
                 within = seconds - startup <= 1.1 * seconds_given and peak < GOAL_MB
                 ok &= within and code == 0
                 print(
-                    f"{name:<26} {seconds_given:>7.1f} {seconds:>7.2f} {peak:>8.0f} {code:>4}  "
+                    f"{name:<26} {seconds_given:>7.1f} {seconds:>7.2f} {cpu:>6.2f} {peak:>8.0f} "
+                    f"{code:>4}  "
                     f"{'met' if within else 'MISSED'} "
                     f"(≤ {1.1 * seconds_given:.1f} s after start-up, < {GOAL_MB} MB)"
                 )
@@ -125,7 +130,9 @@ def plans(limit: float, short: float, startup: float) -> bool:
 
 def quick_ones() -> bool:
     ok = True
-    print(f"\n{'refusal or forecast':<40} {'wall s':>7} {'peak MB':>8} {'exit':>4}  goal")
+    print(
+        f"\n{'refusal or forecast':<40} {'wall s':>7} {'CPU s':>6} {'peak MB':>8} {'exit':>4}  goal"
+    )
     with tempfile.TemporaryDirectory() as tmp:
         folder = Path(tmp)
         os.mkfifo(folder / "stock.csv")
@@ -164,11 +171,11 @@ def quick_ones() -> bool:
             ),
         ]
         for name, argv, want in cases:
-            seconds, peak, code, last = run(argv)
+            seconds, peak, code, last, cpu = run(argv)
             within = seconds < QUICK_S and peak < QUICK_MB and code == want
             ok &= within
             print(
-                f"{name:<40} {seconds:>7.2f} {peak:>8.0f} {code:>4}  "
+                f"{name:<40} {seconds:>7.2f} {cpu:>6.2f} {peak:>8.0f} {code:>4}  "
                 f"{'met' if within else 'MISSED'} (< {QUICK_S:g} s, < {QUICK_MB} MB, exit {want})"
             )
             if code != want:
