@@ -38,6 +38,7 @@ ROOT = Path(__file__).resolve().parent.parent
 GOAL_MB = 1024
 QUICK_S = 2.0
 QUICK_MB = 300
+HANG_S = 120  # a child still running after this is killed (exit -9 in the table)
 
 
 def job_text(
@@ -81,11 +82,16 @@ def run(argv: list[str]) -> tuple[float, float, int, str, float]:
     """(wall s, peak MB, exit code, last stderr line, CPU s) of one child process.
 
     The CPU seconds (user + system) are the steadier figure on a shared machine."""
+    import threading
+
     started = time.perf_counter()
     child = subprocess.Popen(argv, cwd=ROOT, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    stop = threading.Timer(HANG_S, child.kill)  # a hang is a miss, not a stuck bench
+    stop.start()
     assert child.stderr is not None
     err = child.stderr.read().decode("utf-8", "replace").strip().splitlines()
     _, status, usage = os.wait4(child.pid, 0)
+    stop.cancel()
     seconds = time.perf_counter() - started
     code = os.waitstatus_to_exitcode(status)
     cpu = usage.ru_utime + usage.ru_stime
