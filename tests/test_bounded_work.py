@@ -103,3 +103,53 @@ def test_lengths_times_stock_lines_of_a_section_are_bounded(cli, tmp_path):
     job = job_file(tmp_path, [f"{1000 + i}mm" for i in range(500)], stock)
     r = cli("plan", str(job), "--time-limit", "2")
     assert r.code == 0, r.err
+
+
+@given(
+    counts=st.lists(st.integers(min_value=0, max_value=4), min_size=1, max_size=6),
+    demand=st.lists(st.integers(min_value=0, max_value=40), min_size=6, max_size=6),
+    copies=st.integers(min_value=0, max_value=12),
+    limit=st.one_of(st.none(), st.integers(min_value=0, max_value=12)),
+)
+def test_whole_copies_cut_at_once_match_one_at_a_time(counts, demand, copies, limit):
+    # rounding down cuts the copies whose pieces are all wanted in one step: the same
+    # bars, demand and stock left as cutting them one by one
+    from sawplan.cutlist.optimise.rounding import _cut, _cut_whole, _State, _whole_copies
+
+    n = len(counts)
+    if not any(counts):
+        counts[0] = 1
+
+    class OnePool:  # the two things _cut asks of a pool
+        stock = [0]
+
+        @staticmethod
+        def counts(column):
+            return tuple(counts)
+
+    one = _State([], list(demand[:n]), [limit])
+    for _ in range(copies):
+        _cut(OnePool, 0, one)
+    batch = _State([], list(demand[:n]), [limit])
+    whole = _whole_copies(OnePool, 0, batch, copies)
+    if whole:
+        _cut_whole(OnePool, 0, batch, whole)
+    for _ in range(copies - whole):
+        _cut(OnePool, 0, batch)
+    assert (batch.fixed, batch.demand, batch.limits) == (one.fixed, one.demand, one.limits)
+
+
+@given(counts=st.lists(st.integers(min_value=0, max_value=9), min_size=1, max_size=8))
+def test_a_filling_size_is_the_same_however_it_is_asked(counts):
+    # (pieces, total length) by definition: Σn and Σ n·length; remembered by the tuple's
+    # id, so an equal tuple, the same tuple again and a list must all agree
+    from sawplan.cutlist.optimise.problem import Problem
+
+    lengths = tuple(range(100 * len(counts), 0, -100))
+    problem = Problem(lengths, (1,) * len(counts), (10_000,), (None,), (1.0,), (1.0,), 0, 0, 0, 0)
+    want = (sum(counts), sum(n * length for n, length in zip(counts, lengths, strict=True)))
+    first = tuple(counts)
+    assert problem.size(first) == want
+    assert problem.size(first) == want
+    assert problem.size(tuple(list(counts))) == want
+    assert problem.size(list(counts)) == want
