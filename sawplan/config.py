@@ -169,13 +169,13 @@ def _read_cached(path: str, mtime_ns: int, size: int) -> tuple[tuple[str, str], 
 def _parse(path: Path, size: int) -> dict[str, str]:
     import tomllib
 
+    from sawplan.user_files import read_text_limited
+
     where = f"config file {path}"
-    if size > MAX_FILE_BYTES:
-        raise BadDataError(f"is over {MAX_FILE_BYTES // 1000} kB; a config file is a few lines",
-                           field=where)  # fmt: skip
+    text = read_text_limited(path, MAX_FILE_BYTES, where, why="a config file is a few lines")
     try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as err:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as err:
         raise BadDataError(f"is not readable TOML ({err})", field=where) from None
     out: dict[str, str] = {}
     for key, raw in data.items():

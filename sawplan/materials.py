@@ -320,13 +320,17 @@ def _read_table(path: Path, *, label: str, origin: str, user: bool) -> list[Mate
 
     A missing file raises FileNotFoundError for the caller to name.
     """
+    from sawplan.user_files import MB, open_text_limited
+
     try:
-        with path.open(newline="", encoding="utf-8-sig") as handle:
+        with open_text_limited(
+            path, 5 * MB, "materials file", why="a materials file is a short text file", shown=label
+        ) as handle:
             text_rows = list(csv.reader(handle))
+    except NotFoundError:
+        raise FileNotFoundError(path) from None
     except UnicodeDecodeError:
         raise BadDataError("not a UTF-8 text file (save the CSV as UTF-8)", field=label) from None
-    except IsADirectoryError:
-        raise BadDataError("is a folder, expected a CSV file", field=label) from None
     if not text_rows:
         raise BadDataError("empty file, expected a header row of material columns", field=label)
     header = [name.strip() for name in text_rows[0]]

@@ -157,12 +157,15 @@ class SectionLike(Protocol):
 
 
 def _read_toml(path: Path, *, origin: str) -> dict[str, Saw]:
+    from sawplan.user_files import MB, read_text_limited
+
     try:
-        with path.open("rb") as handle:
-            raw = tomllib.load(handle)
-    except FileNotFoundError:
+        text = read_text_limited(path, MB, "saws file", why="a saws file is a short text file")
+    except NotFoundError:
         raise NotFoundError(f"no such saws file: {path}", field="saws") from None
-    except (OSError, tomllib.TOMLDecodeError, RecursionError, UnicodeDecodeError) as exc:
+    try:
+        raw = tomllib.loads(text)
+    except (tomllib.TOMLDecodeError, RecursionError) as exc:
         raise DamagedFileError(f"cannot read the saws file {path}: {exc}", field="saws") from None
     table = raw.get("saw")
     if not isinstance(table, dict):

@@ -215,11 +215,16 @@ def render_forecast(f: Any, units: UnitSystem | Display) -> str:
     d = as_display(units)
     what = f" of {f.material} ({f.material_group})" if f.material else ""
     lines = [f"blades needed to cut {_area(d, f.area_cm2)}{what}: {f.blades_needed}"]
-    if f.method == "weibull-simulation":
+    if f.method.startswith("weibull"):
         lines.append(
             f"  {fmt_percent(f.confidence)} sure from the blade log's Weibull fit (β {f.weibull_shape:.2f}, "
             f"η {_area(d, f.weibull_scale_cm2)}); expected {f.expected_blades:.1f} blades"
         )
+        if f.method == "weibull-normal":
+            lines.append(
+                "  so many blades that the sum of their lives is taken as normal "
+                "(central limit theorem), not simulated"
+            )
     else:
         lines.append(f"  area ÷ life per blade {_area(d, f.life_cm2)}, rounded up")
     lines.append(f"  {d.text(f.note)}")

@@ -10,6 +10,15 @@ count is ⌈area / L⌉.
 A blade already on the saw can be counted as the first one (``used_area_cm2``):
 its remaining life is drawn from the life distribution given that it has
 survived that far, (L/η)^β = (u/η)^β + E with E ~ Exp(1).
+
+The work is bounded by lives drawn, not by blades: a run that needs n blades
+draws about n lives, so the number of runs falls as n grows (at most
+``MAX_DRAWS`` lives in all).  Past ``NORMAL_FROM`` blades per run the sum of
+the lives is so close to normal (central limit theorem) that it is used
+instead of drawing: the sum of k lives has mean kμ and variance kσ², with
+μ = ηΓ(1+1/β) and σ² = η²(Γ(1+2/β) − Γ(1+1/β)²) (method "weibull-normal").
+Past ``MAX_BLADES`` blades per run the forecast is refused: the area or the
+lives are wrong.
 """
 
 from __future__ import annotations
@@ -22,7 +31,11 @@ from sawplan.errors import BadDataError
 from sawplan.life.weibull import WeibullFit, WeibullNotFitted
 
 DEFAULT_SEED = 20_240_611
-MAX_BLADES = 100_000
+MAX_BLADES = 100_000  # blades per run: more is a wrong area or a wrong life
+MAX_DRAWS = 5_000_000  # lives drawn by one simulation (work, and memory per block)
+NORMAL_FROM = 2_000  # blades per run from which the sum of lives is taken as normal
+MIN_RUNS = 1_000  # the fewest simulated runs the work cap leaves
+BLOCK_CELLS = 1_000_000  # lives drawn at once (8 MB of floats)
 
 
 @dataclass(frozen=True)
@@ -31,7 +44,10 @@ class Forecast:
 
     ``blades_needed`` counts the partly used blade on the saw when
     ``used_area_cm2`` was given; ``new_blades_needed`` does not.
-    ``probability_curve`` pairs a blade count k with P(k blades cut the area).
+    ``probability_curve`` pairs a blade count k with P(k blades cut the area)
+    (under the normal approximation, only from P ≈ 0.001 to 0.999).
+    ``simulations`` is the number of simulated runs and ``draws`` the lives
+    drawn for them (both 0 when nothing was drawn).
     """
 
     area_cm2: float
@@ -40,11 +56,12 @@ class Forecast:
     expected_blades: float
     confidence: float
     achieved_probability: float
-    method: Literal["weibull-simulation", "deterministic"]
+    method: Literal["weibull-simulation", "weibull-normal", "deterministic"]
     probability_curve: tuple[tuple[int, float], ...]
     used_area_cm2: float
     simulations: int
     seed: int | None
+    draws: int = 0
 
 
 def forecast_blades(
@@ -87,7 +104,30 @@ def forecast_blades(
         )
     _require(simulations >= 100, "simulations", "at least 100", simulations)
     assert isinstance(fit, WeibullFit)
-    return _simulate(area_cm2, fit, confidence, simulations, seed, used_area_cm2)
+    per_run = blades_per_run(area_cm2, fit, used_area_cm2)
+    if per_run > MAX_BLADES:
+        raise BadDataError(
+            f"needs about {per_run:,.0f} blades, more than {MAX_BLADES:,}; "
+            "check the area and the blade lives",
+            field="area_cm2",
+        )
+    if per_run > NORMAL_FROM:
+        return _normal(area_cm2, fit, confidence, seed, used_area_cm2)
+    # fewer runs when each needs many blades: the work is the lives drawn
+    runs = min(simulations, max(MIN_RUNS, MAX_DRAWS // math.ceil(per_run + 1)))
+    return _simulate(area_cm2, fit, confidence, runs, seed, used_area_cm2)
+
+
+def blades_per_run(area_cm2: float, fit: WeibullFit, used_area_cm2: float = 0.0) -> float:
+    """About how many blades one run takes: area ÷ mean life, plus the blade on the saw."""
+    return area_cm2 / fit.mean_life_cm2 + (1.0 if used_area_cm2 > 0.0 else 0.0)
+
+
+def life_moments(shape: float, scale_cm2: float) -> tuple[float, float]:
+    """Mean and variance of a Weibull life: ηΓ(1+1/β) and η²(Γ(1+2/β) − Γ(1+1/β)²)."""
+    g1 = math.gamma(1.0 + 1.0 / shape)
+    g2 = math.gamma(1.0 + 2.0 / shape)
+    return scale_cm2 * g1, scale_cm2**2 * max(g2 - g1 * g1, 0.0)
 
 
 def deterministic_count(area_cm2: float, life_cm2: float) -> int:
@@ -152,8 +192,11 @@ def _simulate(
         count += 1
     open_runs = np.flatnonzero(total < area_cm2)
     block = max(4, min(256, math.ceil(1.25 * area_cm2 / fit.mean_life_cm2) + 2))
+    draws = int(count.sum())
     while open_runs.size:
+        block = max(4, min(block, BLOCK_CELLS // open_runs.size))
         lives = eta * rng.weibull(beta, size=(open_runs.size, block))
+        draws += lives.size
         sums = total[open_runs, None] + np.cumsum(lives, axis=1)
         reached = sums >= area_cm2
         done = reached.any(axis=1)
@@ -189,6 +232,70 @@ def _simulate(
         used_area_cm2=used_area_cm2,
         simulations=simulations,
         seed=seed,
+        draws=draws,
+    )
+
+
+def _normal(
+    area_cm2: float, fit: WeibullFit, confidence: float, seed: int | None, used_area_cm2: float
+) -> Forecast:
+    """The count when runs need thousands of blades: the sum of k lives taken as normal.
+
+    P(k blades cover A) = Φ((m_k − A)/s_k), m_k and s_k² the mean and variance
+    of the sum.  A blade on the saw adds its remaining life, whose mean and
+    variance are taken from draws of it (the conditional Weibull).
+    """
+    from statistics import NormalDist
+
+    mu, var = life_moments(fit.shape, fit.scale_cm2)
+    first_mean = first_var = 0.0
+    draws = used = 0
+    if used_area_cm2 > 0.0:
+        import numpy as np
+
+        rng = np.random.default_rng(seed)
+        draws = 20_000
+        base = (used_area_cm2 / fit.scale_cm2) ** fit.shape
+        life = fit.scale_cm2 * (base + rng.standard_exponential(draws)) ** (1.0 / fit.shape)
+        rest = life - used_area_cm2
+        first_mean, first_var, used = float(rest.mean()), float(rest.var()), 1
+    normal = NormalDist()
+
+    def p_cover(k: int) -> float:
+        new = k - used
+        mean = first_mean + new * mu
+        sd = math.sqrt(first_var + new * var)
+        if sd == 0.0:
+            return 1.0 if mean >= area_cm2 else 0.0
+        return normal.cdf((mean - area_cm2) / sd)
+
+    def first_k(p: float) -> int:
+        """The smallest k with P(k blades cover A) ≥ p (P rises with k)."""
+        lo, hi = used + 1, used + 1
+        while p_cover(hi) < p:
+            lo, hi = hi + 1, hi * 2
+        while lo < hi:
+            mid = (lo + hi) // 2
+            lo, hi = (lo, mid) if p_cover(mid) >= p else (mid + 1, hi)
+        return lo
+
+    needed = first_k(confidence - 1e-12)
+    start, last = first_k(0.001), max(first_k(0.999), needed)
+    # renewal theory: E[count] ≈ (A − first)/μ + E[L²]/(2μ²) + (the blade on the saw)
+    expected = (area_cm2 - first_mean) / mu + (var + mu * mu) / (2 * mu * mu) + used
+    return Forecast(
+        area_cm2=area_cm2,
+        blades_needed=needed,
+        new_blades_needed=needed - used,
+        expected_blades=expected,
+        confidence=confidence,
+        achieved_probability=p_cover(needed),
+        method="weibull-normal",
+        probability_curve=tuple((k, p_cover(k)) for k in range(start, last + 1)),
+        used_area_cm2=used_area_cm2,
+        simulations=0,
+        seed=seed if used else None,
+        draws=draws,
     )
 
 

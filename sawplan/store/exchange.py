@@ -193,7 +193,8 @@ def import_csv(db: Database, folder: str | os.PathLike[str]) -> TransferResult:
         return TransferResult(str(src), result.rows)
     if not src.is_dir():
         raise NotFoundError(f"no folder {src}", field="folder")
-    present = [t for t in TABLES if (src / f"{t}.csv").is_file()]
+    # a pipe or device under a table's name is refused when read, never skipped
+    present = [t for t in TABLES if os.path.lexists(src / f"{t}.csv")]
     if not present:
         raise NotFoundError(
             f"{src} holds none of {', '.join(f'{t}.csv' for t in TABLES)}", field="folder"
@@ -220,7 +221,7 @@ def _check_before_commit(db: Database) -> None:
 
 
 EXPORT_MEMBERS = tuple(f"{t}.csv" for t in TABLES)
-MAX_MEMBER_BYTES = 2_000_000_000  # a CSV in an export zip; far above any shop's log
+MAX_MEMBER_BYTES = 2_000_000_000  # one CSV of an import, in a folder or a zip; far above any log
 
 
 def zipfile_like(path: Path) -> bool:
@@ -235,14 +236,17 @@ def unpack_export(archive: Path, into: Path) -> None:
     """The export CSVs of a zip, and nothing else (no paths, no other names, size-capped)."""
     import zipfile
 
+    from sawplan.user_files import copy_member, over_cap
+
     try:
         with zipfile.ZipFile(archive) as zf:
             for info in zf.infolist():
                 if info.filename not in EXPORT_MEMBERS:
                     continue
                 if info.file_size > MAX_MEMBER_BYTES:
-                    raise BadDataError(f"{info.filename} is too large", field=archive.name)
-                (into / info.filename).write_bytes(zf.read(info))
+                    raise over_cap(info.filename, MAX_MEMBER_BYTES, archive.name)
+                # the header's size may lie: the cap is applied again while unpacking
+                copy_member(zf, info, into / info.filename, MAX_MEMBER_BYTES, archive.name)
     except zipfile.BadZipFile as err:
         raise BadDataError(f"is not a readable zip ({err})", field=archive.name) from None
 
@@ -251,9 +255,11 @@ Row = tuple[int, dict[str, Any]]  # (data row number, values)
 
 
 def _read_table(path: Path, table: str) -> list[Row]:
+    from sawplan.user_files import open_text_limited
+
     columns = TABLES[table]
     try:
-        with path.open(encoding="utf-8-sig", newline="") as handle:
+        with open_text_limited(path, MAX_MEMBER_BYTES, path.name) as handle:
             reader = csv.DictReader(handle)
             header = [h.strip() for h in (reader.fieldnames or [])]
             missing = [c for c in columns if c not in header]

@@ -61,6 +61,7 @@ from sawplan.cutlist.jobfile.types import (
     MAX_LENGTH_MM,
     MAX_PARTS,
     MAX_PIECES,
+    MAX_SECTION_PAIRS,
     PART_KEYS,
     REMNANT_CREDIT,
     STOCK_KEYS,
@@ -70,7 +71,7 @@ from sawplan.cutlist.jobfile.types import (
     PartLine,
     StockLine,
 )
-from sawplan.errors import BadDataError, NotFoundError, SawplanError, UsageError
+from sawplan.errors import BadDataError, SawplanError, UsageError
 
 __all__ = [
     "DEFAULT_GRIP_MM",
@@ -110,23 +111,12 @@ def load_job(
 
     ``allow_outside`` lets ``stock_file`` name a file outside the job's folder.
     """
+    from sawplan.user_files import read_text_limited
+
     path = Path(path)
-    try:
-        if path.stat().st_size > MAX_FILE_BYTES:
-            raise BadDataError("is over 5 MB; a job file is a short text file", field=path.name)
-        raw = path.read_bytes()
-    except FileNotFoundError:
-        raise NotFoundError(f"no such file: {path}", field="job file") from None
-    except IsADirectoryError:
-        raise BadDataError(
-            f"{path} is a folder, expected a TOML job file", field="job file"
-        ) from None
-    try:
-        text = raw.decode("utf-8-sig")
-    except UnicodeDecodeError:
-        raise BadDataError(
-            "is not UTF-8 text (save the job file as UTF-8)", field=path.name
-        ) from None
+    text = read_text_limited(
+        path, MAX_FILE_BYTES, "job file", why="a job file is a short text file", what="the job file"
+    )
     return parse_job(
         text,
         catalogue,
@@ -259,6 +249,7 @@ def parse_job(
     job_lines = {key: lines.key_line("[job]", 0, key) for key in job_table}
     job = Job(file, header, tuple(stock), tuple(parts), materials, sections, job_lines)
     check_parts_have_stock(job, lines)
+    _check_sections(job)
     return job
 
 
@@ -318,6 +309,21 @@ def _check_size(parts: list[PartLine], file: str) -> None:
             hint="split it into several jobs",
         )
         raise located(err, Where(file, ""))
+
+
+def _check_sections(job: Job) -> None:
+    """Each section's distinct lengths × stock lines within the optimiser's budget."""
+    for group in job.groups():
+        lengths = {p.length_mm for p in job.parts if p.group == group}
+        lines = sum(1 for s in job.stock if s.group == group)
+        if len(lengths) * lines > MAX_SECTION_PAIRS:
+            err = BadDataError(
+                f"{group[0]} {group[1]} has {len(lengths):,} piece lengths and {lines:,} "
+                f"stock lines ({len(lengths) * lines:,} pairs), at most {MAX_SECTION_PAIRS:,} "
+                "in one section",
+                hint="split the job, or merge stock lines of the same length",
+            )
+            raise located(err, Where(job.file, ""))
 
 
 def _with_field(err: SawplanError, name: str) -> SawplanError:

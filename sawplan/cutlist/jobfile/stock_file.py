@@ -56,20 +56,17 @@ def resolve_stock_file(value: str, folder: Path, *, allow_outside: bool = False)
 
 def stock_file_entries(path: Path, shown: str, where: Where) -> list[JobEntry]:
     """The stock file's rows as entries whose errors name the CSV file and line."""
+    from sawplan.user_files import read_text_limited
+
     try:
-        if path.stat().st_size > MAX_FILE_BYTES:
-            raise BadDataError("is over 5 MB; a stock list is a short text file", field=shown)
-        text = path.read_bytes().decode("utf-8-sig")
-    except FileNotFoundError:
-        raise located(NotFoundError(f"no such file: {path}", field="stock_file"), where) from None
-    except IsADirectoryError:
-        err = BadDataError(f"{path} is a folder, expected a CSV file", field="stock_file")
+        text = read_text_limited(
+            path, MAX_FILE_BYTES, "stock file", why="a stock list is a short text file",
+            what="it", shown=shown,
+        )  # fmt: skip
+    except NotFoundError as err:
+        raise located(NotFoundError(err.message, field="stock_file"), where) from None
+    except BadDataError as err:
         raise located(err, where) from None
-    except UnicodeDecodeError:
-        raise BadDataError("is not UTF-8 text (save it as UTF-8 CSV)", field=shown) from None
-    except OSError as err:
-        msg = f"cannot read {path}: {err.strerror or err}"
-        raise located(BadDataError(msg, field="stock_file"), where) from None
     try:
         reader = csv.reader(io.StringIO(text, newline=""))
         rows = [(reader.line_num, row) for row in reader]

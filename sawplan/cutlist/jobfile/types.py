@@ -32,7 +32,10 @@ MAX_FILE_BYTES = 5_000_000
 MAX_TEXT = 200  # a text key without a field of its own
 # The largest job accepted (its plan's time and memory are measured in bench/bench_limits.py):
 MAX_PIECES = 100_000  # pieces in one job: a cut sheet longer than this is split into jobs
-MAX_PARTS = 2_000  # [[part]] entries in one job
+MAX_PARTS = 1_000  # [[part]] entries in one job
+# distinct piece lengths × stock lines of one section: the optimiser's first columns, and
+# its memory (a column per pair, a number per length in each column)
+MAX_SECTION_PAIRS = 10_000
 REMNANT_CREDIT = ("bar-price", "none")  # quote policy for remnants that go back on the rack
 
 

@@ -45,3 +45,14 @@ class Clock:
 
     def left(self) -> float:
         return max(self.deadline - time.perf_counter(), 0.0)
+
+    def keep_back(self, seconds: float) -> None:
+        """Stop ``seconds`` earlier: time the work after the search will need."""
+        self.deadline -= max(seconds, 0.0)
+
+
+# What follows the search (the report, the bars laid out, the sheet) takes two
+# to four times the first-fit pass on the same pieces (bench_limits; plan_job
+# keeps back a share too).  On a busy machine both slow down alike, so the
+# search keeps this many first-fit passes back.
+AFTER_SEARCH_PER_FFD = 3.0

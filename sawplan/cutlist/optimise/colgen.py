@@ -22,7 +22,7 @@ from math import ceil
 from typing import Any
 
 from sawplan.cutlist.optimise.budget import Clock
-from sawplan.cutlist.optimise.knapsack import solve_bounded_knapsack
+from sawplan.cutlist.optimise.knapsack import TableTooLarge, solve_bounded_knapsack
 from sawplan.cutlist.optimise.pool import ColumnPool
 from sawplan.cutlist.optimise.problem import Problem
 
@@ -227,7 +227,10 @@ def _price(
     capacities = problem.capacities
     bounds = [d if d > 0 else 0 for d in demand]
     top = max(capacities[s] for s in usable)
-    table = solve_bounded_knapsack(problem.weights, list(prices.items), bounds, top)
+    try:
+        table = solve_bounded_knapsack(problem.weights, list(prices.items), bounds, top)
+    except TableTooLarge as err:  # the search keeps the first plan and its length bound
+        raise LpFailure(f"pricing table too large: {err}") from None
     ratio = 0.0
     lagrange = float(wanted @ prices.items)
     worst_unlimited = 0.0

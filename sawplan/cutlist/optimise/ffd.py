@@ -62,7 +62,7 @@ def pack_first_fit_decreasing(
     n_items = len(weights)
     tree = _FirstFitTree(sum(demand))
     stock_of: list[int] = []
-    fill: list[list[int]] = []
+    fill: list[dict[int, int]] = []  # the items of each bar (few of the order's many)
     unplaced = [0] * n_items
     order = sorted(range(n_items), key=lambda j: -weights[j])
     for j in order:
@@ -80,17 +80,29 @@ def pack_first_fit_decreasing(
                 bar = tree.count
                 tree.count += 1
                 stock_of.append(s)
-                fill.append([0] * n_items)
+                fill.append({})
                 tree.set(bar, capacities[s])
             # The first bar with room stays first until it is full, so its copies go in
             # at once: the same packing as one piece at a time.
             room = tree.get(bar)
             take = min(wanted, room // w)
-            fill[bar][j] += take
+            fill[bar][j] = fill[bar].get(j, 0) + take
             tree.set(bar, room - take * w)
             wanted -= take
-    bars = [(s, tuple(counts)) for s, counts in zip(stock_of, fill, strict=True)]
-    return downsize(problem, bars, limits), unplaced
+    return downsize(problem, _dense(stock_of, fill, n_items), limits), unplaced
+
+
+def _dense(stock_of: list[int], fill: list[dict[int, int]], n_items: int) -> list[Bar]:
+    """Bars as (stock, counts of every item); bars filled alike share one counts tuple."""
+    shared: dict[tuple[int, ...], tuple[int, ...]] = {}
+    bars: list[Bar] = []
+    for s, items in zip(stock_of, fill, strict=True):
+        counts = [0] * n_items
+        for j, n in items.items():
+            counts[j] = n
+        key = tuple(counts)
+        bars.append((s, shared.setdefault(key, key)))
+    return bars
 
 
 def _stock_to_open(

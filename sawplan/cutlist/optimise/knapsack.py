@@ -7,6 +7,10 @@ lengths at once.  Each item of bound b is split into 0/1 parts of 1, 2, 4, ...
 copies (binary splitting), and each part updates the whole capacity row with
 one numpy operation.  Weights and capacities are divided by the gcd of the
 weights first, which makes fine resolutions (0.1 mm) cheap when the sizes allow.
+
+The table of choices is kept one bit per (part, capacity), packed eight to a
+byte, and refused (``TableTooLarge``) past ``MAX_TABLE_BITS``: a thousand
+lengths on a 12 m bar at 0.1 mm would otherwise take a gigabyte per pricing.
 """
 
 from __future__ import annotations
@@ -17,6 +21,11 @@ from math import gcd
 from typing import Any
 
 _TIE = 1e-12
+MAX_TABLE_BITS = 1_000_000_000  # 125 MB of choices; seconds of numpy work per pricing
+
+
+class TableTooLarge(ValueError):
+    """The pricing table would outgrow its memory budget."""
 
 
 @dataclass(frozen=True)
@@ -26,7 +35,7 @@ class KnapsackTable:
     best: Any  # numpy float array: best[c] = best value with total weight <= c * unit
     unit: int  # the gcd the weights were divided by
     parts: tuple[tuple[int, int, int], ...]  # (item, copies, reduced weight) per 0/1 part
-    take: Any  # numpy bool array [part, reduced capacity]: part taken in the best filling
+    take: Any  # numpy uint8 [part, capacity bits packed]: part taken in the best filling
     n_items: int
 
     def _index(self, capacity: int) -> int:
@@ -64,7 +73,8 @@ class KnapsackTable:
         counts = [0] * self.n_items
         p = len(self.parts)
         while p > 0:
-            taken = np.flatnonzero(self.take[:p, c])  # the next part back taken at c
+            bits = (self.take[:p, c >> 3] >> (7 - (c & 7))) & 1  # np.packbits is big-endian
+            taken = np.flatnonzero(bits)  # the next part back taken at c
             if not len(taken):
                 break
             p = int(taken[-1])
@@ -107,14 +117,21 @@ def solve_bounded_knapsack(
             parts.append((j, take, w * take))
             bound -= take
             copies *= 2
+    if len(parts) * (size + 1) > MAX_TABLE_BITS:
+        raise TableTooLarge(
+            f"{len(parts):,} parts × {size + 1:,} capacities exceed {MAX_TABLE_BITS:,} bits"
+        )
     best = np.zeros(size + 1)
     buffer = np.empty(size + 1)
-    take_table = np.zeros((len(parts), size + 1), dtype=bool)
+    row = np.zeros(size + 1, dtype=bool)
+    take_table = np.empty((len(parts), (size + 8) // 8), dtype=np.uint8)
     for p, (j, copies, w) in enumerate(parts):
         n = size + 1 - w
         candidate = buffer[:n]
         np.add(best[:n], values[j] * copies - _TIE, out=candidate)  # ties keep the part out
-        better = take_table[p, w:]
+        row[:w] = False  # capacities below the part's weight cannot take it
+        better = row[w:]
         np.greater(candidate, best[w:], out=better)
         np.add(candidate, _TIE, out=best[w:], where=better)
+        take_table[p] = np.packbits(row)
     return KnapsackTable(best, unit, tuple(parts), take_table, n_items)

@@ -29,12 +29,11 @@ class _Plan:
     def __init__(self, problem: Problem, bars: Sequence[Bar]) -> None:
         self.problem = problem
         self.stock = [s for s, _ in bars]
-        self.fills = [list(counts) for _, counts in bars]
-        self.room = [
-            problem.capacity(s) - problem.load(f)
-            for s, f in zip(self.stock, self.fills, strict=True)
-        ]
-        self.pieces = [sum(f) for f in self.fills]
+        # a bar's filling stays the plan's tuple until a move changes it (then a list)
+        self.fills: list[Sequence[int]] = [counts for _, counts in bars]
+        self.room = [problem.capacity(s) - problem.load(counts) for s, counts in bars]
+        self.pieces = [problem.size(counts)[0] for _, counts in bars]
+        self.weights = problem.weights
         # The tail is the spare capacity plus the grip; the remnant is the tail less a kerf.
         self.keep_from = max(problem.min_remnant, 1) + problem.kerf - problem.grip
 
@@ -44,10 +43,16 @@ class _Plan:
     def scrap(self, b: int) -> bool:
         return self.pieces[b] > 0 and self.room[b] < self.keep_from
 
+    def _changing(self, b: int) -> list[int]:
+        fill = self.fills[b]
+        if isinstance(fill, tuple):
+            fill = self.fills[b] = list(fill)
+        return fill  # type: ignore[return-value]
+
     def move(self, j: int, src: int, dst: int) -> None:
-        w = self.problem.weights[j]
-        self.fills[src][j] -= 1
-        self.fills[dst][j] += 1
+        w = self.weights[j]
+        self._changing(src)[j] -= 1
+        self._changing(dst)[j] += 1
         self.room[src] += w
         self.room[dst] -= w
         self.pieces[src] -= 1
@@ -57,7 +62,11 @@ class _Plan:
         return self.problem.waste(self.stock[b], self.fills[b]) if self.pieces[b] else 0
 
     def bars(self) -> list[Bar]:
-        return [(s, tuple(f)) for s, f in zip(self.stock, self.fills, strict=True) if any(f)]
+        return [
+            (s, f if isinstance(f, tuple) else tuple(f))
+            for s, f, n in zip(self.stock, self.fills, self.pieces, strict=True)
+            if n
+        ]
 
 
 def gather_remnants(

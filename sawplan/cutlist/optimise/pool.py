@@ -43,6 +43,29 @@ class ColumnPool:
             return known
         if not any(counts) or not self.problem.fits(s, counts):
             return -1
+        return self._append(key, np.asarray(counts, dtype=float))
+
+    def add_one(self, s: int, j: int, copies: int) -> int:
+        """Index of the filling of ``copies`` pieces of item ``j`` alone (the seed columns):
+        no pass over the other lengths beyond building the key."""
+        import numpy as np
+
+        counts = [0] * len(self.problem.lengths)
+        counts[j] = copies
+        key = (s, tuple(counts))
+        known = self._index.get(key)
+        if known is not None:
+            return known
+        if copies <= 0 or not self.problem.fits(s, key[1]):
+            return -1
+        column = np.zeros(len(counts))
+        column[j] = copies
+        return self._append(key, column)
+
+    def _append(self, key: tuple[int, tuple[int, ...]], column: Any) -> int:
+        import numpy as np
+
+        s = key[0]
         n = len(self.stock)
         if n == self._matrix.shape[1]:
             grown = np.zeros((self._matrix.shape[0], 2 * n))
@@ -50,18 +73,18 @@ class ColumnPool:
             self._matrix = grown
             self._stock = np.concatenate([self._stock, np.zeros(n, dtype=np.intp)])
             self._start = np.concatenate([self._start, np.zeros(n, dtype=np.intp)])
-        self._matrix[:, n] = counts
+        self._matrix[:, n] = column
         self._stock[n] = s
         self.stock.append(s)
         self._fillings.append(key[1])
-        items = np.flatnonzero(self._matrix[:, n])
+        items = np.flatnonzero(column)
         begin, end = self._start[n], self._start[n] + len(items)
         if end > len(self._items):
             size = max(2 * len(self._items), end)
             self._items = np.concatenate([self._items, np.zeros(size, dtype=np.intp)])
             self._copies = np.concatenate([self._copies, np.zeros(size)])
         self._items[begin:end] = items
-        self._copies[begin:end] = self._matrix[items, n]
+        self._copies[begin:end] = column[items]
         self._start[n + 1] = end
         self._index[key] = n
         return n

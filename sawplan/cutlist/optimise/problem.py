@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass, field
+from functools import cached_property
 from operator import mul
 
 Bar = tuple[int, tuple[int, ...]]  # (stock index, copies of each item)
@@ -34,24 +35,32 @@ class Problem:
     _sizes: dict[tuple[int, ...], tuple[int, int]] = field(
         default_factory=dict, init=False, repr=False, compare=False, hash=False
     )
+    # the same tuple object asked again (a plan's bars share their fillings): found by
+    # its id without hashing hundreds of counts; the entry keeps the tuple alive
+    _by_id: dict[int, tuple[tuple[int, ...], tuple[int, int]]] = field(
+        default_factory=dict, init=False, repr=False, compare=False, hash=False
+    )
 
     def size(self, counts: Sequence[int]) -> tuple[int, int]:
         """(pieces, their total length) of a filling; remembered for tuples."""
-        key = counts if isinstance(counts, tuple) else None
-        if key is not None and key in self._sizes:
-            return self._sizes[key]
-        n = sum(counts)
-        total = sum(map(mul, counts, self.lengths))  # C-level loop: fast on 500-item orders
-        if key is not None:
-            self._sizes[key] = (n, total)
-        return n, total
+        if not isinstance(counts, tuple):
+            return sum(counts), sum(map(mul, counts, self.lengths))
+        seen = self._by_id.get(id(counts))
+        if seen is not None and seen[0] is counts:
+            return seen[1]
+        found = self._sizes.get(counts)
+        if found is None:
+            found = (sum(counts), sum(map(mul, counts, self.lengths)))  # C-level loops
+            self._sizes[counts] = found
+        self._by_id[id(counts)] = (counts, found)
+        return found
 
-    @property
+    @cached_property
     def weights(self) -> tuple[int, ...]:
         """What each piece takes from a bar's capacity: its length and one kerf."""
         return tuple(length + self.kerf for length in self.lengths)
 
-    @property
+    @cached_property
     def capacities(self) -> tuple[int, ...]:
         return tuple(self.capacity(s) for s in range(len(self.stock_lengths)))
 

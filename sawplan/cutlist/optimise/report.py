@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import time
+from collections import Counter
 from collections.abc import Sequence
 from dataclasses import dataclass
 from itertools import compress
@@ -93,7 +94,10 @@ def build_plan(
     """
     problem = instance.problem
     queues = _keys_by_length(instance)
-    ordered = sorted(bars, key=lambda bar: (bar[0], tuple(map(neg, bar[1]))))
+    # bars cut alike are sorted once: the order of the distinct ones, each repeated
+    alike = Counter(bars)
+    distinct = sorted(alike, key=lambda bar: (bar[0], tuple(map(neg, bar[1]))))
+    ordered = [bar for bar in distinct for _ in range(alike[bar])]
     patterns: list[BarPattern] = []
     for s, counts in ordered:
         pieces: list[str] = []

@@ -137,7 +137,13 @@ class _Search:
         """Cut floor(x_p) bars of every filling p; False if nothing rounds down."""
         took = False
         for column, value in zip(lp.columns, lp.values, strict=True):
-            for _copy in range(floor(value + _ROUND_EPS)):
+            copies = floor(value + _ROUND_EPS)
+            # the copies that are cut whole go in at once (one pass over the items)
+            whole = _whole_copies(self.pool, column, state, copies)
+            if whole:
+                _cut_whole(self.pool, column, state, whole)
+                took = True
+            for _copy in range(copies - whole):
                 took |= _cut(self.pool, column, state)
         return took
 
@@ -273,6 +279,35 @@ def _cut(pool: ColumnPool, column: int, state: _State) -> bool:
         demand[j] -= n
     fixed.append((s, counts))
     return True
+
+
+def _whole_copies(pool: ColumnPool, column: int, state: _State, most: int) -> int:
+    """How many copies of a filling (up to ``most``) can be cut with every piece still wanted."""
+    s = pool.stock[column]
+    if most <= 0:
+        return 0
+    limit = state.limits[s]
+    if limit is not None:
+        most = min(most, limit)
+    for n, d in zip(pool.counts(column), state.demand, strict=True):
+        if n and d // n < most:
+            most = d // n
+            if most <= 0:
+                return 0
+    return most
+
+
+def _cut_whole(pool: ColumnPool, column: int, state: _State, copies: int) -> None:
+    """Cut ``copies`` bars of a filling whose pieces are all still wanted (the same bar)."""
+    s = pool.stock[column]
+    counts = pool.counts(column)
+    if state.limits[s] is not None:
+        state.limits[s] -= copies
+    demand = state.demand
+    for j, n in enumerate(counts):
+        if n:
+            demand[j] -= n * copies
+    state.fixed.extend([(s, counts)] * copies)
 
 
 def same_bar_cost(problem: Problem, limits: Sequence[int | None] | None = None) -> float | None:

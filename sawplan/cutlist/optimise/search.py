@@ -17,11 +17,12 @@ Every stage keeps the best plan found so far; the work of each is budgeted
 
 from __future__ import annotations
 
+import time
 from dataclasses import dataclass
 from math import ceil
 
 from sawplan.cutlist.optimise.arcflow import solve_arc_flow
-from sawplan.cutlist.optimise.budget import Clock, Effort
+from sawplan.cutlist.optimise.budget import AFTER_SEARCH_PER_FFD, Clock, Effort
 from sawplan.cutlist.optimise.build import Instance
 from sawplan.cutlist.optimise.colgen import LpFailure, solve_master_lp
 from sawplan.cutlist.optimise.ffd import pack_first_fit_decreasing
@@ -55,7 +56,9 @@ class SearchOutcome:
 def search_plan(instance: Instance, *, clock: Clock, effort: Effort = Effort()) -> SearchOutcome:
     """Best plan within the work budget (or until ``clock`` fires) with its lower bounds."""
     problem = instance.problem
+    started = time.perf_counter()
     first_bars, first_unplaced = pack_first_fit_decreasing(problem)
+    clock.keep_back(AFTER_SEARCH_PER_FFD * (time.perf_counter() - started))
     best = Incumbent(tuple(first_bars), tuple(first_unplaced))
     method = "first-fit-decreasing"
     bounds = material_bounds(instance)
@@ -67,8 +70,12 @@ def search_plan(instance: Instance, *, clock: Clock, effort: Effort = Effort()) 
             gather_remnants(problem, best.bars, clock=clock, max_donors=effort.polish_donors)
         )
         return SearchOutcome(bars, best.unplaced, bounds, method, True, clock.fired)
+    if clock.expired():  # the first plan took all the time there was: it is the answer
+        return SearchOutcome(best.bars, best.unplaced, bounds, method, False, True)
     try:
-        pool = _seeded_pool(problem, first_bars)
+        pool = _seeded_pool(problem, first_bars, clock)
+        if clock.expired():  # seeding a large order took the time: keep the first plan
+            return SearchOutcome(best.bars, best.unplaced, bounds, method, False, True)
         lp = solve_master_lp(
             pool,
             problem.demand,
@@ -97,7 +104,7 @@ def search_plan(instance: Instance, *, clock: Clock, effort: Effort = Effort()) 
     except LpFailure:
         pass
     bars = best.bars
-    if not any(best.unplaced):
+    if not any(best.unplaced) and not clock.expired():  # polish only with time left
         bars = tuple(gather_remnants(problem, bars, clock=clock, max_donors=effort.polish_donors))
     if not proven and not any(best.unplaced):
         proven = _meets_report_bound(problem, bars, bounds)
@@ -146,18 +153,22 @@ def _close(
     return best, method, proven
 
 
-def _seeded_pool(problem: Problem, first_bars: list[Bar]) -> ColumnPool:
-    """Columns to start from: one length per bar (as many as fit) and the FFD bars."""
+def _seeded_pool(problem: Problem, first_bars: list[Bar], clock: Clock) -> ColumnPool:
+    """Columns to start from: one length per bar (as many as fit) and the FFD bars.
+
+    Stops early when the clock fires (the caller then keeps the first plan)."""
     pool = ColumnPool(problem)
     weights = problem.weights
     for s in range(len(problem.stock_lengths)):
+        if clock.expired():
+            return pool
         capacity = problem.capacity(s)
         for j, w in enumerate(weights):
             if w <= capacity:
-                counts = [0] * len(weights)
-                counts[j] = min(problem.demand[j], capacity // w)
-                pool.add(s, counts)
-    for s, counts in first_bars:
+                pool.add_one(s, j, min(problem.demand[j], capacity // w))
+    for n, (s, counts) in enumerate(first_bars):
+        if n % 1024 == 0 and clock.expired():
+            return pool
         pool.add(s, counts)
     return pool
 

@@ -71,6 +71,20 @@ CAUTIONS = (
 CalibrationLookup = Callable[[str, str], "tuple[float, int] | None"]  # (saw, group) -> (factor, n)
 
 
+OUTPUT_S_PER_PIECE = 40e-6  # bars laid out and the text sheet written, per piece (bench_limits)
+
+
+def output_reserve_s(left_s: float, pieces: int) -> float:
+    """Seconds kept back from the optimiser for what follows the layouts.
+
+    A tenth of the time left, or what the pieces take to lay out and print
+    (about 2 s for 50,000 pieces), whichever is more, but never more than half:
+    the search always has time to improve on the first plan.
+    """
+    left_s = max(left_s, 0.0)
+    return min(max(0.1 * left_s, pieces * OUTPUT_S_PER_PIECE), 0.5 * left_s)
+
+
 def plan_job(
     job: Job,
     saw: Any,
@@ -89,8 +103,9 @@ def plan_job(
     the documented default lives (``sawplan.store.default_life``) are used, and the
     plan's notes say so.  ``time_limit_s`` (or an absolute ``deadline`` on
     ``time.perf_counter()``) bounds the whole plan: each section's optimiser gets
-    a share (by its pieces, at least an equal share of what is left); a tenth
-    is kept for everything after the layouts.
+    a share (by its pieces, at least an equal share of what is left); the time
+    after the layouts (bars placed, sheets written) is kept back by
+    :func:`output_reserve_s`.
     """
     import time
 
@@ -99,8 +114,8 @@ def plan_job(
     now = time.perf_counter()
     if deadline is None:
         deadline = now + time_limit_s
-    layouts_end = deadline - 0.1 * max(deadline - now, 0.0)
     pieces_left = sum(p.count for p in job.parts)
+    layouts_end = deadline - output_reserve_s(deadline - now, pieces_left)
     groups_left = len(job.groups())
 
     marks = {p.index: _mark(i) for i, p in enumerate(job.parts)}

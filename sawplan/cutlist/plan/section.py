@@ -13,6 +13,7 @@ to buy), and those bars are the order list.
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from typing import Any
 
@@ -88,13 +89,18 @@ def plan_section(
     layout = result.bars if result is not None else ()
     time_per_cut = cut.cut_time_min
     bars: list[BarCut] = []
+    alike: dict[tuple[str, tuple[str, ...]], BarCut] = {}  # bars cut alike: laid out once
     for i, pattern in enumerate(layout):
+        done = alike.get((pattern.stock_key, pattern.pieces))
+        if done is not None:
+            bars.append(dataclasses.replace(done, bar=first_bar + i))
+            continue
         s = by_stock[pattern.stock_key]
         pieces = [by_part[k] for k in pattern.pieces]
-        bars.append(
-            bar_cut(first_bar + i, label, s, pieces, marks, kerf_mm, h.trim_mm, kg_per_m,
-                 time_per_cut, h.min_remnant_mm, section)
-        )  # fmt: skip
+        done = bar_cut(first_bar + i, label, s, pieces, marks, kerf_mm, h.trim_mm, kg_per_m,
+                       time_per_cut, h.min_remnant_mm, section)  # fmt: skip
+        alike[(pattern.stock_key, pattern.pieces)] = done
+        bars.append(done)
 
     cuts = sum(b.cuts for b in bars)
     stock_len = sum(b.length_mm for b in bars)

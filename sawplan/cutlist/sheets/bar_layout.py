@@ -25,6 +25,12 @@ def _assess(mass_kg: float, shape: str, length_mm: float, width_mm: float) -> An
     return assess_piece(mass_kg, Piece(shape, length_mm, width_mm))
 
 
+@lru_cache(maxsize=1024)
+def _stock_words(label: str, length_mm: float, remnant: bool) -> Any:
+    """What a bar is cut from; one phrase (immutable) for all the bars of a stock line."""
+    return say("{} × {}{}", label, Q("bar_length", length_mm), " (rack remnant)" * remnant)
+
+
 def bar_layout(
     length_mm: float, piece_lengths_mm: list[float], kerf_mm: float, trim_mm: float
 ) -> tuple[list[tuple[float, float]], float | None, float | None, float, float]:
@@ -97,7 +103,7 @@ def bar_cut(
         group=label,
         material=s.material,
         section=s.section_text,
-        stock=say("{} × {}{}", label, Q("bar_length", s.length_mm), " (rack remnant)" * s.remnant),
+        stock=_stock_words(label, s.length_mm, s.remnant),
         stock_entry=s.index,
         location=s.location,
         heat=s.heat,
