@@ -272,8 +272,8 @@ def open_log(
     With ``create=False`` (reading) a missing file or an empty server database
     is not made: an empty in-memory log stands in, so read-only questions
     ("which saws are logged?") answer "none" and leave nothing behind.
-    Opening a file with ``create=True`` (for writing) first checks it for
-    damage (``safety.write_check``).  ``":memory:"`` gives a private
+    Every opening of a file checks it for damage first (``safety.open_check``:
+    nothing is read from or written to a damaged log).  ``":memory:"`` gives a private
     in-memory log (tests).
     """
     from sawplan.store import upgrade
@@ -308,6 +308,15 @@ def open_log(
         raise engines.sqlite_error(err, path) from None
     if light and not create and upgrade.is_current(*header):
         raw.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
+        from sawplan.store.safety import open_check
+
+        try:
+            engines.retry_busy(lambda: open_check(raw, path))
+        except BaseException as err:
+            raw.close()
+            if isinstance(err, sqlite3.DatabaseError):
+                raise engines.sqlite_error(err, path) from None
+            raise
         return LightLog(location, raw)  # type: ignore[return-value]
     return upgrade.open_file(location, raw, header, writing=create)
 

@@ -235,6 +235,14 @@ def sqlite_error(err: BaseException, path: Path | None, *, opened: bool = False)
             field="db",
             hint=restore_hint(path),
         )
+    if "could not decode to utf-8" in text:  # text another program stored: never shown
+        column = text.split("column '", 1)[-1].split("'", 1)[0][:40]
+        return DamagedFileError(
+            f"{where} holds text that is not UTF-8 (column {column}): damaged, or written "
+            "by another program; nothing was written",
+            field="db",
+            hint=restore_hint(path),
+        )
     if "not a database" in text or "malformed" in text or "encrypted" in text:
         return DamagedFileError(
             f"{where} is damaged or not a sawplan blade log ({text}); nothing was written",

@@ -89,7 +89,7 @@ def open_file(
             check_sqlite_identity(raw, *header, where)
         if writing:
             engines.retry_busy(lambda: use_wal(raw))
-            safety.write_check(raw, path)
+        safety.open_check(raw, path)
     except sqlite3.DatabaseError as err:
         raw.close()
         raise engines.sqlite_error(err, path) from None
