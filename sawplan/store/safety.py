@@ -97,15 +97,16 @@ _CHECKED: dict[tuple, str] = {}
 
 
 def file_state(path: Path) -> tuple:
-    """What changes whenever the log or its ``-wal`` is written, by anyone."""
+    """What changes whenever the log or its ``-wal`` is written, by anyone (an empty
+    ``-wal``, which every opening makes and the last closing removes, is no change)."""
     parts: list[object] = [str(path)]
     for part in (path, Path(f"{path}-wal")):
         try:
             st = os.stat(part)
         except OSError:
-            parts.append(None)
-            continue
-        parts.append((st.st_dev, st.st_ino, st.st_size, st.st_mtime_ns))
+            st = None
+        keep = st is not None and (st.st_size > 0 or part == path)
+        parts.append((st.st_dev, st.st_ino, st.st_size, st.st_mtime_ns) if keep else None)
     return tuple(parts)
 
 
