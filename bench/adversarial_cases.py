@@ -179,7 +179,8 @@ def unchanged(name: str) -> Check:
     """The input file ``name`` is as the template had it."""
 
     def check(folder: Path, _out: str, _err: str) -> str | None:
-        if (folder / name).read_bytes() != (folder.parent / "template" / name).read_bytes():
+        template = folder.parents[3] / "template"
+        if (folder / name).read_bytes() != (template / name).read_bytes():
             return f"{name} was overwritten"
         return None
 

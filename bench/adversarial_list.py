@@ -390,7 +390,7 @@ def generated(rng: random.Random, count: int, leaves, baselines) -> list[Attempt
     out = []
     for _ in range(count):
         path, command, base, param = rng.choice(pool)
-        kind = str(getattr(param.type, "name", "")).lower()
+        kind = str(getattr(getattr(param, "type", None), "name", "")).lower()
         values = (
             NUMBERS if kind in ("integer", "float") else rng.choice((QUANTITIES, TEXTS, HOSTILE))
         )

@@ -103,7 +103,7 @@ def _limits(attempt: Attempt):
 
 
 def run_one(attempt: Attempt, template: Path, work: Path, number: int) -> dict:
-    folder = work / f"a{number}"
+    folder = work / "w1" / "w2" / "w3" / f"a{number}"  # "../../../x" stays inside ``work``
     shutil.copytree(template, folder, symlinks=True)
     try:
         if attempt.prep:
@@ -127,7 +127,7 @@ def run_one(attempt: Attempt, template: Path, work: Path, number: int) -> dict:
             out, err = proc.communicate(timeout=attempt.timeout)
             code: int | None = proc.returncode
         except subprocess.TimeoutExpired:
-            os.killpg(proc.pid, signal.SIGKILL)
+            os.killpg(proc.pid, signal.SIGKILL)  # the attempt's own process group
             out, err = proc.communicate()
             code = None
         seconds = time.monotonic() - started
