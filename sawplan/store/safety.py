@@ -92,8 +92,8 @@ def refuse_known_damage(path: Path) -> None:
         raise damaged(path, f"damage was found earlier: {_read_mark(mark)}")
 
 
-# file states this process found sound: (path, stat of the log, stat of its -wal) -> check
-_CHECKED: dict[tuple, str] = {}
+# per log file, the last state this process found sound and the check it passed
+_CHECKED: dict[str, tuple[tuple, str]] = {}
 
 
 def file_state(path: Path) -> tuple:
@@ -122,7 +122,9 @@ def open_check(conn: sqlite3.Connection, path: Path) -> None:
     damage, then SQLite's check of the file, once per state of the file."""
     refuse_known_damage(path)
     state = file_state(path)
-    done = _CHECKED.get(state)
+    seen, done = _CHECKED.get(state[0], ((), ""))
+    if seen != state:
+        done = ""
     if done == "full":
         return
     size = sum(part[2] for part in state[1:] if part is not None)  # type: ignore[index]
@@ -130,7 +132,7 @@ def open_check(conn: sqlite3.Connection, path: Path) -> None:
     if due is None or due == done:
         return
     check_integrity(conn, path, full=due == "full")
-    _CHECKED[state] = due
+    _CHECKED[state[0]] = (state, due)
 
 
 def damaged(path: Path | None, what: str) -> DamagedFileError:
