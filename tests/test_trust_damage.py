@@ -193,3 +193,26 @@ def test_the_check_at_each_opening_follows_the_size_rule(size, expected):
     random.seed(5)
     seen = {safety.check_due(size) for _ in range(400)}
     assert seen == expected
+
+
+def test_the_station_refuses_a_log_damaged_while_it_serves(demo_log):
+    """The station keeps its log open between requests: a file damaged since is checked
+    again before the next tap, and nothing is written."""
+    from starlette.testclient import TestClient
+    from station_server import form_values
+
+    from sawplan.station.app import create_app
+
+    saw = "pivot-bay"
+    with TestClient(create_app(str(demo_log), units="metric"), client=("127.0.0.1", 5000),
+                    base_url="http://127.0.0.1", raise_server_exceptions=False) as client:  # fmt: skip
+        page = client.get(f"/saw/{saw}")
+        assert page.status_code == 200
+        fields = form_values(page.text, f"/saw/{saw}/tap/note")
+        damage_kit.move_index_row(demo_log)  # only the full check sees it
+        before = demo_log.read_bytes()
+        answer = client.post(f"/saw/{saw}/tap/note", data={**fields, "note": "coolant low"})
+        assert answer.status_code == 503
+        assert answer.text.startswith("The blade log is damaged; nothing was saved.")
+        assert demo_log.read_bytes() == before
+        assert no_wal_content(demo_log)

@@ -321,6 +321,20 @@ def open_log(
     return upgrade.open_file(location, raw, header, writing=create)
 
 
+def check_again(log: Log) -> None:
+    """The opening check for a log kept open (the station's pool): a file changed
+    since it was last checked, by anyone, is checked again before it is used."""
+    path = log.path
+    if path is None or log.location.kind != "sqlite" or not path.exists():
+        return
+    from sawplan.store.safety import check_file_again
+
+    try:
+        engines.retry_busy(lambda: check_file_again(path))
+    except sqlite3.DatabaseError as err:
+        raise engines.sqlite_error(err, path) from None
+
+
 def memory_log() -> Log:
     """A private in-memory log holding the newest schema and no rows."""
     from sawplan.store.schema import metadata

@@ -121,18 +121,37 @@ def open_check(conn: sqlite3.Connection, path: Path) -> None:
     """The check every opening of a log file makes (see the table above): no known
     damage, then SQLite's check of the file, once per state of the file."""
     refuse_known_damage(path)
+    state, due = _due(path)
+    if due is not None:
+        check_integrity(conn, path, full=due == "full")
+        _CHECKED[state[0]] = (state, due)
+
+
+def check_file_again(path: Path) -> None:
+    """``open_check`` for a log kept open (the station): a file changed since its last
+    check is checked through a new connection, which reads the file as it is now (a
+    connection kept open may hold pages it read before the file changed)."""
+    refuse_known_damage(path)
+    if _due(path)[1] is None:
+        return
+    conn = sqlite3.connect(f"file:{path.resolve()}?mode=ro", uri=True, timeout=30.0)
+    try:
+        open_check(conn, path)
+    finally:
+        conn.close()
+
+
+def _due(path: Path) -> tuple[tuple, str | None]:
+    """The file's state now, and the check it is due (None: none, or done already)."""
     state = file_state(path)
     seen, done = _CHECKED.get(state[0], ((), ""))
     if seen != state:
         done = ""
     if done == "full":
-        return
+        return state, None
     size = sum(part[2] for part in state[1:] if part is not None)  # type: ignore[index]
     due = check_due(size)
-    if due is None or due == done:
-        return
-    check_integrity(conn, path, full=due == "full")
-    _CHECKED[state[0]] = (state, due)
+    return state, None if due == done else due
 
 
 def damaged(path: Path | None, what: str) -> DamagedFileError:
