@@ -189,3 +189,12 @@ def break_schema(path: Path, table: str = "cuts") -> None:
     at = data.find(needle)
     assert at > 0, f"no CREATE TABLE {table} in the file"
     overwrite(path, at, f"CREATE TABLE {table} )".encode())
+
+
+def garble_schema(path: Path, table: str = "queue") -> None:
+    """Put a byte that is not UTF-8 into a column type of ``table``'s stored CREATE
+    statement: SQLite's complaint then quotes it, and its driver cannot decode the message."""
+    data = path.read_bytes()
+    at = data.find(b"INTEGER NOT NULL", data.find(f"CREATE TABLE {table} (".encode()))
+    assert at > 0
+    overwrite(path, at + 1, b"\xae")

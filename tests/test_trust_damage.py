@@ -30,6 +30,7 @@ DAMAGE = {
     "header: page size": lambda p: damage_kit.break_header(p, "page size"),
     "header: application id": lambda p: damage_kit.break_header(p, "application id"),
     "schema: a CREATE statement": damage_kit.break_schema,
+    "schema: a byte that is not UTF-8": damage_kit.garble_schema,
 }
 
 WRITES = [
@@ -70,8 +71,8 @@ def sqlite_says(path: Path) -> list[str]:
     conn = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
     try:
         return [r[0] for r in conn.execute("PRAGMA integrity_check")]
-    except sqlite3.DatabaseError as err:
-        return [str(err)]
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:  # the driver cannot decode
+        return [str(err)]  # SQLite's complaint when it quotes garbage
     finally:
         conn.close()
 
@@ -105,9 +106,10 @@ def test_every_write_refuses_a_damaged_log_and_leaves_it_as_it_was(kind, demo_lo
 @pytest.mark.parametrize("kind", list(DAMAGE))
 def test_every_read_refuses_a_damaged_log(kind, demo_log, cli):
     DAMAGE[kind](demo_log)
-    for args in READS:
+    for args in (*READS, ("check",)):
         safety.clear_damage_mark(demo_log)
-        refused(cli(*args, "--db", str(demo_log)))
+        err = refused(cli(*args, "--db", str(demo_log)))
+        assert err.isprintable() or err[:-1].isprintable(), err  # SQLite's words, made printable
 
 
 def test_an_index_row_moved_is_refused_not_read_as_a_wrong_area(demo_log, cli):

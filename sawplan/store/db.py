@@ -303,7 +303,7 @@ def open_log(
         raise engines.sqlite_error(err, path) from None
     try:
         header = engines.retry_busy(lambda: upgrade.sqlite_header(raw))
-    except sqlite3.DatabaseError as err:
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
         raw.close()
         raise engines.sqlite_error(err, path) from None
     if light and not create and upgrade.is_current(*header):
@@ -314,7 +314,7 @@ def open_log(
             engines.retry_busy(lambda: open_check(raw, path))
         except BaseException as err:
             raw.close()
-            if isinstance(err, sqlite3.DatabaseError):
+            if isinstance(err, sqlite3.DatabaseError) or engines.is_sqlite_message(err):
                 raise engines.sqlite_error(err, path) from None
             raise
         return LightLog(location, raw)  # type: ignore[return-value]
@@ -331,7 +331,7 @@ def check_again(log: Log) -> None:
 
     try:
         engines.retry_busy(lambda: check_file_again(path))
-    except sqlite3.DatabaseError as err:
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
         raise engines.sqlite_error(err, path) from None
 
 
@@ -389,7 +389,7 @@ def translate(err: BaseException, location: LogLocation) -> SawplanError | None:
     orig = getattr(err, "orig", None) or err
     if isinstance(orig, sqlite3.IntegrityError | sqlite3.ProgrammingError):
         return None
-    if isinstance(orig, sqlite3.DatabaseError):
+    if isinstance(orig, sqlite3.DatabaseError) or engines.is_sqlite_message(orig):
         return engines.sqlite_error(orig, location.path, opened=True)
     if location.is_server and _is_driver_error(err):
         state = engines.sqlstate(err) or ""

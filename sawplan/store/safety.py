@@ -67,10 +67,12 @@ def integrity_problems(conn: sqlite3.Connection, *, full: bool = False) -> list[
     pragma = "PRAGMA integrity_check(3)" if full else "PRAGMA quick_check(3)"  # 3 problems shown
     try:
         rows = conn.execute(pragma).fetchall()
-    except sqlite3.DatabaseError as err:
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
         if "locked" in str(err).lower() or "busy" in str(err).lower():
             raise
-        return [" ".join(str(err).split())]
+        from sawplan.store.engine import sqlite_words
+
+        return [sqlite_words(err)]
     found = [line.strip() for r in rows for line in str(r[0]).splitlines() if line.strip()]
     if found == ["ok"]:
         return []
@@ -230,7 +232,7 @@ def sound_file(path: Path) -> bool:
         if conn.execute("PRAGMA application_id").fetchone()[0] != APPLICATION_ID:
             return False
         return not integrity_problems(conn, full=True)
-    except sqlite3.Error:
+    except (sqlite3.Error, UnicodeDecodeError):
         return False
     finally:
         conn.close()
@@ -245,7 +247,7 @@ def restore_hint(log: Path | None) -> str:
         return f"restore the newest good backup {newest}: sawplan restore --force --db {log}"
     return (
         f"restore your newest copy made with `sawplan backup`: sawplan restore FILE --force "
-        f"--db {log} (no sound automatic backups in {backups_dir(log)})"
+        f"--db {log} (no sound automatic backups beside it)"
     )
 
 
