@@ -76,11 +76,12 @@ def settle(log: Path) -> None:
         conn.close()
 
 
-def damage_at(offset_fraction: float, length: int, seed: int) -> Prep:
-    """Overwrite ``length`` bytes of the log (past its header) with seeded garbage."""
+def damage_at(offset_fraction: float, length: int, seed: int, name: str = "") -> Prep:
+    """Overwrite ``length`` bytes of the log ``name`` (the shop's log when not named; past
+    its header) with seeded garbage."""
 
     def prep(folder: Path) -> None:
-        log = _log(folder)
+        log = folder / name if name else _log(folder)
         settle(log)
         size = log.stat().st_size
         rng = random.Random(seed)
@@ -101,7 +102,7 @@ def integrity(log: Path) -> str:
             return str(conn.execute("PRAGMA integrity_check").fetchone()[0])
         finally:
             conn.close()
-    except sqlite3.DatabaseError as err:
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:  # a message quoting garbage
         return str(err)
 
 

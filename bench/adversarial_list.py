@@ -160,6 +160,13 @@ def issue_list() -> list[Attempt]:
             a.append(Attempt(f"damaged log ({length} bytes at {frac:.0%}): {cmd[0]} {cmd[1]}", cmd,
                              "any", damage_at(frac, length, i), check=refused_if_detectable,
                              area="store"))  # fmt: skip
+    for name, prep in (
+        ("an index row moved", index_row_moved),
+        ("a schema byte not UTF-8", garbled),
+    ):
+        for cmd in (DEMO_WRITES[0], DEMO_WRITES[1], DEMO_READS[0]):
+            a.append(Attempt(f"demo log, {name}: {cmd[0]} {cmd[1]}", (*cmd, "--db", "demo.sqlite"),
+                             "refuse", prep, area="store"))  # fmt: skip
     # outputs (being fixed by trust-outputs), bounds (trust-bounds), escapes (trust-escapes)
     a += [
         Attempt(
@@ -285,6 +292,18 @@ def issue_list() -> list[Attempt]:
     return a
 
 
+def index_row_moved(folder: Path) -> None:
+    import damage_kit
+
+    damage_kit.move_index_row(folder / "demo.sqlite")
+
+
+def garbled(folder: Path) -> None:
+    import damage_kit
+
+    damage_kit.garble_schema(folder / "demo.sqlite")
+
+
 def refused_if_detectable(folder: Path, _out: str, _err: str) -> str | None:
     """Accepted on a damaged log: broke when SQLite's full check sees the damage."""
     said = (
@@ -359,15 +378,27 @@ def imported_as_is(folder: Path, _out: str, _err: str) -> str | None:
     return None if said == "ok" else f"the log is damaged after the import: {said}"
 
 
+DEMO_WRITES = [("log", "cut", "304", "round", "60mm", "--saw", "pivot-bay"),
+               ("blade", "add", "Z-1", *BLADE), ("blade", "remove", "P-008"),
+               ("log", "event", "A-015", "teeth-lost"), ("saw", "add", "bay 7", "--like", "mid-production"),
+               ("blade", "retire", "C-019", "--failure", "dull"), ("import", "csv-in")]  # fmt: skip
+DEMO_READS = [("blade", "list"), ("blade", "show", "A-015"), ("log", "list", "--json"), ("life",),
+              ("export", "out"), ("forecast", "--area", "5m2"), ("backup", "copy.sqlite"),
+              ("chart", "weibull", "--csv"), ("cut", "304", "round", "60mm", "--saw", "pivot-bay")]  # fmt: skip
+
+
 def damaged_logs(rng: random.Random, count: int) -> list[Attempt]:
+    """The demo shop's log (350 kB) with 1 to 512 bytes overwritten somewhere, then a
+    command: accepted on damage SQLite's full check sees is a break."""
     out = []
     for i in range(count):
         frac = rng.random()
         length = rng.choice((1, 4, 20, 64, 512))
-        cmd = rng.choice(WRITES + READS)
-        out.append(Attempt(f"damage {length} B at {frac:.3f}: {' '.join(cmd[:2])}", cmd, "any",
-                           damage_at(frac, length, 1000 + i), check=refused_if_detectable,
-                           area="store"))  # fmt: skip
+        cmd = rng.choice(DEMO_WRITES + DEMO_READS)
+        args = (*cmd, "--db", "demo.sqlite")
+        out.append(Attempt(f"demo log, {length} B at {frac:.3f}: {' '.join(cmd[:2])}", args, "any",
+                           damage_at(frac, length, 1000 + i, "demo.sqlite"),
+                           check=refused_if_detectable, area="store"))  # fmt: skip
     return out
 
 

@@ -65,6 +65,12 @@ def build_template(root: Path) -> Path:
                  ("log", "cut", "4140", "round", "80mm", "--note", "second")):  # fmt: skip
         code, _out, err = cli_walk.invoke([*args, "--db", str(other)])
         assert code == 0, (args, err)
+    sys.path.insert(0, str(HERE.parent / "demo"))
+    import damage_kit
+    import make_history
+
+    make_history.build(template / "demo.sqlite")  # the demo shop's log, for damage
+    damage_kit.settle(template / "demo.sqlite")
     shutil.rmtree(template / "csv-in")
     code, _out, err = cli_walk.invoke(["export", str(template / "csv-in"), "--db", str(other)])
     assert code == 0, err
