@@ -190,6 +190,7 @@ def main() -> None:
     parser.add_argument("--count", type=int, default=900)
     parser.add_argument("--workers", type=int, default=3)
     parser.add_argument("--only", default="", help="run only attempts whose name holds this")
+    parser.add_argument("--verbose", action="store_true", help="print every attempt's answer")
     options = parser.parse_args()
     import cli_walk
     from adversarial_list import all_attempts
@@ -222,6 +223,10 @@ def report(results: list[dict], seconds: float, options) -> None:
                 last = r["err"].strip().splitlines()[-1][:160] if r["err"].strip() else ""
                 print(f"{verdict.upper():6} [{r['area']}] {r['name']}: {r['why']} (exit {r['code']})"
                       f"\n         {last}")  # fmt: skip
+    if options.verbose:
+        for r in results:
+            last = r["err"].strip().splitlines()[-1][:110] if r["err"].strip() else ""
+            print(f"  {r['verdict']:6} exit {r['code']}  {r['name'][:60]}  {last}")
     slow = sorted(results, key=lambda r: -r["seconds"])[:3]
     print("slowest: " + ", ".join(f"{r['name']} {r['seconds']:.1f} s" for r in slow))
 
