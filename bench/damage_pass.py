@@ -47,7 +47,7 @@ def judge(path: Path) -> str:
             return str(conn.execute("PRAGMA integrity_check").fetchone()[0])
         finally:
             conn.close()
-    except sqlite3.DatabaseError as err:
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:  # a message quoting garbage
         return str(err)
 
 
