@@ -110,8 +110,8 @@ def main() -> None:
         folder = Path(tmp)
         demo = folder / "demo.sqlite"
         make_history.build(demo)
-        logs = {"demo": demo, "4 MB": grow(demo, folder / "four.sqlite", 10),
-                "30 MB": grow(demo, folder / "thirty.sqlite", 85)}  # fmt: skip
+        logs = {"demo": demo, "4 MB": grow(demo, folder / "four.sqlite", 16),
+                "30 MB": grow(demo, folder / "thirty.sqlite", 128)}  # fmt: skip
         print(f"{'log':6} {'size':>9} {'quick':>8} {'full':>8} {'check':>6} "
               f"{'write':>8} {'unchecked':>9} {'cost':>7} {'again':>7}  goal")  # fmt: skip
         for name, path in logs.items():
