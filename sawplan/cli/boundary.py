@@ -46,6 +46,9 @@ def run_guarded(run: Callable[[list[str]], int | None], argv: Sequence[str]) -> 
         args.remove("--debug")
         debug = True
     _NEW_LOGS.clear()
+    checked = sys.modules.get("sawplan.store.safety")
+    if checked is not None:  # each command checks the log afresh, as a new process would
+        checked._CHECKED.clear()
     code = int(ExitCode.INTERNAL)
     try:
         code = int(run(args) or 0)
