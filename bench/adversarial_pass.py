@@ -157,6 +157,8 @@ def classify(attempt, folder, before, code, out, err) -> tuple[str, str]:
         return "broke", f"killed by signal {-code}"
     if code not in DOCUMENTED:
         return "broke", f"exit {code}, not a documented code"
+    if "out of memory" in err:
+        return "broke", f"ran out of memory ({MEMORY_LIMIT // 1024**3} GB): an unbounded read?"
     if attempt.check and code in (0, 8):
         try:
             problem = attempt.check(folder, out, err)

@@ -289,6 +289,12 @@ def sqlite_error(err: BaseException, path: Path | None, *, opened: bool = False)
             field="db",
             hint="free some space and try again",
         )
+    if "disk i/o error" in text:  # a write the system refused: too large a file, a bad disk
+        return StorageError(
+            f"the disk refused a write to {where} (SQLite: {words}); nothing was written",
+            field="db",
+            hint="check the disk's free space, size limits and health, then try again",
+        )
     if "unable to open" in text:
         return StorageError(
             f"cannot open {where} ({words})",
