@@ -219,6 +219,26 @@ def test_a_full_disk_refuses_a_logged_cut(shop_log, cli, no_room):
     assert dump(shop_log) == before
 
 
+def test_a_write_the_system_refuses_is_one_line_and_writes_nothing(shop_log):
+    """A file size limit (``ulimit -f``): the system refuses the write with EFBIG, which
+    SQLite reports as a disk I/O error, not as a full disk."""
+    import resource
+
+    def limited() -> None:
+        signal.signal(signal.SIGXFSZ, signal.SIG_IGN)  # EFBIG instead of a killed process
+        resource.setrlimit(resource.RLIMIT_FSIZE, (1024, 1024))
+
+    before = dump(shop_log)
+    done = subprocess.run(
+        [sys.executable, "-m", "sawplan", "log", "cut", "304", "round", "60mm", "--db",
+         str(shop_log)], capture_output=True, text=True, preexec_fn=limited, timeout=60,
+    )  # fmt: skip
+    assert done.returncode == 7, done.stderr
+    assert done.stderr.count("\n") == 1 and "Traceback" not in done.stderr
+    assert "the disk refused a write" in done.stderr and "nothing was written" in done.stderr
+    assert dump(shop_log) == before
+
+
 @pytest.fixture
 def tiny_disk(tmp_path):
     """A real 512 kB tmpfs, where this machine allows mounting one (root in a container)."""

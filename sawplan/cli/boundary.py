@@ -46,6 +46,9 @@ def run_guarded(run: Callable[[list[str]], int | None], argv: Sequence[str]) -> 
         args.remove("--debug")
         debug = True
     _NEW_LOGS.clear()
+    checked = sys.modules.get("sawplan.store.safety")
+    if checked is not None:  # each command checks the log afresh, as a new process would
+        checked._CHECKED.clear()
     code = int(ExitCode.INTERNAL)
     try:
         code = int(run(args) or 0)
@@ -154,6 +157,11 @@ def describe(err: BaseException) -> tuple[int, str]:
     if isinstance(err, OSError):
         mapped = storage_error_from_os(err)
         return int(mapped.exit_code), f"error: {one_line(mapped.one_line())}"
+    if isinstance(err, UnicodeDecodeError) and _sqlite_message(err):
+        from sawplan.store.engine import sqlite_words
+
+        mapped = storage_error_from_sqlite(sqlite3.DatabaseError(sqlite_words(err)))
+        return int(mapped.exit_code), f"error: {one_line(mapped.one_line())}"
     if isinstance(err, UnicodeEncodeError):
         return int(ExitCode.USAGE), (
             "error: the terminal cannot show some characters of the answer "
@@ -163,6 +171,13 @@ def describe(err: BaseException) -> tuple[int, str]:
         return int(ExitCode.STORAGE), "error: out of memory; close other programs and try again"
     text = one_line(f"{type(err).__name__}: {err}")
     return int(ExitCode.INTERNAL), f"internal error: {text} ({_DEBUG_HINT})"
+
+
+def _sqlite_message(err: UnicodeDecodeError) -> bool:
+    """SQLite's message about a damaged schema, which its driver could not decode."""
+    from sawplan.store.engine import is_sqlite_message
+
+    return is_sqlite_message(err)
 
 
 def storage_error_from_sqlite(err: sqlite3.DatabaseError) -> SawplanError:

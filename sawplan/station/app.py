@@ -30,6 +30,7 @@ from starlette.responses import PlainTextResponse, RedirectResponse, Response
 from starlette.routing import BaseRoute, Mount, Route
 from starlette.staticfiles import StaticFiles
 
+from sawplan.errors import SawplanError
 from sawplan.station import floor, tap_fixes
 from sawplan.station.access import Access, Guard, Keys, Throttle, key_form_answer, sign_in
 from sawplan.station.web import STATIC, LogPool, render
@@ -91,6 +92,7 @@ def create_app(
         routes=routes(),
         middleware=[Middleware(Guard, access=access)],
         lifespan=lifespan,
+        exception_handlers={SawplanError: log_unusable},
     )
     app.state.access = access
     # One tap written at a time by this server.  SQLite takes one writer at a time anyway;
@@ -126,6 +128,19 @@ def office_routes() -> list[BaseRoute] | None:
         if err.name and err.name.startswith("sawplan.station.office"):
             return None
         raise
+
+
+async def log_unusable(request: Request, err: Exception) -> Response:
+    """The blade log refused below a page (damaged, disk full, server gone): one plain
+    sentence, nothing saved; the details are the office's (``sawplan check``)."""
+    from sawplan.errors import DamagedFileError
+
+    what = "is damaged" if isinstance(err, DamagedFileError) else "cannot be used just now"
+    return PlainTextResponse(
+        f"The blade log {what}; nothing was saved. "
+        "The office can run `sawplan check` (and `sawplan restore`).",
+        status_code=503,
+    )
 
 
 async def healthz(request: Request) -> Response:

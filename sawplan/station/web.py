@@ -100,6 +100,14 @@ class LogPool:
             log = self._idle.get_nowait()
         except queue.Empty:
             log = open_log(self.db)
+        else:
+            from sawplan.store.db import check_again
+
+            try:
+                check_again(log)  # the file may have changed since: damage is refused
+            except BaseException:
+                log.close()
+                raise
         try:
             yield log
         except SawplanError:

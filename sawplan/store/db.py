@@ -272,8 +272,8 @@ def open_log(
     With ``create=False`` (reading) a missing file or an empty server database
     is not made: an empty in-memory log stands in, so read-only questions
     ("which saws are logged?") answer "none" and leave nothing behind.
-    Opening a file with ``create=True`` (for writing) first checks it for
-    damage (``safety.write_check``).  ``":memory:"`` gives a private
+    Every opening of a file checks it for damage first (``safety.open_check``:
+    nothing is read from or written to a damaged log).  ``":memory:"`` gives a private
     in-memory log (tests).
     """
     from sawplan.store import upgrade
@@ -303,13 +303,36 @@ def open_log(
         raise engines.sqlite_error(err, path) from None
     try:
         header = engines.retry_busy(lambda: upgrade.sqlite_header(raw))
-    except sqlite3.DatabaseError as err:
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
         raw.close()
         raise engines.sqlite_error(err, path) from None
     if light and not create and upgrade.is_current(*header):
         raw.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
+        from sawplan.store.safety import open_check
+
+        try:
+            engines.retry_busy(lambda: open_check(raw, path))
+        except BaseException as err:
+            raw.close()
+            if isinstance(err, sqlite3.DatabaseError) or engines.is_sqlite_message(err):
+                raise engines.sqlite_error(err, path) from None
+            raise
         return LightLog(location, raw)  # type: ignore[return-value]
     return upgrade.open_file(location, raw, header, writing=create)
+
+
+def check_again(log: Log) -> None:
+    """The opening check for a log kept open (the station's pool): a file changed
+    since it was last checked, by anyone, is checked again before it is used."""
+    path = log.path
+    if path is None or log.location.kind != "sqlite" or not path.exists():
+        return
+    from sawplan.store.safety import check_file_again
+
+    try:
+        engines.retry_busy(lambda: check_file_again(path))
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
+        raise engines.sqlite_error(err, path) from None
 
 
 def memory_log() -> Log:
@@ -366,7 +389,7 @@ def translate(err: BaseException, location: LogLocation) -> SawplanError | None:
     orig = getattr(err, "orig", None) or err
     if isinstance(orig, sqlite3.IntegrityError | sqlite3.ProgrammingError):
         return None
-    if isinstance(orig, sqlite3.DatabaseError):
+    if isinstance(orig, sqlite3.DatabaseError) or engines.is_sqlite_message(orig):
         return engines.sqlite_error(orig, location.path, opened=True)
     if location.is_server and _is_driver_error(err):
         state = engines.sqlstate(err) or ""

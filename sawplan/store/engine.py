@@ -216,6 +216,25 @@ def server_error(err: BaseException, location: LogLocation) -> SawplanError:
 
 # --- SQLite failures ----------------------------------------------------------------------
 
+# SQLite's own words in a message it could not give as UTF-8 (the driver then raises
+# UnicodeDecodeError instead of DatabaseError): garbage from a damaged schema is quoted
+_SQLITE_WORDS = (b"malformed", b"schema", b"database", b"datatype", b"syntax error", b"no such")
+
+
+def is_sqlite_message(err: BaseException) -> bool:
+    """A UnicodeDecodeError raised for an error message of SQLite's (damaged schema text)."""
+    data = getattr(err, "object", None)
+    return (isinstance(err, UnicodeDecodeError) and isinstance(data, bytes)
+            and any(word in data.lower() for word in _SQLITE_WORDS))  # fmt: skip
+
+
+def sqlite_words(err: BaseException) -> str:
+    """SQLite's message, printable and short: damage may put any bytes in it."""
+    data = getattr(err, "object", None)
+    raw = data.decode("utf-8", "replace") if is_sqlite_message(err) else str(err)  # type: ignore[union-attr]
+    text = "".join(c if c.isprintable() and c != "\ufffd" else "?" for c in " ".join(raw.split()))
+    return text if len(text) <= 100 else text[:99] + "…"
+
 
 def sqlite_error(err: BaseException, path: Path | None, *, opened: bool = False) -> SawplanError:
     """An SQLite error as the sawplan error a user can act on, naming the file.
@@ -227,17 +246,26 @@ def sqlite_error(err: BaseException, path: Path | None, *, opened: bool = False)
 
     orig = getattr(err, "orig", None) or err
     where = str(path) if path is not None else "the blade log"
-    text = " ".join(str(orig).split()).lower()
+    words = sqlite_words(orig)
+    text = words.lower()
     if "malformed" in text and opened:
-        mark_damaged(path, text)
+        mark_damaged(path, words)
         return DamagedFileError(
-            f"{where} is damaged (SQLite: {text}); nothing was written",
+            f"{where} is damaged (SQLite: {words}); nothing was written",
+            field="db",
+            hint=restore_hint(path),
+        )
+    if "could not decode to utf-8" in text:  # text another program stored: never shown
+        column = text.split("column '", 1)[-1].split("'", 1)[0][:40]
+        return DamagedFileError(
+            f"{where} holds text that is not UTF-8 (column {column}): damaged, or written "
+            "by another program; nothing was written",
             field="db",
             hint=restore_hint(path),
         )
     if "not a database" in text or "malformed" in text or "encrypted" in text:
         return DamagedFileError(
-            f"{where} is damaged or not a sawplan blade log ({text}); nothing was written",
+            f"{where} is damaged or not a sawplan blade log ({words}); nothing was written",
             field="db",
             hint=f"check the file given to --db or SAWPLAN_DB; if it is your log, "
             f"{restore_hint(path)}",
@@ -261,10 +289,16 @@ def sqlite_error(err: BaseException, path: Path | None, *, opened: bool = False)
             field="db",
             hint="free some space and try again",
         )
+    if "disk i/o error" in text:  # a write the system refused: too large a file, a bad disk
+        return StorageError(
+            f"the disk refused a write to {where} (SQLite: {words}); nothing was written",
+            field="db",
+            hint="check the disk's free space, size limits and health, then try again",
+        )
     if "unable to open" in text:
         return StorageError(
-            f"cannot open {where} ({text})",
+            f"cannot open {where} ({words})",
             field="db",
             hint="check that its folder exists and may be written",
         )
-    return StorageError(f"{where}: {text}", field="db")
+    return StorageError(f"{where}: {words}", field="db")

@@ -26,6 +26,7 @@ from typing import Any
 
 from sawplan.errors import ConflictError, DamagedFileError, NotFoundError, UsageError
 from sawplan.store import safety
+from sawplan.store.engine import sqlite_words
 from sawplan.store.location import LogLocation, resolve_db
 
 # (what is wrong, SQL listing the rows it is wrong for); the same on both engines
@@ -109,9 +110,9 @@ def _check_file(location: LogLocation) -> CheckReport:
         try:
             app_id = int(conn.execute("PRAGMA application_id").fetchone()[0])
             version = int(conn.execute("PRAGMA user_version").fetchone()[0])
-        except sqlite3.DatabaseError as err:
+        except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
             raise DamagedFileError(
-                f"{path} is damaged or not a sawplan blade log ({err})",
+                f"{path} is damaged or not a sawplan blade log ({sqlite_words(err)})",
                 field="db",
                 hint=safety.restore_hint(path),
             ) from None
@@ -126,8 +127,8 @@ def _check_file(location: LogLocation) -> CheckReport:
             rows = _rows(lambda sql: conn.execute(sql).fetchone()[0])
         else:
             rows = {}
-    except sqlite3.DatabaseError as err:
-        problems, rows = [f"SQLite: {' '.join(str(err).split())}"], {}
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
+        problems, rows = [f"SQLite: {sqlite_words(err)}"], {}
     finally:
         conn.close()
     if problems:
@@ -236,9 +237,9 @@ def _check_backup(path: Path) -> None:
             problems = safety.integrity_problems(conn, full=True)
         finally:
             conn.close()
-    except sqlite3.DatabaseError as err:
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
         raise DamagedFileError(
-            f"{path} is damaged or not a sawplan blade log ({err})", field="file"
+            f"{path} is damaged or not a sawplan blade log ({sqlite_words(err)})", field="file"
         ) from None
     if problems:
         raise DamagedFileError(

@@ -1,14 +1,30 @@
 """Keeping years of shop records safe: damage checks, rolling backups, leftovers.
 
-- Every opening of a log file for writing runs ``PRAGMA quick_check`` first
-  (a few ms per MB; logs over ``QUICK_CHECK_MAX_BYTES`` are checked on about
-  one opening in ``ROUTINE_CHECK_ONE_IN``), and refuses a file that damage was
-  seen in before (the marker ``<log>.damaged``, left by any command that met
-  damage, and refused by every command but ``check`` and ``restore`` until a
-  backup is restored or ``sawplan check`` finds the file sound).  A damaged log is never written to, and the message names the
-  newest backup that passes the check.
-- The full ``PRAGMA integrity_check`` (which also finds index rows that do not
-  match their table) runs on ``sawplan check``, before every schema upgrade
+- Every opening of a log file, for reading or writing, checks it before any
+  row is read or written (``open_check``), once per state of the file per
+  process (its size, time and inode, and its ``-wal``'s), so a command that
+  opens the log again, or the station on every request, pays once:
+
+  ================  ===========================================================
+  log (with -wal)   check at each opening
+  ================  ===========================================================
+  up to 4 MB        ``PRAGMA integrity_check`` (every page, record and index row
+                    against its table; about 4 ms per MB)
+  4 to 32 MB        ``PRAGMA quick_check`` (pages and records, not indexes:
+                    about 1.5 ms per MB); one opening in 25 the full check
+  over 32 MB        one opening in 25 the full check; the others none
+  ================  ===========================================================
+
+  A log damage was seen in before is refused by every command but ``check``
+  and ``restore`` (the marker ``<log>.damaged``, left by any command that met
+  damage, until a backup is restored or ``sawplan check`` finds the file
+  sound).  A damaged log is never written to: the command exits 6 and names
+  the newest backup that passes the full check.
+- What no check can find: SQLite keeps no checksums, so a changed byte inside
+  a stored value (a digit of an area, a letter of a note) that leaves the
+  record well formed, in an unindexed column, reads back as the changed value.
+  Only a backup compared with the log shows it.
+- The full check also runs on ``sawplan check``, before every schema upgrade
   and inside every import, before it commits.
 - Before each schema upgrade the log is copied with SQLite's online backup
   into ``backups/`` beside it, as ``<name>-schema<N>-<time>.sqlite``; the
@@ -21,14 +37,16 @@ from __future__ import annotations
 
 import contextlib
 import datetime as dt
+import os
 import random
 import sqlite3
 from pathlib import Path
 
 from sawplan.errors import DamagedFileError, StorageError
 
-ROUTINE_CHECK_ONE_IN = 25  # for logs too big to check on every write
-QUICK_CHECK_MAX_BYTES = 32_000_000  # about 250,000 cuts; quick_check reads it in ~0.1 s
+ROUTINE_CHECK_ONE_IN = 25  # logs over FULL_CHECK_MAX_BYTES: one opening in 25 is checked in full
+FULL_CHECK_MAX_BYTES = 4_000_000  # about 30,000 cut entries; integrity_check reads it in ~15 ms
+QUICK_CHECK_MAX_BYTES = 32_000_000  # about 250,000 cut entries; quick_check reads it in ~35 ms
 BACKUPS_KEPT = 3
 BACKUP_FOLDER = "backups"
 PARTIAL = ".partial"
@@ -49,10 +67,12 @@ def integrity_problems(conn: sqlite3.Connection, *, full: bool = False) -> list[
     pragma = "PRAGMA integrity_check(3)" if full else "PRAGMA quick_check(3)"  # 3 problems shown
     try:
         rows = conn.execute(pragma).fetchall()
-    except sqlite3.DatabaseError as err:
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
         if "locked" in str(err).lower() or "busy" in str(err).lower():
             raise
-        return [" ".join(str(err).split())]
+        from sawplan.store.engine import sqlite_words
+
+        return [sqlite_words(err)]
     found = [line.strip() for r in rows for line in str(r[0]).splitlines() if line.strip()]
     if found == ["ok"]:
         return []
@@ -74,15 +94,66 @@ def refuse_known_damage(path: Path) -> None:
         raise damaged(path, f"damage was found earlier: {_read_mark(mark)}")
 
 
-def write_check(conn: sqlite3.Connection, path: Path) -> None:
-    """The check every opening for writing makes: no known damage, and a quick_check."""
+# per log file, the last state this process found sound and the check it passed
+_CHECKED: dict[str, tuple[tuple, str]] = {}
+
+
+def file_state(path: Path) -> tuple:
+    """What changes whenever the log or its ``-wal`` is written, by anyone (an empty
+    ``-wal``, which every opening makes and the last closing removes, is no change)."""
+    parts: list[object] = [str(path)]
+    for part in (path, Path(f"{path}-wal")):
+        try:
+            st = os.stat(part)
+        except OSError:
+            st = None
+        keep = st is not None and (st.st_size > 0 or part == path)
+        parts.append((st.st_dev, st.st_ino, st.st_size, st.st_mtime_ns) if keep else None)
+    return tuple(parts)
+
+
+def check_due(size: int) -> str | None:
+    """Which check an opening of a log of ``size`` bytes makes: "full", "quick" or None."""
+    if size <= FULL_CHECK_MAX_BYTES or routine_check_due():
+        return "full"
+    return "quick" if size <= QUICK_CHECK_MAX_BYTES else None
+
+
+def open_check(conn: sqlite3.Connection, path: Path) -> None:
+    """The check every opening of a log file makes (see the table above): no known
+    damage, then SQLite's check of the file, once per state of the file."""
     refuse_known_damage(path)
+    state, due = _due(path)
+    if due is not None:
+        check_integrity(conn, path, full=due == "full")
+        _CHECKED[state[0]] = (state, due)
+
+
+def check_file_again(path: Path) -> None:
+    """``open_check`` for a log kept open (the station): a file changed since its last
+    check is checked through a new connection, which reads the file as it is now (a
+    connection kept open may hold pages it read before the file changed)."""
+    refuse_known_damage(path)
+    if _due(path)[1] is None:
+        return
+    conn = sqlite3.connect(f"file:{path.resolve()}?mode=ro", uri=True, timeout=30.0)
     try:
-        size = path.stat().st_size
-    except OSError:
-        size = 0
-    if size <= QUICK_CHECK_MAX_BYTES or routine_check_due():
-        check_integrity(conn, path)
+        open_check(conn, path)
+    finally:
+        conn.close()
+
+
+def _due(path: Path) -> tuple[tuple, str | None]:
+    """The file's state now, and the check it is due (None: none, or done already)."""
+    state = file_state(path)
+    seen, done = _CHECKED.get(state[0], ((), ""))
+    if seen != state:
+        done = ""
+    if done == "full":
+        return state, None
+    size = sum(part[2] for part in state[1:] if part is not None)  # type: ignore[index]
+    due = check_due(size)
+    return state, None if due == done else due
 
 
 def damaged(path: Path | None, what: str) -> DamagedFileError:
@@ -142,7 +213,7 @@ def newest_backup(log: Path) -> Path | None:
 
 
 def newest_good_backup(log: Path) -> Path | None:
-    """The newest automatic backup that passes SQLite's quick check."""
+    """The newest automatic backup that is a sawplan log and passes SQLite's full check."""
     for candidate in reversed(backups_of(log)):
         if sound_file(candidate):
             return candidate
@@ -150,14 +221,18 @@ def newest_good_backup(log: Path) -> Path | None:
 
 
 def sound_file(path: Path) -> bool:
-    """Does ``path`` open as SQLite and pass its quick check (read-only, nothing written)?"""
+    """Is ``path`` a sawplan log that passes SQLite's full check (read-only, nothing written)?"""
+    from sawplan.store.schema import APPLICATION_ID
+
     try:
         conn = sqlite3.connect(f"file:{path.resolve()}?mode=ro", uri=True, timeout=5.0)
     except sqlite3.Error:
         return False
     try:
-        return not integrity_problems(conn)
-    except sqlite3.Error:
+        if conn.execute("PRAGMA application_id").fetchone()[0] != APPLICATION_ID:
+            return False
+        return not integrity_problems(conn, full=True)
+    except (sqlite3.Error, UnicodeDecodeError):
         return False
     finally:
         conn.close()
@@ -172,7 +247,7 @@ def restore_hint(log: Path | None) -> str:
         return f"restore the newest good backup {newest}: sawplan restore --force --db {log}"
     return (
         f"restore your newest copy made with `sawplan backup`: sawplan restore FILE --force "
-        f"--db {log} (no sound automatic backups in {backups_dir(log)})"
+        f"--db {log} (no sound automatic backups beside it)"
     )
 
 
@@ -248,7 +323,7 @@ def copy_verified(source: Path, target: Path) -> int:
             try:
                 src.backup(out)
                 out.execute("PRAGMA journal_mode = DELETE")  # one file, no -wal beside it
-                problems = integrity_problems(out)
+                problems = integrity_problems(out, full=True)
             finally:
                 out.close()
             if problems:

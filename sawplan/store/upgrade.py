@@ -89,8 +89,8 @@ def open_file(
             check_sqlite_identity(raw, *header, where)
         if writing:
             engines.retry_busy(lambda: use_wal(raw))
-            safety.write_check(raw, path)
-    except sqlite3.DatabaseError as err:
+        safety.open_check(raw, path)
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
         raw.close()
         raise engines.sqlite_error(err, path) from None
     except BaseException:
@@ -100,7 +100,7 @@ def open_file(
     try:
         if not is_current(*header):
             log.upgraded = upgrade_file(log)
-    except sqlite3.DatabaseError as err:
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:
         log.close()
         raise engines.sqlite_error(err, path) from None
     except Exception as err:
