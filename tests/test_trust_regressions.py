@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import pytest
+
 
 def test_import_of_a_saw_row_without_its_profile_is_one_line(cli, tmp_path):
     # found by test_a_mangled_export_imports_whole_or_not_at_all: a stray "[" line in
@@ -17,3 +19,24 @@ def test_import_of_a_saw_row_without_its_profile_is_one_line(cli, tmp_path):
     assert "Traceback" not in result.err and "internal error" not in result.err
     listing = cli("saw", "list", "--db", str(target))
     assert "bay 2" not in listing.out  # all rows or none
+
+
+@pytest.mark.parametrize(
+    ("args", "words"),
+    [
+        pytest.param(("log", "list", "--limit", "abc"), "expected a whole number", id="limit"),
+        pytest.param(
+            ("chart", "wear", "--chart-height", "x"), "expected a whole number", id="height"
+        ),
+        pytest.param(
+            ("plan", "job.toml", "--time-limit", "1.2.3"), "expected a number", id="limit-s"
+        ),
+    ],
+)
+def test_number_option_refusal_speaks_plainly(cli, args, words) -> None:
+    """typer's validator words ("Input should be a valid integer...") become the shop's."""
+    result = cli(*args)
+    assert result.code == 2
+    assert words in result.err
+    assert "Input should be" not in result.err
+    assert len(result.err.strip().splitlines()) == 1

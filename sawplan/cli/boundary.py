@@ -138,6 +138,25 @@ def quiet_stdout() -> None:
         pass  # not a real file (tests capture it): nothing to flush into a closed pipe
 
 
+# typer's own conversion of a number option speaks in its validator's words
+_CONVERSION_WORDS = (
+    (
+        "Input should be a valid integer, unable to parse string as an integer",
+        "expected a whole number",
+    ),
+    ("Input should be a valid number, unable to parse string as a number", "expected a number"),
+    ("Input should be a valid integer", "expected a whole number"),
+    ("Input should be a valid number", "expected a number"),
+)
+
+
+def plain_conversion_words(message: str) -> str:
+    """The shop's words for typer's conversion errors ("expected a whole number")."""
+    for theirs, ours in _CONVERSION_WORDS:
+        message = message.replace(theirs, ours)
+    return message
+
+
 def describe(err: BaseException) -> tuple[int, str]:
     """The exit code and the one line shown for ``err`` (no traceback)."""
     from typer._click import exceptions as click_exc
@@ -148,7 +167,8 @@ def describe(err: BaseException) -> tuple[int, str]:
         hint = ""
         if err.ctx is not None:
             hint = f" (see `{err.ctx.command_path} --help`)"
-        return int(ExitCode.USAGE), f"error: {one_line(err.format_message())}{hint}"
+        message = plain_conversion_words(err.format_message())
+        return int(ExitCode.USAGE), f"error: {one_line(message)}{hint}"
     if isinstance(err, click_exc.ClickException):
         return int(ExitCode.USAGE), f"error: {one_line(err.format_message())}"
     if isinstance(err, sqlite3.DatabaseError):
