@@ -40,3 +40,24 @@ def test_number_option_refusal_speaks_plainly(cli, args, words) -> None:
     assert words in result.err
     assert "Input should be" not in result.err
     assert len(result.err.strip().splitlines()) == 1
+
+
+def test_imported_cell_refusal_names_its_column_once(cli, tmp_path) -> None:
+    """A stored-value rule refusing an imported cell: 'supplier: supplier: ...' once said it twice."""
+    import csv
+
+    source = str(tmp_path / "a.sqlite")
+    blade = ("B-1", "--pitch", "4/6", "--blade-width", "27mm", "--blade-thickness", "0.9mm")
+    blade += ("--blade-length", "3505mm", "--supplier", "Ashfold", "--db", source)
+    assert cli("blade", "add", *blade).code == 0
+    assert cli("export", str(tmp_path / "set"), "--db", source).code == 0
+    blades = tmp_path / "set" / "blades.csv"
+    with blades.open(newline="", encoding="utf-8") as handle:
+        rows = list(csv.reader(handle))
+    rows[1][rows[0].index("supplier")] = "a\rb"
+    with blades.open("w", newline="", encoding="utf-8") as handle:
+        csv.writer(handle).writerows(rows)
+    result = cli("import", str(tmp_path / "set"), "--db", str(tmp_path / "b.sqlite"))
+    assert result.code == 3
+    assert "supplier: supplier" not in result.err
+    assert "supplier: must not hold control characters" in result.err

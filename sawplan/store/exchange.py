@@ -326,7 +326,10 @@ def _convert_row(
     try:  # the rules every row of the log obeys, whoever writes it (sawplan.fields)
         check_row(table, out)
     except StoredValueError as err:
-        raise _row_error(name, number, err.column, err.one_line()) from None
+        said = err.one_line()  # the user's words for the column, e.g. 'remnant length: ...'
+        if err.field in (None, err.column):  # ...unless they are the column's own name
+            said = f"{err.message} ({err.hint})" if err.hint else err.message
+        raise _row_error(name, number, err.column, said) from None
     return out
 
 
