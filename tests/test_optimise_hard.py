@@ -46,6 +46,8 @@ BAR = [StockType("bar", 1000, None, 1.0)]
         pytest.param(20, 0, id="60-pieces-seed-0"),
         pytest.param(20, 1, id="60-pieces-seed-1"),
         pytest.param(20, 2, id="60-pieces-seed-2"),
+        pytest.param(20, 4, id="60-pieces-seed-4-closed-by-arc-flow"),
+        pytest.param(20, 7, id="60-pieces-seed-7-closed-by-arc-flow"),
         pytest.param(40, 0, id="120-pieces-seed-0"),
         pytest.param(40, 1, id="120-pieces-seed-1"),
     ],
