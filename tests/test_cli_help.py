@@ -31,6 +31,12 @@ def test_every_command_has_help_with_an_example(cli, name, command, path):
     assert "sawplan " in result.out.split("Example", 1)[1], (
         f"`{name}` example is not a command line"
     )
+    assert "\\b" not in result.out, f"`sawplan {name} --help` shows click's no-wrap mark"
+    examples = result.out.split("Example", 1)[1].split("\n\n", 1)[0]
+    lines = [line for line in examples.splitlines()[1:] if line.strip()]
+    assert all(line.strip().startswith("sawplan ") for line in lines), (
+        f"`sawplan {name} --help`: its examples are re-wrapped"
+    )
 
 
 def test_no_arguments_shows_help(cli):

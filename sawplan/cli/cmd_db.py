@@ -23,7 +23,7 @@ id; the whole copy is one transaction. Afterwards each table is read back
 and compared with the source: row count and checksum. The source is not
 changed (an old log file is upgraded first, with a backup).
 
-\\b
+\b
 Examples:
   sawplan db copy --from shop-log.sqlite --to postgresql://office@saw-server/sawplan
   sawplan db copy --from postgresql://office@saw-server/sawplan --to copy.sqlite
@@ -36,7 +36,7 @@ into backups/); a shared PostgreSQL log only with this command, run once
 from one PC: it first writes a backup (see `sawplan backup`) into the
 backups folder of your data folder, then upgrades in one transaction.
 
-\\b
+\b
 Examples:
   sawplan db upgrade --db postgresql://office@saw-server/sawplan
   sawplan db upgrade --db old-log.sqlite
