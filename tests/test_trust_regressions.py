@@ -61,3 +61,19 @@ def test_imported_cell_refusal_names_its_column_once(cli, tmp_path) -> None:
     assert result.code == 3
     assert "supplier: supplier" not in result.err
     assert "supplier: must not hold control characters" in result.err
+
+
+@pytest.mark.parametrize("kind", ["pipe", "device"])
+def test_a_pipe_or_device_named_as_the_log_is_refused_before_sqlite_opens_it(cli, tmp_path, kind):
+    """A FIFO as --db once gave SQLite's "disk I/O error" (exit 7); /dev/null the same."""
+    import os
+
+    if kind == "pipe":
+        target = tmp_path / "log.sqlite"
+        os.mkfifo(target)
+    else:
+        target = "/dev/null"
+    result = cli("blade", "list", "--db", str(target))
+    assert result.code == 2
+    assert f"is a {kind}, not a log file" in result.err
+    assert len(result.err.strip().splitlines()) == 1

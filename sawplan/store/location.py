@@ -105,13 +105,13 @@ def parse_location(value: str | os.PathLike[str]) -> LogLocation:
     if text == ":memory:":
         return LogLocation("memory")
     if "://" not in text:
-        return LogLocation("sqlite", Path(text).expanduser())
+        return LogLocation("sqlite", _not_special(Path(text).expanduser()))
     scheme = text.split("://", 1)[0].lower()
     if scheme == "sqlite":
         rest = text.split("://", 1)[1]
         if not rest.startswith("/") or rest == "/":
             raise UsageError(f"expected sqlite:///FILE, got {mask(text)!r}", field="db", hint=_HINT)
-        return LogLocation("sqlite", Path(rest[1:]).expanduser())
+        return LogLocation("sqlite", _not_special(Path(rest[1:]).expanduser()))
     if scheme not in SERVER_SCHEMES:
         raise UsageError(
             f"a blade log is a file or a PostgreSQL database; {scheme}:// is not supported",
@@ -126,6 +126,27 @@ def parse_location(value: str | os.PathLike[str]) -> LogLocation:
             hint="add the database name: postgresql://USER@HOST/DATABASE",
         )
     return LogLocation("postgresql", url=text)
+
+
+def _not_special(path: Path) -> Path:
+    """A log file is a file: a pipe or a device named as the log is refused before SQLite
+    opens it (it would block, or fail with "disk I/O error")."""
+    import stat
+
+    try:
+        mode = os.stat(path).st_mode  # stat never opens: a FIFO does not block here
+    except OSError:
+        return path  # not there yet (a new log), or a folder problem said where it is opened
+    if stat.S_ISREG(mode) or stat.S_ISDIR(mode):
+        return path  # a folder is refused where the log is opened, in its own words
+    kind = (
+        "a pipe"
+        if stat.S_ISFIFO(mode)
+        else "a device"
+        if stat.S_ISCHR(mode) or stat.S_ISBLK(mode)
+        else "not a file"
+    )
+    raise UsageError(f"{path} is {kind}, not a log file", field="db", hint=_HINT)
 
 
 _NETLOC_PASSWORD = re.compile(
