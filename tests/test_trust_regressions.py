@@ -31,6 +31,7 @@ def test_import_of_a_saw_row_without_its_profile_is_one_line(cli, tmp_path):
         pytest.param(
             ("plan", "job.toml", "--time-limit", "1.2.3"), "expected a number", id="limit-s"
         ),
+        pytest.param(("cut", "304", "round", "50mm", "-u", "imperial"), "not one of", id="units"),
     ],
 )
 def test_number_option_refusal_speaks_plainly(cli, args, words) -> None:
@@ -38,7 +39,7 @@ def test_number_option_refusal_speaks_plainly(cli, args, words) -> None:
     result = cli(*args)
     assert result.code == 2
     assert words in result.err
-    assert "Input should be" not in result.err
+    assert "Input should be" not in result.err and "Value error" not in result.err
     assert len(result.err.strip().splitlines()) == 1
 
 

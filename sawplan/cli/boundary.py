@@ -147,6 +147,7 @@ _CONVERSION_WORDS = (
     ("Input should be a valid number, unable to parse string as a number", "expected a number"),
     ("Input should be a valid integer", "expected a whole number"),
     ("Input should be a valid number", "expected a number"),
+    ("Value error, ", ""),
 )
 
 
