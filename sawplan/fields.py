@@ -118,7 +118,7 @@ _TABLE: tuple[Field, ...] = (
     Field("csv_dir", "CSV folder", "--csv-dir", placeholder=DIR,
           help="Write the CSV files into this folder."),
     Field("sheet", "cut sheet", "--sheet", placeholder=FILE,
-          help="Write a printable cut sheet: HTML, or Markdown when FILE ends in .md."),
+          help="Write a cut sheet: FILE.html to print, or FILE.md (Markdown)."),
     Field("job_file", "job file", "--job-file", placeholder="JOBFILE",
           help="A job file (TOML), see `sawplan plan --help`."),
     Field("allow", "files outside the job's folder", "--allow",

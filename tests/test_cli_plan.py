@@ -269,3 +269,13 @@ def test_bars_cut_alike_keep_their_own_number_and_rack_on_every_sheet(cli, tmp_p
         assert "bar-number" not in block
     md = md_path.read_text(encoding="utf-8")
     assert [m for m in re.findall(r"^### Bar (\d+)", md, re.M)] == ["1", "2", "3"]
+
+
+@pytest.mark.parametrize("name", ["sheet.pdf", "sheet.txt", "sheet"])
+def test_a_sheet_of_another_kind_is_refused_before_planning(cli, tmp_path, name):
+    """HTML written into a file named .pdf would not open as a PDF: say which kinds there are."""
+    sheet = tmp_path / name
+    result = cli("plan", str(SMALL), "--sheet", str(sheet))
+    assert result.code == 2
+    assert "a cut sheet is written as .html or .md" in result.err
+    assert not sheet.exists()

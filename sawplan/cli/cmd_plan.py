@@ -129,6 +129,7 @@ def plan_command(
         from sawplan.outputs import check_targets
 
         check_targets(targets, inputs, force=force)
+        check_sheet_kind(sheet)
     from sawplan.store.blade_groups import blade_choice
     from sawplan.store.lookup import BladeLog
 
@@ -318,6 +319,21 @@ def output_targets(csv_dir: Path | None, sheet: Path | None) -> list[Target]:
     if sheet is not None:
         found.append(Target(sheet, "--sheet"))
     return found
+
+
+def check_sheet_kind(sheet: Path | None) -> None:
+    """A sheet named .pdf or .txt would get HTML inside: say which kinds there are."""
+    if sheet is not None and sheet.suffix.lower() not in SHEET_SUFFIXES:
+        from sawplan.errors import UsageError
+
+        raise UsageError(
+            f"{sheet.name}: a cut sheet is written as .html or .md",
+            field="--sheet",
+            hint="for a PDF, write the .html sheet and print it from a browser",
+        )
+
+
+SHEET_SUFFIXES = (".html", ".htm", ".md")  # HTML to print, Markdown to paste
 
 
 def plan_inputs(
