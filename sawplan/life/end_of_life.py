@@ -50,7 +50,7 @@ class ExpectedLife:
     low_cm2: float
     high_cm2: float
     basis: Basis
-    blades: int  # blades behind the range (0 for the reference)
+    blades: int  # blades behind the range (0 for a typical life from memory)
     source: str  # where it comes from, in words: "from 6 other blades of this type ..."
 
 
