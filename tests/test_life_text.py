@@ -1,10 +1,10 @@
 """Text output of blade life: each group's early-failure warning, and the life line of a
 blade that is off the saw.
 
-Outside checks: whether a group's blades fail early (Weibull shape β < 1, the usual reliability reading)
-is decided here by scipy's own maximum-likelihood fit (``scipy.stats.weibull_min.fit``),
-not by sawplan's; the break-in area is 300-650 cm² (common
-practice), and a blade failed during break-in when its last cut began inside it,
+Outside checks: whether a group's blades fail early (Weibull shape β < 1, the usual
+reliability reading) is decided here by scipy's own maximum-likelihood fit
+(``scipy.stats.weibull_min.fit``), not by sawplan's; the break-in area is 300-650 cm²
+(common practice), and a blade failed during break-in when its last cut began inside it,
 worked out here from the cut areas (closed-form πd²/4 for round bar); the usual causes
 of stripped teeth include a skipped break-in (common practice, band-saw troubleshooting).
 """

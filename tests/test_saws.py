@@ -179,7 +179,8 @@ def test_tension_ranges_common_practice():
 
 
 def test_gauge_strain():
-    # derived (Hooke's law ε = σ/E): 30 ksi -> 0.001 in/in (that figure takes E = 30,000 ksi = 207 GPa; ours is 200)
+    # derived (Hooke's law ε = σ/E): 30 ksi -> 0.001 in/in
+    # (that figure takes E = 30,000 ksi = 207 GPa; ours is 200)
     stress = REF.Quantity(30, "ksi").to("MPa").magnitude
     assert gauge_elongation_mm(stress, 1.0) == pytest.approx(0.001, rel=0.04)
 

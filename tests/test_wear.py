@@ -1,6 +1,6 @@
 """Wear curve of one blade: break-in region and end-of-life signs.
 
-Synthetic blades are built to the usual description: break-in over the
+Synthetic blades are built to the common-practice picture: break-in over the
 first ≈ 300–650 cm² at about half feed, so about twice the time per area
 (common practice); then a steady rate; end of life shows as time
 per unit area up 30–50 % (common practice).
