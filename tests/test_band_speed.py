@@ -65,7 +65,7 @@ def test_width_footnote(width_in, factor):
 
 
 def test_beyond_8in_keeps_falling_10_to_15_percent_per_doubling():
-    # common practice (reference §3): 10-15 % per doubling beyond 8 in
+    # common practice: 10-15 % per doubling beyond 8 in (beyond the MH31 footnote's widths)
     per_doubling = width_factor(16 * IN) / width_factor(8 * IN)
     assert 0.85 <= per_doubling <= 0.90
 

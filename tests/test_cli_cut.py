@@ -28,7 +28,7 @@ def test_cut_json_has_the_contract_keys(cli):
         assert key in data, key
     # area of a 7 in round: π/4·(177.8 mm)² (closed form)
     assert data["area_mm2"] == pytest.approx(3.141592653589793 / 4 * 177.8**2, rel=1e-9)
-    # mean cutting rate is area over time (definition, reference §4)
+    # mean cutting rate is area over time (definition of the cutting rate)
     rate = data["area_mm2"] / 100 / data["cut_time_min"]
     assert data["cutting_rate_cm2_min"] == pytest.approx(rate, rel=0.01)
     assert data["tpi_coarse"] <= data["tpi_fine"]

@@ -1,7 +1,7 @@
 """The blade-log commands end to end, in-process through the real error boundary.
 
 External checks: closed-form section areas (πd²/4, b·h), pint's unit
-conversions (m², in², cm²), the reference §7 typical lives (memory) for the
+conversions (m², in², cm²), the typical blade lives (from memory) for the
 default forecast and ⌈area/life⌉, and the exit codes documented in
 DEVELOPERS.md (2 usage, 3 bad data, 4 not found, 5 conflict, 6 damaged file).
 """

@@ -225,7 +225,7 @@ def test_an_empty_blade_log_falls_back_to_default_lives(cli, tmp_path):
     r = cli("plan", str(SMALL), "--db", str(log), "--json")
     assert r.code == 0, r.err
     data = json.loads(r.out)
-    # no blades logged: the default life of reference §7 (memory) is used, and said so
+    # no blades logged: the default typical life (from memory) is used, and said so
     assert data["blade_forecast_method"] == "deterministic"
     assert any("not enough history" in n for n in data["notes"])
     assert all(s["calibration_n"] == 0 for s in data["sections"])

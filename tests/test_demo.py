@@ -4,7 +4,7 @@ statistics must find, and ``make demo`` shows the plan, the quote and blade life
 The early-failure batch is an M51 trial lot fitted without break-in
 (``demo/make_history.py``).  Its Weibull shape is checked two ways: sawplan's
 censored fit must put it below 1 with ``stripped`` as the mode and "new blade
-not broken in" among the usual causes (reference §6-7, common practice), and
+not broken in" among the usual causes (common practice), and
 the shape must agree with scipy's own censored maximum-likelihood fit of the
 same lives (``scipy.stats.weibull_min.fit`` on ``CensoredData``), an
 implementation outside the project.
@@ -113,7 +113,7 @@ def test_statistics_find_the_early_failures_of_the_trial_lot(demo_log, cli):
     assert group["weibull_shape"] < 1.0
     warning = group["early_failure"]
     assert warning is not None and warning["mode"] == "stripped"
-    # data/failure_modes.csv, reference §6-7 (common practice): no break-in strips new teeth
+    # data/failure_modes.csv (common practice): no break-in strips new teeth
     assert any("not broken in" in cause for cause in warning["causes"])
     # the blades fitted with a break-in wear out instead (shape above 1)
     for key, g in groups.items():

@@ -8,7 +8,7 @@ import math
 import pint
 
 REF = pint.UnitRegistry()
-# reference §7 typical lives (memory): mild steel ≈ 10⁴ in², austenitic stainless 2–5 × 10³ in²
+# typical blade lives (from memory): mild steel ≈ 10⁴ in², austenitic stainless 2–5 × 10³ in²
 # (sawplan uses the middle, 3.5 × 10³ in²)
 MILD_CM2 = REF("1e4 in**2").to("cm**2").magnitude
 AUSTENITIC_CM2 = REF("3.5e3 in**2").to("cm**2").magnitude

@@ -1,12 +1,12 @@
 """Text output of blade life: each group's early-failure warning, and the life line of a
 blade that is off the saw.
 
-Outside checks: whether a group's blades fail early (Weibull shape β < 1, reference §7)
-is decided here by scipy's own maximum-likelihood fit (``scipy.stats.weibull_min.fit``),
-not by sawplan's; the break-in area is the reference's 300-650 cm² (§6, common
-practice), and a blade failed during break-in when its last cut began inside it,
+Outside checks: whether a group's blades fail early (Weibull shape β < 1, the usual
+reliability reading) is decided here by scipy's own maximum-likelihood fit
+(``scipy.stats.weibull_min.fit``), not by sawplan's; the break-in area is 300-650 cm²
+(common practice), and a blade failed during break-in when its last cut began inside it,
 worked out here from the cut areas (closed-form πd²/4 for round bar); the usual causes
-of stripped teeth include a skipped break-in (reference §7 table, common practice).
+of stripped teeth include a skipped break-in (common practice, band-saw troubleshooting).
 """
 
 from __future__ import annotations
@@ -33,7 +33,7 @@ from sawplan.store.records import (
 )
 
 REPO = Path(__file__).resolve().parent.parent
-BREAK_IN_CM2 = 650.0  # upper end of 300-650 cm² (reference §6, common practice)
+BREAK_IN_CM2 = 650.0  # upper end of 300-650 cm² (common practice)
 ROUND_60_CM2 = math.pi * 6.0**2 / 4.0  # closed form πd²/4, d = 6 cm: 28.27 cm²
 
 
@@ -179,7 +179,7 @@ def test_retired_within_break_in_says_it_failed_during_break_in(one_blade_log, c
     assert "breaking in" not in line
     assert line.startswith("wear: retired after 28.3 cm² (teeth stripped)")  # πd²/4, 3 s.f.
     assert "failed during break-in" in line
-    assert "fitted without break-in" in line  # reference §7: a usual cause of stripped teeth
+    assert "fitted without break-in" in line  # common practice: a usual cause of stripped teeth
 
 
 def test_a_last_cut_begun_inside_break_in_counts_as_during_break_in(one_blade_log, cli):
@@ -222,7 +222,7 @@ def test_removed_blade_is_a_censored_life(one_blade_log, cli):
     _blade(db, "B-1", WEAR_SPEC, [ROUND_60_CM2] * 3, break_in=True)
     remove_blade(db, "B-1", on="2024-03-05")
     line = _wear_line(cli, path, "B-1")
-    # reference §7: removed unworn = right-censored, a life of at least its area so far
+    # life-data definition: removed unworn = right-censored, a life of at least its area so far
     assert line.startswith("wear: removed unworn after 84.8 cm²")  # 3 × πd²/4, 3 s.f.
     assert "at least" in line and "censored" in line
 
@@ -232,7 +232,7 @@ def test_fitted_blade_still_reports_its_break_in(one_blade_log, cli):
     blade_id = _blade(db, "B-1", WEAR_SPEC, [], break_in=True)
     log_cut(db, _cut(blade_id, 100.0, time=5.0))
     log_cut(db, _cut(blade_id, 200.0, time=9.0))
-    # 300 of the 650 cm² break-in cut (reference §6, common practice)
+    # 300 of the 650 cm² break-in cut (common practice)
     assert _wear_line(cli, path, "B-1").startswith("wear: breaking in: 300 of 650 cm² cut")
 
 

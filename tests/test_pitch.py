@@ -30,7 +30,7 @@ from sawplan.errors import BadDataError, UsageError
 def test_parse_pitch(text, coarse, fine):
     pitch = parse_pitch(text)
     assert (pitch.tpi_coarse, pitch.tpi_fine) == (coarse, fine)
-    # mean TPI of a variable pitch a/b is (a+b)/2 (reference §1)
+    # mean TPI of a variable pitch a/b is (a+b)/2 (definition of a variable pitch)
     assert pitch.tpi_mean == pytest.approx((coarse + fine) / 2)
     assert pitch.kind == ("constant" if coarse == fine else "variable")
 
@@ -70,7 +70,7 @@ def test_label_round_trips_for_every_catalogue_pitch():
 
 def test_catalogue_holds_the_standard_pitches():
     labels = {p.label for p in catalogue()}
-    # MH31 width-of-cut pairs (reference §1) and common practice constants
+    # MH31 width-of-cut pairs and common practice constants
     for needed in ["10/14", "6/10", "4/6", "3/4", "2/3", "1.4/2", "0.75/1.25", "14/18"]:
         assert needed in labels
     for needed in ["18", "14", "10", "8", "6", "4", "3", "2"]:
@@ -141,7 +141,7 @@ def test_tooth_form_and_set(group, label, kw, form, tooth_set):
 
 
 def test_gullet_factor_by_form():
-    # memory (reference §2): c ≈ 0.23-0.29 regular, higher for hook, about 2x for skip
+    # memory: c ≈ 0.23-0.29 regular, higher for hook, about 2x for skip
     regular = _teeth("carbon-steel", "6/10").gullet_factor
     hook = _teeth("austenitic-stainless", "4/6").gullet_factor
     skip = _teeth("aluminium", "3/4").gullet_factor

@@ -1,6 +1,6 @@
 """Short stock, bounds that mean something, and a quote that says what it charges.
 
-Check values are worked by hand from the bar arithmetic of reference §9 (a bar
+Check values are worked by hand from the bar arithmetic (derived: a bar
 of length L holds pieces with Σ(ℓ + k) ≤ L − trim − grip + k); the bound with
 rack remnants is checked against the LP of the same problem solved by HiGHS
 through scipy over every cutting pattern (the outside reference).

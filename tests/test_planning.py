@@ -1,9 +1,9 @@
 """Planning a job from its file: layouts, weights, time, blades and cost.
 
-Check values come from outside the code: the pieces-per-bar formula of
-reference §9 worked by hand, closed-form weights (π/4·D²·L·ρ) and the shop
-weight formulas of reference §8 (common practice), the handling classes of
-reference §8, and a small job costed by hand.  Hypothesis checks that every
+Check values come from outside the code: the pieces-per-bar formula
+worked by hand (derived), closed-form weights (π/4·D²·L·ρ) and the shop weight
+formulas for steel (common practice), the handling classes (NIOSH load constant,
+Waters et al. 1993; common practice), and a small job costed by hand.  Hypothesis checks that every
 plan is feasible.
 """
 
@@ -78,13 +78,13 @@ ROUND50 = {"material": "1018", "section": "round 50mm"}
     ("bar", "trim", "grip", "kerf", "piece", "n", "remnant_mm", "cuts"),
     [
         # n = ⌊(6000 − 5 − 20 + 1.6)/(250 + 1.6)⌋ = ⌊5976.6/251.6⌋ = ⌊23.75⌋ = 23;
-        # remnant = 6000 − 5 − 23·250 − 23·1.6 = 208.2 mm (reference §9, by hand)
+        # remnant = 6000 − 5 − 23·250 − 23·1.6 = 208.2 mm (derived, by hand)
         pytest.param("6000mm", "5mm", "20mm", "1.6mm", "250mm", 23, 208.2, 24, id="6m-250mm-trim-grip"),
         # n = ⌊(3000 + 2)/(498 + 2)⌋ = ⌊6.004⌋ = 6; tail 3000 − 6·498 − 5·2 = 2 mm is
         # taken by the last kerf: remnant 0, but the last cut is still made (by hand)
         pytest.param("3000mm", "0mm", "0mm", "2mm", "498mm", 6, 0.0, 6, id="3m-498mm-last-kerf"),
         # n = (1000 + 2)/(248.5 + 2) = 4 exactly: 4·248.5 + 3·2 = 1000, the bar is used
-        # exactly and needs no last cut: 3 cuts (reference §9, by hand)
+        # exactly and needs no last cut: 3 cuts (derived, by hand)
         pytest.param("1000mm", "0mm", "0mm", "2mm", "248.5mm", 4, 0.0, 3, id="1m-exact-fill"),
         # inch sizes: n = ⌊(144 − 0.25 − 1 + 0.063)/(7.25 + 0.063)⌋ in = ⌊142.813/7.313⌋
         # = ⌊19.53⌋ = 19; remnant = 144 − 0.25 − 19·7.25 − 19·0.063 in = 4.803 in (by hand)
@@ -175,7 +175,7 @@ def test_every_plan_is_feasible(catalogue, saw, case):
     for b in plan.bars:
         n = len(b.pieces)
         total = sum(p.length_mm for p in b.pieces)
-        # trim + Σℓ + (n − 1)k + grip ≤ L  (reference §9), to within the documented
+        # trim + Σℓ + (n − 1)k + grip ≤ L  (bar arithmetic, derived), to within the documented
         # 0.001 mm per length that the 0.1 mm grid may round away
         assert trim + total + (n - 1) * k + grip <= b.length_mm + 0.001 * (2 * n + 2)
         # positions increase, pieces one kerf apart, inside the bar
@@ -240,15 +240,15 @@ def test_too_few_bars_for_the_layout_is_a_short_plan(catalogue, saw):
 @pytest.mark.parametrize(
     ("material", "section", "bar", "expected_kg", "rel"),
     [
-        # closed form π/4·D²·L·ρ, ρ(4140) = 7.85 g/cm³ (reference §8)
+        # closed form π/4·D²·L·ρ, ρ(4140) = 7.85 g/cm³ (ASM data / producers' sheets)
         pytest.param("4140", "round 60mm", "3m", math.pi / 4 * 0.06**2 * 3 * 7850, 1e-9, id="4140-round-exact"),
-        # shop formula 0.006165·D² kg/m for steel of 7.85 (reference §8, common practice)
+        # shop formula 0.006165·D² kg/m for steel of 7.85 (common practice)
         pytest.param("4140", "round 60mm", "3m", 0.006165 * 60**2 * 3, 1e-3, id="4140-round-shop"),
-        # shop formula flat 3.40·w·t lb/ft, ρ = 0.2836 lb/in³ (reference §8, common practice)
+        # shop formula flat 3.40·w·t lb/ft, ρ = 0.2836 lb/in³ (common practice)
         pytest.param("A36", "flat 4in 1in", "12ft", 3.40 * 4 * 1 * 12 * LB, 2e-3, id="A36-flat-shop"),
-        # shop formula hex 2.94·F² lb/ft (reference §8, common practice)
+        # shop formula hex 2.94·F² lb/ft (common practice)
         pytest.param("1045", "hex 2in", "10ft", 2.94 * 2**2 * 10 * LB, 5e-3, id="1045-hex-shop"),
-        # closed form, ρ(6061) = 2.70 g/cm³ (reference §8)
+        # closed form, ρ(6061) = 2.70 g/cm³ (ASM data / producers' sheets)
         pytest.param("6061-T6", "round 100mm", "1m", math.pi / 4 * 0.1**2 * 1 * 2700, 1e-9, id="6061-round-exact"),
     ],
 )  # fmt: skip
@@ -270,8 +270,8 @@ def test_handling_classes_of_bars_and_pieces(catalogue, saw):
     )
     (b,) = plan_of(text, catalogue, saw).bars
     # 450 mm of Ø60 steel is π/4·0.06²·0.45·7850 ≈ 9.99 kg: under the 23 kg load constant,
-    # one person (reference §8, NIOSH LC); the 66.6 kg bar is beyond the ≈35 kg two-person
-    # limit: lift aid (reference §8, common practice).
+    # one person (NIOSH LC, Waters et al. 1993); the 66.6 kg bar is beyond the ≈35 kg two-person
+    # limit: lift aid (common practice).
     assert b.pieces[0].weight_kg == pytest.approx(math.pi / 4 * 0.06**2 * 0.45 * 7850)
     assert b.pieces[0].handling == "one-person"
     assert b.handling == "lift-aid"
@@ -305,14 +305,14 @@ def test_costs_of_a_small_job_by_hand(catalogue, saw):
     assert plan.bars_used == 2
     assert sorted(len(b.pieces) for b in plan.bars) == [1, 4]
     assert plan.cuts == 5  # 4 + 1, no trim, both bars have a tail
-    kg_bar = math.pi / 4 * 0.05**2 * 3 * 7870  # ρ(1018) = 7.87 g/cm³ (reference §8)
+    kg_bar = math.pi / 4 * 0.05**2 * 3 * 7870  # ρ(1018) = 7.87 g/cm³ (ASM data / producers' sheets)
     assert plan.material_cost == pytest.approx(2.0 * kg_bar)  # the remnant is free
     per_cut = recommend(catalogue.get("1018"), parse_section_of("round 50mm"), saw).cut_time_min
     assert plan.total_cut_time_min == pytest.approx(5 * per_cut)
     assert plan.total_handling_time_min == pytest.approx(5 * 0.5)
     assert plan.saw_cost == pytest.approx(60.0 * 5 * (per_cut + 0.5) / 60)
     # blade wear: 5 cuts × π/4·5² cm² over the default mild-steel life 10⁴ in²
-    # (reference §7, memory) = 64,516 cm²
+    # (typical life, from memory) = 64,516 cm²
     area_cm2 = 5 * math.pi / 4 * 5**2
     assert plan.cut_area_cm2 == pytest.approx(area_cm2)
     assert plan.blades_consumed == pytest.approx(area_cm2 / 64_516)

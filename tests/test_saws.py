@@ -51,7 +51,7 @@ def test_packaged_profiles():
     for saw in saws.values():
         assert saw.source == "generic example (memory)"
         assert saw.band_speed_min_m_min < saw.band_speed_max_m_min
-        # memory (reference §5): metal saws run wheel/thickness about 300-450
+        # memory: metal saws run wheel/thickness about 300-450
         assert 300 <= saw.wheel_diameter_mm / saw.blade_thickness_mm <= 450
         assert wheel_ratio_warning(saw.blade_thickness_mm, saw.wheel_diameter_mm) is None
 
@@ -146,7 +146,7 @@ def test_capacity(section, message):
 
 
 def test_bending_stress_worked_case():
-    # reference §5 (derived): 0.9 mm blade on a 300 mm wheel -> about 600-620 MPa
+    # derived (beam theory σ = E·t/D): 0.9 mm blade on a 300 mm wheel -> about 600-620 MPa
     assert 600 <= bending_stress_mpa(0.9, 300) <= 620
     # closed form: E·t/D with E = 200 GPa; the pitch-diameter variant divides by D + t
     assert bending_stress_mpa(0.9, 300) == pytest.approx(200_000 * 0.9 / 300)
@@ -160,7 +160,7 @@ def test_small_wheel_warns():
 
 
 def test_tension_worked_case():
-    # reference §5: 1/2 in x 0.025 in blade at 25 ksi -> 312 lbf
+    # derived (F = σ·w·t, 25 ksi common practice): 1/2 in x 0.025 in at 25 ksi -> 312 lbf
     width = REF.Quantity(0.5, "inch").to("mm").magnitude
     thick = REF.Quantity(0.025, "inch").to("mm").magnitude
     stress = REF.Quantity(25, "ksi").to("MPa").magnitude
@@ -179,13 +179,14 @@ def test_tension_ranges_common_practice():
 
 
 def test_gauge_strain():
-    # reference §5: 30 ksi -> 0.001 in/in (that figure takes E = 30,000 ksi = 207 GPa; ours is 200)
+    # derived (Hooke's law ε = σ/E): 30 ksi -> 0.001 in/in
+    # (that figure takes E = 30,000 ksi = 207 GPa; ours is 200)
     stress = REF.Quantity(30, "ksi").to("MPa").magnitude
     assert gauge_elongation_mm(stress, 1.0) == pytest.approx(0.001, rel=0.04)
 
 
 def test_blade_length_open_belt():
-    # equal wheels: L = 2C + π(D + t) (reference §5)
+    # equal wheels: L = 2C + π(D + t) (open-belt geometry, derived)
     assert blade_length_mm(1000, 400, thickness_mm=0.9) == pytest.approx(2000 + math.pi * 400.9)
     # unequal wheels, by tangent geometry (derived): straight runs + arcs of π ± 2β
     c, d1, d2 = 900.0, 500.0, 300.0
@@ -204,7 +205,7 @@ def test_flex_cycles_and_kerf():
     # wheels · V / L: 2 × 60 m/min over a 3 m band = 40 bends per minute
     assert flex_cycles_per_min(60, 3000) == pytest.approx(40)
     assert flex_cycles_per_min(60, 3000, wheels=3) == pytest.approx(60)
-    # memory (reference §5): kerf 1.5-1.7 × thickness
+    # memory: kerf 1.5-1.7 × thickness
     assert 1.5 * 0.9 <= kerf_mm(0.9) <= 1.7 * 0.9
 
 

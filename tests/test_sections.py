@@ -1,7 +1,7 @@
 """Exact section geometry: areas, chords W(y), bundles and their invariants.
 
 Check values come from closed-form plane geometry (labelled "closed form" or
-"derived" as in the reference file), the sawing reference §1 and §8, and
+"derived"), shop weight formulas for steel (labelled "common practice"), and
 handbook section tables recalled from memory (labelled "memory").
 """
 
@@ -100,10 +100,10 @@ def test_sharp_corner_area_close_to_handbook(
 @pytest.mark.parametrize(
     ("shape", "size_in", "lb_per_ft_per_in2"),
     [
-        # Shop weight formulas for steel, ρ = 0.2836 lb/in³ (reference §8, common practice)
-        pytest.param("round", 2.0, 2.67, id="round 2.67·D² lb/ft (§8 common practice)"),
-        pytest.param("square", 2.0, 3.40, id="square 3.40·s² lb/ft (§8 common practice)"),
-        pytest.param("hex", 2.0, 2.94, id="hex 2.94·F² lb/ft (§8 common practice)"),
+        # Shop weight formulas for steel, ρ = 0.2836 lb/in³ (common practice)
+        pytest.param("round", 2.0, 2.67, id="round 2.67·D² lb/ft (common practice)"),
+        pytest.param("square", 2.0, 3.40, id="square 3.40·s² lb/ft (common practice)"),
+        pytest.param("hex", 2.0, 2.94, id="hex 2.94·F² lb/ft (common practice)"),
     ],
 )
 def test_steel_weight_rule(shape: str, size_in: float, lb_per_ft_per_in2: float) -> None:
@@ -113,7 +113,7 @@ def test_steel_weight_rule(shape: str, size_in: float, lb_per_ft_per_in2: float)
 
 
 def test_flat_weight_and_metric_round_rule() -> None:
-    # flat 3.40·w·t lb/ft (§8 common practice); metric round 0.006165·D² kg/m at 7.85 (§8)
+    # flat 3.40·w·t lb/ft (common practice); metric round 0.006165·D² kg/m at 7.85 (common practice)
     flat = Section("flat", (4 * IN, 1 * IN))
     assert flat.area_mm2 / IN**2 * 12 * 0.2836 == pytest.approx(3.40 * 4 * 1, rel=5e-3)
     d = 60.0
@@ -130,12 +130,12 @@ R_HEX = F / SQ3  # hexagon corner radius (closed form)
 @pytest.mark.parametrize(
     ("section", "y", "expected"),
     [
-        # circle chord 2·sqrt(y(D − y)) (§1, closed form)
+        # circle chord 2·sqrt(y(D − y)) (closed form)
         pytest.param(Section("round", (100.0,)), 0.0, 0.0, id="round top"),
         pytest.param(Section("round", (100.0,)), 10.0, 2 * math.sqrt(10 * 90), id="round y=10"),
         pytest.param(Section("round", (100.0,)), 50.0, 100.0, id="round equator = D"),
         pytest.param(Section("round", (100.0,)), 99.0, 2 * math.sqrt(99 * 1), id="round y=99"),
-        # hexagon on a flat: F/√3 at the top flat, 2F/√3 at mid-height (§1)
+        # hexagon on a flat: F/√3 at the top flat, 2F/√3 at mid-height (closed form)
         pytest.param(Section("hex", (F,)), 0.0, F / SQ3, id="hex flat top F/√3"),
         pytest.param(Section("hex", (F,)), F / 2, 2 * F / SQ3, id="hex flat middle 2F/√3"),
         pytest.param(
@@ -160,7 +160,7 @@ R_HEX = F / SQ3  # hexagon corner radius (closed form)
             Section("octagon", (F,)), 5.0, F * (SQ2 - 1) + 10.0, id="octagon flat near top"
         ),
         pytest.param(Section("octagon", (F,)), F / 2, F, id="octagon flat middle = F"),
-        # tube: outer chord minus inner chord (§1, closed form)
+        # tube: outer chord minus inner chord (closed form)
         pytest.param(
             Section("tube", (100.0, 10.0)), 5.0, 2 * math.sqrt(5 * 95), id="tube above the bore"
         ),
@@ -171,7 +171,7 @@ R_HEX = F / SQ3  # hexagon corner radius (closed form)
             id="tube through the bore",
         ),
         pytest.param(Section("tube", (100.0, 10.0)), 50.0, 20.0, id="tube equator 2t"),
-        # rectangles (§1: W = side parallel to blade travel)
+        # rectangles (closed form: W = side parallel to blade travel)
         pytest.param(Section("flat", (100.0, 25.0)), 12.0, 100.0, id="flat lying: width"),
         pytest.param(Section("flat", (100.0, 25.0), "edge"), 60.0, 25.0, id="flat edge: thickness"),
         pytest.param(Section("rtube", (100.0, 50.0, 4.0)), 2.0, 100.0, id="rtube top wall"),
@@ -231,16 +231,22 @@ def test_chord_closed_form(section: Section, y: float, expected: float) -> None:
     ("section", "height", "max_chord", "mean_chord"),
     [
         pytest.param(
-            Section("round", (100.0,)), 100.0, 100.0, math.pi * 100 / 4, id="round mean πD/4 (§1)"
+            Section("round", (100.0,)),
+            100.0,
+            100.0,
+            math.pi * 100 / 4,
+            id="round mean πD/4 (closed form)",
         ),
         pytest.param(
             Section("tube", (100.0, 10.0)),
             100.0,
             2 * math.sqrt(50**2 - 40**2),  # widest where the blade grazes the bore (derived)
-            math.pi / 4 * (100**2 - 80**2) / 100,  # (π/4)(OD² − ID²)/OD (§1)
+            math.pi / 4 * (100**2 - 80**2) / 100,  # (π/4)(OD² − ID²)/OD (closed form)
             id="tube mean (π/4)(OD²−ID²)/OD",
         ),
-        pytest.param(Section("hex", (F,)), F, 2 * F / SQ3, SQ3 / 2 * F, id="hex on flat (§1)"),
+        pytest.param(
+            Section("hex", (F,)), F, 2 * F / SQ3, SQ3 / 2 * F, id="hex on flat (closed form)"
+        ),
         pytest.param(
             Section("hex", (F,), "corner"),
             2 * F / SQ3,

@@ -3,8 +3,8 @@
 Every test that takes ``log_db`` runs twice: on a SQLite file and on a
 PostgreSQL database (``tests/conftest.py``).  External checks: the rows and
 tables as the engine's own driver reads them (``tests/logrows.py``), SQLite's
-``PRAGMA`` values, closed-form areas (πd²/4), the definitions of censoring
-(reference §7) and of the median (Python's ``statistics``).
+``PRAGMA`` values, closed-form areas (πd²/4), the definitions of right
+censoring (life-data analysis) and of the median (Python's ``statistics``).
 """
 
 from __future__ import annotations
@@ -259,7 +259,7 @@ def test_a_blade_life_is_the_sum_of_its_entries(entries, retire):
 
 
 def test_lives_are_failures_or_censored(db):
-    """Reference §7: retired = failure at its area; fitted or removed unworn = censored."""
+    """Life-data definition: retired = failure at its area; fitted or removed unworn = censored."""
     saw = load_saws()["mid-production"]
     for tag in ("B-1", "B-2", "B-3", "B-4"):
         add_blade(db, spec(tag), added_on="2024-01-01")
@@ -298,6 +298,6 @@ def test_life_for_without_history_gives_the_reference_default(tmp_path):
     basis = life_for(tmp_path / "none.sqlite", "carbon-steel")
     fit, default, *_ = basis
     assert fit is None
-    # reference §7 (memory): mild steel ≈ 10⁴ in²
+    # typical life (memory): mild steel ≈ 10⁴ in²
     assert default.life_cm2 == pytest.approx((1e4 * ureg("inch**2")).to("cm**2").magnitude)
     assert "memory" in default.source and "calibrate" in basis.note

@@ -1,7 +1,7 @@
 """The log read as arrays for the fit of life against band speed.
 
 External checks: the closed-form area of a round (πd²/4), the definition of
-right-censoring (reference §7: a blade not retired is censored) and an
+right-censoring (life-data analysis: a blade not retired is censored) and an
 area-weighted mean worked by hand (derived).
 """
 

@@ -1,9 +1,9 @@
 """Wear curve of one blade: break-in region and end-of-life signs.
 
-Synthetic blades are built to the reference's description: break-in over the
+Synthetic blades are built to the common-practice picture: break-in over the
 first ≈ 300–650 cm² at about half feed, so about twice the time per area
-(reference §6, common practice); then a steady rate; end of life shows as time
-per unit area up 30–50 % (reference §7, common practice).
+(common practice); then a steady rate; end of life shows as time
+per unit area up 30–50 % (common practice).
 """
 
 from __future__ import annotations
@@ -34,8 +34,8 @@ def synthetic_blade(cuts=120, area=50.0, rise_from=None, rise=0.45, outlier_at=N
     return [area] * cuts, times
 
 
-def test_break_in_defaults_sit_in_the_reference_range():
-    # reference §6: break-in over ≈ 300–650 cm²; §7: end-of-life at +30–50 % (common practice)
+def test_break_in_defaults_sit_in_the_common_practice_range():
+    # common practice: break-in over ≈ 300–650 cm²; end-of-life at +30–50 %
     assert 300.0 <= BREAK_IN_CM2 <= 650.0
     assert 0.30 <= RISE_THRESHOLD <= 0.50
 

@@ -2,7 +2,7 @@
 
 Reference values come from scipy.stats (weibull_min, CensoredData, chi2, beta),
 closed-form Weibull quantiles, a published median-rank table (from memory) and
-reference §7 (common practice) for the failure-mode causes.
+common practice (band-saw troubleshooting) for the failure-mode causes.
 """
 
 from __future__ import annotations
@@ -309,8 +309,8 @@ def test_weibull_plot_points_and_line():
 # ---- failure modes --------------------------------------------------------------------
 
 
-def test_failure_mode_table_has_the_reference_modes():
-    # reference §7 table (common practice)
+def test_failure_mode_table_has_the_troubleshooting_modes():
+    # band-saw troubleshooting table (common practice)
     table = failure_modes()
     assert list(table) == [
         "worn-out",  # the normal end of a life: wear, no failure and no causes
@@ -325,7 +325,7 @@ def test_failure_mode_table_has_the_reference_modes():
     assert "heavy feed on entry" in table["stripped"].causes
     assert "over-tension" in table["body-crack"].causes
     assert "worn back-up bearings" in table["back-crack"].causes
-    assert all("§7" in m.source for m in table.values() if m.is_failure)
+    assert all("common practice" in m.source for m in table.values() if m.is_failure)
     assert table["worn-out"].kind == "wear" and table["worn-out"].causes == ()
     assert all(m.kind == "failure" and m.causes for c, m in table.items() if c != "worn-out")
     with pytest.raises(BadDataError):
@@ -353,7 +353,7 @@ def test_early_failure_warning_for_shape_below_one():
     warning = early_failure_warning(fit, modes, fail_lives)
     assert warning is not None
     assert warning.mode == "stripped"
-    assert "new blade not broken in" in warning.causes  # reference §6/§7, common practice
+    assert "new blade not broken in" in warning.causes  # common practice
     assert any("break-in" in c for c in warning.setup_checks)
     assert any("tension" in c for c in warning.setup_checks)
     assert any("guide" in c for c in warning.setup_checks)

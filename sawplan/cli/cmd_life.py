@@ -65,7 +65,7 @@ Examples:
 FORECAST_HELP = """How many blades a job needs: area to cut against blade life.
 
 With enough history the log's Weibull fit is simulated and the count holds
-at --confidence; otherwise a typical life from the reference (memory, low
+at --confidence; otherwise a typical life recalled from memory (low
 confidence) gives area ÷ life, and the answer says so. --lot, --without-lot
 and --supplier choose the blades the life comes from; when a lot that fails
 early holds much of them, the answer says so.

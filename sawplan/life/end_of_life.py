@@ -15,8 +15,8 @@ of, in order of preference:
 2. the censored Weibull fit of all the type's blades, unless it says the type
    fails early (the whole interval of its shape below 1: no normal life to
    compare with);
-3. the reference's typical life of the material group the blade cut most, from
-   half to twice a single figure (memory, low confidence).
+3. a typical life of the material group the blade cut most, from half to twice
+   a single figure (from memory, low confidence).
 
 In the Weibull fit every retired blade is a failure, a worn-out one a failure of
 wear; the failure table and the early-failure analysis count failures only.
@@ -50,7 +50,7 @@ class ExpectedLife:
     low_cm2: float
     high_cm2: float
     basis: Basis
-    blades: int  # blades behind the range (0 for the reference)
+    blades: int  # blades behind the range (0 for a typical life from memory)
     source: str  # where it comes from, in words: "from 6 other blades of this type ..."
 
 
@@ -94,7 +94,7 @@ def expected_from_fit(fit: WeibullFit | WeibullNotFitted | None) -> ExpectedLife
 
 
 def expected_from_reference(low_cm2: float, high_cm2: float, source: str) -> ExpectedLife:
-    """A typical range from the reference (memory, low confidence)."""
+    """A typical range recalled from memory (low confidence)."""
     return ExpectedLife(low_cm2, high_cm2, "reference", 0, source)
 
 

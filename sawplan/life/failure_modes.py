@@ -1,10 +1,10 @@
 """Blade failure modes, their usual causes, and the early-failure warning.
 
 The table lives in ``data/failure_modes.csv`` (code, plain name, kind, usual
-causes, source; reference §7, common practice).  It is the vocabulary of how a
+causes, source; common practice).  It is the vocabulary of how a
 blade's life ends: ``worn-out`` (kind ``wear``: the normal end of a life, no
 causes) and the failures.  A shape β < 1 says blades fail young from set-up
-problems rather than wear (reference §7); the warning then names the most
+problems rather than wear (the usual reading of a Weibull shape); the warning then names the most
 frequent failure mode among the early failures with its usual causes.  Worn-out
 blades are never early failures: callers leave them out (``end_of_life``).
 """
@@ -20,7 +20,7 @@ from sawplan.display import Q, say
 from sawplan.errors import BadDataError
 from sawplan.life.weibull import WeibullFit, WeibullNotFitted
 
-# General set-up checks behind early failures (reference §6 and §7, common practice).
+# General set-up checks behind early failures (common practice).
 SETUP_CHECKS: tuple[str, ...] = (
     say(
         "break-in of each new blade: normal band speed, reduced feed, raised step by step "

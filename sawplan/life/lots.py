@@ -4,7 +4,7 @@ A lot (one supplier's batch of blades) is suspect when
 
 - its Weibull shape interval lies wholly below 1: its blades fail early, which
   points to the lot or to how it was fitted (break-in, tension) rather than to
-  wear (reference §7); or
+  wear (the usual reading of a Weibull shape below 1); or
 - its median life is far below that of the other lots of its blade type: under
   ``FAR_BELOW`` of theirs, with the upper bound of its median's interval below
   their median too, so a few unlucky blades do not name a lot.

@@ -1,11 +1,11 @@
 """Wear curve of one blade: cutting rate against cumulative area cut.
 
-A blade's life has three parts (reference §7, Jia et al. 2024): break-in and
+A blade's life has three parts (Jia et al. 2024, Crystals 14:898): break-in and
 fast initial chipping, a long steady stretch of abrasive wear, then a rapid
 decline.  Here each logged cut (or batch) gives a time per unit area; the
-first ≈ 300–650 cm² are the break-in region (reduced feed, reference §6,
-common practice) and are left out of the steady value; a trailing median
-smooths out one-off slow cuts.  End-of-life signs are flagged when the smoothed
+first ≈ 300–650 cm² are the break-in region (reduced feed, common
+practice) and are left out of the steady value; a trailing median smooths out
+one-off slow cuts.  End-of-life signs are flagged when the smoothed
 time per unit area has risen by ``rise_threshold`` (30–50 %, common practice)
 over the steady value and stays there to the latest cut.
 
@@ -23,7 +23,7 @@ from typing import Literal
 
 from sawplan.errors import BadDataError
 
-BREAK_IN_CM2 = 650.0  # upper end of 300–650 cm² (reference §6, common practice)
+BREAK_IN_CM2 = 650.0  # upper end of 300–650 cm² (common practice)
 RISE_THRESHOLD = 0.30  # 30–50 % slower than steady = end-of-life sign (common practice)
 
 

@@ -2,7 +2,7 @@
 
 A blade still on the saw, or taken off unworn, has a life of *at least* its area
 so far (right-censored); throwing such blades away or counting them as failures
-biases the life low.  The fit is maximum likelihood (reference §7):
+biases the life low.  The fit is maximum likelihood (the standard censored-data likelihood):
 
     log f(x) = ln β − ln η + (β − 1) ln(x/η) − (x/η)^β     (failure at x)
     log S(x) = −(x/η)^β                                     (still alive at x)

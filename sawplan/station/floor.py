@@ -197,7 +197,7 @@ def page_context(
 
 def blade_life(db: Log, blade: Blade, material_group: str | None) -> dict[str, Any]:
     """Area cut against the expected life of such blades (the log's Weibull mean, else the
-    reference's typical life); ``share`` fills the wear bar."""
+    typical life from memory); ``share`` fills the wear bar."""
     expected, source = expected_life(db, material_group)
     share = blade.area_cm2 / expected if expected > 0 else 0.0
     return {"expected_mm2": expected * 100.0, "source": source, "share": share}

@@ -123,10 +123,10 @@ def life_summary(
     end: EndOfLife | None = None,
 ) -> str:
     """One line on the life of a blade that is off the saw: retired (worn out or a failure,
-    as ``end`` judged it) or removed unworn (a censored life, reference §7).
+    as ``end`` judged it) or removed unworn (a right-censored life).
 
     A retired blade whose last cut began inside the break-in area (the first 650 cm²,
-    reference §6, common practice) failed during break-in; when its fittings record no
+    common practice) failed during break-in; when its fittings record no
     break-in and skipping it is a usual cause of its failure mode, the line says so.
     """
     from sawplan.life import failure_modes

@@ -2,7 +2,7 @@
 
 The judgement itself is ``sawplan.life.end_of_life``; this module finds what it
 needs in the log: the lives of the blades of each type retired worn out, the
-censored fit of each type, and the reference's typical range for the material
+censored fit of each type, and the typical range (from memory) for the material
 group a blade cut most (``reports.default_life``).  ``sawplan life``, ``blade
 show`` and ``blade retire`` all judge through ``with_ends``/``retirement``, so
 they agree.
@@ -69,7 +69,7 @@ class ExpectedLives:
     def of(
         self, blade_type: str, material_group: str | None, leave_out: str | None = None
     ) -> ExpectedLife:
-        """The type's expected life, else the reference's typical range for the group."""
+        """The type's expected life, else the typical range for the group (from memory)."""
         from sawplan.life.end_of_life import expected_from_reference
         from sawplan.store.reports import default_life
 
@@ -78,7 +78,7 @@ class ExpectedLives:
             return found
         default = default_life(material_group)
         source = say(
-            "the reference's typical life for {}, recalled from memory: low confidence until "
+            "a typical life for {}, recalled from memory: low confidence until "
             "the log holds 3 other worn-out blades of this type",
             default.material_group,
         )

@@ -5,10 +5,10 @@ This module reads the log (``stats``) and hands plain lists to the pure
 together, which group a blade cut most) and the documented default lives used
 when the log holds too little history.
 
-Default lives (reference §7, **memory**, low confidence — calibrate with your
+Default lives (**from memory**, low confidence — calibrate with your
 own log): mild (carbon) steel ≈ 10⁴ in²; austenitic stainless 2–5 × 10³ in²
 (the middle, 3.5 × 10³ in², is used); nickel alloys ≈ 10³ in².  Other groups
-have no figure in the reference and fall back to the mild-steel life, said so
+have no recalled figure and fall back to the mild-steel life, said so
 in the answer.
 """
 
@@ -36,14 +36,14 @@ FALLBACK_GROUP = "carbon-steel"
 # group -> (life, low, high in in², where the numbers come from); a single figure
 # ("≈ 10⁴ in²") is taken as the range from half to twice it
 DEFAULT_LIVES_IN2: dict[str, tuple[float, float, float, str]] = {
-    "carbon-steel": (1.0e4, 5.0e3, 2.0e4, "reference §7, mild steel ≈ 10⁴ in² (memory)"),
+    "carbon-steel": (1.0e4, 5.0e3, 2.0e4, "typical life, mild steel ≈ 10⁴ in² (from memory)"),
     "austenitic-stainless": (
         3.5e3,
         2.0e3,
         5.0e3,
-        "reference §7, austenitic stainless 2–5 × 10³ in², middle value (memory)",
+        "typical life, austenitic stainless 2–5 × 10³ in², middle value (from memory)",
     ),
-    "nickel-alloy": (1.0e3, 5.0e2, 2.0e3, "reference §7, nickel alloys ≈ 10³ in² (memory)"),
+    "nickel-alloy": (1.0e3, 5.0e2, 2.0e3, "typical life, nickel alloys ≈ 10³ in² (from memory)"),
 }
 
 
@@ -60,7 +60,7 @@ class DefaultLife:
 
 
 def default_life(material_group: str | None) -> DefaultLife:
-    """Reference §7 typical life of a group (memory); other groups take mild steel's."""
+    """Typical life of a group (from memory); other groups take mild steel's."""
     group = material_group or FALLBACK_GROUP
     if group in DEFAULT_LIVES_IN2:
         life_in2, low, high, source = DEFAULT_LIVES_IN2[group]
@@ -69,7 +69,7 @@ def default_life(material_group: str | None) -> DefaultLife:
     return DefaultLife(
         group,
         life_in2 * IN2_CM2,
-        f"no typical life for {group} in the reference; {source} used instead",
+        f"no typical life recalled for {group}; {source} used instead",
         True,
         low * IN2_CM2,
         high * IN2_CM2,
@@ -186,7 +186,7 @@ class LifeBasis(NamedTuple):
     """What a plan should assume about blade life for one material group.
 
     ``fit`` is the group's censored Weibull fit from the log (None when the log
-    cannot give one); ``default`` is the reference §7 typical life to use then.
+    cannot give one); ``default`` is the typical life (from memory) to use then.
     ``warning`` names an early-failing lot that holds much of the blades behind
     the fit, and ``fit_without`` is the fit with that lot left out.
     """

@@ -2,7 +2,7 @@
 
 A blade's life is the area it cut (cm²).  A retired blade is a failure at that
 area; a blade still fitted, or removed unworn, is right-censored: its life is
-at least that area (reference §7).  A blade that has cut nothing and is not
+at least that area (as in any life-data analysis).  A blade that has cut nothing and is not
 retired tells nothing about life and is left out.
 """
 

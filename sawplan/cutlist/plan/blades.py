@@ -22,8 +22,8 @@ def blade_life(
 
     ``life_for`` may return a Weibull fit, or the blade log's answer with
     ``.fit`` and ``.note``; without a usable fit the documented default life of
-    the group is used (``sawplan.store.default_life``: reference §7 typical
-    lives, memory).
+    the group is used (``sawplan.store.default_life``: typical lives recalled
+    from memory).
     """
     from sawplan.store.reports import default_life
 
@@ -72,7 +72,7 @@ def blades_on_hand(
         forecast = forecast_blades(area_cm2, None, deterministic_life_cm2=life_cm2)
         note = (
             "blades on hand: no blade-life fit in the log, so area ÷ default life "
-            "(reference §7 typical lives, memory — calibrate by logging blades)"
+            "(typical lives from memory — calibrate by logging blades)"
         )
     if len(wear) > 1:
         note += f"; groups put on the {ref} scale by mean life"
