@@ -25,6 +25,8 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from damage_kit import outside_check, overwrite, settle  # tests/ (on the pass's path)
+
 Prep = Callable[[Path], None]
 Check = Callable[[Path, str, str], str | None]  # (folder, stdout, stderr) -> what is wrong
 
@@ -68,14 +70,6 @@ def _log(folder: Path) -> Path:
     return folder / "template.sqlite"
 
 
-def settle(log: Path) -> None:
-    conn = sqlite3.connect(log)
-    try:
-        conn.execute("PRAGMA wal_checkpoint(TRUNCATE)")
-    finally:
-        conn.close()
-
-
 def damage_at(offset_fraction: float, length: int, seed: int, name: str = "") -> Prep:
     """Overwrite ``length`` bytes of the log ``name`` (the shop's log when not named; past
     its header) with seeded garbage."""
@@ -86,24 +80,10 @@ def damage_at(offset_fraction: float, length: int, seed: int, name: str = "") ->
         size = log.stat().st_size
         rng = random.Random(seed)
         at = 100 + int((size - 100 - length) * offset_fraction)
-        with log.open("r+b") as handle:
-            handle.seek(at)
-            handle.write(bytes(rng.randrange(256) for _ in range(length)))
-        (folder / ".integrity").write_text(integrity(log), encoding="utf-8")
+        overwrite(log, at, bytes(rng.randrange(256) for _ in range(length)))
+        (folder / ".integrity").write_text(outside_check(log), encoding="utf-8")
 
     return prep
-
-
-def integrity(log: Path) -> str:
-    """SQLite's full check of the damaged file, as the outside judge ("ok" or what it found)."""
-    try:
-        conn = sqlite3.connect(f"file:{log}?mode=ro", uri=True)
-        try:
-            return str(conn.execute("PRAGMA integrity_check").fetchone()[0])
-        finally:
-            conn.close()
-    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:  # a message quoting garbage
-        return str(err)
 
 
 def sql(statement: str) -> Prep:

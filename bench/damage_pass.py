@@ -22,7 +22,6 @@ from __future__ import annotations
 import argparse
 import random
 import shutil
-import sqlite3
 import sys
 import tempfile
 from collections import Counter
@@ -39,23 +38,11 @@ READS = {"blade list": ["blade", "list", "--json"],
 LENGTHS = (1, 4, 20, 64, 512, 4096)
 
 
-def judge(path: Path) -> str:
-    """SQLite's full check from outside sawplan: "ok" or what it found."""
-    try:
-        conn = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
-        try:
-            return str(conn.execute("PRAGMA integrity_check").fetchone()[0])
-        finally:
-            conn.close()
-    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:  # a message quoting garbage
-        return str(err)
-
-
 def damaged_copy(sound: Path, target: Path, offset: int, garbage: bytes) -> Path:
     shutil.copy(sound, target)
-    with target.open("r+b") as handle:
-        handle.seek(offset)
-        handle.write(garbage)
+    from damage_kit import overwrite
+
+    overwrite(target, offset, garbage)
     return target
 
 
@@ -84,7 +71,7 @@ def main() -> None:
             offset = rng.randrange(0, size - length)
             garbage = bytes(rng.randrange(256) for _ in range(length))
             probe = damaged_copy(sound, folder / f"probe{n}.sqlite", offset, garbage)
-            said = judge(probe)
+            said = damage_kit.outside_check(probe)
             detectable = said != "ok"
             tally["detectable" if detectable else "not detectable"] += 1
             for kind, commands in (("write", WRITES), ("read", READS)):

@@ -181,17 +181,9 @@ def _existing_file(target: Target) -> bool:
 
 
 def _kind(mode: int) -> str:
-    if stat.S_ISDIR(mode):
-        return "a folder"
-    if stat.S_ISFIFO(mode):
-        return "a FIFO (named pipe)"
-    if stat.S_ISSOCK(mode):
-        return "a socket"
-    if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
-        return "a device"
-    if stat.S_ISLNK(mode):
-        return "a symbolic link"
-    return "not a regular file"
+    from sawplan.user_files import file_kind
+
+    return file_kind(mode, pipe="a FIFO (named pipe)")
 
 
 def _input_named(path: Path, inputs: Sequence[Input]) -> Input | None:

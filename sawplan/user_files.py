@@ -37,15 +37,18 @@ def size_words(cap: int) -> str:
     return f"{cap} bytes"
 
 
-def _kind(mode: int) -> str:
+def file_kind(mode: int, *, pipe: str = "a pipe") -> str:
+    """What a file that is not a plain file is, in words ("a folder", "a pipe", "a device")."""
     if stat.S_ISDIR(mode):
         return "a folder"
     if stat.S_ISFIFO(mode):
-        return "a pipe"
+        return pipe
     if stat.S_ISCHR(mode) or stat.S_ISBLK(mode):
         return "a device"
     if stat.S_ISSOCK(mode):
         return "a socket"
+    if stat.S_ISLNK(mode):
+        return "a symbolic link"
     return "not a plain file"
 
 
@@ -67,7 +70,7 @@ def open_fd(path: str | os.PathLike[str], field: str, shown: str | None = None) 
     try:
         mode = os.fstat(fd).st_mode
         if not stat.S_ISREG(mode):
-            raise BadDataError(f"{shown} is not a regular file ({_kind(mode)})", field=field)
+            raise BadDataError(f"{shown} is not a regular file ({file_kind(mode)})", field=field)
         if hasattr(os, "set_blocking"):
             os.set_blocking(fd, True)
     except BaseException:

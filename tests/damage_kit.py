@@ -42,6 +42,18 @@ def copy_log(source: Path, target: Path) -> Path:
     return target
 
 
+def outside_check(path: Path) -> str:
+    """SQLite's full check of the file from outside sawplan: "ok" or what it found."""
+    try:
+        conn = sqlite3.connect(f"file:{path}?mode=ro", uri=True)
+        try:
+            return str(conn.execute("PRAGMA integrity_check").fetchone()[0])
+        finally:
+            conn.close()
+    except (sqlite3.DatabaseError, UnicodeDecodeError) as err:  # a message quoting garbage
+        return str(err)
+
+
 def page_size(path: Path) -> int:
     return struct.unpack(">H", path.read_bytes()[16:18])[0]
 

@@ -139,14 +139,9 @@ def _not_special(path: Path) -> Path:
         return path  # not there yet (a new log), or a folder problem said where it is opened
     if stat.S_ISREG(mode) or stat.S_ISDIR(mode):
         return path  # a folder is refused where the log is opened, in its own words
-    kind = (
-        "a pipe"
-        if stat.S_ISFIFO(mode)
-        else "a device"
-        if stat.S_ISCHR(mode) or stat.S_ISBLK(mode)
-        else "not a file"
-    )
-    raise UsageError(f"{path} is {kind}, not a log file", field="db", hint=_HINT)
+    from sawplan.user_files import file_kind
+
+    raise UsageError(f"{path} is {file_kind(mode)}, not a log file", field="db", hint=_HINT)
 
 
 _NETLOC_PASSWORD = re.compile(
