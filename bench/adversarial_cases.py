@@ -25,7 +25,8 @@ from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from damage_kit import outside_check, overwrite, settle  # tests/ (on the pass's path)
+from cli_walk import set_first_cell  # tests/ (on the pass's path)
+from damage_kit import outside_check, overwrite, settle
 
 Prep = Callable[[Path], None]
 Check = Callable[[Path, str, str], str | None]  # (folder, stdout, stderr) -> what is wrong
@@ -126,14 +127,7 @@ def csv_cell(name: str, column: str, cell: str) -> Prep:
     """Set ``column`` of the first row of ``csv-in/NAME.csv``."""
 
     def prep(folder: Path) -> None:
-        path = folder / "csv-in" / f"{name}.csv"
-        with path.open(encoding="utf-8", newline="") as handle:
-            rows = list(csv.DictReader(handle))
-        rows[0][column] = cell
-        with path.open("w", encoding="utf-8", newline="") as handle:
-            writer = csv.DictWriter(handle, list(rows[0]))
-            writer.writeheader()
-            writer.writerows(rows)
+        set_first_cell(folder / "csv-in" / f"{name}.csv", column, cell)
 
     return prep
 

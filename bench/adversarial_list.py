@@ -26,6 +26,7 @@ from adversarial_cases import (
     sql,
     unchanged,
 )
+from cli_walk import argv  # tests/ (on the pass's path)
 
 WRITES = [("log", "cut", "304", "round", "60mm", "--cuts", "2"), ("blade", "add", "Z-1", *BLADE),
           ("saw", "add", "bay 7", "--like", "mid-production"), ("log", "event", "B-017", "teeth-lost"),
@@ -436,19 +437,6 @@ def generated(rng: random.Random, count: int, leaves, baselines) -> list[Attempt
         args = argv(path, command, values_map)
         out.append(Attempt(f"{' '.join(path)} {param.name}={value[:30]!r}", tuple(args)))
     return out
-
-
-def argv(path, command, values) -> list[str]:
-    options, positional = [], []
-    for param in command.params:
-        if param.name not in values:
-            continue
-        value = values[param.name]
-        if param.param_type_name == "option":
-            options += [param.opts[0], str(value)]
-        else:
-            positional += value if isinstance(value, list) else [str(value)]
-    return [*path, *options, "--", *positional] if positional else [*path, *options]
 
 
 def all_attempts(seed: int, total: int, leaves, baselines) -> list[Attempt]:
