@@ -168,7 +168,7 @@ def issue_list() -> list[Attempt]:
         for cmd in (DEMO_WRITES[0], DEMO_WRITES[1], DEMO_READS[0]):
             a.append(Attempt(f"demo log, {name}: {cmd[0]} {cmd[1]}", (*cmd, "--db", "demo.sqlite"),
                              "refuse", prep, area="store"))  # fmt: skip
-    # outputs (being fixed by trust-outputs), bounds (trust-bounds), escapes (trust-escapes)
+    # the other guards of the pass: outputs, bounded work and reads, escapes
     a += [
         Attempt(
             "CR past the CSV formula guard",

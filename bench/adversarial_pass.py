@@ -17,8 +17,9 @@ file-size limit.  Each answer is classified:
   an acceptance of what must be refused, or a wrong value (the attempt's own
   check).
 
-It prints the tally, by area (``store``/``input``: this pass's; ``outputs``,
-``bounds``, ``escapes``: fixed elsewhere) and the list of broke and clumsy
+It prints the tally, by area (``store``: damaged logs; ``input``: values and
+files typed; ``outputs``: files written; ``bounds``: bounded reads and work;
+``escapes``: CSV, Markdown and terminal guards) and the list of broke and clumsy
 attempts.  Exit code 0 always: this is a measurement, not a test.
 """
 

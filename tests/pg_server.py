@@ -11,7 +11,7 @@ as that user through ``runuser``.
 
 Every test run makes its own database with a unique name and drops it at
 the end; each test gets its own schema inside it (a URL whose ``options``
-set the ``search_path``), so helpers testing at the same time never meet.
+set the ``search_path``), so test runs at the same time never meet.
 """
 
 from __future__ import annotations
